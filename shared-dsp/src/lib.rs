@@ -1,0 +1,46 @@
+//! `plethwire-dsp`: the signal-processing core shared by plethwire's firmware
+//! and its host tools.
+//!
+//! The crate is `no_std`, never allocates, and contains no `unsafe` code, so
+//! the very same filter code runs on a Cortex-M microcontroller and on the PC
+//! that checks it.
+//!
+//! * [`design`]: filter design by the bilinear transform with pre-warping
+//!   (Butterworth low-pass, high-pass and band-pass, a mains notch, a DC
+//!   blocker), returning `Result` with the small [`DesignError`] enum.
+//! * [`filter`]: second-order sections and their cascades in `f32`
+//!   ([`filter::Df2t`], [`filter::Df1`] and the low-corner-safe
+//!   [`filter::Delta`] form) and in Q31 fixed point ([`filter::Q31`]) for
+//!   cores without an FPU. Coefficients are kept apart from state, and
+//!   per-sample processing cannot fail.
+//! * [`response`]: magnitude, phase and group delay of a cascade at any
+//!   frequency.
+//!
+//! # Coefficient sign convention
+//! Every section implements
+//! `y[n] = b0·x[n] + b1·x[n−1] + b2·x[n−2] − a1·y[n−1] − a2·y[n−2]`,
+//! i.e. `H(z) = (b0 + b1 z⁻¹ + b2 z⁻²) / (1 + a1 z⁻¹ + a2 z⁻²)`, the same
+//! convention as `scipy.signal` (`sos` rows `[b0, b1, b2, 1, a1, a2]`). CMSIS-DSP
+//! stores a1 and a2 with the opposite sign; convert when exchanging
+//! coefficients with it.
+//!
+//! # Maths library
+//! All transcendental functions go through [`libm`] (a pure-Rust port of
+//! musl's maths library), never through the platform's `f64::sin` and
+//! friends, which do not exist in `no_std` and differ between targets.
+//! `libm` was chosen over `micromath` because it is correctly rounded to
+//! within an ulp (designs match scipy to ~1e-15) while `micromath` trades
+//! accuracy for speed; design runs once, so accuracy wins.
+#![no_std]
+#![forbid(unsafe_code)]
+#![deny(missing_docs)]
+
+#[cfg(feature = "std")]
+extern crate std;
+
+pub mod design;
+pub mod filter;
+pub mod math;
+pub mod response;
+
+pub use design::{Design, DesignError};
