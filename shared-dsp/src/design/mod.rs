@@ -192,7 +192,11 @@ const WARP_FS: f64 = 2.0;
 /// `corner_hz`. Equals `scipy.signal.butter(order, corner_hz, 'lowpass',
 /// fs=fs_hz, output='sos')`. S. Butterworth, "On the theory of filter
 /// amplifiers", Wireless Engineer 7:536–541, 1930.
-pub fn butterworth_lowpass(order: usize, corner_hz: f64, fs_hz: f64) -> Result<Design, DesignError> {
+pub fn butterworth_lowpass(
+    order: usize,
+    corner_hz: f64,
+    fs_hz: f64,
+) -> Result<Design, DesignError> {
     check_rate(fs_hz)?;
     check_order(order)?;
     check_corner(corner_hz, fs_hz)?;
@@ -205,7 +209,11 @@ pub fn butterworth_lowpass(order: usize, corner_hz: f64, fs_hz: f64) -> Result<D
 /// Butterworth high-pass of `order` (1 to 8) with its −3.01 dB corner at
 /// `corner_hz`. Equals `scipy.signal.butter(order, corner_hz, 'highpass',
 /// fs=fs_hz, output='sos')`.
-pub fn butterworth_highpass(order: usize, corner_hz: f64, fs_hz: f64) -> Result<Design, DesignError> {
+pub fn butterworth_highpass(
+    order: usize,
+    corner_hz: f64,
+    fs_hz: f64,
+) -> Result<Design, DesignError> {
     check_rate(fs_hz)?;
     check_order(order)?;
     check_corner(corner_hz, fs_hz)?;

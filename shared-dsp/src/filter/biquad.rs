@@ -44,15 +44,15 @@ impl Real for f64 {
 #[derive(Clone, Copy, Debug, PartialEq, Default)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Biquad<T> {
-    /// Feed-forward coefficient of x[n].
+    /// Feed-forward coefficient of `x[n]`.
     pub b0: T,
-    /// Feed-forward coefficient of x[n−1].
+    /// Feed-forward coefficient of `x[n−1]`.
     pub b1: T,
-    /// Feed-forward coefficient of x[n−2].
+    /// Feed-forward coefficient of `x[n−2]`.
     pub b2: T,
-    /// Feedback coefficient of y[n−1], scipy sign: it is *subtracted*.
+    /// Feedback coefficient of `y[n−1]`, scipy sign: it is *subtracted*.
     pub a1: T,
-    /// Feedback coefficient of y[n−2], scipy sign: it is *subtracted*.
+    /// Feedback coefficient of `y[n−2]`, scipy sign: it is *subtracted*.
     pub a2: T,
 }
 
@@ -121,9 +121,9 @@ pub struct Df1<T = f32>(pub Biquad<T>);
 /// State of a [`Df1`] section: `[x[n−1], x[n−2], y[n−1], y[n−2]]`.
 #[derive(Clone, Copy, Debug, PartialEq, Default)]
 pub struct Df1State<T = f32> {
-    /// x[n−1], x[n−2].
+    /// `x[n−1], x[n−2]`.
     pub x: [T; 2],
-    /// y[n−1], y[n−2].
+    /// `y[n−1], y[n−2]`.
     pub y: [T; 2],
 }
 

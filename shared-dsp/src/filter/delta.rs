@@ -51,13 +51,13 @@ pub struct Delta {
 /// State of a [`Delta`] section.
 #[derive(Clone, Copy, Debug, PartialEq, Default)]
 pub struct DeltaState {
-    /// x[n−1].
+    /// `x[n−1]`.
     pub x1: f32,
-    /// x[n−2].
+    /// `x[n−2]`.
     pub x2: f32,
-    /// y[n−1].
+    /// `y[n−1]`.
     pub y1: f32,
-    /// y[n−1] − y[n−2].
+    /// `y[n−1]` − `y[n−2]`.
     pub d1: f32,
     /// What the last `y[n−1] + d[n]` rounded away.
     pub carry: f32,

@@ -53,9 +53,9 @@ pub struct Q31 {
 /// State of a [`Q31`] section.
 #[derive(Clone, Copy, Debug, PartialEq, Default)]
 pub struct Q31State {
-    /// x[n−1], x[n−2] (Q31).
+    /// `x[n−1], x[n−2]` (Q31).
     pub x: [i32; 2],
-    /// y[n−1], y[n−2] (Q31).
+    /// `y[n−1], y[n−2]` (Q31).
     pub y: [i32; 2],
     /// Bits below the output's LSB left over from the last sample.
     pub carry: i64,

@@ -1,0 +1,218 @@
+//! Parser for the emulated firmware's self-check report.
+//!
+//! The firmware prints numbers as IEEE-754 bit patterns, never as decimal
+//! text, so the comparison with the host is exact and no formatting or
+//! rounding on either side can hide (or invent) a difference. The format:
+//!
+//! ```text
+//! plethwire-emulated selfcheck v1
+//! section <i> <b0> <b1> <b2> <a1> <a2>      (f64 bits, 16 hex digits each)
+//! sample <n> <x> <delta y> <df2t y>          (f32 bits, 8 hex digits each)
+//! end
+//! ```
+//!
+//! The parser is strict: indices must count up from 0, all sections come
+//! before all samples, and `end` must be the last line. A report cut short
+//! by a crash therefore fails to parse instead of comparing fewer numbers.
+
+/// First line of a version-1 report.
+pub const HEADER: &str = "plethwire-emulated selfcheck v1";
+
+/// One designed second-order section, as printed by the firmware.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct SectionBits {
+    /// Bits of `b0, b1, b2, a1, a2` (see [`f64::to_bits`]).
+    pub coefficients: [u64; 5],
+}
+
+impl SectionBits {
+    /// The coefficients `b0, b1, b2, a1, a2` as numbers.
+    pub fn values(&self) -> [f64; 5] {
+        self.coefficients.map(f64::from_bits)
+    }
+}
+
+/// One input sample and both filter structures' outputs for it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct SampleBits {
+    /// Bits of the input `x` (see [`f32::to_bits`]).
+    pub x: u32,
+    /// Bits of the `Delta` cascade's output.
+    pub delta: u32,
+    /// Bits of the `Df2t` cascade's output.
+    pub df2t: u32,
+}
+
+/// A complete, well-formed self-check report.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct SelfCheck {
+    /// Designed sections in cascade order.
+    pub sections: Vec<SectionBits>,
+    /// Samples in time order.
+    pub samples: Vec<SampleBits>,
+}
+
+/// Parse a report; the error names the offending line (1-based) and why.
+pub fn parse(text: &str) -> Result<SelfCheck, String> {
+    let mut lines = text.lines().enumerate().map(|(i, l)| (i + 1, l.trim_end()));
+    match lines.next() {
+        Some((_, HEADER)) => {}
+        Some((_, other)) => return Err(format!("line 1: expected {HEADER:?}, got {other:?}")),
+        None => return Err("empty report".into()),
+    }
+    let mut report = SelfCheck::default();
+    let mut ended = false;
+    for (no, line) in lines {
+        let at = |why: String| format!("line {no}: {why} in {line:?}");
+        if ended {
+            return Err(at("text after `end`".into()));
+        }
+        let mut fields = line.split(' ');
+        match fields.next() {
+            Some("section") => {
+                if !report.samples.is_empty() {
+                    return Err(at("section after the first sample".into()));
+                }
+                expect_index(fields.next(), report.sections.len()).map_err(at)?;
+                let mut coefficients = [0u64; 5];
+                for c in &mut coefficients {
+                    *c = hex_field(fields.next(), 16).map_err(at)?;
+                }
+                no_more(fields).map_err(at)?;
+                report.sections.push(SectionBits { coefficients });
+            }
+            Some("sample") => {
+                expect_index(fields.next(), report.samples.len()).map_err(at)?;
+                let mut bits = [0u32; 3];
+                for b in &mut bits {
+                    // 8 hex digits always fit in u32.
+                    *b = hex_field(fields.next(), 8).map_err(at)? as u32;
+                }
+                no_more(fields).map_err(at)?;
+                let [x, delta, df2t] = bits;
+                report.samples.push(SampleBits { x, delta, df2t });
+            }
+            Some("end") => {
+                no_more(fields).map_err(at)?;
+                ended = true;
+            }
+            _ => return Err(at("unknown record".into())),
+        }
+    }
+    if !ended {
+        return Err("report has no `end` line (firmware stopped early?)".into());
+    }
+    Ok(report)
+}
+
+/// Check that an index field is the decimal number `expected`.
+fn expect_index(field: Option<&str>, expected: usize) -> Result<(), String> {
+    let field = field.ok_or("missing index")?;
+    match field.parse::<usize>() {
+        Ok(i) if i == expected => Ok(()),
+        _ => Err(format!("index {field:?} where {expected} was due")),
+    }
+}
+
+/// Parse exactly `digits` lowercase hex digits.
+fn hex_field(field: Option<&str>, digits: usize) -> Result<u64, String> {
+    let field = field.ok_or("missing value")?;
+    let well_formed = field.len() == digits
+        && field
+            .bytes()
+            .all(|b| b.is_ascii_digit() || (b'a'..=b'f').contains(&b));
+    if !well_formed {
+        return Err(format!("{field:?} is not {digits} lowercase hex digits"));
+    }
+    u64::from_str_radix(field, 16).map_err(|e| e.to_string())
+}
+
+/// Reject trailing fields.
+fn no_more<'a>(mut fields: impl Iterator<Item = &'a str>) -> Result<(), String> {
+    match fields.next() {
+        None => Ok(()),
+        Some(extra) => Err(format!("unexpected extra field {extra:?}")),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const GOOD: &str = "plethwire-emulated selfcheck v1\n\
+        section 0 3ff0000000000000 0000000000000000 bff0000000000000 c000000000000000 3fe0000000000000\n\
+        sample 0 3f000000 3f800000 bf800000\n\
+        sample 1 00000001 80000000 7fc00000\n\
+        end\n";
+
+    #[test]
+    fn parses_a_well_formed_report() {
+        let r = parse(GOOD).unwrap();
+        assert_eq!(r.sections.len(), 1);
+        assert_eq!(r.sections[0].values(), [1.0, 0.0, -1.0, -2.0, 0.5]);
+        assert_eq!(
+            r.samples,
+            vec![
+                SampleBits {
+                    x: 0x3f00_0000,
+                    delta: 0x3f80_0000,
+                    df2t: 0xbf80_0000
+                },
+                SampleBits {
+                    x: 1,
+                    delta: 0x8000_0000,
+                    df2t: 0x7fc0_0000
+                },
+            ]
+        );
+    }
+
+    #[test]
+    fn rejects_a_truncated_report() {
+        let cut = GOOD.replace("end\n", "");
+        assert!(parse(&cut).unwrap_err().contains("no `end`"));
+    }
+
+    #[test]
+    fn rejects_a_wrong_header() {
+        let other = GOOD.replace("v1", "v2");
+        assert!(parse(&other).unwrap_err().starts_with("line 1"));
+        assert!(parse("").is_err());
+    }
+
+    #[test]
+    fn rejects_skipped_or_repeated_indices() {
+        let skipped = GOOD.replace("sample 1 ", "sample 2 ");
+        assert!(parse(&skipped).unwrap_err().contains("line 4"));
+        let repeated = GOOD.replace("sample 1 ", "sample 0 ");
+        assert!(parse(&repeated).is_err());
+    }
+
+    #[test]
+    fn rejects_malformed_numbers() {
+        // Upper case, short, and too many fields are all format drift.
+        for bad in [
+            GOOD.replace("3f000000", "3F000000"),
+            GOOD.replace("3f000000", "3f00000"),
+            GOOD.replace("bf800000\n", "bf800000 00000000\n"),
+            GOOD.replace("section 0 3ff0000000000000", "section 0 3ff00000"),
+        ] {
+            assert!(parse(&bad).is_err(), "accepted:\n{bad}");
+        }
+    }
+
+    #[test]
+    fn rejects_misordered_or_trailing_records() {
+        let late_section = GOOD.replace(
+            "end\n",
+            "section 1 0000000000000000 0000000000000000 0000000000000000 0000000000000000 0000000000000000\nend\n",
+        );
+        assert!(parse(&late_section)
+            .unwrap_err()
+            .contains("after the first sample"));
+        let trailing = format!("{GOOD}sample 2 00000000 00000000 00000000\n");
+        assert!(parse(&trailing).unwrap_err().contains("after `end`"));
+        let noise = GOOD.replace("end\n", "hello\nend\n");
+        assert!(parse(&noise).unwrap_err().contains("unknown record"));
+    }
+}
