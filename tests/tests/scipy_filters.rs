@@ -154,6 +154,7 @@ fn designs_outputs_and_responses_match_scipy() {
     let mut worst_coeff = 0.0f64;
     let mut worst_f32 = 0.0f64;
     let mut worst_f64 = 0.0f64;
+    let mut worst_df2t_f32: std::collections::BTreeMap<String, (f64, f64)> = Default::default();
     let mut failures = Vec::new();
     for (c, r) in cases.iter().zip(&answer.cases) {
         assert_eq!(c.id, r.id);
@@ -200,6 +201,12 @@ fn designs_outputs_and_responses_match_scipy() {
                 "{label}: f32 Delta cascade differs from scipy.signal.sosfilt by {e32:.2e} of the signal (limit {limit:.0e})"
             ));
         }
+        // For the record (docs/filters.md): the plain f32 DF2T on the same case.
+        let yt = run::<Df2t, f32, 8>(&d, &x32);
+        let et = max_abs(yt.iter().zip(&r.y).map(|(a, b)| *a as f64 - b)) / scale;
+        let slot = worst_df2t_f32.entry(format!("{}", c.fs)).or_insert((0.0, 0.0));
+        slot.0 = slot.0.max(e32);
+        slot.1 = slot.1.max(et);
         // The textbook structures in double precision must agree with
         // sosfilt to rounding; this checks their arithmetic.
         for (name, y) in [
@@ -240,6 +247,10 @@ fn designs_outputs_and_responses_match_scipy() {
         "{} cases: worst coefficient difference {worst_coeff:.1e} (relative), worst f32 output difference {worst_f32:.1e}, worst f64 output difference {worst_f64:.1e} (of the signal)",
         cases.len()
     );
+    for fs in RATES {
+        let (delta, df2t) = worst_df2t_f32[&format!("{fs}")];
+        eprintln!("fs {fs:>6} Hz: worst f32 Delta {delta:.1e}, worst f32 Df2t {df2t:.1e}");
+    }
     assert!(
         failures.is_empty(),
         "{} mismatches against scipy.signal:\n{}",
