@@ -197,13 +197,7 @@ pub fn butterworth_lowpass(
     corner_hz: f64,
     fs_hz: f64,
 ) -> Result<Design, DesignError> {
-    check_rate(fs_hz)?;
-    check_order(order)?;
-    check_corner(corner_hz, fs_hz)?;
-    let zpk = Zpk::butterworth_prototype(order)
-        .lowpass(warp(corner_hz, fs_hz))
-        .bilinear(WARP_FS);
-    Design::from_zpk(&zpk)
+    butterworth_one_corner(order, corner_hz, fs_hz, Zpk::lowpass)
 }
 
 /// Butterworth high-pass of `order` (1 to 8) with its −3.01 dB corner at
@@ -214,13 +208,21 @@ pub fn butterworth_highpass(
     corner_hz: f64,
     fs_hz: f64,
 ) -> Result<Design, DesignError> {
+    butterworth_one_corner(order, corner_hz, fs_hz, Zpk::highpass)
+}
+
+/// Checks, prototype, frequency transformation `to_corner`, bilinear.
+fn butterworth_one_corner(
+    order: usize,
+    corner_hz: f64,
+    fs_hz: f64,
+    to_corner: fn(&Zpk, f64) -> Zpk,
+) -> Result<Design, DesignError> {
     check_rate(fs_hz)?;
     check_order(order)?;
     check_corner(corner_hz, fs_hz)?;
-    let zpk = Zpk::butterworth_prototype(order)
-        .highpass(warp(corner_hz, fs_hz))
-        .bilinear(WARP_FS);
-    Design::from_zpk(&zpk)
+    let analog = to_corner(&Zpk::butterworth_prototype(order), warp(corner_hz, fs_hz));
+    Design::from_zpk(&analog.bilinear(WARP_FS))
 }
 
 /// Butterworth band-pass from a low-pass prototype of `order` (1 to 8; the

@@ -37,26 +37,23 @@ pub trait Sample: Copy + Default + PartialEq + core::fmt::Debug {
     fn sanitize(self) -> Self;
 }
 
-impl Sample for f32 {
-    #[inline]
-    fn sanitize(self) -> Self {
-        if self.is_finite() {
-            self.clamp(-1e18, 1e18)
-        } else {
-            0.0
+// Floats: NaN and infinities become 0, magnitudes are limited.
+macro_rules! float_sample {
+    ($($t:ty),*) => {$(
+        impl Sample for $t {
+            #[inline]
+            fn sanitize(self) -> Self {
+                if self.is_finite() {
+                    self.clamp(-1e18, 1e18)
+                } else {
+                    0.0
+                }
+            }
         }
-    }
+    )*};
 }
-impl Sample for f64 {
-    #[inline]
-    fn sanitize(self) -> Self {
-        if self.is_finite() {
-            self.clamp(-1e18, 1e18)
-        } else {
-            0.0
-        }
-    }
-}
+float_sample!(f32, f64);
+
 impl Sample for i32 {
     #[inline]
     fn sanitize(self) -> Self {
