@@ -15,6 +15,8 @@
 //!   per-sample processing cannot fail.
 //! * [`response`]: magnitude, phase and group delay of a cascade at any
 //!   frequency.
+//! * [`hrv`]: time-domain heart-rate variability (SDNN, RMSSD, NN50, pNN50)
+//!   over a slice of intervals or a fixed-capacity sliding window.
 //!
 //! # Coefficient sign convention
 //! Every section implements
@@ -40,7 +42,9 @@ extern crate std;
 
 pub mod design;
 pub mod filter;
+pub mod hrv;
 pub mod math;
+pub mod pipeline;
 pub mod response;
 
 pub use design::{Design, DesignError};

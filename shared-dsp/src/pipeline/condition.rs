@@ -1,0 +1,146 @@
+//! Input conditioning: reject what is not a number, mark what is clipped.
+
+/// How the ADC's rails are known.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Rails {
+    /// The input range is known: samples at or beyond it are clipped.
+    Known {
+        /// Lowest value the ADC can give, input units.
+        low: f32,
+        /// Highest value the ADC can give, input units.
+        high: f32,
+    },
+    /// Unknown: a sample is clipped when it repeats the highest (or lowest)
+    /// value seen so far for at least [`PLATEAU_S`] (a flat top at an
+    /// extreme is how a saturated front end looks).
+    Auto,
+}
+
+/// Shortest flat run at an extreme that counts as clipping, seconds.
+pub const PLATEAU_S: f32 = 0.02;
+
+/// What conditioning made of one sample.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Conditioned {
+    /// The value to filter (the last good value when the input was not
+    /// finite).
+    pub value: f32,
+    /// The input was not finite and was replaced.
+    pub rejected: bool,
+    /// The sample is at the rails.
+    pub clipped: bool,
+}
+
+/// Conditioning state.
+#[derive(Clone, Copy, Debug)]
+pub struct Conditioner {
+    rails: Rails,
+    plateau: u32,
+    last: f32,
+    seen: bool,
+    max: f32,
+    min: f32,
+    run: u32,
+    rejected: u64,
+    clipped: u64,
+}
+
+impl Conditioner {
+    /// Conditioning for `rails` at `fs_hz`.
+    pub fn new(rails: Rails, fs_hz: f32) -> Self {
+        Self {
+            rails,
+            plateau: (libm::ceilf(PLATEAU_S * fs_hz) as u32).max(3),
+            last: 0.0,
+            seen: false,
+            max: f32::NEG_INFINITY,
+            min: f32::INFINITY,
+            run: 0,
+            rejected: 0,
+            clipped: 0,
+        }
+    }
+
+    /// Condition one sample.
+    pub fn push(&mut self, x: f32) -> Conditioned {
+        if !x.is_finite() {
+            self.rejected += 1;
+            return Conditioned {
+                value: self.last,
+                rejected: true,
+                clipped: false,
+            };
+        }
+        let clipped = match self.rails {
+            Rails::Known { low, high } => x <= low || x >= high,
+            Rails::Auto => {
+                self.max = self.max.max(x);
+                self.min = self.min.min(x);
+                let at_extreme = x == self.max || x == self.min;
+                self.run = if self.seen && x == self.last && at_extreme {
+                    self.run + 1
+                } else {
+                    1
+                };
+                at_extreme && self.run >= self.plateau
+            }
+        };
+        self.last = x;
+        self.seen = true;
+        if clipped {
+            self.clipped += 1;
+        }
+        Conditioned {
+            value: x,
+            rejected: false,
+            clipped,
+        }
+    }
+
+    /// Non-finite samples rejected so far.
+    pub fn rejected(&self) -> u64 {
+        self.rejected
+    }
+
+    /// Samples marked clipped so far.
+    pub fn clipped(&self) -> u64 {
+        self.clipped
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn non_finite_samples_are_replaced_and_counted() {
+        let mut c = Conditioner::new(Rails::Auto, 100.0);
+        c.push(1.5);
+        let r = c.push(f32::NAN);
+        assert!(r.rejected && r.value == 1.5);
+        c.push(f32::INFINITY);
+        assert_eq!(c.rejected(), 2);
+    }
+
+    #[test]
+    fn known_rails_mark_samples_at_or_beyond() {
+        let mut c = Conditioner::new(
+            Rails::Known {
+                low: 0.0,
+                high: 1.0,
+            },
+            100.0,
+        );
+        assert!(c.push(1.0).clipped && c.push(-0.1).clipped && !c.push(0.5).clipped);
+    }
+
+    #[test]
+    fn a_flat_top_at_the_maximum_is_clipping_but_a_short_repeat_is_not() {
+        let mut c = Conditioner::new(Rails::Auto, 300.0); // plateau: 6 samples
+        for v in [0.0, 1.0, 2.0, 2.0, 2.0, 1.0] {
+            assert!(!c.push(v).clipped);
+        }
+        let flags: [bool; 8] = core::array::from_fn(|_| c.push(2.0).clipped);
+        assert_eq!(flags, [false, false, false, false, false, true, true, true]);
+    }
+}

@@ -1,0 +1,122 @@
+//! Systolic peaks by two event-related moving averages.
+//!
+//! M. Elgendi, I. Norton, M. Brearley, D. Abbott, D. Schuurmans, "Systolic
+//! peak detection in acceleration photoplethysmograms measured from
+//! emergency responders in tropical conditions", PLoS ONE 8(10):e76585,
+//! 2013. The band-passed signal (0.5–8 Hz) has its negative part clipped
+//! and is squared; a short moving average (W1 ≈ 111 ms, the systolic peak's
+//! width) is compared with a long one (W2 ≈ 667 ms, a beat's width) plus an
+//! offset α = β·mean(squared signal), β = 0.02. Where the short average is
+//! above, a "block of interest" opens; blocks at least W1 wide hold one
+//! systolic peak, the block's maximum.
+//!
+//! The paper's averages are centred. Run causally here, both are centred on
+//! the sample `D = (W2 − 1)/2` ago, so the method is unchanged and the event
+//! comes `D` samples (≈ 333 ms) plus the rest of the block after the peak.
+//! The mean of the squared signal, global in the paper, is a running
+//! average here (time constant [`OFFSET_MEAN_TAU_S`]) so the offset follows
+//! slow changes in perfusion.
+
+use super::ring::{Ring, RunningSum};
+use super::Candidate;
+
+/// W1, seconds (Elgendi et al. 2013).
+pub const W1_S: f32 = 0.111;
+/// W2, seconds (Elgendi et al. 2013).
+pub const W2_S: f32 = 0.667;
+/// β, the offset as a fraction of the mean squared signal (Elgendi et al. 2013).
+pub const BETA: f32 = 0.02;
+/// Time constant of the running mean that stands in for the paper's global
+/// mean of the squared signal, seconds (our choice).
+pub const OFFSET_MEAN_TAU_S: f32 = 10.0;
+
+const RING: usize = 256;
+
+/// Causal Elgendi detector state, at the detector's rate.
+#[derive(Clone, Debug)]
+pub struct Elgendi {
+    h1: usize,
+    w1: usize,
+    w2: usize,
+    delay: usize,
+    squared: Ring<RING>,
+    filtered: Ring<RING>,
+    short_sum: RunningSum,
+    long_sum: RunningSum,
+    mean_sq: f32,
+    mean_alpha: f32,
+    t: u64,
+    block_len: usize,
+    best: f32,
+    best_t: u64,
+}
+
+impl Elgendi {
+    /// A detector running at `fs_hz` (at most ~250 Hz: the rings hold W2).
+    pub fn new(fs_hz: f32) -> Self {
+        let h1 = libm::roundf(W1_S * fs_hz / 2.0).max(1.0) as usize;
+        let h2 = libm::roundf(W2_S * fs_hz / 2.0).max(2.0) as usize;
+        let h2 = h2.min((RING - 2) / 2);
+        Self {
+            h1,
+            w1: 2 * h1 + 1,
+            w2: 2 * h2 + 1,
+            delay: h2,
+            squared: Ring::new(),
+            filtered: Ring::new(),
+            short_sum: RunningSum::default(),
+            long_sum: RunningSum::default(),
+            mean_sq: 0.0,
+            mean_alpha: 1.0 / (OFFSET_MEAN_TAU_S * fs_hz).max(1.0),
+            t: 0,
+            block_len: 0,
+            best: f32::NEG_INFINITY,
+            best_t: 0,
+        }
+    }
+
+    /// Samples between a peak and the earliest moment it can be reported.
+    pub fn delay(&self) -> usize {
+        self.delay
+    }
+
+    /// Feed one band-passed sample; returns a beat once its block closes.
+    pub fn push(&mut self, y: f32) -> Option<Candidate> {
+        let clipped = y.max(0.0);
+        let z = clipped * clipped;
+        self.squared.push(z);
+        self.filtered.push(y);
+        self.mean_sq += self.mean_alpha * (z - self.mean_sq);
+        // Long window: the last W2 samples, centred on age D.
+        self.long_sum.add(z);
+        self.long_sum.add(-self.squared.at(self.w2));
+        // Short window: W1 samples centred on age D.
+        self.short_sum.add(self.squared.at(self.delay - self.h1));
+        self.short_sum
+            .add(-self.squared.at(self.delay + self.h1 + 1));
+        self.t += 1;
+        let ma_peak = self.short_sum.get() / self.w1 as f32;
+        let ma_beat = self.long_sum.get() / self.w2 as f32;
+        let threshold = ma_beat + BETA * self.mean_sq;
+        let centre_t = (self.t - 1).checked_sub(self.delay as u64)?;
+        if ma_peak > threshold {
+            let v = self.filtered.at(self.delay);
+            if self.block_len == 0 || v > self.best {
+                self.best = v;
+                self.best_t = centre_t;
+            }
+            self.block_len += 1;
+            None
+        } else if self.block_len > 0 {
+            let wide_enough = self.block_len >= self.w1;
+            self.block_len = 0;
+            wide_enough.then_some(Candidate {
+                peak: self.best_t,
+                onset: None,
+                amplitude: self.best,
+            })
+        } else {
+            None
+        }
+    }
+}

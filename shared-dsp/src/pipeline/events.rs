@@ -1,0 +1,106 @@
+//! What the pipeline reports: beats and changes of signal state.
+
+/// Reasons a beat is not trusted, as bits.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default, Hash)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct BeatFlags(pub u8);
+
+impl BeatFlags {
+    /// No previous beat, so no interval (the first beat, or the first after
+    /// the signal came back).
+    pub const NO_INTERVAL: u8 = 1 << 0;
+    /// The interval is outside 30–220 bpm, or far from the recent median
+    /// (an ectopic beat, a missed or an extra detection).
+    pub const IMPLAUSIBLE_INTERVAL: u8 = 1 << 1;
+    /// Samples at the ADC rails within the beat.
+    pub const CLIPPED: u8 = 1 << 2;
+    /// The pulse shape correlates poorly with the running template.
+    pub const LOW_CORRELATION: u8 = 1 << 3;
+    /// Non-finite input samples were replaced within the beat.
+    pub const INPUT_REJECTED: u8 = 1 << 4;
+
+    /// Flags that make a beat unfit for heart rate and HRV.
+    pub const BAD: u8 =
+        Self::IMPLAUSIBLE_INTERVAL | Self::CLIPPED | Self::LOW_CORRELATION | Self::INPUT_REJECTED;
+
+    /// Is flag `bit` set?
+    pub fn has(self, bit: u8) -> bool {
+        self.0 & bit != 0
+    }
+
+    /// Fit for heart rate and HRV (no flag in [`Self::BAD`]; a missing
+    /// interval alone does not make a beat bad).
+    pub fn is_good(self) -> bool {
+        self.0 & Self::BAD == 0
+    }
+}
+
+/// One detected beat.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct BeatEvent {
+    /// Input sample index of the systolic peak.
+    pub peak_index: u64,
+    /// Input sample index of the pulse onset, when the detector finds one.
+    pub onset_index: Option<u64>,
+    /// Input sample index at which the event was emitted (the sample whose
+    /// `push` returned it); `emitted_at − peak_index` is the latency.
+    pub emitted_at: u64,
+    /// Interval from the previous beat's peak, ms.
+    pub ibi_ms: Option<f32>,
+    /// Instantaneous heart rate, 60000 / IBI, bpm.
+    pub hr_bpm: Option<f32>,
+    /// Smoothed heart rate: 60000 / median of the good intervals in the
+    /// last [`super::Options::hr_window_s`], bpm.
+    pub hr_smoothed_bpm: Option<f32>,
+    /// Pulse amplitude on the band-passed signal (input units).
+    pub amplitude: f32,
+    /// Correlation of this pulse with the running template, 0 to 1.
+    pub quality: f32,
+    /// Why the beat is not trusted, if at all.
+    pub flags: BeatFlags,
+}
+
+/// The signal's condition.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum SignalState {
+    /// Start-up: no verdict yet.
+    Acquiring,
+    /// Beats are being found and trusted ("signal back" after any other).
+    Good,
+    /// No pulse: finger off, LED off, or a flat line.
+    NoSignal,
+    /// Much of the signal sits at the ADC rails.
+    Saturated,
+    /// Beats are found but most are not trusted (motion, artefact).
+    Noisy,
+}
+
+/// A change of [`SignalState`].
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct StateEvent {
+    /// The new state.
+    pub state: SignalState,
+    /// The state before.
+    pub previous: SignalState,
+    /// Input sample index at which the change was decided.
+    pub at: u64,
+}
+
+/// What one call to [`super::Pipeline::push`] produced.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct Output {
+    /// A beat, if one was completed.
+    pub beat: Option<BeatEvent>,
+    /// A state change, if one happened.
+    pub state: Option<StateEvent>,
+}
+
+impl Output {
+    /// Nothing to report?
+    pub fn is_empty(&self) -> bool {
+        self.beat.is_none() && self.state.is_none()
+    }
+}

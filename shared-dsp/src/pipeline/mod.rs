@@ -1,0 +1,432 @@
+//! The streaming beat pipeline: one sample in, at most one beat and one
+//! state change out.
+//!
+//! Stages, all causal, with fixed memory and bounded work per sample:
+//! input conditioning ([`condition`]: non-finite samples replaced and
+//! counted, samples at the ADC rails marked) → band-pass (Butterworth,
+//! 0.5–8 Hz, order 2, [`crate::filter::Delta`] sections settled on the first
+//! sample so a DC offset does not ring) → decimation to the detector's rate
+//! (at most 250 Hz; the band is far below) → beat detector
+//! ([`Elgendi`] or [`Zong`]) → peak placed on the lightly smoothed signal →
+//! interval, heart rate, per-beat quality ([`quality`]) → signal state
+//! ([`state`]).
+//!
+//! ```
+//! use plethwire_dsp::pipeline::{Config, Pipeline};
+//! let mut p = Pipeline::new(Config::new(100.0))?;
+//! for n in 0..1000 {
+//!     let t = n as f32 / 100.0;
+//!     let out = p.push(libm::sinf(2.0 * core::f32::consts::PI * 1.2 * t));
+//!     if let Some(beat) = out.beat {
+//!         assert!(beat.peak_index <= beat.emitted_at);
+//!     }
+//! }
+//! # Ok::<(), plethwire_dsp::DesignError>(())
+//! ```
+
+pub mod condition;
+mod elgendi;
+pub mod events;
+pub mod quality;
+pub mod rate;
+mod ring;
+pub mod state;
+mod zong;
+
+pub use condition::Rails;
+pub use elgendi::Elgendi;
+pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
+pub use ring::{Ring, RunningSum};
+pub use zong::Zong;
+
+use crate::design::{butterworth_bandpass, butterworth_lowpass};
+use crate::filter::{Cascade, Delta};
+use crate::DesignError;
+use condition::Conditioner;
+use quality::{Shape, Template};
+use rate::Intervals;
+use state::Monitor;
+
+/// Lowest input sample rate accepted, Hz (a phone camera's rate).
+pub const MIN_RATE_HZ: f32 = 25.0;
+/// Highest input sample rate accepted, Hz.
+pub const MAX_RATE_HZ: f32 = 1000.0;
+/// The detector runs at the input rate divided by `floor(fs / 125)`, so at
+/// 125 to 250 Hz (or the input rate when lower).
+pub const DETECTOR_BASE_HZ: f32 = 125.0;
+
+/// Detector-rate samples kept for pulse shapes and clipping marks.
+const SHAPE_RING: usize = 512;
+
+/// A detected beat before bookkeeping, at the detector's rate.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Candidate {
+    /// Detector-rate index of the systolic peak.
+    pub peak: u64,
+    /// Detector-rate index of the pulse onset, for detectors that find it.
+    pub onset: Option<u64>,
+    /// Band-passed amplitude at the peak.
+    pub amplitude: f32,
+}
+
+/// Which published beat detector runs.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum DetectorKind {
+    /// Elgendi et al. 2013, two event-related moving averages (the default:
+    /// it scores best on the shared recordings, see docs/accuracy.md).
+    #[default]
+    Elgendi,
+    /// Zong et al. 2003, slope sum function; also gives the pulse onset.
+    Zong,
+}
+
+/// Settings with defaults a sensor builder rarely needs to change.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Options {
+    /// The beat detector.
+    pub detector: DetectorKind,
+    /// Band-pass lower edge, Hz.
+    pub band_low_hz: f32,
+    /// Band-pass upper edge, Hz.
+    pub band_high_hz: f32,
+    /// ADC rails, if known (`None`: detect flat tops at the extremes).
+    pub rails: Option<(f32, f32)>,
+    /// Window of the smoothed heart rate, seconds.
+    pub hr_window_s: f32,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Self {
+            detector: DetectorKind::Elgendi,
+            band_low_hz: 0.5,
+            band_high_hz: 8.0,
+            rails: None,
+            hr_window_s: 12.0,
+        }
+    }
+}
+
+/// Pipeline configuration: the sample rate and the options.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Config {
+    /// Input sample rate, 25 to 1000 Hz.
+    pub sample_rate_hz: f32,
+    /// Everything else.
+    pub options: Options,
+}
+
+impl Config {
+    /// Defaults for input at `sample_rate_hz`.
+    pub fn new(sample_rate_hz: f32) -> Self {
+        Self {
+            sample_rate_hz,
+            options: Options::default(),
+        }
+    }
+}
+
+// No allocation in this crate, so the detectors live inline; the size
+// difference (a few hundred bytes) does not matter next to the rings.
+#[allow(clippy::large_enum_variant)]
+#[derive(Clone, Debug)]
+enum Detector {
+    Elgendi(Elgendi),
+    Zong(Zong),
+}
+
+impl Detector {
+    fn push(&mut self, y: f32) -> Option<Candidate> {
+        match self {
+            Self::Elgendi(d) => d.push(y),
+            Self::Zong(d) => d.push(y),
+        }
+    }
+}
+
+/// The streaming pipeline.
+#[derive(Clone, Debug)]
+pub struct Pipeline {
+    config: Config,
+    fs: f32,
+    fd: f32,
+    decim: u32,
+    phase: u32,
+    conditioner: Conditioner,
+    band: Cascade<Delta, 2>,
+    smooth: Cascade<Delta, 1>,
+    smoothed: Ring<SHAPE_RING>,
+    banded: Ring<SHAPE_RING>,
+    marks: Ring<SHAPE_RING>,
+    mark: f32,
+    detector: Detector,
+    search_before: usize,
+    search_after: usize,
+    template: Template,
+    intervals: Intervals,
+    monitor: Monitor,
+    n: u64,
+    t: u64,
+    started: bool,
+    last_peak: Option<u64>,
+    last_value: f32,
+}
+
+const MARK_CLIPPED: f32 = 1.0;
+const MARK_REJECTED: f32 = 2.0;
+
+impl Pipeline {
+    /// A pipeline for `config`; refuses rates outside 25 to 1000 Hz and
+    /// bands the design refuses.
+    pub fn new(config: Config) -> Result<Self, DesignError> {
+        let fs = config.sample_rate_hz;
+        if !(MIN_RATE_HZ..=MAX_RATE_HZ).contains(&fs) {
+            return Err(DesignError::InvalidSampleRate);
+        }
+        let o = &config.options;
+        if !(o.hr_window_s.is_finite() && o.hr_window_s > 0.0) {
+            return Err(DesignError::NonPositiveCorner);
+        }
+        let decim = libm::floorf(fs / DETECTOR_BASE_HZ).max(1.0) as u32;
+        let fd = fs / decim as f32;
+        let fs64 = fs as f64;
+        let band = butterworth_bandpass(2, o.band_low_hz as f64, o.band_high_hz as f64, fs64)?
+            .cascade()?;
+        // Light smoothing for placing the peak: keeps the pulse's shape,
+        // removes ADC noise and up-sampling steps.
+        let smooth = butterworth_lowpass(2, 10.0_f64.min(0.4 * fs64), fs64)?.cascade()?;
+        let rails = match o.rails {
+            Some((low, high)) => Rails::Known { low, high },
+            None => Rails::Auto,
+        };
+        let detector = match o.detector {
+            DetectorKind::Elgendi => Detector::Elgendi(Elgendi::new(fd)),
+            DetectorKind::Zong => Detector::Zong(Zong::new(fd)),
+        };
+        Ok(Self {
+            config,
+            fs,
+            fd,
+            decim,
+            phase: 0,
+            conditioner: Conditioner::new(rails, fs),
+            band,
+            smooth,
+            smoothed: Ring::new(),
+            banded: Ring::new(),
+            marks: Ring::new(),
+            mark: 0.0,
+            detector,
+            search_before: libm::roundf(0.05 * fd) as usize,
+            search_after: libm::roundf(0.25 * fd) as usize,
+            template: Template::new(),
+            intervals: Intervals::new(),
+            monitor: Monitor::new(fs),
+            n: 0,
+            t: 0,
+            started: false,
+            last_peak: None,
+            last_value: 0.0,
+        })
+    }
+
+    /// The configuration.
+    pub fn config(&self) -> &Config {
+        &self.config
+    }
+
+    /// Input samples seen.
+    pub fn samples(&self) -> u64 {
+        self.n
+    }
+
+    /// Non-finite input samples replaced so far.
+    pub fn rejected_samples(&self) -> u64 {
+        self.conditioner.rejected()
+    }
+
+    /// Input samples marked clipped so far.
+    pub fn clipped_samples(&self) -> u64 {
+        self.conditioner.clipped()
+    }
+
+    /// The signal's current state.
+    pub fn state(&self) -> SignalState {
+        self.monitor.state()
+    }
+
+    /// The detector's rate, Hz.
+    pub fn detector_rate_hz(&self) -> f32 {
+        self.fd
+    }
+
+    /// Feed one input sample. Never fails.
+    pub fn push(&mut self, x: f32) -> Output {
+        let c = self.conditioner.push(x);
+        if !self.started {
+            // Start as if this value had always been there: no transient.
+            self.band.settle(c.value);
+            self.smooth.settle(c.value);
+            self.started = true;
+        }
+        self.last_value = c.value;
+        let y = self.band.process(c.value);
+        let s = self.smooth.process(c.value);
+        if c.clipped {
+            self.mark = self.mark.max(MARK_CLIPPED);
+        }
+        if c.rejected {
+            self.mark = MARK_REJECTED + if self.mark >= MARK_CLIPPED { 1.0 } else { 0.0 };
+        }
+        let n = self.n;
+        self.n += 1;
+        let median = self.intervals.recent_median(8);
+        let mut out = Output {
+            beat: None,
+            state: self.monitor.sample(n, c.clipped, median),
+        };
+        if let Some(e) = out.state {
+            if e.state == SignalState::NoSignal {
+                // The finger may come back elsewhere: start afresh.
+                self.template.reset();
+                self.last_peak = None;
+            }
+        }
+        self.phase += 1;
+        if self.phase < self.decim {
+            return out;
+        }
+        self.phase = 0;
+        self.smoothed.push(s);
+        self.banded.push(y);
+        self.marks.push(self.mark);
+        self.mark = 0.0;
+        let now = self.t;
+        self.t += 1;
+        if let Some(cand) = self.detector.push(y) {
+            out.beat = Some(self.beat(cand, now, n));
+        }
+        out
+    }
+
+    /// At the end of a recording: feed the last value again for long
+    /// enough to close any beat still open, and hand over the beats whose
+    /// peaks lie within the recording. A live stream never calls this.
+    pub fn finish(&mut self, mut emit: impl FnMut(BeatEvent)) {
+        let end = self.n;
+        let flush = (1.5 * self.fs) as u64;
+        let v = self.last_value;
+        for _ in 0..flush {
+            if let Some(b) = self.push(v).beat {
+                if b.peak_index < end {
+                    emit(b);
+                }
+            }
+        }
+    }
+
+    fn to_input(&self, detector_index: u64) -> u64 {
+        let k = self.decim as u64;
+        detector_index * k + k - 1
+    }
+
+    fn beat(&mut self, cand: Candidate, now: u64, n: u64) -> BeatEvent {
+        let peak_d = self.locate_peak(now, cand.peak);
+        let peak = self.to_input(peak_d);
+        let mut flags = 0u8;
+        let median = self.intervals.recent_median(8);
+        let ibi = match self.last_peak {
+            Some(p) if peak > p => Some((peak - p) as f32 * 1000.0 / self.fs),
+            _ => None,
+        };
+        match ibi {
+            None => flags |= BeatFlags::NO_INTERVAL,
+            Some(i) if !rate::plausible(i, median) => flags |= BeatFlags::IMPLAUSIBLE_INTERVAL,
+            Some(_) => {}
+        }
+        // The pulse's window: 30 % of an interval before the peak, 20 % after.
+        let period = median.unwrap_or(800.0) * self.fd / 1000.0;
+        let age = (now - peak_d) as f32;
+        let from = (age + 0.3 * period).min((self.banded.len().max(2) - 2) as f32);
+        let to = (age - 0.2 * period).max(0.0);
+        for a in (libm::floorf(to) as usize)..=(libm::ceilf(from) as usize) {
+            let m = self.marks.at(a);
+            if m == MARK_CLIPPED || m >= MARK_REJECTED + 1.0 {
+                flags |= BeatFlags::CLIPPED;
+            }
+            if m >= MARK_REJECTED {
+                flags |= BeatFlags::INPUT_REJECTED;
+            }
+        }
+        let shape = Shape::capture(|a| self.banded.at(a), from, to);
+        let quality = match &shape {
+            Some(s) => {
+                let (r, low) = self.template.judge(s);
+                if low {
+                    flags |= BeatFlags::LOW_CORRELATION;
+                }
+                r
+            }
+            None => {
+                flags |= BeatFlags::LOW_CORRELATION;
+                0.0
+            }
+        };
+        let beat_flags = BeatFlags(flags);
+        // The template follows every clean pulse, even one that correlates
+        // poorly, as the paper's window average does: a slowly changing pulse
+        // shape must not lock the template out.
+        let clean = flags
+            & (BeatFlags::CLIPPED | BeatFlags::INPUT_REJECTED | BeatFlags::IMPLAUSIBLE_INTERVAL)
+            == 0;
+        if clean {
+            if let Some(s) = &shape {
+                self.template.learn(s);
+            }
+        }
+        if beat_flags.is_good() {
+            if let Some(i) = ibi {
+                self.intervals.push(i, peak);
+            }
+        }
+        self.monitor.beat(peak, beat_flags.is_good());
+        self.last_peak = Some(peak);
+        let window = (self.config.options.hr_window_s * self.fs) as u64;
+        let smoothed = self
+            .intervals
+            .median_since(peak.saturating_sub(window))
+            .map(|(m, _)| 60_000.0 / m);
+        BeatEvent {
+            peak_index: peak,
+            onset_index: cand.onset.map(|o| self.to_input(o)),
+            emitted_at: n,
+            ibi_ms: ibi,
+            hr_bpm: ibi.map(|i| 60_000.0 / i),
+            hr_smoothed_bpm: smoothed,
+            amplitude: cand.amplitude,
+            quality,
+            flags: beat_flags,
+        }
+    }
+
+    /// The systolic peak on the smoothed signal near the detector's peak:
+    /// the band-pass moves a peak earlier by up to ~100 ms.
+    fn locate_peak(&self, now: u64, detected: u64) -> u64 {
+        let age = (now - detected) as usize;
+        let newest = age.saturating_sub(self.search_after);
+        let oldest = (age + self.search_before).min(self.smoothed.len().saturating_sub(1));
+        let mut best_age = age.min(oldest);
+        let mut best = f32::NEG_INFINITY;
+        for a in newest..=oldest.max(newest) {
+            let v = self.smoothed.at(a);
+            if v > best {
+                best = v;
+                best_age = a;
+            }
+        }
+        now - best_age as u64
+    }
+}

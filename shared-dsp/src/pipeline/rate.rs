@@ -1,0 +1,141 @@
+//! Recent intervals: plausibility and the smoothed heart rate.
+
+/// Intervals held (enough for 12 s at 220 bpm).
+pub const HISTORY: usize = 64;
+/// Shortest plausible interval, ms (230 bpm; the range of interest is 30
+/// to 220 bpm, common practice).
+pub const MIN_IBI_MS: f32 = 60_000.0 / 230.0;
+/// Longest plausible interval, ms (28 bpm).
+pub const MAX_IBI_MS: f32 = 60_000.0 / 28.0;
+/// An interval more than this far from the recent median, as a ratio, is
+/// flagged (an ectopic beat, a missed or an extra detection).
+pub const MAX_RATIO: f32 = 1.4;
+
+/// Good intervals with the input index of the beat that ended each.
+#[derive(Clone, Copy, Debug)]
+pub struct Intervals {
+    ibi: [f32; HISTORY],
+    at: [u64; HISTORY],
+    head: usize,
+    len: usize,
+}
+
+impl Intervals {
+    /// Empty.
+    pub const fn new() -> Self {
+        Self {
+            ibi: [0.0; HISTORY],
+            at: [0; HISTORY],
+            head: 0,
+            len: 0,
+        }
+    }
+
+    /// Record a good interval ending at input index `at`.
+    pub fn push(&mut self, ibi_ms: f32, at: u64) {
+        self.head = (self.head + 1) % HISTORY;
+        self.ibi[self.head] = ibi_ms;
+        self.at[self.head] = at;
+        self.len = (self.len + 1).min(HISTORY);
+    }
+
+    /// Median of the good intervals that ended after input index `since`,
+    /// with how many there were.
+    pub fn median_since(&self, since: u64) -> Option<(f32, usize)> {
+        let mut v = [0.0f32; HISTORY];
+        let mut n = 0;
+        for k in 0..self.len {
+            let i = (self.head + HISTORY - k) % HISTORY;
+            if self.at[i] < since {
+                break;
+            }
+            v[n] = self.ibi[i];
+            n += 1;
+        }
+        if n == 0 {
+            return None;
+        }
+        let v = &mut v[..n];
+        // Insertion sort: at most HISTORY values, once per beat.
+        for i in 1..n {
+            let mut j = i;
+            while j > 0 && v[j - 1] > v[j] {
+                v.swap(j - 1, j);
+                j -= 1;
+            }
+        }
+        let m = if n % 2 == 1 {
+            v[n / 2]
+        } else {
+            0.5 * (v[n / 2 - 1] + v[n / 2])
+        };
+        Some((m, n))
+    }
+
+    /// Median of the last `count` good intervals (fewer if not held).
+    pub fn recent_median(&self, count: usize) -> Option<f32> {
+        if self.len == 0 {
+            return None;
+        }
+        let k = count.min(self.len);
+        let oldest = (self.head + HISTORY + 1 - k) % HISTORY;
+        self.median_since(self.at[oldest]).map(|(m, _)| m)
+    }
+
+    /// Number held.
+    pub fn len(&self) -> usize {
+        self.len
+    }
+
+    /// None held?
+    pub fn is_empty(&self) -> bool {
+        self.len == 0
+    }
+
+    /// Forget everything.
+    pub fn clear(&mut self) {
+        *self = Self::new();
+    }
+}
+
+impl Default for Intervals {
+    fn default() -> Self {
+        Self::new()
+    }
+}
+
+/// Is `ibi_ms` plausible given the recent median (if any)?
+pub fn plausible(ibi_ms: f32, median_ms: Option<f32>) -> bool {
+    if !(MIN_IBI_MS..=MAX_IBI_MS).contains(&ibi_ms) {
+        return false;
+    }
+    match median_ms {
+        Some(m) => ibi_ms <= m * MAX_RATIO && ibi_ms >= m / MAX_RATIO,
+        None => true,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn median_of_a_window() {
+        let mut h = Intervals::new();
+        for (i, v) in [800.0, 900.0, 700.0, 1000.0, 850.0].into_iter().enumerate() {
+            h.push(v, i as u64 * 100);
+        }
+        assert_eq!(h.median_since(0), Some((850.0, 5)));
+        assert_eq!(h.median_since(250), Some((925.0, 2)));
+        assert_eq!(h.recent_median(3), Some(850.0));
+    }
+
+    #[test]
+    fn plausibility_limits() {
+        assert!(plausible(800.0, None));
+        assert!(!plausible(200.0, None));
+        assert!(!plausible(3000.0, None));
+        assert!(!plausible(1200.0, Some(800.0)));
+        assert!(plausible(1000.0, Some(800.0)));
+    }
+}

@@ -1,0 +1,183 @@
+//! Pulse onsets by the slope sum function.
+//!
+//! W. Zong, T. Heldt, G. B. Moody, R. G. Mark, "An open-source algorithm to
+//! detect onset of arterial blood pressure pulses", Computers in Cardiology
+//! 30:259–262, 2003. The slope sum function (SSF) adds the positive first
+//! differences of the signal over a 128 ms window, so it peaks on each
+//! pulse's upstroke. A beat is detected where the SSF rises through an
+//! adaptive threshold outside a refractory period; the onset is where the
+//! SSF first rose above a small fraction of that pulse's SSF maximum,
+//! searched back from the crossing. Parameters (from memory of the paper,
+//! adapted from arterial pressure to the PPG): threshold 3 × mean SSF over
+//! the first seconds, then 60 % of the running average of recent pulses'
+//! SSF maxima; refractory 250 ms; onset at 1 % of the local maximum.
+//!
+//! The systolic peak, which the paper does not locate, is taken as the
+//! band-passed signal's maximum in the [`PEAK_SEARCH_S`] after the onset; the
+//! pipeline then places it on the signal itself.
+
+use super::ring::{Ring, RunningSum};
+use super::Candidate;
+
+/// SSF window, seconds (Zong et al. 2003).
+pub const WINDOW_S: f32 = 0.128;
+/// Refractory period after a detection, seconds (Zong et al. 2003).
+pub const REFRACTORY_S: f32 = 0.25;
+/// Threshold as a fraction of recent SSF maxima (Zong et al. 2003).
+pub const THRESHOLD_FRACTION: f32 = 0.6;
+/// Onset: where the SSF first exceeds this fraction of the pulse's SSF
+/// maximum (Zong et al. 2003).
+pub const ONSET_FRACTION: f32 = 0.01;
+/// Learning period for the initial threshold, seconds.
+pub const LEARN_S: f32 = 3.0;
+/// How long after the crossing to look for the pulse's SSF maximum and
+/// how far back to look for the onset, seconds.
+pub const SEARCH_S: f32 = 0.15;
+/// Where to look for the systolic peak after the onset, seconds.
+pub const PEAK_SEARCH_S: f32 = 0.3;
+/// Without a beat for this long the threshold halves, seconds (so the
+/// detector recovers from a large artefact).
+pub const DECAY_S: f32 = 2.5;
+
+const RING: usize = 256;
+
+/// Causal slope-sum detector state, at the detector's rate.
+#[derive(Clone, Debug)]
+pub struct Zong {
+    window: usize,
+    refractory: u64,
+    search: usize,
+    peak_search: usize,
+    learn: u64,
+    decay: u64,
+    rises: Ring<RING>,
+    ssf_hist: Ring<RING>,
+    filtered: Ring<RING>,
+    ssf: RunningSum,
+    last_y: f32,
+    learn_sum: f32,
+    max_avg: f32,
+    threshold: f32,
+    t: u64,
+    last_beat: Option<u64>,
+    pending: Option<u64>,
+}
+
+impl Zong {
+    /// A detector running at `fs_hz` (at most ~250 Hz: the rings hold the
+    /// search windows).
+    pub fn new(fs_hz: f32) -> Self {
+        let n = |s: f32| (libm::roundf(s * fs_hz) as usize).max(1);
+        Self {
+            window: n(WINDOW_S),
+            refractory: n(REFRACTORY_S) as u64,
+            search: n(SEARCH_S),
+            peak_search: n(PEAK_SEARCH_S).min(RING - 1),
+            learn: n(LEARN_S) as u64,
+            decay: n(DECAY_S) as u64,
+            rises: Ring::new(),
+            ssf_hist: Ring::new(),
+            filtered: Ring::new(),
+            ssf: RunningSum::default(),
+            last_y: 0.0,
+            learn_sum: 0.0,
+            max_avg: 0.0,
+            threshold: f32::INFINITY,
+            t: 0,
+            last_beat: None,
+            pending: None,
+        }
+    }
+
+    /// Samples between a systolic peak and the earliest moment it can be
+    /// reported, at most.
+    pub fn delay(&self) -> usize {
+        self.peak_search
+    }
+
+    /// Feed one band-passed sample.
+    pub fn push(&mut self, y: f32) -> Option<Candidate> {
+        let rise = (y - self.last_y).max(0.0);
+        self.last_y = y;
+        self.rises.push(rise);
+        self.ssf.add(rise);
+        self.ssf.add(-self.rises.at(self.window));
+        let ssf = self.ssf.get().max(0.0);
+        self.ssf_hist.push(ssf);
+        self.filtered.push(y);
+        let t = self.t;
+        self.t += 1;
+
+        if t < self.learn {
+            self.learn_sum += ssf;
+            if t + 1 == self.learn {
+                let mean = self.learn_sum / self.learn as f32;
+                self.threshold = 3.0 * mean;
+                self.max_avg = self.threshold / THRESHOLD_FRACTION;
+            }
+            return None;
+        }
+        if let Some(last) = self.last_beat {
+            if t - last > self.decay && self.pending.is_none() {
+                // Lost: lower the bar so the detector can pick the pulse up.
+                self.threshold *= 0.5;
+                self.max_avg *= 0.5;
+                self.last_beat = Some(t);
+            }
+        }
+        if let Some(cross) = self.pending {
+            // Wait until the peak search after the crossing is complete.
+            if t - cross < self.peak_search as u64 {
+                return None;
+            }
+            self.pending = None;
+            return self.finish(t, cross);
+        }
+        let refractory = self.last_beat.is_some_and(|b| t - b < self.refractory);
+        let crossed = ssf > self.threshold && self.ssf_hist.at(1) <= self.threshold;
+        if crossed && !refractory {
+            self.pending = Some(t);
+        }
+        None
+    }
+
+    fn finish(&mut self, now: u64, cross: u64) -> Option<Candidate> {
+        let age_cross = (now - cross) as usize;
+        // The pulse's SSF maximum in the search window after the crossing.
+        let newest = age_cross.saturating_sub(self.search);
+        let mut ssf_max = 0.0f32;
+        for a in newest..=age_cross {
+            ssf_max = ssf_max.max(self.ssf_hist.at(a));
+        }
+        // Onset: back from the crossing to where the SSF was still below
+        // 1 % of that maximum.
+        let floor = ONSET_FRACTION * ssf_max;
+        let oldest = (age_cross + self.search).min(self.ssf_hist.len().saturating_sub(1));
+        let mut onset_age = oldest;
+        for a in age_cross..=oldest {
+            if self.ssf_hist.at(a) < floor {
+                onset_age = a;
+                break;
+            }
+        }
+        // Systolic peak: the band-passed maximum after the onset.
+        let mut best = f32::NEG_INFINITY;
+        let mut best_age = age_cross;
+        let newest_peak = onset_age.saturating_sub(self.peak_search);
+        for a in newest_peak..=onset_age {
+            let v = self.filtered.at(a);
+            if v > best {
+                best = v;
+                best_age = a;
+            }
+        }
+        self.max_avg += 0.25 * (ssf_max - self.max_avg);
+        self.threshold = THRESHOLD_FRACTION * self.max_avg;
+        self.last_beat = Some(cross);
+        Some(Candidate {
+            peak: now - best_age as u64,
+            onset: Some(now - onset_age as u64),
+            amplitude: best,
+        })
+    }
+}
