@@ -204,7 +204,9 @@ fn designs_outputs_and_responses_match_scipy() {
         // For the record (docs/filters.md): the plain f32 DF2T on the same case.
         let yt = run::<Df2t, f32, 8>(&d, &x32);
         let et = max_abs(yt.iter().zip(&r.y).map(|(a, b)| *a as f64 - b)) / scale;
-        let slot = worst_df2t_f32.entry(format!("{}", c.fs)).or_insert((0.0, 0.0));
+        let slot = worst_df2t_f32
+            .entry(format!("{}", c.fs))
+            .or_insert((0.0, 0.0));
         slot.0 = slot.0.max(e32);
         slot.1 = slot.1.max(et);
         // The textbook structures in double precision must agree with
