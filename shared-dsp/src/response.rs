@@ -21,14 +21,38 @@ pub struct Response {
     pub group_delay_s: f64,
 }
 
-/// Evaluate `c0 + c1·e^{−jω} + c2·e^{−j2ω}` and the group delay of that
-/// polynomial in samples, `Re(Σ k·ck·e^{−jkω} / Σ ck·e^{−jkω})`.
+/// Evaluate `P(ω) = c0 + c1·e^{−jω} + c2·e^{−j2ω}` and the group delay of
+/// that polynomial in samples. With `S_k = Σ n^k·c_n·e^{−jnω}`, the delay is
+/// `Re(S_1 / S_0)`; on a zero of the unit circle (`S_0 = 0`: a notch centre,
+/// a low-pass at Nyquist) it takes the limit `Re(S_{m+1} / ((m+1)·S_m))`
+/// with `m` the first non-vanishing `S_m` (L'Hôpital), e.g. ½ sample for a
+/// simple zero, instead of dividing rounding noise by rounding noise.
 fn poly_at(c: [f64; 3], w: f64) -> (Complex, f64) {
-    let e1 = Complex::expj(-w);
-    let e2 = Complex::expj(-2.0 * w);
-    let p = Complex::real(c[0]) + e1.scale(c[1]) + e2.scale(c[2]);
-    let dp = e1.scale(c[1]) + e2.scale(2.0 * c[2]);
-    let tau = if p.abs() > 0.0 { (dp / p).re } else { 0.0 };
+    let e = [
+        Complex::real(1.0),
+        Complex::expj(-w),
+        Complex::expj(-2.0 * w),
+    ];
+    let s = |k: i32| {
+        (0..3).fold(Complex::real(0.0), |acc, n| {
+            acc + e[n].scale(c[n] * libm::pow(n as f64, k as f64))
+        })
+    };
+    let p = s(0);
+    let scale = c.iter().map(|v| v.abs()).sum::<f64>();
+    // Only at rounding level is the point a zero; just beside it the
+    // direct formula is right (and the limit would not be).
+    let tiny = 1e-12 * scale;
+    let mut m = 0;
+    while m < 2 && s(m).abs() <= tiny {
+        m += 1;
+    }
+    let sm = s(m);
+    let tau = if sm.abs() > 0.0 {
+        (s(m + 1) / sm.scale((m + 1) as f64)).re
+    } else {
+        0.0
+    };
     (p, tau)
 }
 

@@ -207,3 +207,23 @@ fn settling_from_the_first_sample_removes_the_start_up_transient() {
         assert!(f.process(2.0).abs() < 1e-5);
     }
 }
+
+#[test]
+fn group_delay_is_finite_on_a_zero_of_the_unit_circle() {
+    // A zero on the unit circle adds half a sample of group delay on both
+    // sides of it (Oppenheim & Schafer §5.3); at the zero itself the limit
+    // is the same, not rounding noise.
+    let fs = 250.0;
+    let d = notch(50.0, 30.0, fs).unwrap();
+    let at = response(d.sections(), 50.0, fs).group_delay_s * fs;
+    // Just beside the zero the direct formula is well conditioned; the
+    // delay's peak is flat there, so both sides agree with the limit.
+    let above = response(d.sections(), 50.0 + 1e-3, fs).group_delay_s * fs;
+    let below = response(d.sections(), 50.0 - 1e-3, fs).group_delay_s * fs;
+    let near = 0.5 * (above + below);
+    assert!(at.is_finite() && (at - near).abs() < 1e-3, "{at} vs {near}");
+    let lp = butterworth_lowpass(2, 20.0, 100.0).unwrap();
+    let at = response(lp.sections(), 50.0, 100.0).group_delay_s;
+    let near = response(lp.sections(), 50.0 - 1e-2, 100.0).group_delay_s;
+    assert!((at - near).abs() < 1e-6, "{at} vs {near}");
+}

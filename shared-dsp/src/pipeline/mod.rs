@@ -41,6 +41,7 @@ pub use zong::Zong;
 
 use crate::design::{butterworth_bandpass, butterworth_lowpass};
 use crate::filter::{Cascade, Delta};
+use crate::hrv::{HrvStats, HrvWindow};
 use crate::DesignError;
 use condition::Conditioner;
 use quality::{Shape, Template};
@@ -54,6 +55,9 @@ pub const MAX_RATE_HZ: f32 = 1000.0;
 /// The detector runs at the input rate divided by `floor(fs / 125)`, so at
 /// 125 to 250 Hz (or the input rate when lower).
 pub const DETECTOR_BASE_HZ: f32 = 125.0;
+
+/// Intervals kept for heart-rate variability (about two minutes at 60 bpm).
+pub const HRV_INTERVALS: usize = 128;
 
 /// Detector-rate samples kept for pulse shapes and clipping marks.
 const SHAPE_RING: usize = 512;
@@ -172,7 +176,9 @@ pub struct Pipeline {
     t: u64,
     started: bool,
     last_peak: Option<u64>,
+    last_good: bool,
     last_value: f32,
+    hrv: HrvWindow<HRV_INTERVALS>,
 }
 
 const MARK_CLIPPED: f32 = 1.0;
@@ -229,7 +235,9 @@ impl Pipeline {
             t: 0,
             started: false,
             last_peak: None,
+            last_good: false,
             last_value: 0.0,
+            hrv: HrvWindow::new(),
         })
     }
 
@@ -256,6 +264,18 @@ impl Pipeline {
     /// The signal's current state.
     pub fn state(&self) -> SignalState {
         self.monitor.state()
+    }
+
+    /// Time-domain HRV (Task Force of the ESC and NASPE 1996) over the last
+    /// [`HRV_INTERVALS`] intervals. An interval counts as normal-to-normal
+    /// only when the beats at both its ends are good.
+    pub fn hrv(&self) -> HrvStats {
+        self.hrv.stats()
+    }
+
+    /// As [`Self::hrv`], over the newest intervals spanning `span_ms`.
+    pub fn hrv_recent(&self, span_ms: f32) -> HrvStats {
+        self.hrv.stats_recent_ms(span_ms)
     }
 
     /// The detector's rate, Hz.
@@ -293,6 +313,7 @@ impl Pipeline {
                 // The finger may come back elsewhere: start afresh.
                 self.template.reset();
                 self.last_peak = None;
+                self.last_good = false;
             }
         }
         self.phase += 1;
@@ -393,6 +414,10 @@ impl Pipeline {
             }
         }
         self.monitor.beat(peak, beat_flags.is_good());
+        if let Some(i) = ibi {
+            self.hrv.push(i, beat_flags.is_good() && self.last_good);
+        }
+        self.last_good = beat_flags.is_good();
         self.last_peak = Some(peak);
         let window = (self.config.options.hr_window_s * self.fs) as u64;
         let smoothed = self
