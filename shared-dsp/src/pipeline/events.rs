@@ -53,7 +53,8 @@ pub struct BeatEvent {
     /// Smoothed heart rate: 60000 / median of the good intervals in the
     /// last [`super::Options::hr_window_s`], bpm.
     pub hr_smoothed_bpm: Option<f32>,
-    /// Pulse amplitude on the band-passed signal (input units).
+    /// Pulse amplitude: foot-to-peak height of the lightly smoothed input
+    /// (input units; with the DC level it gives the perfusion index).
     pub amplitude: f32,
     /// Correlation of this pulse with the running template, 0 to 1.
     pub quality: f32,

@@ -56,6 +56,21 @@ pub const MAX_RATE_HZ: f32 = 1000.0;
 /// 125 to 250 Hz (or the input rate when lower).
 pub const DETECTOR_BASE_HZ: f32 = 125.0;
 
+/// A candidate below this fraction of the running peak level is dropped.
+pub const SMALL_FRACTION: f32 = 0.4;
+/// A candidate sooner than this fraction of the recent interval after the
+/// last beat…
+pub const EARLY_FRACTION: f32 = 0.6;
+/// …is dropped when below this fraction of the running peak level.
+pub const EARLY_LEVEL_FRACTION: f32 = 0.6;
+
+/// A change of the smoothed input within [`STEP_S`] larger than this many
+/// pulse heights is a step (finger placed or lifted, a knock): the filters
+/// restart from the new level instead of ringing for seconds.
+pub const STEP_FACTOR: f32 = 8.0;
+/// Time over which a step is measured, seconds.
+pub const STEP_S: f32 = 0.1;
+
 /// Intervals kept for heart-rate variability (about two minutes at 60 bpm).
 pub const HRV_INTERVALS: usize = 128;
 
@@ -69,7 +84,7 @@ pub struct Candidate {
     pub peak: u64,
     /// Detector-rate index of the pulse onset, for detectors that find it.
     pub onset: Option<u64>,
-    /// Band-passed amplitude at the peak.
+    /// Band-passed value at the peak (the detector's own measure).
     pub amplitude: f32,
 }
 
@@ -143,6 +158,13 @@ enum Detector {
 }
 
 impl Detector {
+    fn new(kind: DetectorKind, fd: f32) -> Self {
+        match kind {
+            DetectorKind::Elgendi => Self::Elgendi(Elgendi::new(fd)),
+            DetectorKind::Zong => Self::Zong(Zong::new(fd)),
+        }
+    }
+
     fn push(&mut self, y: f32) -> Option<Candidate> {
         match self {
             Self::Elgendi(d) => d.push(y),
@@ -171,13 +193,22 @@ pub struct Pipeline {
     search_after: usize,
     template: Template,
     intervals: Intervals,
+    // Every interval, trusted or not: the reference for plausibility, so one
+    // odd interval early on cannot lock every later beat out.
+    all_intervals: Intervals,
     monitor: Monitor,
     n: u64,
     t: u64,
     started: bool,
     last_peak: Option<u64>,
+    // Sub-sample offset of the last peak, input samples.
+    last_frac: f32,
     last_good: bool,
     last_value: f32,
+    peak_level: Option<f32>,
+    step_level: Option<f32>,
+    restarts: u64,
+    epoch: u64,
     hrv: HrvWindow<HRV_INTERVALS>,
 }
 
@@ -208,10 +239,7 @@ impl Pipeline {
             Some((low, high)) => Rails::Known { low, high },
             None => Rails::Auto,
         };
-        let detector = match o.detector {
-            DetectorKind::Elgendi => Detector::Elgendi(Elgendi::new(fd)),
-            DetectorKind::Zong => Detector::Zong(Zong::new(fd)),
-        };
+        let detector = Detector::new(o.detector, fd);
         Ok(Self {
             config,
             fs,
@@ -230,13 +258,19 @@ impl Pipeline {
             search_after: libm::roundf(0.25 * fd) as usize,
             template: Template::new(),
             intervals: Intervals::new(),
+            all_intervals: Intervals::new(),
             monitor: Monitor::new(fs),
             n: 0,
             t: 0,
             started: false,
             last_peak: None,
+            last_frac: 0.0,
             last_good: false,
             last_value: 0.0,
+            peak_level: None,
+            step_level: None,
+            restarts: 0,
+            epoch: 0,
             hrv: HrvWindow::new(),
         })
     }
@@ -303,7 +337,7 @@ impl Pipeline {
         }
         let n = self.n;
         self.n += 1;
-        let median = self.intervals.recent_median(8);
+        let median = self.all_intervals.recent_median(8);
         let mut out = Output {
             beat: None,
             state: self.monitor.sample(n, c.clipped, median),
@@ -321,16 +355,95 @@ impl Pipeline {
             return out;
         }
         self.phase = 0;
+        let y = if self.is_step(s) {
+            self.restart(c.value)
+        } else {
+            y
+        };
         self.smoothed.push(s);
         self.banded.push(y);
         self.marks.push(self.mark);
         self.mark = 0.0;
         let now = self.t;
         self.t += 1;
-        if let Some(cand) = self.detector.push(y) {
-            out.beat = Some(self.beat(cand, now, n));
+        if let Some(mut cand) = self.detector.push(y) {
+            // Detectors count from their own start; make indices global.
+            cand.peak += self.epoch;
+            cand.onset = cand.onset.map(|o| o + self.epoch);
+            let peak_d = self.locate_peak(now, cand.peak);
+            let height = self.pulse_height(now, peak_d);
+            if self.accept(self.to_input(peak_d), height) {
+                out.beat = Some(self.beat(&cand, peak_d, height, now, n));
+            }
         }
         out
+    }
+
+    /// Has the smoothed input jumped by many pulse heights?
+    fn is_step(&self, s: f32) -> bool {
+        let lag = (libm::roundf(STEP_S * self.fd) as usize).max(1);
+        // The last known pulse height, kept across restarts so the step
+        // back (finger replaced) is caught as well as the step away.
+        match self.step_level {
+            Some(level) if self.smoothed.len() > lag => {
+                (s - self.smoothed.at(lag - 1)).abs() > STEP_FACTOR * level
+            }
+            _ => false,
+        }
+    }
+
+    /// Start the band-pass and the detector again from input level `x`;
+    /// returns the band-pass output at rest.
+    fn restart(&mut self, x: f32) -> f32 {
+        let rest = self.band.settle(x);
+        self.detector = Detector::new(self.config.options.detector, self.fd);
+        self.epoch = self.t;
+        self.peak_level = None;
+        self.last_peak = None;
+        self.last_good = false;
+        self.template.reset();
+        self.restarts += 1;
+        rest
+    }
+
+    /// Times the filters restarted after a step in the input.
+    pub fn restarts(&self) -> u64 {
+        self.restarts
+    }
+
+    /// Drop what is not a systolic peak: a bump much smaller than recent
+    /// beats, or a small one soon after a beat (the diastolic wave, which
+    /// gets a block of its own when the heart is slow). In the manner of the
+    /// signal-peak level of J. Pan, W. J. Tompkins, "A real-time QRS
+    /// detection algorithm", IEEE Trans. Biomed. Eng. 32(3):230–236, 1985
+    /// (running level updated by 1/8 of each accepted peak).
+    fn accept(&mut self, peak: u64, a: f32) -> bool {
+        if a.is_nan() || a <= 0.0 {
+            return false;
+        }
+        let Some(level) = self.peak_level else {
+            self.peak_level = Some(a);
+            self.step_level = Some(a);
+            return true;
+        };
+        let since_ms = self
+            .last_peak
+            .map(|p| peak.saturating_sub(p) as f32 * 1000.0 / self.fs);
+        let median = self.all_intervals.recent_median(8);
+        let early = match (since_ms, median) {
+            (Some(s), Some(m)) => s < EARLY_FRACTION * m,
+            _ => false,
+        };
+        let small = a < SMALL_FRACTION * level;
+        let too_small_for_early = early && a < EARLY_LEVEL_FRACTION * level;
+        if small || too_small_for_early {
+            return false;
+        }
+        // Follow the level both ways, but let one huge artefact move it
+        // only by a bounded step.
+        self.peak_level = Some(level + 0.125 * (a.min(4.0 * level) - level));
+        self.step_level = self.peak_level;
+        true
     }
 
     /// At the end of a recording: feed the last value again for long
@@ -354,13 +467,58 @@ impl Pipeline {
         detector_index * k + k - 1
     }
 
-    fn beat(&mut self, cand: Candidate, now: u64, n: u64) -> BeatEvent {
-        let peak_d = self.locate_peak(now, cand.peak);
+    /// Where between samples the peak at `age` lies, in detector samples
+    /// (−½ to ½, later positive), from the parabola through it and its two
+    /// neighbours: at 25–50 Hz a whole-sample peak would put up to ±20 ms of
+    /// jitter into every interval.
+    fn peak_offset(&self, age: usize) -> f32 {
+        if age == 0 || age + 1 >= self.smoothed.len() {
+            return 0.0;
+        }
+        let (older, mid, newer) = (
+            self.smoothed.at(age + 1),
+            self.smoothed.at(age),
+            self.smoothed.at(age - 1),
+        );
+        let curvature = older - 2.0 * mid + newer;
+        if curvature < 0.0 {
+            (0.5 * (older - newer) / curvature).clamp(-0.5, 0.5)
+        } else {
+            0.0
+        }
+    }
+
+    /// Foot-to-peak height on the smoothed input: the lowest point since
+    /// the last beat's peak (at most 60 % of an interval back). Unlike the
+    /// band-passed value it does not ride with baseline wander, and a
+    /// diastolic wave measures only its rise from the dicrotic notch.
+    fn pulse_height(&self, now: u64, peak_d: u64) -> f32 {
+        let age = (now - peak_d) as usize;
+        let period = self.all_intervals.recent_median(8).unwrap_or(800.0) * self.fd / 1000.0;
+        let mut back = libm::roundf(0.6 * period) as usize;
+        if let Some(last) = self.last_peak {
+            let last_age = now.saturating_sub(last / self.decim as u64) as usize;
+            if last_age > age {
+                back = back.min(last_age - age);
+            }
+        }
+        let oldest = (age + back).min(self.smoothed.len().saturating_sub(1));
+        let mut foot = f32::INFINITY;
+        for a in age..=oldest.max(age) {
+            foot = foot.min(self.smoothed.at(a));
+        }
+        self.smoothed.at(age) - foot
+    }
+
+    fn beat(&mut self, cand: &Candidate, peak_d: u64, height: f32, now: u64, n: u64) -> BeatEvent {
         let peak = self.to_input(peak_d);
+        let frac = self.peak_offset((now - peak_d) as usize) * self.decim as f32;
         let mut flags = 0u8;
-        let median = self.intervals.recent_median(8);
+        let median = self.all_intervals.recent_median(8);
         let ibi = match self.last_peak {
-            Some(p) if peak > p => Some((peak - p) as f32 * 1000.0 / self.fs),
+            Some(p) if peak > p => {
+                Some(((peak - p) as f32 + frac - self.last_frac) * 1000.0 / self.fs)
+            }
             _ => None,
         };
         match ibi {
@@ -369,7 +527,13 @@ impl Pipeline {
             Some(_) => {}
         }
         // The pulse's window: 30 % of an interval before the peak, 20 % after.
-        let period = median.unwrap_or(800.0) * self.fd / 1000.0;
+        // Until good intervals exist, the last interval sets the window:
+        // a fixed guess would span several pulses at fast rates, and no
+        // pulse would ever match (so none would ever be good).
+        let period = median.or(ibi).unwrap_or(800.0) * self.fd / 1000.0;
+        if let Some(i) = ibi {
+            self.all_intervals.push(i, peak);
+        }
         let age = (now - peak_d) as f32;
         let from = (age + 0.3 * period).min((self.banded.len().max(2) - 2) as f32);
         let to = (age - 0.2 * period).max(0.0);
@@ -419,6 +583,7 @@ impl Pipeline {
         }
         self.last_good = beat_flags.is_good();
         self.last_peak = Some(peak);
+        self.last_frac = frac;
         let window = (self.config.options.hr_window_s * self.fs) as u64;
         let smoothed = self
             .intervals
@@ -431,7 +596,7 @@ impl Pipeline {
             ibi_ms: ibi,
             hr_bpm: ibi.map(|i| 60_000.0 / i),
             hr_smoothed_bpm: smoothed,
-            amplitude: cand.amplitude,
+            amplitude: height,
             quality,
             flags: beat_flags,
         }
@@ -441,7 +606,14 @@ impl Pipeline {
     /// the band-pass moves a peak earlier by up to ~100 ms.
     fn locate_peak(&self, now: u64, detected: u64) -> u64 {
         let age = (now - detected) as usize;
-        let newest = age.saturating_sub(self.search_after);
+        // Never reach into the next pulse at fast rates.
+        let after = self
+            .all_intervals
+            .recent_median(8)
+            .map_or(self.search_after, |m| {
+                (libm::roundf(0.35 * m * self.fd / 1000.0) as usize).min(self.search_after)
+            });
+        let newest = age.saturating_sub(after);
         let oldest = (age + self.search_before).min(self.smoothed.len().saturating_sub(1));
         let mut best_age = age.min(oldest);
         let mut best = f32::NEG_INFINITY;

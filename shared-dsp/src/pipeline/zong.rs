@@ -60,6 +60,8 @@ pub struct Zong {
     threshold: f32,
     t: u64,
     last_beat: Option<u64>,
+    last_change: u64,
+    interval: f32,
     pending: Option<u64>,
 }
 
@@ -85,6 +87,8 @@ impl Zong {
             threshold: f32::INFINITY,
             t: 0,
             last_beat: None,
+            last_change: 0,
+            interval: 0.8 * fs_hz,
             pending: None,
         }
     }
@@ -111,23 +115,24 @@ impl Zong {
         if t < self.learn {
             self.learn_sum += ssf;
             if t + 1 == self.learn {
+                // Threshold base 3 × mean SSF; the threshold proper is the
+                // usual fraction of it.
                 let mean = self.learn_sum / self.learn as f32;
-                self.threshold = 3.0 * mean;
-                self.max_avg = self.threshold / THRESHOLD_FRACTION;
+                self.max_avg = 3.0 * mean;
+                self.threshold = THRESHOLD_FRACTION * self.max_avg;
             }
             return None;
         }
-        if let Some(last) = self.last_beat {
-            if t - last > self.decay && self.pending.is_none() {
-                // Lost: lower the bar so the detector can pick the pulse up.
-                self.threshold *= 0.5;
-                self.max_avg *= 0.5;
-                self.last_beat = Some(t);
-            }
+        if t - self.last_change.max(self.learn) > self.decay && self.pending.is_none() {
+            // Lost, or the first threshold too high: lower the bar so the
+            // detector can pick the pulse up.
+            self.threshold *= 0.5;
+            self.max_avg *= 0.5;
+            self.last_change = t;
         }
         if let Some(cross) = self.pending {
             // Wait until the peak search after the crossing is complete.
-            if t - cross < self.peak_search as u64 {
+            if t - cross < self.peak_span() as u64 {
                 return None;
             }
             self.pending = None;
@@ -139,6 +144,15 @@ impl Zong {
             self.pending = Some(t);
         }
         None
+    }
+
+    /// How long after the onset the systolic peak is looked for: at most
+    /// [`PEAK_SEARCH_S`], and never into the next pulse at fast rates.
+    fn peak_span(&self) -> usize {
+        // Waiting no longer than the refractory period means the wait can
+        // never hide the next pulse's crossing.
+        let cap = self.peak_search.min(self.refractory as usize);
+        (libm::roundf(0.5 * self.interval) as usize).clamp(1, cap)
     }
 
     fn finish(&mut self, now: u64, cross: u64) -> Option<Candidate> {
@@ -163,7 +177,7 @@ impl Zong {
         // Systolic peak: the band-passed maximum after the onset.
         let mut best = f32::NEG_INFINITY;
         let mut best_age = age_cross;
-        let newest_peak = onset_age.saturating_sub(self.peak_search);
+        let newest_peak = onset_age.saturating_sub(self.peak_span());
         for a in newest_peak..=onset_age {
             let v = self.filtered.at(a);
             if v > best {
@@ -173,7 +187,14 @@ impl Zong {
         }
         self.max_avg += 0.25 * (ssf_max - self.max_avg);
         self.threshold = THRESHOLD_FRACTION * self.max_avg;
+        if let Some(last) = self.last_beat {
+            let gap = (cross - last) as f32;
+            if gap < 2.5 * self.interval {
+                self.interval += 0.25 * (gap - self.interval);
+            }
+        }
         self.last_beat = Some(cross);
+        self.last_change = cross;
         Some(Candidate {
             peak: now - best_age as u64,
             onset: Some(now - onset_age as u64),
