@@ -1,0 +1,259 @@
+//! The `plethwire` command line: argument types (clap derive), dispatch to
+//! the subcommands, and turning every failure into one line on stderr.
+//!
+//! Each subcommand lives in its own module with an `Args` struct and a
+//! `run` method; adding one means a module and a variant of [`Command`].
+
+mod filter;
+
+pub use filter::FilterArgs;
+
+use clap::error::{ContextKind, ContextValue, ErrorKind};
+use clap::{CommandFactory, Parser, Subcommand};
+use std::ffi::OsString;
+use std::fmt::Display;
+use std::io::Write;
+use std::process::ExitCode;
+
+/// Exit status when the command line could not be understood.
+pub const EXIT_USAGE: u8 = 2;
+/// Exit status when the request was understood but refused or failed.
+pub const EXIT_REFUSED: u8 = 1;
+
+const EXAMPLES: &str = "\
+Example:
+  plethwire filter --rate 250 --band 0.5:8 --notch 50
+
+Run 'plethwire <command> --help' for a command's options.";
+
+/// Host tools for optical pulse sensors.
+#[derive(Parser, Debug)]
+#[command(name = "plethwire", version, about, after_help = EXAMPLES)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The subcommands.
+#[derive(Subcommand, Debug)]
+pub enum Command {
+    /// Design a filter chain, print it as Rust and JSON with its response
+    /// (design and board cascade), and plot the response as SVG.
+    Filter(FilterArgs),
+}
+
+/// A failed run: its exit status and the one line to print, if any.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Failure {
+    /// Process exit status.
+    pub code: u8,
+    /// The problem, without the `plethwire: ` prefix; `None` to exit
+    /// quietly (the reader of our output went away).
+    pub message: Option<String>,
+}
+
+impl Failure {
+    /// The command line could not be understood.
+    pub fn usage(message: impl Display) -> Self {
+        Self {
+            code: EXIT_USAGE,
+            message: Some(message.to_string()),
+        }
+    }
+
+    /// The request was understood but could not be carried out.
+    pub fn refused(message: impl Display) -> Self {
+        Self {
+            code: EXIT_REFUSED,
+            message: Some(message.to_string()),
+        }
+    }
+
+    /// Writing the output failed; a closed pipe (`| head`) is not worth a
+    /// message.
+    pub fn output(e: std::io::Error) -> Self {
+        Self {
+            code: EXIT_REFUSED,
+            message: (e.kind() != std::io::ErrorKind::BrokenPipe)
+                .then(|| format!("cannot write the output: {e}")),
+        }
+    }
+}
+
+/// Squeeze a clap error into one line: its first line, the missing
+/// arguments or command if that is the problem, clap's suggestion if it has
+/// one, and where help is (`help` names the command).
+fn one_line(err: &clap::Error, help: &str) -> String {
+    let rendered = err.render().to_string();
+    let first = rendered.lines().next().unwrap_or("invalid command line");
+    let mut line = first.strip_prefix("error: ").unwrap_or(first).to_owned();
+    match err.kind() {
+        ErrorKind::MissingRequiredArgument => {
+            if let Some(ContextValue::Strings(missing)) = err.get(ContextKind::InvalidArg) {
+                line = format!("missing {}", missing.join(", "));
+            }
+        }
+        ErrorKind::MissingSubcommand | ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => {
+            let names: Vec<String> = Cli::command()
+                .get_subcommands()
+                .map(|c| c.get_name().to_owned())
+                .collect();
+            line = format!("missing a command (one of: {})", names.join(", "));
+        }
+        _ => {}
+    }
+    let suggested = [ContextKind::SuggestedArg, ContextKind::SuggestedSubcommand]
+        .into_iter()
+        .find_map(|k| match err.get(k) {
+            Some(ContextValue::String(s)) => Some(s.clone()),
+            Some(ContextValue::Strings(s)) if !s.is_empty() => Some(s.join("' or '")),
+            _ => None,
+        });
+    if let Some(s) = suggested {
+        line.push_str(&format!(" (did you mean '{s}'?)"));
+    }
+    line.push_str(&format!("; see '{help} --help'"));
+    line
+}
+
+/// The command whose help fits a failed parse of `args`: the subcommand if
+/// one was named, else the program.
+fn help_target(args: &[OsString]) -> String {
+    let named = args
+        .get(1)
+        .and_then(|a| a.to_str())
+        .filter(|a| Cli::command().get_subcommands().any(|c| c.get_name() == *a));
+    match named {
+        Some(name) => format!("plethwire {name}"),
+        None => "plethwire".to_owned(),
+    }
+}
+
+/// Quote one argument for a POSIX shell when it needs it.
+fn shell_quote(arg: &str) -> String {
+    let plain = !arg.is_empty()
+        && arg
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || "-_./:,=+@%".contains(c));
+    if plain {
+        arg.to_owned()
+    } else {
+        format!("'{}'", arg.replace('\'', r"'\''"))
+    }
+}
+
+/// The command line as a user would retype it, program name shortened.
+fn command_line(args: &[OsString]) -> String {
+    std::iter::once("plethwire".to_owned())
+        .chain(
+            args.iter()
+                .skip(1)
+                .map(|a| shell_quote(&a.to_string_lossy())),
+        )
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// Parse `args` (program name first) and run the command, printing its
+/// output to `out`. Help and version requests print and succeed.
+pub fn run(args: Vec<OsString>, out: &mut dyn Write) -> Result<(), Failure> {
+    let cli = match Cli::try_parse_from(&args) {
+        Ok(cli) => cli,
+        Err(e) if matches!(e.kind(), ErrorKind::DisplayHelp | ErrorKind::DisplayVersion) => {
+            let mut text = e.render().to_string();
+            if !text.ends_with('\n') {
+                text.push('\n');
+            }
+            return out.write_all(text.as_bytes()).map_err(Failure::output);
+        }
+        Err(e) => return Err(Failure::usage(one_line(&e, &help_target(&args)))),
+    };
+    let command = command_line(&args);
+    match cli.command {
+        Command::Filter(filter) => filter.run(&command, out),
+    }
+}
+
+/// The whole program: run with the process's arguments on stdout, report a
+/// failure as `plethwire: <problem>` on stderr.
+pub fn main() -> ExitCode {
+    let stdout = std::io::stdout();
+    match run(std::env::args_os().collect(), &mut stdout.lock()) {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(failure) => {
+            if let Some(message) = failure.message {
+                eprintln!("plethwire: {message}");
+            }
+            ExitCode::from(failure.code)
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn args(list: &[&str]) -> Vec<OsString> {
+        list.iter().map(OsString::from).collect()
+    }
+
+    fn failure(list: &[&str]) -> Failure {
+        let mut sink = Vec::new();
+        run(args(list), &mut sink).expect_err("should fail")
+    }
+
+    #[test]
+    fn quoting_leaves_plain_words_alone() {
+        assert_eq!(shell_quote("--band"), "--band");
+        assert_eq!(shell_quote("0.5:8"), "0.5:8");
+        assert_eq!(shell_quote("my plot.svg"), "'my plot.svg'");
+        assert_eq!(shell_quote("it's"), r"'it'\''s'");
+        assert_eq!(
+            command_line(&args(&["/x/y/plethwire", "filter", "--plot", "a b"])),
+            "plethwire filter --plot 'a b'"
+        );
+    }
+
+    #[test]
+    fn clap_errors_become_one_line_with_a_suggestion() {
+        let f = failure(&["plethwire", "filter", "--rate", "100", "--bnd", "1:2"]);
+        assert_eq!(f.code, EXIT_USAGE);
+        let m = f.message.unwrap();
+        assert!(!m.contains('\n'), "{m}");
+        assert!(
+            m.contains("'--bnd'") && m.contains("did you mean '--band'"),
+            "{m}"
+        );
+    }
+
+    #[test]
+    fn missing_rate_is_named() {
+        let f = failure(&["plethwire", "filter", "--band", "1:2"]);
+        assert_eq!(f.code, EXIT_USAGE);
+        assert!(f.message.unwrap().starts_with("missing --rate <HZ>"));
+    }
+
+    #[test]
+    fn order_without_butterworth_stage_is_a_usage_error() {
+        let f = failure(&[
+            "plethwire",
+            "filter",
+            "--rate",
+            "100",
+            "--notch",
+            "50",
+            "--order",
+            "3",
+        ]);
+        assert_eq!(f.code, EXIT_USAGE);
+    }
+
+    #[test]
+    fn help_succeeds_and_shows_an_example() {
+        let mut out = Vec::new();
+        run(args(&["plethwire", "filter", "--help"]), &mut out).unwrap();
+        let text = String::from_utf8(out).unwrap();
+        assert!(text.contains("plethwire filter --rate 250 --band 0.5:8"));
+    }
+}

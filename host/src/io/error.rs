@@ -1,0 +1,242 @@
+//! The one error type of the readers and writers in [`crate::io`].
+//!
+//! Every error names the file it is about and, where it applies, the line;
+//! its `Display` is a single line such as
+//! `bidmc01.dat: truncated: expected 240004 bytes for 60001 samples of 2 signals, found 1000`
+//! or `x.hea line 2: unknown signal format code 999`, so a command can print
+//! it as it is.
+
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+/// Result of the reading and writing functions in [`crate::io`].
+pub type Result<T> = std::result::Result<T, Error>;
+
+/// What went wrong with a file: see [`ErrorKind`]; where: [`Error::path`]
+/// and [`Error::line`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct Error {
+    path: PathBuf,
+    line: Option<usize>,
+    kind: ErrorKind,
+}
+
+/// The problems the readers and writers report.
+#[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum ErrorKind {
+    /// The file does not exist.
+    NotFound,
+    /// The operating system refused to read or write the file.
+    Io {
+        /// `"read"` or `"write"`.
+        action: &'static str,
+        /// The operating system's message.
+        message: String,
+    },
+    /// The file has no content at all.
+    Empty,
+    /// The text does not follow the format (header, CSV or annotation file).
+    Syntax(String),
+    /// A header names a signal format code that no WFDB format has.
+    UnknownFormat(String),
+    /// The file is valid but uses a feature these readers do not implement.
+    Unsupported(String),
+    /// A signal file holds fewer bytes than its header promises.
+    TruncatedSignal {
+        /// Bytes the header implies, counting the byte offset.
+        expected_bytes: u64,
+        /// Bytes present.
+        found_bytes: u64,
+        /// Samples per signal (frames) the header promises.
+        samples: u64,
+        /// Signals stored in this file.
+        signals: usize,
+    },
+    /// A binary file ends in the middle of an item.
+    Truncated(String),
+    /// No signal has the wanted name.
+    NoSuchSignal {
+        /// The name asked for.
+        wanted: String,
+        /// The names the record or table does have.
+        available: Vec<String>,
+    },
+    /// A cell of a number column holds text that is not a number.
+    NotANumber {
+        /// The column's name (or `#index` when the file has no header).
+        column: String,
+        /// The cell's text.
+        text: String,
+    },
+    /// The data handed to a writer, or asked of a reader, cannot be honoured.
+    Invalid(String),
+}
+
+impl Error {
+    /// An error about `path`, not tied to a line.
+    pub fn new(path: impl AsRef<Path>, kind: ErrorKind) -> Error {
+        Error {
+            path: path.as_ref().to_path_buf(),
+            line: None,
+            kind,
+        }
+    }
+
+    /// The same error, placed on 1-based `line` of the file.
+    pub fn at_line(mut self, line: usize) -> Error {
+        self.line = Some(line);
+        self
+    }
+
+    /// A syntax error on `line` of `path`.
+    pub(crate) fn syntax(path: &Path, line: usize, message: impl Into<String>) -> Error {
+        Error::new(path, ErrorKind::Syntax(message.into())).at_line(line)
+    }
+
+    /// Turn an operating-system error on `path` into ours.
+    pub(crate) fn from_io(path: &Path, action: &'static str, err: &std::io::Error) -> Error {
+        let kind = if err.kind() == std::io::ErrorKind::NotFound {
+            ErrorKind::NotFound
+        } else {
+            ErrorKind::Io {
+                action,
+                message: err.to_string(),
+            }
+        };
+        Error::new(path, kind)
+    }
+
+    /// The file the error is about.
+    pub fn path(&self) -> &Path {
+        &self.path
+    }
+
+    /// The 1-based line of the file, for text formats.
+    pub fn line(&self) -> Option<usize> {
+        self.line
+    }
+
+    /// What went wrong.
+    pub fn kind(&self) -> &ErrorKind {
+        &self.kind
+    }
+}
+
+/// Show text taken from a file inside a one-line message: quoted, with
+/// control characters escaped, and cut short when long.
+pub(crate) fn quoted(text: &str) -> String {
+    const MAX_CHARS: usize = 40;
+    let mut shown: String = text.chars().take(MAX_CHARS).collect();
+    if shown.len() < text.len() {
+        shown.push('…');
+    }
+    format!("{shown:?}")
+}
+
+impl fmt::Display for ErrorKind {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            ErrorKind::NotFound => write!(f, "no such file"),
+            ErrorKind::Io { action, message } => write!(f, "cannot {action}: {message}"),
+            ErrorKind::Empty => write!(f, "empty file"),
+            ErrorKind::Syntax(message)
+            | ErrorKind::Unsupported(message)
+            | ErrorKind::Invalid(message) => write!(f, "{message}"),
+            ErrorKind::UnknownFormat(code) => write!(f, "unknown signal format code {code}"),
+            ErrorKind::TruncatedSignal {
+                expected_bytes,
+                found_bytes,
+                samples,
+                signals,
+            } => write!(
+                f,
+                "truncated: expected {expected_bytes} bytes for {samples} samples of {signals} signal{}, found {found_bytes}",
+                if *signals == 1 { "" } else { "s" }
+            ),
+            ErrorKind::Truncated(message) => write!(f, "truncated: {message}"),
+            ErrorKind::NoSuchSignal { wanted, available } => {
+                let names: Vec<String> = available.iter().map(|n| quoted(n)).collect();
+                write!(
+                    f,
+                    "no signal named {} (available: {})",
+                    quoted(wanted),
+                    if names.is_empty() {
+                        "none".to_string()
+                    } else {
+                        names.join(", ")
+                    }
+                )
+            }
+            ErrorKind::NotANumber { column, text } => {
+                write!(f, "column {}: {} is not a number", quoted(column), quoted(text))
+            }
+        }
+    }
+}
+
+impl fmt::Display for Error {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}", self.path.display())?;
+        if let Some(line) = self.line {
+            write!(f, " line {line}")?;
+        }
+        // Messages carry file text only through `quoted`, but a path or an
+        // OS message could still hold a line break: keep the promise of one line.
+        let message = self.kind.to_string().replace(['\n', '\r'], " ");
+        write!(f, ": {message}")
+    }
+}
+
+impl std::error::Error for Error {}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn display_is_one_line_naming_file_and_line() {
+        let e = Error::new("x.hea", ErrorKind::UnknownFormat("999".into())).at_line(2);
+        assert_eq!(
+            e.to_string(),
+            "x.hea line 2: unknown signal format code 999"
+        );
+        let t = Error::new(
+            "bidmc01.dat",
+            ErrorKind::TruncatedSignal {
+                expected_bytes: 240004,
+                found_bytes: 1000,
+                samples: 60001,
+                signals: 2,
+            },
+        );
+        assert_eq!(
+            t.to_string(),
+            "bidmc01.dat: truncated: expected 240004 bytes for 60001 samples of 2 signals, found 1000"
+        );
+    }
+
+    #[test]
+    fn quoted_text_is_escaped_and_cut() {
+        assert_eq!(quoted("a\nb"), "\"a\\nb\"");
+        let long = "x".repeat(100);
+        let q = quoted(&long);
+        assert!(q.chars().count() < 50, "{q}");
+        assert!(q.contains('…'));
+    }
+
+    #[test]
+    fn missing_signal_lists_the_names() {
+        let e = Error::new(
+            "r.hea",
+            ErrorKind::NoSuchSignal {
+                wanted: "PLETH".into(),
+                available: vec!["II".into(), "V".into()],
+            },
+        );
+        assert_eq!(
+            e.to_string(),
+            "r.hea: no signal named \"PLETH\" (available: \"II\", \"V\")"
+        );
+    }
+}

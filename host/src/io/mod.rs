@@ -1,0 +1,65 @@
+//! Reading and writing recorded signals: WFDB records and annotations
+//! (PhysioNet's open format) and CSV files, in pure Rust.
+//!
+//! * [`Record`] opens `dir/name` (or `dir/name.hea`) and reads its signals
+//!   as stored integers or physical values; [`RecordWriter`] writes one in
+//!   format 16.
+//! * [`read_annotations`] / [`write_annotations`] handle WFDB annotation
+//!   files (MIT format), e.g. reference beat positions.
+//! * [`read_csv_signal`] takes one column of a CSV file as a signal;
+//!   [`read_numerics`] reads a table of sparse once-a-second values.
+//!
+//! Every failure is an [`Error`] whose `Display` is one line naming the
+//! file (and line) and the problem; malformed input never panics.
+
+mod csv;
+mod error;
+mod numerics;
+mod wfdb_annotation;
+mod wfdb_format;
+mod wfdb_header;
+mod wfdb_signal;
+mod wfdb_write;
+
+#[cfg(test)]
+pub(crate) mod test_support;
+
+pub use csv::{read_csv_signal, ColumnRef, CsvSignal, CsvSignalOptions, Rate, TimeBase};
+pub use error::{Error, ErrorKind, Result};
+pub use numerics::{read_numerics, Numerics};
+pub use wfdb_annotation::{
+    annotation_path, code_for_symbol, decode_annotations, encode_annotations, read_annotations,
+    symbol_for_code, write_annotations, Annotation, NORMAL,
+};
+pub use wfdb_format::{FormatProblem, SignalFormat};
+pub use wfdb_header::{
+    BaseDate, BaseTime, Header, SegmentSpec, SignalSpec, DEFAULT_FS, DEFAULT_GAIN, DEFAULT_UNITS,
+};
+pub use wfdb_signal::{checksum, Record};
+pub use wfdb_write::{write_record, NewSignal, RecordWriter};
+
+/// The signal picked when the caller names none: the photoplethysmogram,
+/// as the recordings this tool is checked on label it.
+pub const DEFAULT_SIGNAL: &str = "PLETH";
+
+/// One signal loaded for processing, whatever file it came from.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LoadedSignal {
+    /// The signal's name (WFDB description or CSV column name).
+    pub name: String,
+    /// Physical units, when the file says.
+    pub units: Option<String>,
+    /// Samples per second.
+    pub fs: f64,
+    /// The samples; NaN marks a missing sample.
+    pub samples: Vec<f64>,
+}
+
+/// Load signal `name` (default [`DEFAULT_SIGNAL`]) of the WFDB record at
+/// `path` (`dir/name` or `dir/name.hea`) in physical units.
+pub fn read_wfdb_signal(
+    path: impl AsRef<std::path::Path>,
+    name: Option<&str>,
+) -> Result<LoadedSignal> {
+    Record::open(path)?.load_signal(name)
+}

@@ -1,0 +1,289 @@
+//! WFDB annotation files in the MIT format: reading and writing.
+//!
+//! Source: PhysioNet WFDB annotation file format specification, annot(5)
+//! of the WFDB Applications Guide. The file is a sequence of 16-bit
+//! little-endian words; each word's top 6 bits are a code A and its low
+//! 10 bits a number I. A = 1..=49 starts an annotation of that type, I
+//! samples after the previous one. The special codes are
+//! SKIP (59: the next two words hold a 32-bit interval, high word first),
+//! NUM (60: I is the `num` of this and later annotations),
+//! SUB (61: I is this annotation's subtype),
+//! CHN (62: I is the `chan` of this and later annotations) and
+//! AUX (63: I bytes of text follow, padded to an even count).
+//! A word of 0 ends the file.
+
+use std::path::{Path, PathBuf};
+
+use super::error::{Error, ErrorKind, Result};
+
+const SKIP: u16 = 59;
+const NUM: u16 = 60;
+const SUB: u16 = 61;
+const CHN: u16 = 62;
+const AUX: u16 = 63;
+/// Highest code that denotes an annotation type (ACMAX in the WFDB library).
+const LAST_TYPE: u8 = 49;
+/// Largest time step one annotation word holds.
+const MAX_STEP: i64 = 0x3FF;
+
+/// Code of a normal beat, symbol `N`.
+pub const NORMAL: u8 = 1;
+
+/// One annotation.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Annotation {
+    /// Sample number (0-based, in frames of the record).
+    pub sample: i64,
+    /// Annotation type code (1..=49; 0 marks an entry that is not an
+    /// annotation, which some files carry).
+    pub code: u8,
+    /// Subtype (signed, default 0).
+    pub subtype: i8,
+    /// Signal number the annotation belongs to (default 0).
+    pub chan: u8,
+    /// Annotator number field (signed, default 0).
+    pub num: i8,
+    /// Auxiliary text, e.g. a rhythm label; bytes are read as Latin-1.
+    pub aux: Option<String>,
+}
+
+impl Annotation {
+    /// An annotation of type `code` at `sample`, other fields at their defaults.
+    pub fn new(sample: i64, code: u8) -> Annotation {
+        Annotation {
+            sample,
+            code,
+            subtype: 0,
+            chan: 0,
+            num: 0,
+            aux: None,
+        }
+    }
+
+    /// A normal beat (`N`) at `sample`.
+    pub fn beat(sample: i64) -> Annotation {
+        Annotation::new(sample, NORMAL)
+    }
+
+    /// The standard mnemonic of the type code, e.g. `N`; `None` for codes
+    /// the standard table leaves free.
+    pub fn symbol(&self) -> Option<&'static str> {
+        symbol_for_code(self.code)
+    }
+}
+
+/// Standard mnemonics by code, from the annotation code table of the WFDB
+/// specification (annot(5) / ecgcodes). Empty entries are undefined codes.
+const SYMBOLS: [&str; 42] = [
+    "", "N", "L", "R", "a", "V", "F", "J", "A", "S", "E", "j", "/", "Q", "~", "", "|", "", "s",
+    "T", "*", "D", "\"", "=", "p", "B", "^", "t", "+", "u", "?", "!", "[", "]", "e", "n", "@", "x",
+    "f", "(", ")", "r",
+];
+
+/// The standard mnemonic of annotation code `code`.
+pub fn symbol_for_code(code: u8) -> Option<&'static str> {
+    SYMBOLS
+        .get(code as usize)
+        .copied()
+        .filter(|s| !s.is_empty())
+}
+
+/// The annotation code of a standard mnemonic, e.g. `N` → 1.
+pub fn code_for_symbol(symbol: &str) -> Option<u8> {
+    SYMBOLS
+        .iter()
+        .position(|s| !s.is_empty() && *s == symbol)
+        .map(|i| i as u8)
+}
+
+/// The annotation file of `record` (`dir/name`, or `dir/name.hea`) with
+/// extension `annotator`, e.g. `dir/name.peak`.
+pub fn annotation_path(record: &Path, annotator: &str) -> PathBuf {
+    let base = if record.extension().is_some_and(|e| e == "hea") {
+        record.with_extension("")
+    } else {
+        record.to_path_buf()
+    };
+    let mut name = base.into_os_string();
+    name.push(".");
+    name.push(annotator);
+    PathBuf::from(name)
+}
+
+/// Read the annotation file at `path`.
+pub fn read_annotations(path: impl AsRef<Path>) -> Result<Vec<Annotation>> {
+    let path = path.as_ref();
+    let bytes = std::fs::read(path).map_err(|e| Error::from_io(path, "read", &e))?;
+    decode_annotations(&bytes).map_err(|kind| Error::new(path, kind))
+}
+
+/// Decode the bytes of an annotation file.
+pub fn decode_annotations(bytes: &[u8]) -> std::result::Result<Vec<Annotation>, ErrorKind> {
+    if bytes.is_empty() {
+        return Err(ErrorKind::Empty);
+    }
+    let word_at = |pos: usize| -> Option<u16> {
+        Some(u16::from_le_bytes([*bytes.get(pos)?, *bytes.get(pos + 1)?]))
+    };
+    let mut out: Vec<Annotation> = Vec::new();
+    let (mut time, mut chan, mut num) = (0i64, 0u8, 0i8);
+    let mut pos = 0usize;
+    loop {
+        let Some(word) = word_at(pos) else {
+            return Err(ErrorKind::Truncated(if pos < bytes.len() {
+                format!("odd byte at {pos}: annotation files are 16-bit words")
+            } else {
+                "no end-of-file word (0x0000) after the last annotation".into()
+            }));
+        };
+        let (code, value) = (word >> 10, word & 0x3FF);
+        match code {
+            0 if value == 0 => break,
+            SKIP => {
+                let (Some(high), Some(low)) = (word_at(pos + 2), word_at(pos + 4)) else {
+                    return Err(ErrorKind::Truncated(format!(
+                        "SKIP word at byte {pos} lacks its 4-byte interval"
+                    )));
+                };
+                let step = ((high as u32) << 16 | low as u32) as i32;
+                time += step as i64;
+                pos += 6;
+                continue;
+            }
+            NUM => {
+                num = value as u8 as i8;
+                last(&mut out, "NUM", pos)?.num = num;
+            }
+            SUB => last(&mut out, "SUB", pos)?.subtype = value as u8 as i8,
+            CHN => {
+                chan = value as u8;
+                last(&mut out, "CHN", pos)?.chan = chan;
+            }
+            AUX => {
+                // The length is the low byte, as the WFDB library keeps it.
+                let len = (value & 0xFF) as usize;
+                let text = bytes.get(pos + 2..pos + 2 + len).ok_or_else(|| {
+                    ErrorKind::Truncated(format!(
+                        "AUX word at byte {pos} announces {len} bytes, {} remain",
+                        bytes.len() - pos - 2
+                    ))
+                })?;
+                // Latin-1: every byte is the code point of the same number.
+                let text: String = text.iter().map(|&b| b as char).collect();
+                last(&mut out, "AUX", pos)?.aux = Some(text);
+                pos += 2 + len + len % 2;
+                continue;
+            }
+            _ => {
+                time += value as i64;
+                let mut a = Annotation::new(time, code as u8);
+                a.chan = chan;
+                a.num = num;
+                out.push(a);
+            }
+        }
+        pos += 2;
+    }
+    Ok(out)
+}
+
+/// The annotation a modifier word at byte `pos` refers to: the one just read.
+fn last<'a>(
+    out: &'a mut [Annotation],
+    name: &str,
+    pos: usize,
+) -> std::result::Result<&'a mut Annotation, ErrorKind> {
+    out.last_mut().ok_or_else(|| {
+        ErrorKind::Syntax(format!(
+            "{name} word at byte {pos} comes before any annotation"
+        ))
+    })
+}
+
+/// Append one annotation word: code in the top 6 bits, value in the low 10.
+fn put(out: &mut Vec<u8>, code: u16, value: u16) {
+    out.extend_from_slice(&(code << 10 | (value & 0x3FF)).to_le_bytes());
+}
+
+/// Encode annotations as an annotation file's bytes.
+///
+/// Annotations must be in time order (equal times allowed), at sample 0 or
+/// later, with codes 1..=49 and aux text of at most 255 Latin-1
+/// characters. Steps above 1023 samples go in SKIP words; `chan` and `num`
+/// are written only where they change, the subtype only where it is not 0,
+/// as the specification's carry-over rules allow.
+pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec<u8>, String> {
+    let mut out = Vec::with_capacity(annotations.len() * 2 + 2);
+    let (mut time, mut chan, mut num) = (0i64, 0u8, 0i8);
+    for (i, a) in annotations.iter().enumerate() {
+        if a.code == 0 || a.code > LAST_TYPE {
+            return Err(format!(
+                "annotation {i}: code {} is not an annotation type (1..={LAST_TYPE})",
+                a.code
+            ));
+        }
+        if a.sample < time {
+            return Err(format!(
+                "annotation {i}: sample {} comes before the previous one ({time}); \
+                 annotations must be in time order from sample 0",
+                a.sample
+            ));
+        }
+        let mut step = a.sample - time;
+        if step > MAX_STEP {
+            // One SKIP holds a signed 32-bit interval; longer gaps take several.
+            while step > 0 {
+                let part = step.min(i32::MAX as i64) as u32;
+                put(&mut out, SKIP, 0);
+                out.extend_from_slice(&((part >> 16) as u16).to_le_bytes());
+                out.extend_from_slice(&(part as u16).to_le_bytes());
+                step -= part as i64;
+            }
+        }
+        put(&mut out, a.code as u16, step as u16);
+        if a.subtype != 0 {
+            put(&mut out, SUB, a.subtype as u8 as u16);
+        }
+        if a.chan != chan {
+            put(&mut out, CHN, a.chan as u16);
+            chan = a.chan;
+        }
+        if a.num != num {
+            put(&mut out, NUM, a.num as u8 as u16);
+            num = a.num;
+        }
+        if let Some(text) = &a.aux {
+            let bytes: Vec<u8> = text
+                .chars()
+                .map(|c| u8::try_from(c as u32))
+                .collect::<std::result::Result<_, _>>()
+                .map_err(|_| format!("annotation {i}: aux text has a character outside Latin-1"))?;
+            if bytes.len() > 255 {
+                return Err(format!(
+                    "annotation {i}: aux text of {} bytes, at most 255 fit",
+                    bytes.len()
+                ));
+            }
+            put(&mut out, AUX, bytes.len() as u16);
+            out.extend_from_slice(&bytes);
+            if bytes.len() % 2 == 1 {
+                out.push(0);
+            }
+        }
+        time = a.sample;
+    }
+    put(&mut out, 0, 0);
+    Ok(out)
+}
+
+/// Write `annotations` to the annotation file `path` (see
+/// [`encode_annotations`] for what is accepted).
+pub fn write_annotations(path: impl AsRef<Path>, annotations: &[Annotation]) -> Result<()> {
+    let path = path.as_ref();
+    let bytes =
+        encode_annotations(annotations).map_err(|m| Error::new(path, ErrorKind::Invalid(m)))?;
+    std::fs::write(path, bytes).map_err(|e| Error::from_io(path, "write", &e))
+}
+
+#[cfg(test)]
+mod tests;

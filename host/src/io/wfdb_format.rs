@@ -1,0 +1,396 @@
+//! WFDB signal file formats: how samples are packed into bytes.
+//!
+//! Source: PhysioNet WFDB signal file format specification, signal(5) of
+//! the WFDB Applications Guide. A signal file holds a flat stream of
+//! samples (frame after frame, each frame holding every signal of the file
+//! in header order); the formats differ only in how that stream is packed.
+
+/// The signal file formats these readers decode.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum SignalFormat {
+    /// Format 8: 8-bit first differences, summed onto the initial value.
+    Diff8,
+    /// Format 16: 16-bit two's complement, least significant byte first.
+    Fmt16,
+    /// Format 24: 24-bit two's complement, least significant byte first.
+    Fmt24,
+    /// Format 32: 32-bit two's complement, least significant byte first.
+    Fmt32,
+    /// Format 61: 16-bit two's complement, most significant byte first.
+    Fmt61,
+    /// Format 80: 8-bit offset binary (stored byte minus 128).
+    Fmt80,
+    /// Format 160: 16-bit offset binary (stored word minus 32768), LSB first.
+    Fmt160,
+    /// Format 212: pairs of 12-bit two's complement samples in 3 bytes.
+    Fmt212,
+    /// Format 310: three 10-bit samples in two 16-bit words (bit 0 unused).
+    Fmt310,
+    /// Format 311: three 10-bit samples in one 32-bit word, LSB first.
+    Fmt311,
+}
+
+/// Why a format code cannot be used.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum FormatProblem {
+    /// No WFDB format has this code.
+    Unknown,
+    /// A real WFDB format that these readers do not decode; the text says which.
+    Unsupported(&'static str),
+}
+
+impl SignalFormat {
+    /// The format for a header's format code.
+    pub fn from_code(code: u32) -> Result<SignalFormat, FormatProblem> {
+        Ok(match code {
+            8 => SignalFormat::Diff8,
+            16 => SignalFormat::Fmt16,
+            24 => SignalFormat::Fmt24,
+            32 => SignalFormat::Fmt32,
+            61 => SignalFormat::Fmt61,
+            80 => SignalFormat::Fmt80,
+            160 => SignalFormat::Fmt160,
+            212 => SignalFormat::Fmt212,
+            310 => SignalFormat::Fmt310,
+            311 => SignalFormat::Fmt311,
+            0 => {
+                return Err(FormatProblem::Unsupported(
+                    "format 0 (null signal, no samples stored)",
+                ))
+            }
+            508 | 516 | 524 => {
+                return Err(FormatProblem::Unsupported(
+                    "formats 508/516/524 (FLAC-compressed)",
+                ))
+            }
+            _ => return Err(FormatProblem::Unknown),
+        })
+    }
+
+    /// The code written in headers.
+    pub fn code(self) -> u32 {
+        match self {
+            SignalFormat::Diff8 => 8,
+            SignalFormat::Fmt16 => 16,
+            SignalFormat::Fmt24 => 24,
+            SignalFormat::Fmt32 => 32,
+            SignalFormat::Fmt61 => 61,
+            SignalFormat::Fmt80 => 80,
+            SignalFormat::Fmt160 => 160,
+            SignalFormat::Fmt212 => 212,
+            SignalFormat::Fmt310 => 310,
+            SignalFormat::Fmt311 => 311,
+        }
+    }
+
+    /// The stored value that marks a missing ("invalid") sample: the most
+    /// negative value of the format. Format 8 has none.
+    pub fn invalid_value(self) -> Option<i32> {
+        match self {
+            SignalFormat::Diff8 => None,
+            SignalFormat::Fmt80 => Some(-(1 << 7)),
+            SignalFormat::Fmt310 | SignalFormat::Fmt311 => Some(-(1 << 9)),
+            SignalFormat::Fmt212 => Some(-(1 << 11)),
+            SignalFormat::Fmt16 | SignalFormat::Fmt61 | SignalFormat::Fmt160 => Some(-(1 << 15)),
+            SignalFormat::Fmt24 => Some(-(1 << 23)),
+            SignalFormat::Fmt32 => Some(i32::MIN),
+        }
+    }
+
+    /// ADC resolution in bits assumed when a header leaves the field out,
+    /// as the WFDB library does: 8 for format 80, 16 for 160, 12 for 212,
+    /// 10 for 310 and 311, otherwise the library default of 12.
+    pub fn default_resolution(self) -> u32 {
+        match self {
+            SignalFormat::Fmt80 => 8,
+            SignalFormat::Fmt160 => 16,
+            SignalFormat::Fmt310 | SignalFormat::Fmt311 => 10,
+            _ => 12,
+        }
+    }
+
+    /// Bytes holding the first `samples` samples of the stream. Packed
+    /// formats end on the last byte that still holds a bit of the last
+    /// sample (format 310 needs the whole 4-byte group once it holds two).
+    pub fn bytes_for(self, samples: u64) -> u64 {
+        match self {
+            SignalFormat::Diff8 | SignalFormat::Fmt80 => samples,
+            SignalFormat::Fmt16 | SignalFormat::Fmt61 | SignalFormat::Fmt160 => samples * 2,
+            SignalFormat::Fmt24 => samples * 3,
+            SignalFormat::Fmt32 => samples * 4,
+            SignalFormat::Fmt212 => (samples * 3).div_ceil(2),
+            SignalFormat::Fmt310 => match samples % 3 {
+                2 => samples.div_ceil(3) * 4,
+                _ => (samples * 4).div_ceil(3),
+            },
+            SignalFormat::Fmt311 => (samples * 4).div_ceil(3),
+        }
+    }
+
+    /// The largest number of whole samples that `bytes` bytes hold.
+    pub fn samples_in(self, bytes: u64) -> u64 {
+        // bytes_for is monotonic: start from the estimate and step down.
+        let mut n = match self {
+            SignalFormat::Diff8 | SignalFormat::Fmt80 => bytes,
+            SignalFormat::Fmt16 | SignalFormat::Fmt61 | SignalFormat::Fmt160 => bytes / 2,
+            SignalFormat::Fmt24 => bytes / 3,
+            SignalFormat::Fmt32 => bytes / 4,
+            SignalFormat::Fmt212 => bytes * 2 / 3 + 1,
+            SignalFormat::Fmt310 | SignalFormat::Fmt311 => bytes * 3 / 4 + 1,
+        };
+        while n > 0 && self.bytes_for(n) > bytes {
+            n -= 1;
+        }
+        n
+    }
+
+    /// Unpack the first `count` samples of `bytes` (which must hold at
+    /// least [`bytes_for`](Self::bytes_for)`(count)` bytes).
+    ///
+    /// Format 8 yields the stored differences; the caller sums them per
+    /// signal, as [`Record`](super::Record) does.
+    pub fn decode(self, bytes: &[u8], count: usize) -> Vec<i32> {
+        debug_assert!(bytes.len() as u64 >= self.bytes_for(count as u64));
+        let mut out = Vec::with_capacity(count);
+        match self {
+            SignalFormat::Diff8 => out.extend(bytes[..count].iter().map(|&b| b as i8 as i32)),
+            SignalFormat::Fmt80 => out.extend(bytes[..count].iter().map(|&b| b as i32 - 128)),
+            SignalFormat::Fmt16 => out.extend(
+                bytes
+                    .chunks_exact(2)
+                    .take(count)
+                    .map(|c| i16::from_le_bytes([c[0], c[1]]) as i32),
+            ),
+            SignalFormat::Fmt61 => out.extend(
+                bytes
+                    .chunks_exact(2)
+                    .take(count)
+                    .map(|c| i16::from_be_bytes([c[0], c[1]]) as i32),
+            ),
+            SignalFormat::Fmt160 => out.extend(
+                bytes
+                    .chunks_exact(2)
+                    .take(count)
+                    .map(|c| u16::from_le_bytes([c[0], c[1]]) as i32 - 32768),
+            ),
+            SignalFormat::Fmt24 => out.extend(bytes.chunks_exact(3).take(count).map(|c| {
+                // Put the three bytes at the top of an i32 so the shift
+                // back down sign-extends.
+                i32::from_le_bytes([0, c[0], c[1], c[2]]) >> 8
+            })),
+            SignalFormat::Fmt32 => out.extend(
+                bytes
+                    .chunks_exact(4)
+                    .take(count)
+                    .map(|c| i32::from_le_bytes([c[0], c[1], c[2], c[3]])),
+            ),
+            SignalFormat::Fmt212 => {
+                for k in 0..count {
+                    let base = k / 2 * 3;
+                    let raw = if k % 2 == 0 {
+                        bytes[base] as i32 | ((bytes[base + 1] as i32 & 0x0F) << 8)
+                    } else {
+                        bytes[base + 2] as i32 | ((bytes[base + 1] as i32 & 0xF0) << 4)
+                    };
+                    out.push(sign_extend(raw, 12));
+                }
+            }
+            SignalFormat::Fmt310 => {
+                for k in 0..count {
+                    let base = k / 3 * 4;
+                    let word = |i: usize| -> i32 {
+                        bytes[base + 2 * i] as i32 | ((bytes[base + 2 * i + 1] as i32) << 8)
+                    };
+                    let raw = match k % 3 {
+                        0 => (word(0) >> 1) & 0x3FF,
+                        1 => (word(1) >> 1) & 0x3FF,
+                        _ => ((word(0) >> 11) & 0x1F) | (((word(1) >> 11) & 0x1F) << 5),
+                    };
+                    out.push(sign_extend(raw, 10));
+                }
+            }
+            SignalFormat::Fmt311 => {
+                for k in 0..count {
+                    let base = k / 3 * 4;
+                    let byte = |i: usize| bytes.get(base + i).copied().unwrap_or(0) as u32;
+                    let word = byte(0) | byte(1) << 8 | byte(2) << 16 | byte(3) << 24;
+                    let raw = (word >> (10 * (k % 3))) & 0x3FF;
+                    out.push(sign_extend(raw as i32, 10));
+                }
+            }
+        }
+        out
+    }
+
+    /// The smallest and largest value a sample of this format can hold
+    /// (format 8 is limited only by the i32 running sum).
+    pub fn range(self) -> (i32, i32) {
+        match self {
+            SignalFormat::Diff8 | SignalFormat::Fmt32 => (i32::MIN, i32::MAX),
+            SignalFormat::Fmt80 => (-128, 127),
+            SignalFormat::Fmt310 | SignalFormat::Fmt311 => (-512, 511),
+            SignalFormat::Fmt212 => (-2048, 2047),
+            SignalFormat::Fmt16 | SignalFormat::Fmt61 | SignalFormat::Fmt160 => (-32768, 32767),
+            SignalFormat::Fmt24 => (-(1 << 23), (1 << 23) - 1),
+        }
+    }
+}
+
+/// Sign-extend the low `bits` bits of `raw`.
+fn sign_extend(raw: i32, bits: u32) -> i32 {
+    let shift = 32 - bits;
+    (raw << shift) >> shift
+}
+
+/// Turn the differences of a format 8 stream into sample values.
+///
+/// `stream` holds frames of `slots.iter().sum()` differences; signal `s`
+/// owns `slots[s]` consecutive entries of each frame and starts from
+/// `initial[s]`. Differences are taken between successive samples of the
+/// same signal (signal(5)), so each signal keeps its own running sum.
+pub(crate) fn undo_differences(stream: &mut [i32], slots: &[usize], initial: &[i32]) {
+    let frame: usize = slots.iter().sum();
+    if frame == 0 {
+        return;
+    }
+    let mut running: Vec<i32> = initial.to_vec();
+    for chunk in stream.chunks_mut(frame) {
+        let mut at = 0;
+        for (s, &n) in slots.iter().enumerate() {
+            for v in chunk.iter_mut().skip(at).take(n) {
+                running[s] = running[s].wrapping_add(*v);
+                *v = running[s];
+            }
+            at += n;
+        }
+    }
+}
+
+/// Append `value` to `out` as a format 16 sample (the only format the
+/// writer produces).
+pub(crate) fn encode_fmt16(value: i16, out: &mut Vec<u8>) {
+    out.extend_from_slice(&value.to_le_bytes());
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const ALL: [SignalFormat; 10] = [
+        SignalFormat::Diff8,
+        SignalFormat::Fmt16,
+        SignalFormat::Fmt24,
+        SignalFormat::Fmt32,
+        SignalFormat::Fmt61,
+        SignalFormat::Fmt80,
+        SignalFormat::Fmt160,
+        SignalFormat::Fmt212,
+        SignalFormat::Fmt310,
+        SignalFormat::Fmt311,
+    ];
+
+    #[test]
+    fn codes_round_trip_and_odd_codes_are_refused() {
+        for f in ALL {
+            assert_eq!(SignalFormat::from_code(f.code()), Ok(f));
+        }
+        assert_eq!(SignalFormat::from_code(999), Err(FormatProblem::Unknown));
+        assert!(matches!(
+            SignalFormat::from_code(516),
+            Err(FormatProblem::Unsupported(_))
+        ));
+    }
+
+    // Byte layouts written out by hand from signal(5).
+    #[test]
+    fn format_212_packs_two_samples_in_three_bytes() {
+        // 1, -2048, 3 -> 01 80 00 | 03 00: the odd last sample takes two bytes.
+        let bytes = [0x01, 0x80, 0x00, 0x03, 0x00];
+        assert_eq!(SignalFormat::Fmt212.bytes_for(3), 5);
+        assert_eq!(SignalFormat::Fmt212.decode(&bytes, 3), vec![1, -2048, 3]);
+        // 2047 and -5: FF, low nibble 7 | high nibble B, FB.
+        assert_eq!(
+            SignalFormat::Fmt212.decode(&[0xFF, 0xF7, 0xFB], 2),
+            vec![2047, -5]
+        );
+    }
+
+    #[test]
+    fn format_80_is_offset_binary() {
+        assert_eq!(
+            SignalFormat::Fmt80.decode(&[0x81, 0x00, 0xFF], 3),
+            vec![1, -128, 127]
+        );
+    }
+
+    #[test]
+    fn byte_orders_of_16_61_160_24_32() {
+        assert_eq!(
+            SignalFormat::Fmt16.decode(&[0xFE, 0xFF, 0x00, 0x80], 2),
+            vec![-2, -32768]
+        );
+        assert_eq!(SignalFormat::Fmt61.decode(&[0xFF, 0xFE], 1), vec![-2]);
+        assert_eq!(
+            SignalFormat::Fmt160.decode(&[0x00, 0x80, 0x00, 0x00], 2),
+            vec![0, -32768]
+        );
+        assert_eq!(
+            SignalFormat::Fmt24.decode(&[0xFF, 0xFF, 0xFF, 0x00, 0x00, 0x80], 2),
+            vec![-1, -(1 << 23)]
+        );
+        assert_eq!(
+            SignalFormat::Fmt32.decode(&[0x01, 0x00, 0x00, 0x80], 1),
+            vec![i32::MIN + 1]
+        );
+    }
+
+    #[test]
+    fn formats_310_and_311_pack_three_ten_bit_samples() {
+        // 311: 1 | -1 << 10 | -512 << 20 in one little-endian word.
+        let word: u32 = 1 | (0x3FF << 10) | (0x200 << 20);
+        assert_eq!(
+            SignalFormat::Fmt311.decode(&word.to_le_bytes(), 3),
+            vec![1, -1, -512]
+        );
+        // 310: s0 in bits 1..=10 of word 0, s1 in bits 1..=10 of word 1,
+        // s2's low five bits in bits 11..=15 of word 0, high five in word 1.
+        let (s0, s1, s2) = (5i32, -3i32, 300i32);
+        let (u0, u1, u2) = (s0 as u16 & 0x3FF, s1 as u16 & 0x3FF, s2 as u16 & 0x3FF);
+        let w0 = (u0 << 1) | ((u2 & 0x1F) << 11);
+        let w1 = (u1 << 1) | ((u2 >> 5) << 11);
+        let mut bytes = w0.to_le_bytes().to_vec();
+        bytes.extend(w1.to_le_bytes());
+        assert_eq!(SignalFormat::Fmt310.decode(&bytes, 3), vec![5, -3, 300]);
+        assert_eq!(SignalFormat::Fmt310.bytes_for(1), 2);
+        assert_eq!(SignalFormat::Fmt310.bytes_for(2), 4);
+        assert_eq!(SignalFormat::Fmt311.bytes_for(2), 3);
+    }
+
+    #[test]
+    fn samples_in_is_the_most_that_fits() {
+        for f in ALL {
+            for b in 0..60u64 {
+                let n = f.samples_in(b);
+                assert!(f.bytes_for(n) <= b, "{f:?} b={b}");
+                assert!(f.bytes_for(n + 1) > b, "{f:?} b={b}");
+            }
+        }
+    }
+
+    #[test]
+    fn format_8_differences_are_summed_per_signal() {
+        // Two signals, the first with two samples per frame.
+        let mut stream = vec![1, 1, 10, -1, 0, -5];
+        undo_differences(&mut stream, &[2, 1], &[100, 0]);
+        assert_eq!(stream, vec![101, 102, 10, 101, 101, 5]);
+    }
+
+    #[test]
+    fn invalid_values_are_each_formats_minimum() {
+        for f in ALL {
+            if let Some(v) = f.invalid_value() {
+                assert_eq!(v, f.range().0, "{f:?}");
+            }
+        }
+    }
+}

@@ -1,0 +1,360 @@
+//! The fields of header lines, one parser each (header(5)).
+
+use super::{
+    BaseDate, BaseTime, Header, SegmentSpec, SignalSpec, DEFAULT_FS, DEFAULT_GAIN, DEFAULT_UNITS,
+};
+use crate::io::error::{quoted, ErrorKind};
+use crate::io::wfdb_format::{FormatProblem, SignalFormat};
+
+/// A signal line's problem: bad text, or a format code we cannot use.
+pub(super) enum LineError {
+    Syntax(String),
+    Format(ErrorKind),
+}
+
+impl From<String> for LineError {
+    fn from(m: String) -> LineError {
+        LineError::Syntax(m)
+    }
+}
+
+/// Parse `text` as a number of type `T`, naming `field` on failure.
+fn number<T: std::str::FromStr>(text: &str, field: &str) -> std::result::Result<T, String> {
+    text.parse::<T>()
+        .map_err(|_| format!("bad {field} {}", quoted(text)))
+}
+
+/// A finite positive frequency.
+fn frequency(text: &str, field: &str) -> std::result::Result<f64, String> {
+    let v: f64 = number(text, field)?;
+    if v.is_finite() && v > 0.0 {
+        Ok(v)
+    } else {
+        Err(format!("bad {field} {}: must be above 0", quoted(text)))
+    }
+}
+
+/// The record line: `name[/segments] signals [fs[/counter[(base)]] [samples [time [date]]]]`.
+/// Also returns the number of signals the line states.
+pub(super) fn parse_record_line(line: &str) -> std::result::Result<(Header, usize), String> {
+    let fields: Vec<&str> = line.split_whitespace().collect();
+    if fields.len() < 2 {
+        return Err("record line needs at least a record name and a number of signals".into());
+    }
+    if fields.len() > 6 {
+        return Err(format!(
+            "record line has {} fields, at most 6 are defined",
+            fields.len()
+        ));
+    }
+    let (name, segments) = match fields[0].split_once('/') {
+        Some((name, n)) => (name, Some(number::<usize>(n, "number of segments")?)),
+        None => (fields[0], None),
+    };
+    if name.is_empty()
+        || !name
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-')
+    {
+        return Err(format!("bad record name {}", quoted(name)));
+    }
+    let n_sig: usize = number(fields[1], "number of signals")?;
+    // Guard the allocation against absurd counts in damaged files.
+    if n_sig > 100_000 {
+        return Err(format!("implausible number of signals {n_sig}"));
+    }
+    let mut fs = DEFAULT_FS;
+    let mut counter_freq = None;
+    let mut base_counter = None;
+    if let Some(&f) = fields.get(2) {
+        let (fs_text, rest) = match f.split_once('/') {
+            Some((a, b)) => (a, Some(b)),
+            None => (f, None),
+        };
+        fs = frequency(fs_text, "sampling frequency")?;
+        if let Some(rest) = rest {
+            let (cf_text, base) = match rest.split_once('(') {
+                Some((a, b)) => {
+                    let b = b
+                        .strip_suffix(')')
+                        .ok_or_else(|| format!("base counter value {} lacks ')'", quoted(b)))?;
+                    (a, Some(b))
+                }
+                None => (rest, None),
+            };
+            counter_freq = Some(frequency(cf_text, "counter frequency")?);
+            base_counter = match base {
+                Some(b) => Some(number::<f64>(b, "base counter value")?)
+                    .filter(|v| v.is_finite())
+                    .ok_or_else(|| format!("bad base counter value {}", quoted(b)))
+                    .map(Some)?,
+                None => None,
+            };
+        }
+    }
+    let samples = match fields.get(3) {
+        Some(s) => Some(number::<u64>(s, "number of samples")?).filter(|&n| n > 0),
+        None => None,
+    };
+    let base_time = fields.get(4).map(|t| parse_time(t)).transpose()?;
+    let base_date = fields.get(5).map(|d| parse_date(d)).transpose()?;
+    let header = Header {
+        record_name: name.to_string(),
+        segments,
+        n_signals: n_sig,
+        fs,
+        counter_freq,
+        base_counter,
+        samples,
+        base_time,
+        base_date,
+        signals: Vec::new(),
+        segment_specs: Vec::new(),
+        comments: Vec::new(),
+    };
+    Ok((header, n_sig))
+}
+
+/// `HH:MM:SS`, `MM:SS` or `SS`, seconds with an optional fraction.
+fn parse_time(text: &str) -> std::result::Result<BaseTime, String> {
+    let bad = || format!("bad base time {}", quoted(text));
+    let parts: Vec<&str> = text.split(':').collect();
+    if parts.len() > 3 {
+        return Err(bad());
+    }
+    let int = |s: &str, max: u32| -> std::result::Result<u32, String> {
+        if s.is_empty() || s.len() > 2 || !s.bytes().all(|b| b.is_ascii_digit()) {
+            return Err(bad());
+        }
+        let v: u32 = s.parse().map_err(|_| bad())?;
+        if v > max {
+            return Err(bad());
+        }
+        Ok(v)
+    };
+    let secs_text = parts[parts.len() - 1];
+    let (whole, frac) = secs_text.split_once('.').unwrap_or((secs_text, ""));
+    let whole = int(whole, 59)?;
+    if !frac.bytes().all(|b| b.is_ascii_digit()) || frac.len() > 6 {
+        return Err(bad());
+    }
+    let seconds = if frac.is_empty() {
+        whole as f64
+    } else {
+        format!("{whole}.{frac}").parse().map_err(|_| bad())?
+    };
+    let minutes = if parts.len() >= 2 {
+        int(parts[parts.len() - 2], 59)?
+    } else {
+        0
+    };
+    let hours = if parts.len() == 3 {
+        int(parts[0], 23)?
+    } else {
+        0
+    };
+    Ok(BaseTime {
+        hours,
+        minutes,
+        seconds,
+    })
+}
+
+/// `DD/MM/YYYY`.
+fn parse_date(text: &str) -> std::result::Result<BaseDate, String> {
+    let bad = || format!("bad base date {}", quoted(text));
+    let parts: Vec<&str> = text.split('/').collect();
+    if parts.len() != 3
+        || parts
+            .iter()
+            .any(|p| p.is_empty() || !p.bytes().all(|b| b.is_ascii_digit()))
+    {
+        return Err(bad());
+    }
+    let day: u32 = parts[0].parse().map_err(|_| bad())?;
+    let month: u32 = parts[1].parse().map_err(|_| bad())?;
+    let year: u32 = parts[2].parse().map_err(|_| bad())?;
+    if !(1..=31).contains(&day) || !(1..=12).contains(&month) || parts[2].len() > 4 {
+        return Err(bad());
+    }
+    Ok(BaseDate { day, month, year })
+}
+
+/// A segment line: `name samples`.
+pub(super) fn parse_segment_line(line: &str) -> std::result::Result<SegmentSpec, String> {
+    let fields: Vec<&str> = line.split_whitespace().collect();
+    if fields.len() != 2 {
+        return Err("segment line must hold a record name and a number of samples".into());
+    }
+    Ok(SegmentSpec {
+        name: fields[0].to_string(),
+        samples: number(fields[1], "segment length")?,
+    })
+}
+
+/// Split off the first whitespace-separated field of `text`.
+fn next_field(text: &str) -> Option<(&str, &str)> {
+    let text = text.trim_start();
+    if text.is_empty() {
+        return None;
+    }
+    let end = text.find(char::is_whitespace).unwrap_or(text.len());
+    Some((&text[..end], &text[end..]))
+}
+
+/// A signal line: `file format[xspf][:skew][+offset] [gain[(baseline)][/units]
+/// [resolution [zero [initial [checksum [blocksize [description]]]]]]]`.
+pub(super) fn parse_signal_line(line: &str) -> std::result::Result<SignalSpec, LineError> {
+    let (file_name, rest) = next_field(line).ok_or_else(|| "empty signal line".to_string())?;
+    let (format_text, mut rest) =
+        next_field(rest).ok_or_else(|| "signal line lacks the format field".to_string())?;
+    let (format, samples_per_frame, skew, byte_offset) = parse_format_field(format_text)?;
+
+    // The numeric fields that follow are each optional, but only from the
+    // right: take them in order while they are there.
+    let mut take = || -> Option<&str> {
+        let (field, after) = next_field(rest)?;
+        rest = after;
+        Some(field)
+    };
+    let gain_field = take();
+    let GainField {
+        gain: adc_gain,
+        baseline,
+        units,
+    } = match gain_field {
+        Some(g) => parse_gain_field(g)?,
+        None => GainField {
+            gain: DEFAULT_GAIN,
+            baseline: None,
+            units: None,
+        },
+    };
+    let adc_resolution = match take() {
+        Some(t) => number::<u32>(t, "ADC resolution")?,
+        None => format.default_resolution(),
+    };
+    let adc_zero = match take() {
+        Some(t) => number::<i32>(t, "ADC zero")?,
+        None => 0,
+    };
+    let initial_value = match take() {
+        Some(t) => number::<i32>(t, "initial value")?,
+        None => adc_zero,
+    };
+    let checksum = take().map(|t| number::<i32>(t, "checksum")).transpose()?;
+    let block_size = match take() {
+        Some(t) => number::<u32>(t, "block size")?,
+        None => 0,
+    };
+    let description = Some(rest.trim())
+        .filter(|d| !d.is_empty())
+        .map(str::to_string);
+    Ok(SignalSpec {
+        file_name: file_name.to_string(),
+        format,
+        samples_per_frame,
+        skew,
+        byte_offset,
+        adc_gain,
+        baseline: baseline.unwrap_or(adc_zero),
+        units: units.unwrap_or_else(|| DEFAULT_UNITS.to_string()),
+        adc_resolution,
+        adc_zero,
+        initial_value,
+        checksum,
+        block_size,
+        description,
+    })
+}
+
+/// `format[xspf][:skew][+offset]`, the modifiers in that order.
+fn parse_format_field(text: &str) -> std::result::Result<(SignalFormat, u32, u32, u64), LineError> {
+    let (rest, offset) = match text.split_once('+') {
+        Some((a, b)) => (a, Some(b)),
+        None => (text, None),
+    };
+    let (rest, skew) = match rest.split_once(':') {
+        Some((a, b)) => (a, Some(b)),
+        None => (rest, None),
+    };
+    let (code_text, spf) = match rest.split_once('x') {
+        Some((a, b)) => (a, Some(b)),
+        None => (rest, None),
+    };
+    if code_text.is_empty() || !code_text.bytes().all(|b| b.is_ascii_digit()) {
+        return Err(format!("bad signal format {}", quoted(text)).into());
+    }
+    let code: u32 = match code_text.parse() {
+        Ok(c) => c,
+        Err(_) => {
+            return Err(LineError::Format(ErrorKind::UnknownFormat(
+                code_text.into(),
+            )))
+        }
+    };
+    let format = match SignalFormat::from_code(code) {
+        Ok(f) => f,
+        Err(FormatProblem::Unknown) => {
+            return Err(LineError::Format(ErrorKind::UnknownFormat(
+                code.to_string(),
+            )))
+        }
+        Err(FormatProblem::Unsupported(what)) => {
+            return Err(LineError::Format(ErrorKind::Unsupported(format!(
+                "signal {what} is not supported"
+            ))))
+        }
+    };
+    // 0 samples per frame means 1, as in the WFDB library.
+    let spf = match spf {
+        Some(s) => number::<u32>(s, "samples per frame")?.max(1),
+        None => 1,
+    };
+    if spf > 1_000_000 {
+        return Err(format!("implausible samples per frame {spf}").into());
+    }
+    let skew = skew
+        .map(|s| number::<u32>(s, "skew"))
+        .transpose()?
+        .unwrap_or(0);
+    let offset = offset
+        .map(|s| number::<u64>(s, "byte offset"))
+        .transpose()?
+        .unwrap_or(0);
+    Ok((format, spf, skew, offset))
+}
+
+/// The parts of a `gain[(baseline)][/units]` field.
+struct GainField {
+    gain: f64,
+    baseline: Option<i32>,
+    units: Option<String>,
+}
+
+/// `gain[(baseline)][/units]`; a gain of 0 means [`DEFAULT_GAIN`].
+fn parse_gain_field(text: &str) -> std::result::Result<GainField, String> {
+    let (left, units) = match text.split_once('/') {
+        Some((a, u)) => (a, Some(u.to_string())),
+        None => (text, None),
+    };
+    let (gain_text, baseline) = match left.split_once('(') {
+        Some((g, b)) => {
+            let b = b
+                .strip_suffix(')')
+                .ok_or_else(|| format!("baseline in {} lacks ')'", quoted(text)))?;
+            (g, Some(number::<i32>(b, "baseline")?))
+        }
+        None => (left, None),
+    };
+    let gain: f64 = number(gain_text, "ADC gain")?;
+    if !gain.is_finite() {
+        return Err(format!("bad ADC gain {}", quoted(gain_text)));
+    }
+    let gain = if gain == 0.0 { DEFAULT_GAIN } else { gain };
+    Ok(GainField {
+        gain,
+        baseline,
+        units,
+    })
+}

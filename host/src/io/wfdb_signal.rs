@@ -1,0 +1,419 @@
+//! WFDB records: a header plus the signal files it names.
+//!
+//! Source: PhysioNet WFDB header and signal file format specifications
+//! (header(5), signal(5)). Signals stored in the same file are consecutive
+//! header lines naming that file; a frame of the file holds, for each of
+//! them in order, its samples-per-frame samples.
+
+use std::path::{Path, PathBuf};
+
+use super::error::{Error, ErrorKind, Result};
+use super::wfdb_format::{undo_differences, SignalFormat};
+use super::wfdb_header::{Header, SignalSpec};
+use super::{LoadedSignal, DEFAULT_SIGNAL};
+
+/// An opened WFDB record. Opening reads the header and checks that every
+/// signal file exists and is long enough; samples are read on request.
+#[derive(Debug, Clone)]
+pub struct Record {
+    header_path: PathBuf,
+    dir: PathBuf,
+    header: Header,
+    frames: u64,
+    groups: Vec<Group>,
+}
+
+/// The signals stored in one file.
+#[derive(Debug, Clone)]
+struct Group {
+    path: PathBuf,
+    format: SignalFormat,
+    byte_offset: u64,
+    /// Header indices of the signals, in file order.
+    signals: Vec<usize>,
+}
+
+impl Group {
+    /// Samples in one frame of this file.
+    fn frame_samples(&self, header: &Header) -> u64 {
+        self.signals
+            .iter()
+            .map(|&s| header.signals[s].samples_per_frame as u64)
+            .sum()
+    }
+}
+
+/// `dir/name` for `dir/name`, `dir/name.hea` or `dir/name.`: the header
+/// path and the folder the signal file names are relative to.
+fn header_path_of(path: &Path) -> (PathBuf, PathBuf) {
+    let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
+    let is_hea = path.extension().is_some_and(|e| e == "hea");
+    let header = if is_hea {
+        path.to_path_buf()
+    } else {
+        let mut name = path.as_os_str().to_os_string();
+        name.push(".hea");
+        PathBuf::from(name)
+    };
+    (header, dir)
+}
+
+impl Record {
+    /// Open the record at `path`, given as `dir/name` or `dir/name.hea`.
+    pub fn open(path: impl AsRef<Path>) -> Result<Record> {
+        let (header_path, dir) = header_path_of(path.as_ref());
+        let header = Header::read(&header_path)?;
+        Record::from_header(header, header_path, dir)
+    }
+
+    /// Build a record from an already parsed header whose signal files lie in `dir`.
+    pub fn from_header(header: Header, header_path: PathBuf, dir: PathBuf) -> Result<Record> {
+        let unsupported = |m: &str| Err(Error::new(&header_path, ErrorKind::Unsupported(m.into())));
+        if header.segments.is_some() {
+            return unsupported("multi-segment records are not supported");
+        }
+        let mut groups: Vec<Group> = Vec::new();
+        for (i, spec) in header.signals.iter().enumerate() {
+            if spec.file_name == "~" {
+                return unsupported("null signals (file name \"~\") are not supported");
+            }
+            match groups.last_mut() {
+                Some(g) if header.signals[g.signals[0]].file_name == spec.file_name => {
+                    if g.format != spec.format {
+                        return Err(Error::new(
+                            &header_path,
+                            ErrorKind::Syntax(format!(
+                                "signals {} and {i} share {} but have formats {} and {}",
+                                g.signals[0],
+                                spec.file_name,
+                                g.format.code(),
+                                spec.format.code()
+                            )),
+                        ));
+                    }
+                    g.signals.push(i);
+                }
+                _ => {
+                    if groups
+                        .iter()
+                        .any(|g| header.signals[g.signals[0]].file_name == spec.file_name)
+                    {
+                        return Err(Error::new(
+                            &header_path,
+                            ErrorKind::Syntax(format!(
+                                "signals of {} are not on consecutive lines",
+                                spec.file_name
+                            )),
+                        ));
+                    }
+                    groups.push(Group {
+                        path: dir.join(&spec.file_name),
+                        format: spec.format,
+                        // One offset per file: the first signal line's, as
+                        // the WFDB library uses.
+                        byte_offset: spec.byte_offset,
+                        signals: vec![i],
+                    });
+                }
+            }
+        }
+        let mut frames = header.samples;
+        for g in &groups {
+            let size = std::fs::metadata(&g.path)
+                .map_err(|e| Error::from_io(&g.path, "read", &e))?
+                .len();
+            let per_frame = g.frame_samples(&header);
+            match frames {
+                Some(n) => check_length(g, size, n, per_frame)?,
+                None => {
+                    let stored = g.format.samples_in(size.saturating_sub(g.byte_offset));
+                    let n = stored.checked_div(per_frame).unwrap_or(0);
+                    frames = Some(frames.map_or(n, |f: u64| f.min(n)));
+                }
+            }
+        }
+        Ok(Record {
+            header_path,
+            dir,
+            header,
+            frames: frames.unwrap_or(0),
+            groups,
+        })
+    }
+
+    /// The parsed header.
+    pub fn header(&self) -> &Header {
+        &self.header
+    }
+
+    /// The header file's path.
+    pub fn header_path(&self) -> &Path {
+        &self.header_path
+    }
+
+    /// The folder holding the signal files.
+    pub fn dir(&self) -> &Path {
+        &self.dir
+    }
+
+    /// Sampling frequency in frames per second.
+    pub fn fs(&self) -> f64 {
+        self.header.fs
+    }
+
+    /// Sampling frequency of signal `index` (fs × its samples per frame).
+    ///
+    /// Panics if `index` is not below [`n_signals`](Self::n_signals).
+    pub fn signal_fs(&self, index: usize) -> f64 {
+        self.header.fs * self.header.signals[index].samples_per_frame as f64
+    }
+
+    /// Samples per signal (frames): the header's count, or when it gives
+    /// none, what the shortest signal file holds.
+    pub fn len(&self) -> usize {
+        self.frames as usize
+    }
+
+    /// Whether the record holds no frames.
+    pub fn is_empty(&self) -> bool {
+        self.frames == 0
+    }
+
+    /// Number of signals.
+    pub fn n_signals(&self) -> usize {
+        self.header.signals.len()
+    }
+
+    /// The signal lines.
+    pub fn signals(&self) -> &[SignalSpec] {
+        &self.header.signals
+    }
+
+    /// Descriptions of the signals ("" where a line gives none).
+    pub fn signal_names(&self) -> Vec<String> {
+        self.header
+            .signals
+            .iter()
+            .map(|s| s.description.clone().unwrap_or_default())
+            .collect()
+    }
+
+    /// Index of the first signal whose description is `name`.
+    pub fn signal_index(&self, name: &str) -> Option<usize> {
+        self.header
+            .signals
+            .iter()
+            .position(|s| s.description.as_deref() == Some(name))
+    }
+
+    /// Index of the signal named `name` ([`DEFAULT_SIGNAL`] when `None`);
+    /// the error lists the names the record has.
+    pub fn pick_signal(&self, name: Option<&str>) -> Result<usize> {
+        let wanted = name.unwrap_or(DEFAULT_SIGNAL);
+        self.signal_index(wanted).ok_or_else(|| {
+            Error::new(
+                &self.header_path,
+                ErrorKind::NoSuchSignal {
+                    wanted: wanted.to_string(),
+                    available: self.signal_names(),
+                },
+            )
+        })
+    }
+
+    /// Stored (digital) samples of signal `index`: `len() × samples per
+    /// frame` values. Invalid samples keep their stored sentinel value.
+    pub fn read_digital(&self, index: usize) -> Result<Vec<i32>> {
+        let (g, pos) = self.locate(index)?;
+        let mut all = self.read_group(&self.groups[g])?;
+        Ok(all.swap_remove(pos))
+    }
+
+    /// Stored samples of every signal, each file read once.
+    pub fn read_all_digital(&self) -> Result<Vec<Vec<i32>>> {
+        let mut out = vec![Vec::new(); self.n_signals()];
+        for g in &self.groups {
+            for (&s, samples) in g.signals.iter().zip(self.read_group(g)?) {
+                out[s] = samples;
+            }
+        }
+        Ok(out)
+    }
+
+    /// Physical values of signal `index`: (stored − baseline) / gain in
+    /// f64, with the format's invalid-sample value turned into NaN, the
+    /// same arithmetic and NaN rule as Python wfdb's `rdrecord` physical
+    /// output.
+    pub fn read_physical(&self, index: usize) -> Result<Vec<f64>> {
+        let digital = self.read_digital(index)?;
+        Ok(self.to_physical(index, &digital))
+    }
+
+    /// Convert stored samples of signal `index` to physical values (see
+    /// [`read_physical`](Self::read_physical)).
+    ///
+    /// Panics if `index` is not below [`n_signals`](Self::n_signals).
+    pub fn to_physical(&self, index: usize, digital: &[i32]) -> Vec<f64> {
+        let spec = &self.header.signals[index];
+        let invalid = spec.format.invalid_value();
+        let baseline = spec.baseline as f64;
+        digital
+            .iter()
+            .map(|&d| {
+                if Some(d) == invalid {
+                    f64::NAN
+                } else {
+                    (d as f64 - baseline) / spec.adc_gain
+                }
+            })
+            .collect()
+    }
+
+    /// Signal `name` (default [`DEFAULT_SIGNAL`]) in physical units, with
+    /// its name, units and rate.
+    pub fn load_signal(&self, name: Option<&str>) -> Result<LoadedSignal> {
+        let index = self.pick_signal(name)?;
+        let spec = &self.header.signals[index];
+        Ok(LoadedSignal {
+            name: spec.description.clone().unwrap_or_default(),
+            units: Some(spec.units.clone()),
+            fs: self.signal_fs(index),
+            samples: self.read_physical(index)?,
+        })
+    }
+
+    /// Check every signal that has a checksum in the header against its
+    /// samples (sum of all samples modulo 2^16, header(5)). Headers write it
+    /// signed or unsigned; both are accepted.
+    pub fn verify_checksums(&self) -> Result<()> {
+        let all = self.read_all_digital()?;
+        for (i, (spec, samples)) in self.header.signals.iter().zip(&all).enumerate() {
+            let Some(stated) = spec.checksum else {
+                continue;
+            };
+            let actual = checksum(samples);
+            if (stated as i64).rem_euclid(65536) != (actual as i64).rem_euclid(65536) {
+                let g = &self.groups[self.locate(i)?.0];
+                return Err(Error::new(
+                    &g.path,
+                    ErrorKind::Invalid(format!(
+                        "checksum of signal {i} ({}) is {actual}, the header says {stated}",
+                        spec.description.as_deref().unwrap_or("unnamed")
+                    )),
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    /// (group, position within the group) of signal `index`.
+    fn locate(&self, index: usize) -> Result<(usize, usize)> {
+        for (g, group) in self.groups.iter().enumerate() {
+            if let Some(pos) = group.signals.iter().position(|&s| s == index) {
+                return Ok((g, pos));
+            }
+        }
+        Err(Error::new(
+            &self.header_path,
+            ErrorKind::Invalid(format!(
+                "no signal {index}: the record has {}",
+                self.n_signals()
+            )),
+        ))
+    }
+
+    /// Read one signal file and split it into its signals' samples.
+    fn read_group(&self, g: &Group) -> Result<Vec<Vec<i32>>> {
+        let bytes = std::fs::read(&g.path).map_err(|e| Error::from_io(&g.path, "read", &e))?;
+        let per_frame = g.frame_samples(&self.header);
+        // Checked again: the file may have changed since the record was opened.
+        check_length(g, bytes.len() as u64, self.frames, per_frame)?;
+        let count = self.frames * per_frame;
+        let data = &bytes[g.byte_offset as usize..];
+        let mut stream = g.format.decode(data, count as usize);
+        let slots: Vec<usize> = g
+            .signals
+            .iter()
+            .map(|&s| self.header.signals[s].samples_per_frame as usize)
+            .collect();
+        if g.format == SignalFormat::Diff8 {
+            let initial: Vec<i32> = g
+                .signals
+                .iter()
+                .map(|&s| self.header.signals[s].initial_value)
+                .collect();
+            undo_differences(&mut stream, &slots, &initial);
+        }
+        let mut out: Vec<Vec<i32>> = slots
+            .iter()
+            .map(|&n| Vec::with_capacity(n * self.frames as usize))
+            .collect();
+        for frame in stream.chunks_exact(per_frame as usize) {
+            let mut at = 0;
+            for (k, &n) in slots.iter().enumerate() {
+                out[k].extend_from_slice(&frame[at..at + n]);
+                at += n;
+            }
+        }
+        for (k, &s) in g.signals.iter().enumerate() {
+            let spec = &self.header.signals[s];
+            if spec.skew > 0 {
+                apply_skew(&mut out[k], spec, &g.path)?;
+            }
+        }
+        Ok(out)
+    }
+}
+
+/// Shift a skewed signal back into line: its sample for frame `n` was
+/// stored in frame `n + skew`. Frames past the end of the file become the
+/// invalid-sample value, as Python wfdb's `rdrecord` does.
+fn apply_skew(samples: &mut Vec<i32>, spec: &SignalSpec, path: &Path) -> Result<()> {
+    let shift = (spec.skew as usize * spec.samples_per_frame as usize).min(samples.len());
+    if shift == 0 {
+        return Ok(());
+    }
+    let Some(fill) = spec.format.invalid_value() else {
+        return Err(Error::new(
+            path,
+            ErrorKind::Unsupported(
+                "skew in format 8, which has no invalid-sample value for the frames past the end"
+                    .into(),
+            ),
+        ));
+    };
+    samples.drain(..shift);
+    samples.extend(std::iter::repeat_n(fill, shift));
+    Ok(())
+}
+
+/// Error unless a file of `size` bytes holds `frames` frames of `per_frame` samples.
+fn check_length(g: &Group, size: u64, frames: u64, per_frame: u64) -> Result<()> {
+    let needed = frames
+        .checked_mul(per_frame)
+        .map(|n| g.format.bytes_for(n))
+        .and_then(|b| b.checked_add(g.byte_offset));
+    match needed {
+        Some(expected) if expected <= size && expected <= usize::MAX as u64 => Ok(()),
+        _ => Err(Error::new(
+            &g.path,
+            ErrorKind::TruncatedSignal {
+                expected_bytes: needed.unwrap_or(u64::MAX),
+                found_bytes: size,
+                samples: frames,
+                signals: g.signals.len(),
+            },
+        )),
+    }
+}
+
+/// The 16-bit checksum of a signal, as header(5) defines it: the sum of
+/// all samples, kept to 16 bits, read as two's complement.
+pub fn checksum(samples: &[i32]) -> i16 {
+    samples
+        .iter()
+        .fold(0i16, |acc, &s| acc.wrapping_add(s as i16))
+}
+
+#[cfg(test)]
+mod tests;

@@ -1,0 +1,5 @@
+//! The `plethwire` command; everything lives in the library's `cli` module.
+
+fn main() -> std::process::ExitCode {
+    plethwire::cli::main()
+}

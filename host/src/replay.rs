@@ -1,0 +1,377 @@
+//! Replaying a recording through the very pipeline the firmware runs, and
+//! writing what it found.
+
+use crate::io::{
+    annotation_path, read_csv_signal, read_wfdb_signal, write_annotations, Annotation, ColumnRef,
+    CsvSignalOptions, LoadedSignal,
+};
+use plethwire_dsp::hrv::{hrv, HrvStats};
+use plethwire_dsp::pipeline::{BeatEvent, Config, Pipeline, StateEvent};
+use plethwire_dsp::DesignError;
+use serde::Serialize;
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+/// Annotator name of the beat files we write, unless told otherwise.
+pub const DEFAULT_ANNOTATOR: &str = "pwire";
+
+/// Where a recording's samples come from.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Source {
+    /// WFDB signal name (default `PLETH`), or the CSV value column.
+    pub signal: Option<String>,
+    /// CSV: the sample rate, Hz.
+    pub rate: Option<f64>,
+    /// CSV: a column of times in seconds to take the rate from.
+    pub time_column: Option<String>,
+}
+
+/// A loaded recording.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Recording {
+    /// Record name (file stem).
+    pub name: String,
+    /// The record's path without extension (WFDB) or the CSV file.
+    pub path: PathBuf,
+    /// The signal.
+    pub signal: LoadedSignal,
+}
+
+/// A recording that could not be loaded or replayed; one line.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReplayError(pub String);
+
+impl fmt::Display for ReplayError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+impl std::error::Error for ReplayError {}
+
+impl From<crate::io::Error> for ReplayError {
+    fn from(e: crate::io::Error) -> Self {
+        Self(e.to_string())
+    }
+}
+
+fn is_csv(path: &Path) -> bool {
+    path.extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
+}
+
+/// Load `path`: a WFDB record (`dir/name` or `dir/name.hea`) or a CSV file
+/// (which needs a column and a rate or a time column).
+pub fn load(path: &Path, source: &Source) -> Result<Recording, ReplayError> {
+    let stem = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    if is_csv(path) {
+        let column = source.signal.clone().ok_or_else(|| {
+            ReplayError(format!(
+                "{}: a CSV recording needs --signal COLUMN",
+                path.display()
+            ))
+        })?;
+        let options = match (source.rate, &source.time_column) {
+            (Some(fs), None) => CsvSignalOptions::with_rate(ColumnRef::Name(column), fs),
+            (None, Some(t)) => {
+                CsvSignalOptions::with_time(ColumnRef::Name(column), ColumnRef::Name(t.clone()))
+            }
+            _ => {
+                return Err(ReplayError(format!(
+                    "{}: a CSV recording needs either --rate HZ or --time-column NAME",
+                    path.display()
+                )))
+            }
+        };
+        let csv = read_csv_signal(path, &options)?;
+        return Ok(Recording {
+            name: stem,
+            path: path.to_path_buf(),
+            signal: csv.signal,
+        });
+    }
+    let record = if path.extension().is_some_and(|e| e == "hea") {
+        path.with_extension("")
+    } else {
+        path.to_path_buf()
+    };
+    let signal = read_wfdb_signal(&record, source.signal.as_deref())?;
+    Ok(Recording {
+        name: stem,
+        path: record,
+        signal,
+    })
+}
+
+/// Everything the pipeline said about a recording.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Replay {
+    /// Sample rate, Hz.
+    pub fs: f64,
+    /// Samples fed.
+    pub samples: u64,
+    /// Beats, in the order emitted (including those closed by the end of
+    /// the recording).
+    pub beats: Vec<BeatEvent>,
+    /// Signal state changes.
+    pub states: Vec<StateEvent>,
+    /// Non-finite samples replaced.
+    pub rejected: u64,
+    /// Samples marked clipped.
+    pub clipped: u64,
+    /// Filter restarts after steps in the input.
+    pub restarts: u64,
+}
+
+/// Feed `samples` (at `config.sample_rate_hz`) through the pipeline, one at
+/// a time as the board would, and close open beats at the end.
+pub fn replay(samples: &[f64], config: Config) -> Result<Replay, DesignError> {
+    let mut p = Pipeline::new(config)?;
+    let (mut beats, mut states) = (Vec::new(), Vec::new());
+    for &x in samples {
+        // The board hands the pipeline f32 samples; so does the replay.
+        let out = p.push(x as f32);
+        beats.extend(out.beat);
+        states.extend(out.state);
+    }
+    p.finish(|b| beats.push(b));
+    Ok(Replay {
+        fs: config.sample_rate_hz as f64,
+        samples: samples.len() as u64,
+        beats,
+        states,
+        rejected: p.rejected_samples(),
+        clipped: p.clipped_samples(),
+        restarts: p.restarts(),
+    })
+}
+
+/// Heart rate over a recording, bpm.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct RateSummary {
+    /// Mean of the smoothed heart rate reported with each good beat.
+    pub mean: f64,
+    /// Lowest smoothed heart rate reported.
+    pub min: f64,
+    /// Highest smoothed heart rate reported.
+    pub max: f64,
+}
+
+/// The numbers a replay is summed up by.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Summary {
+    /// Recording length, seconds.
+    pub duration_s: f64,
+    /// Beats detected.
+    pub beats: usize,
+    /// Beats with no quality flag that makes them unfit.
+    pub good_beats: usize,
+    /// `good_beats / beats`, 0 to 1.
+    pub good_share: f64,
+    /// Smoothed heart rate statistics, if any was reported.
+    pub heart_rate_bpm: Option<RateSummary>,
+    /// Time-domain HRV over the whole recording, normal-to-normal intervals
+    /// only (both beats good), Task Force of the ESC and NASPE 1996.
+    pub hrv: HrvSummary,
+    /// Median delay from a beat's peak to its event, ms.
+    pub latency_median_ms: Option<f64>,
+    /// Non-finite samples replaced.
+    pub rejected_samples: u64,
+    /// Samples at the rails.
+    pub clipped_samples: u64,
+    /// Filter restarts after steps in the input.
+    pub restarts: u64,
+}
+
+/// HRV figures for the summary.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct HrvSummary {
+    /// Normal-to-normal intervals used.
+    pub nn_intervals: usize,
+    /// SDNN, ms (N−1 denominator).
+    pub sdnn_ms: Option<f32>,
+    /// RMSSD, ms.
+    pub rmssd_ms: Option<f32>,
+    /// pNN50, % of successive differences.
+    pub pnn50_percent: Option<f32>,
+}
+
+impl From<HrvStats> for HrvSummary {
+    fn from(s: HrvStats) -> Self {
+        Self {
+            nn_intervals: s.nn_count,
+            sdnn_ms: s.sdnn_ms,
+            rmssd_ms: s.rmssd_ms,
+            pnn50_percent: s.pnn50_percent,
+        }
+    }
+}
+
+impl Replay {
+    /// `(time_s, bpm)` of every smoothed heart rate, at the moment it was
+    /// reported.
+    pub fn heart_rate_track(&self) -> Vec<(f64, f64)> {
+        self.beats
+            .iter()
+            .filter_map(|b| {
+                b.hr_smoothed_bpm
+                    .map(|h| (b.emitted_at as f64 / self.fs, h as f64))
+            })
+            .collect()
+    }
+
+    /// Peak sample of every beat, in time order.
+    pub fn peaks(&self) -> Vec<u64> {
+        let mut p: Vec<u64> = self.beats.iter().map(|b| b.peak_index).collect();
+        p.sort_unstable();
+        p
+    }
+
+    /// HRV over the whole recording: an interval is normal-to-normal when
+    /// the beats at both of its ends are good.
+    pub fn hrv(&self) -> HrvStats {
+        let mut ibi = Vec::new();
+        let mut good = Vec::new();
+        let mut previous_good = false;
+        for b in &self.beats {
+            if let Some(i) = b.ibi_ms {
+                ibi.push(i);
+                good.push(b.flags.is_good() && previous_good);
+            }
+            previous_good = b.flags.is_good();
+        }
+        hrv(&ibi, Some(&good)).unwrap_or_default()
+    }
+
+    /// The summary.
+    pub fn summary(&self) -> Summary {
+        let good_beats = self.beats.iter().filter(|b| b.flags.is_good()).count();
+        let rates: Vec<f64> = self
+            .beats
+            .iter()
+            .filter(|b| b.flags.is_good())
+            .filter_map(|b| b.hr_smoothed_bpm.map(f64::from))
+            .collect();
+        let heart_rate_bpm = (!rates.is_empty()).then(|| RateSummary {
+            mean: rates.iter().sum::<f64>() / rates.len() as f64,
+            min: rates.iter().copied().fold(f64::INFINITY, f64::min),
+            max: rates.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+        });
+        let mut lat: Vec<f64> = self
+            .beats
+            .iter()
+            .map(|b| (b.emitted_at.saturating_sub(b.peak_index)) as f64 * 1000.0 / self.fs)
+            .collect();
+        lat.sort_by(f64::total_cmp);
+        Summary {
+            duration_s: self.samples as f64 / self.fs,
+            beats: self.beats.len(),
+            good_beats,
+            good_share: if self.beats.is_empty() {
+                0.0
+            } else {
+                good_beats as f64 / self.beats.len() as f64
+            },
+            heart_rate_bpm,
+            hrv: self.hrv().into(),
+            latency_median_ms: lat.get(lat.len() / 2).copied(),
+            rejected_samples: self.rejected,
+            clipped_samples: self.clipped,
+            restarts: self.restarts,
+        }
+    }
+}
+
+/// Write the beats as a WFDB annotation file `<record>.<annotator>` in
+/// `dir` (symbol `N` at each systolic peak); returns its path.
+pub fn write_beat_annotations(
+    dir: &Path,
+    record_name: &str,
+    annotator: &str,
+    replay: &Replay,
+) -> Result<PathBuf, ReplayError> {
+    let path = annotation_path(&dir.join(record_name), annotator);
+    let annotations: Vec<Annotation> = replay
+        .peaks()
+        .into_iter()
+        .map(|p| Annotation::beat(p as i64))
+        .collect();
+    write_annotations(&path, &annotations)?;
+    Ok(path)
+}
+
+/// One beat as a row of our CSV and JSON beat files.
+#[derive(Debug, Clone, Serialize)]
+pub struct BeatRow {
+    /// Peak sample.
+    pub peak_sample: u64,
+    /// Peak time, s.
+    pub peak_s: f64,
+    /// Onset sample, when the detector gives one.
+    pub onset_sample: Option<u64>,
+    /// Sample at which the event was emitted.
+    pub emitted_sample: u64,
+    /// Interval, ms.
+    pub ibi_ms: Option<f32>,
+    /// Instantaneous heart rate, bpm.
+    pub hr_bpm: Option<f32>,
+    /// Smoothed heart rate, bpm.
+    pub hr_smoothed_bpm: Option<f32>,
+    /// Pulse amplitude (input units).
+    pub amplitude: f32,
+    /// Template correlation, 0 to 1.
+    pub quality: f32,
+    /// Flag bits (see `plethwire_dsp::pipeline::BeatFlags`).
+    pub flags: u8,
+    /// Fit for heart rate and HRV.
+    pub good: bool,
+}
+
+/// The beats as rows.
+pub fn beat_rows(replay: &Replay) -> Vec<BeatRow> {
+    replay
+        .beats
+        .iter()
+        .map(|b| BeatRow {
+            peak_sample: b.peak_index,
+            peak_s: b.peak_index as f64 / replay.fs,
+            onset_sample: b.onset_index,
+            emitted_sample: b.emitted_at,
+            ibi_ms: b.ibi_ms,
+            hr_bpm: b.hr_bpm,
+            hr_smoothed_bpm: b.hr_smoothed_bpm,
+            amplitude: b.amplitude,
+            quality: b.quality,
+            flags: b.flags.0,
+            good: b.flags.is_good(),
+        })
+        .collect()
+}
+
+/// Our beat CSV: a header line, then one row per beat.
+pub fn beats_csv(replay: &Replay) -> String {
+    let opt = |v: Option<f32>| v.map_or(String::new(), |v| format!("{v}"));
+    let mut s = String::from(
+        "peak_sample,peak_s,onset_sample,emitted_sample,ibi_ms,hr_bpm,hr_smoothed_bpm,amplitude,quality,flags,good\n",
+    );
+    for r in beat_rows(replay) {
+        s.push_str(&format!(
+            "{},{:.4},{},{},{},{},{},{},{},{},{}\n",
+            r.peak_sample,
+            r.peak_s,
+            r.onset_sample.map_or(String::new(), |v| v.to_string()),
+            r.emitted_sample,
+            opt(r.ibi_ms),
+            opt(r.hr_bpm),
+            opt(r.hr_smoothed_bpm),
+            r.amplitude,
+            r.quality,
+            r.flags,
+            u8::from(r.good)
+        ));
+    }
+    s
+}
