@@ -5,8 +5,14 @@
 //! `run` method; adding one means a module and a variant of [`Command`].
 
 mod filter;
+mod pipeline_opts;
+mod replay;
+mod score;
 
 pub use filter::FilterArgs;
+pub use pipeline_opts::{DetectorName, PipelineOpts};
+pub use replay::ReplayArgs;
+pub use score::ScoreArgs;
 
 use clap::error::{ContextKind, ContextValue, ErrorKind};
 use clap::{CommandFactory, Parser, Subcommand};
@@ -21,8 +27,10 @@ pub const EXIT_USAGE: u8 = 2;
 pub const EXIT_REFUSED: u8 = 1;
 
 const EXAMPLES: &str = "\
-Example:
+Examples:
   plethwire filter --rate 250 --band 0.5:8 --notch 50
+  plethwire replay ../shared/data/capnobase/cb0009 --out /tmp/beats
+  plethwire score ../shared/data/capnobase ../shared/data/bidmc
 
 Run 'plethwire <command> --help' for a command's options.";
 
@@ -41,6 +49,13 @@ pub enum Command {
     /// Design a filter chain, print it as Rust and JSON with its response
     /// (design and board cascade), and plot the response as SVG.
     Filter(FilterArgs),
+    /// Run a recording (WFDB or CSV) through the firmware's beat pipeline,
+    /// write the beats as WFDB annotations, and sum up heart rate, HRV and
+    /// quality.
+    Replay(ReplayArgs),
+    /// Score detected beats against reference annotations (±150 ms) and
+    /// heart rate against a reference series, per record and pooled.
+    Score(ScoreArgs),
 }
 
 /// A failed run: its exit status and the one line to print, if any.
@@ -172,6 +187,8 @@ pub fn run(args: Vec<OsString>, out: &mut dyn Write) -> Result<(), Failure> {
     let command = command_line(&args);
     match cli.command {
         Command::Filter(filter) => filter.run(&command, out),
+        Command::Replay(replay) => replay.run(out),
+        Command::Score(score) => score.run(out),
     }
 }
 

@@ -70,6 +70,13 @@ impl Annotation {
     pub fn symbol(&self) -> Option<&'static str> {
         symbol_for_code(self.code)
     }
+
+    /// Does the annotation mark a beat (rather than a rhythm change, noise,
+    /// a comment)? The beat codes of the WFDB code table (`N L R a V F J A
+    /// S E j / Q r B e n f ?`; the list is from memory of WFDB's `isqrs`).
+    pub fn is_beat(&self) -> bool {
+        matches!(self.code, 1..=13 | 25 | 30 | 34 | 35 | 38 | 41)
+    }
 }
 
 /// Standard mnemonics by code, from the annotation code table of the WFDB

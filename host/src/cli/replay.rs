@@ -1,0 +1,185 @@
+//! `plethwire replay`: run a recording through the firmware's pipeline.
+
+use clap::Args;
+use serde::Serialize;
+use std::io::Write;
+use std::path::PathBuf;
+
+use super::pipeline_opts::PipelineOpts;
+use super::Failure;
+use crate::replay::{
+    beat_rows, beats_csv, load, replay, write_beat_annotations, BeatRow, Summary, DEFAULT_ANNOTATOR,
+};
+
+const EXAMPLES: &str = "\
+Examples:
+  plethwire replay ../shared/data/capnobase/cb0009 --out /tmp/beats
+  plethwire replay ../shared/data/bidmc/bidmc01 --detector zong --beats-csv --out /tmp/beats
+  plethwire replay session.csv --signal pleth --time-column time_s --json
+
+Writes <record>.<annotator> (WFDB annotations, symbol N at each systolic
+peak) in --out (default: beside the record); --beats-csv and --beats-json
+add <record>.<annotator>.csv / .json with every beat's fields. Exit status:
+0 done, 1 the recording could not be read or the results not written,
+2 the command line could not be understood.";
+
+/// Options of `plethwire replay`.
+#[derive(Args, Debug, Clone, PartialEq)]
+#[command(after_help = EXAMPLES)]
+pub struct ReplayArgs {
+    /// WFDB record (dir/name or dir/name.hea) or CSV file.
+    #[arg(value_name = "RECORD")]
+    pub record: PathBuf,
+
+    /// Folder for the output files [default: the record's folder].
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+
+    /// Annotator name: the output file's extension.
+    #[arg(long, value_name = "NAME", default_value = DEFAULT_ANNOTATOR)]
+    pub annotator: String,
+
+    /// Also write every beat as CSV.
+    #[arg(long)]
+    pub beats_csv: bool,
+
+    /// Also write every beat as JSON.
+    #[arg(long)]
+    pub beats_json: bool,
+
+    /// Print the summary as JSON.
+    #[arg(long)]
+    pub json: bool,
+
+    /// Signal source and pipeline settings.
+    #[command(flatten)]
+    pub pipeline: PipelineOpts,
+}
+
+#[derive(Serialize)]
+struct ReplayReport<'a> {
+    record: &'a str,
+    signal: &'a str,
+    sample_rate_hz: f64,
+    detector: String,
+    summary: &'a Summary,
+    written: &'a [String],
+}
+
+fn check_annotator(name: &str) -> Result<(), Failure> {
+    let ok = !name.is_empty() && name.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
+    if ok {
+        Ok(())
+    } else {
+        Err(Failure::usage(format!(
+            "annotator name '{name}' must be letters, digits or '_' (it becomes a file extension)"
+        )))
+    }
+}
+
+impl ReplayArgs {
+    /// Run the command.
+    pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
+        check_annotator(&self.annotator)?;
+        let rec = load(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
+        let config = self.pipeline.config(rec.signal.fs);
+        let run = replay(&rec.signal.samples, config).map_err(|e| {
+            Failure::refused(format!(
+                "{}: cannot run the pipeline: {e}",
+                self.record.display()
+            ))
+        })?;
+        let dir = match &self.out {
+            Some(d) => d.clone(),
+            None => rec
+                .path
+                .parent()
+                .map(|p| p.to_path_buf())
+                .unwrap_or_else(|| PathBuf::from(".")),
+        };
+        std::fs::create_dir_all(&dir).map_err(|e| {
+            Failure::refused(format!("{}: cannot create the folder: {e}", dir.display()))
+        })?;
+        let mut written = Vec::new();
+        let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &run)
+            .map_err(Failure::refused)?;
+        written.push(ann.display().to_string());
+        let mut write = |ext: &str, body: String| -> Result<(), Failure> {
+            let path = dir.join(format!("{}.{}.{ext}", rec.name, self.annotator));
+            std::fs::write(&path, body)
+                .map_err(|e| Failure::refused(format!("{}: cannot write: {e}", path.display())))?;
+            written.push(path.display().to_string());
+            Ok(())
+        };
+        if self.beats_csv {
+            write("csv", beats_csv(&run))?;
+        }
+        if self.beats_json {
+            let rows: Vec<BeatRow> = beat_rows(&run);
+            write(
+                "json",
+                serde_json::to_string_pretty(&rows).unwrap_or_default() + "\n",
+            )?;
+        }
+        let summary = run.summary();
+        let text = if self.json {
+            let report = ReplayReport {
+                record: &rec.name,
+                signal: &rec.signal.name,
+                sample_rate_hz: rec.signal.fs,
+                detector: format!("{:?}", config.options.detector).to_lowercase(),
+                summary: &summary,
+                written: &written,
+            };
+            serde_json::to_string_pretty(&report).unwrap_or_default() + "\n"
+        } else {
+            human(
+                &rec.name,
+                &rec.signal.name,
+                rec.signal.fs,
+                &summary,
+                &written,
+            )
+        };
+        out.write_all(text.as_bytes()).map_err(Failure::output)
+    }
+}
+
+fn opt(v: Option<f32>, unit: &str) -> String {
+    v.map_or("-".into(), |v| format!("{v:.1} {unit}"))
+}
+
+fn human(name: &str, signal: &str, fs: f64, s: &Summary, written: &[String]) -> String {
+    let mut t = format!("{name}: {:.1} s of {signal} at {fs} Hz\n", s.duration_s);
+    t += &format!(
+        "  beats       {} ({} good, {:.1} %)\n",
+        s.beats,
+        s.good_beats,
+        100.0 * s.good_share
+    );
+    t += &match &s.heart_rate_bpm {
+        Some(h) => format!(
+            "  heart rate  mean {:.1} bpm, min {:.1}, max {:.1}\n",
+            h.mean, h.min, h.max
+        ),
+        None => "  heart rate  none (no good beats)\n".into(),
+    };
+    t += &format!(
+        "  HRV         {} NN intervals: SDNN {}, RMSSD {}, pNN50 {}\n",
+        s.hrv.nn_intervals,
+        opt(s.hrv.sdnn_ms, "ms"),
+        opt(s.hrv.rmssd_ms, "ms"),
+        opt(s.hrv.pnn50_percent, "%")
+    );
+    t += &format!(
+        "  input       {} samples replaced (not a number), {} at the rails, {} filter restarts\n",
+        s.rejected_samples, s.clipped_samples, s.restarts
+    );
+    if let Some(l) = s.latency_median_ms {
+        t += &format!("  latency     median {l:.0} ms from peak to event\n");
+    }
+    for w in written {
+        t += &format!("  wrote       {w}\n");
+    }
+    t
+}

@@ -1,0 +1,152 @@
+//! `plethwire score`: detected beats and heart rate against references.
+
+use clap::Args;
+use std::io::Write;
+use std::path::PathBuf;
+
+use super::pipeline_opts::PipelineOpts;
+use super::Failure;
+use crate::score::records::{score_all, References, Scores};
+use crate::score::{MatchCounts, RateError};
+
+const EXAMPLES: &str = "\
+Examples:
+  plethwire score ../shared/data/capnobase
+  plethwire score ../shared/data/bidmc --rate-column pulse_bpm --json
+  plethwire score rec1 rec2 --reference atr --detector zong
+
+Each record is replayed through the pipeline. Beats are matched one to one
+within ±150 ms (ANSI/AAMI EC57 practice) against <record>.<reference>;
+heart rate, once per reference row, against column --rate-column of
+<record><rate-suffix> (the latest smoothed heart rate reported by then).
+Records without one of the references are scored on the other. Exit
+status: 0 done, 1 a record could not be read, 2 the command line could not
+be understood.";
+
+/// Options of `plethwire score`.
+#[derive(Args, Debug, Clone, PartialEq)]
+#[command(after_help = EXAMPLES)]
+pub struct ScoreArgs {
+    /// WFDB records or folders of records.
+    #[arg(value_name = "PATH", required = true)]
+    pub paths: Vec<PathBuf>,
+
+    /// Annotator of the reference beats.
+    #[arg(long, value_name = "NAME", default_value = "peak")]
+    pub reference: String,
+
+    /// Suffix of the reference heart-rate table next to each record.
+    #[arg(long, value_name = "SUFFIX", default_value = "n.csv")]
+    pub rate_suffix: String,
+
+    /// Column of that table with the reference heart rate, bpm.
+    #[arg(long, value_name = "NAME", default_value = "pulse_bpm")]
+    pub rate_column: String,
+
+    /// Print the scores as JSON.
+    #[arg(long)]
+    pub json: bool,
+
+    /// Signal source and pipeline settings.
+    #[command(flatten)]
+    pub pipeline: PipelineOpts,
+}
+
+impl ScoreArgs {
+    /// Run the command.
+    pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
+        let refs = References {
+            annotator: self.reference.clone(),
+            rate_suffix: self.rate_suffix.clone(),
+            rate_column: self.rate_column.clone(),
+        };
+        let progress = indicatif_free_progress();
+        let scores = score_all(
+            &self.paths,
+            &self.pipeline.source(),
+            self.pipeline.config(100.0),
+            &refs,
+            progress,
+        )
+        .map_err(Failure::refused)?;
+        let text = if self.json {
+            serde_json::to_string_pretty(&scores).unwrap_or_default() + "\n"
+        } else {
+            table(&scores)
+        };
+        out.write_all(text.as_bytes()).map_err(Failure::output)
+    }
+}
+
+/// A quiet progress line on stderr when it is a terminal.
+fn indicatif_free_progress() -> impl FnMut(&str) {
+    use std::io::IsTerminal;
+    let tty = std::io::stderr().is_terminal();
+    move |name: &str| {
+        if tty {
+            eprint!("\rscoring {name}\x1b[K");
+        }
+    }
+}
+
+fn pct(v: Option<f64>) -> String {
+    v.map_or("-".into(), |v| format!("{:.2}", 100.0 * v))
+}
+
+fn beats_cells(b: &Option<MatchCounts>, n: Option<usize>) -> String {
+    match b {
+        Some(m) => format!(
+            "{:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7}",
+            n.unwrap_or(0),
+            m.tp,
+            m.fp,
+            m.fn_,
+            pct(m.se()),
+            pct(m.ppv()),
+            pct(m.f1())
+        ),
+        None => format!(
+            "{:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7}",
+            "-", "-", "-", "-", "-", "-", "-"
+        ),
+    }
+}
+
+fn rate_cells(r: &Option<RateError>) -> String {
+    match r.as_ref().and_then(|r| r.mae().map(|m| (m, r.count))) {
+        Some((m, n)) => format!("{m:>8.2} {n:>6}"),
+        None => format!("{:>8} {:>6}", "-", "-"),
+    }
+}
+
+fn table(s: &Scores) -> String {
+    use std::io::IsTerminal;
+    let mut t = String::new();
+    if std::io::stderr().is_terminal() {
+        eprint!("\r\x1b[K");
+    }
+    t += &format!(
+        "{:<12} {:>6} {:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7} {:>8} {:>6}\n",
+        "record", "beats", "ref", "TP", "FP", "FN", "Se %", "+P %", "F1 %", "HR MAE", "secs"
+    );
+    for r in &s.records {
+        t += &format!(
+            "{:<12} {:>6} {} {}\n",
+            r.record,
+            r.summary.beats,
+            beats_cells(&r.beats, r.reference_beats),
+            rate_cells(&r.heart_rate)
+        );
+    }
+    let refs: usize = s.records.iter().filter_map(|r| r.reference_beats).sum();
+    let beats: usize = s.records.iter().map(|r| r.summary.beats).sum();
+    t += &format!(
+        "{:<12} {:>6} {} {}\n",
+        "pooled",
+        beats,
+        beats_cells(&s.pooled_beats, Some(refs)),
+        rate_cells(&s.pooled_heart_rate)
+    );
+    t += "HR MAE: mean absolute difference in bpm from the reference series, over 'secs' compared rows.\n";
+    t
+}
