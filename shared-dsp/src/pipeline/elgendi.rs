@@ -8,7 +8,9 @@
 //! width) is compared with a long one (W2 ≈ 667 ms, a beat's width) plus an
 //! offset α = β·mean(squared signal), β = 0.02. Where the short average is
 //! above, a "block of interest" opens; blocks at least W1 wide hold one
-//! systolic peak, the block's maximum.
+//! systolic peak, the block's maximum. (These parameters are as recalled
+//! in the project's reference notes, from memory of the paper; the method's
+//! structure is the paper's.)
 //!
 //! The paper's averages are centred. Run causally here, both are centred on
 //! the sample `D = (W2 − 1)/2` ago, so the method is unchanged and the event

@@ -71,6 +71,10 @@ pub const STEP_FACTOR: f32 = 8.0;
 /// Time over which a step is measured, seconds.
 pub const STEP_S: f32 = 0.1;
 
+/// Intervals whose median is the reference for plausibility, peak search
+/// and pulse windows.
+pub const RECENT_INTERVALS: usize = 8;
+
 /// Intervals kept for heart-rate variability (about two minutes at 60 bpm).
 pub const HRV_INTERVALS: usize = 128;
 
@@ -196,6 +200,9 @@ pub struct Pipeline {
     // Every interval, trusted or not: the reference for plausibility, so one
     // odd interval early on cannot lock every later beat out.
     all_intervals: Intervals,
+    // Median of the last RECENT_INTERVALS intervals, kept up to date per
+    // beat so the per-sample path never sorts.
+    recent_ibi: Option<f32>,
     monitor: Monitor,
     n: u64,
     t: u64,
@@ -259,6 +266,7 @@ impl Pipeline {
             template: Template::new(),
             intervals: Intervals::new(),
             all_intervals: Intervals::new(),
+            recent_ibi: None,
             monitor: Monitor::new(fs),
             n: 0,
             t: 0,
@@ -337,7 +345,7 @@ impl Pipeline {
         }
         let n = self.n;
         self.n += 1;
-        let median = self.all_intervals.recent_median(8);
+        let median = self.recent_ibi;
         let mut out = Output {
             beat: None,
             state: self.monitor.sample(n, c.clipped, median),
@@ -429,7 +437,7 @@ impl Pipeline {
         let since_ms = self
             .last_peak
             .map(|p| peak.saturating_sub(p) as f32 * 1000.0 / self.fs);
-        let median = self.all_intervals.recent_median(8);
+        let median = self.recent_ibi;
         let early = match (since_ms, median) {
             (Some(s), Some(m)) => s < EARLY_FRACTION * m,
             _ => false,
@@ -494,7 +502,7 @@ impl Pipeline {
     /// diastolic wave measures only its rise from the dicrotic notch.
     fn pulse_height(&self, now: u64, peak_d: u64) -> f32 {
         let age = (now - peak_d) as usize;
-        let period = self.all_intervals.recent_median(8).unwrap_or(800.0) * self.fd / 1000.0;
+        let period = self.recent_ibi.unwrap_or(800.0) * self.fd / 1000.0;
         let mut back = libm::roundf(0.6 * period) as usize;
         if let Some(last) = self.last_peak {
             let last_age = now.saturating_sub(last / self.decim as u64) as usize;
@@ -514,7 +522,7 @@ impl Pipeline {
         let peak = self.to_input(peak_d);
         let frac = self.peak_offset((now - peak_d) as usize) * self.decim as f32;
         let mut flags = 0u8;
-        let median = self.all_intervals.recent_median(8);
+        let median = self.recent_ibi;
         let ibi = match self.last_peak {
             Some(p) if peak > p => {
                 Some(((peak - p) as f32 + frac - self.last_frac) * 1000.0 / self.fs)
@@ -533,6 +541,7 @@ impl Pipeline {
         let period = median.or(ibi).unwrap_or(800.0) * self.fd / 1000.0;
         if let Some(i) = ibi {
             self.all_intervals.push(i, peak);
+            self.recent_ibi = self.all_intervals.recent_median(RECENT_INTERVALS);
         }
         let age = (now - peak_d) as f32;
         let from = (age + 0.3 * period).min((self.banded.len().max(2) - 2) as f32);
