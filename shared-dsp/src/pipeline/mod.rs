@@ -190,8 +190,8 @@ pub struct Pipeline {
     smooth: Cascade<Delta, 1>,
     smoothed: Ring<SHAPE_RING>,
     banded: Ring<SHAPE_RING>,
-    marks: Ring<SHAPE_RING>,
-    mark: f32,
+    marks: Ring<SHAPE_RING, u8>,
+    mark: u8,
     detector: Detector,
     search_before: usize,
     search_after: usize,
@@ -219,8 +219,9 @@ pub struct Pipeline {
     hrv: HrvWindow<HRV_INTERVALS>,
 }
 
-const MARK_CLIPPED: f32 = 1.0;
-const MARK_REJECTED: f32 = 2.0;
+// Per detector-rate sample: bit 0 clipped, bit 1 replaced (not a number).
+const MARK_CLIPPED: u8 = 1;
+const MARK_REJECTED: u8 = 2;
 
 impl Pipeline {
     /// A pipeline for `config`; refuses rates outside 25 to 1000 Hz and
@@ -259,7 +260,7 @@ impl Pipeline {
             smoothed: Ring::new(),
             banded: Ring::new(),
             marks: Ring::new(),
-            mark: 0.0,
+            mark: 0,
             detector,
             search_before: libm::roundf(0.05 * fd) as usize,
             search_after: libm::roundf(0.25 * fd) as usize,
@@ -338,10 +339,10 @@ impl Pipeline {
         let y = self.band.process(c.value);
         let s = self.smooth.process(c.value);
         if c.clipped {
-            self.mark = self.mark.max(MARK_CLIPPED);
+            self.mark |= MARK_CLIPPED;
         }
         if c.rejected {
-            self.mark = MARK_REJECTED + if self.mark >= MARK_CLIPPED { 1.0 } else { 0.0 };
+            self.mark |= MARK_REJECTED;
         }
         let n = self.n;
         self.n += 1;
@@ -371,7 +372,7 @@ impl Pipeline {
         self.smoothed.push(s);
         self.banded.push(y);
         self.marks.push(self.mark);
-        self.mark = 0.0;
+        self.mark = 0;
         let now = self.t;
         self.t += 1;
         if let Some(mut cand) = self.detector.push(y) {
@@ -548,10 +549,10 @@ impl Pipeline {
         let to = (age - 0.2 * period).max(0.0);
         for a in (libm::floorf(to) as usize)..=(libm::ceilf(from) as usize) {
             let m = self.marks.at(a);
-            if m == MARK_CLIPPED || m >= MARK_REJECTED + 1.0 {
+            if m & MARK_CLIPPED != 0 {
                 flags |= BeatFlags::CLIPPED;
             }
-            if m >= MARK_REJECTED {
+            if m & MARK_REJECTED != 0 {
                 flags |= BeatFlags::INPUT_REJECTED;
             }
         }

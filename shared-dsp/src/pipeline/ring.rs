@@ -2,17 +2,17 @@
 
 /// The last `N` values pushed, newest at age 0.
 #[derive(Clone, Copy, Debug)]
-pub struct Ring<const N: usize> {
-    data: [f32; N],
+pub struct Ring<const N: usize, T = f32> {
+    data: [T; N],
     head: usize,
     filled: usize,
 }
 
-impl<const N: usize> Ring<N> {
+impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// An empty ring.
-    pub const fn new() -> Self {
+    pub fn new() -> Self {
         Self {
-            data: [0.0; N],
+            data: [T::default(); N],
             head: 0,
             filled: 0,
         }
@@ -20,7 +20,7 @@ impl<const N: usize> Ring<N> {
 
     /// Append a value, forgetting the oldest once full.
     #[inline]
-    pub fn push(&mut self, v: f32) {
+    pub fn push(&mut self, v: T) {
         self.head = if self.head + 1 == N { 0 } else { self.head + 1 };
         self.data[self.head] = v;
         if self.filled < N {
@@ -28,12 +28,12 @@ impl<const N: usize> Ring<N> {
         }
     }
 
-    /// The value pushed `age` pushes ago (0 = newest); 0.0 when older than
-    /// what the ring holds.
+    /// The value pushed `age` pushes ago (0 = newest); the default value
+    /// (0) when older than what the ring holds.
     #[inline]
-    pub fn at(&self, age: usize) -> f32 {
+    pub fn at(&self, age: usize) -> T {
         if age >= self.filled {
-            return 0.0;
+            return T::default();
         }
         let i = if age <= self.head {
             self.head - age
@@ -59,7 +59,7 @@ impl<const N: usize> Ring<N> {
     }
 }
 
-impl<const N: usize> Default for Ring<N> {
+impl<const N: usize, T: Copy + Default> Default for Ring<N, T> {
     fn default() -> Self {
         Self::new()
     }
