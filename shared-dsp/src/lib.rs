@@ -37,7 +37,7 @@
 #![forbid(unsafe_code)]
 #![deny(missing_docs)]
 
-#[cfg(feature = "std")]
+#[cfg(any(feature = "std", test))]
 extern crate std;
 
 pub mod design;
@@ -46,5 +46,6 @@ pub mod hrv;
 pub mod math;
 pub mod pipeline;
 pub mod response;
+pub mod wire;
 
 pub use design::{Design, DesignError};
