@@ -2,11 +2,19 @@
 //! engines behind its subcommands, usable without it ([`filter_report`]).
 //! Synthetic recordings with known beats, for tests and demos: [`synth`].
 //! Reading and writing recordings (WFDB records and annotations, CSV): [`io`].
+//! Listening to a board over a serial port and recording it: [`listen`].
+//! Running recordings through the firmware on the emulated board: [`emulate`].
+//! A replay as one self-contained HTML page: [`report`].
+//! The analog front end's budget, LED to ADC: [`frontend`].
 #![deny(missing_docs)]
 
 pub mod cli;
+pub mod emulate;
 pub mod filter_report;
+pub mod frontend;
 pub mod io;
+pub mod listen;
 pub mod replay;
+pub mod report;
 pub mod score;
 pub mod synth;

@@ -251,52 +251,77 @@ pub mod records {
         Ok(out)
     }
 
+    /// Reference beats of the record at `record` (path without
+    /// extension): the beat annotations of `<record>.<annotator>` as sample
+    /// indices, or `None` when that file does not exist.
+    pub fn reference_beats(
+        record: &Path,
+        annotator: &str,
+    ) -> Result<Option<Vec<u64>>, ReplayError> {
+        let ann = annotation_path(record, annotator);
+        if !ann.exists() {
+            return Ok(None);
+        }
+        Ok(Some(
+            read_annotations(&ann)?
+                .iter()
+                .filter(|a| a.is_beat())
+                .map(|a| a.sample.max(0) as u64)
+                .collect(),
+        ))
+    }
+
+    /// A heart-rate series: `(time_s, bpm)`, `None` for seconds without a
+    /// value.
+    pub type RateSeries = Vec<(f64, Option<f64>)>;
+
+    /// The reference heart-rate series of the record at `record`:
+    /// `(time_s, bpm)` from column `refs.rate_column` of
+    /// `<record><refs.rate_suffix>`, or `None` when that table does not
+    /// exist. A table without the column is an error.
+    pub fn reference_rate(
+        record: &Path,
+        refs: &References,
+    ) -> Result<Option<RateSeries>, ReplayError> {
+        let table = numerics_path(record, &refs.rate_suffix);
+        if !table.exists() {
+            return Ok(None);
+        }
+        let n = read_numerics(&table)?;
+        let column = n.column(&refs.rate_column).ok_or_else(|| {
+            ReplayError(format!(
+                "{}: no column '{}' (columns: {})",
+                table.display(),
+                refs.rate_column,
+                n.names.join(", ")
+            ))
+        })?;
+        Ok(Some(
+            n.time_s
+                .iter()
+                .copied()
+                .zip(column.iter().copied())
+                .collect(),
+        ))
+    }
+
     /// Score one loaded and replayed recording.
     pub fn score_one(
         rec: &Recording,
         run: &Replay,
         refs: &References,
     ) -> Result<RecordScore, ReplayError> {
-        let ann = annotation_path(&rec.path, &refs.annotator);
-        let (beats, reference_beats) = if ann.exists() {
-            let reference: Vec<u64> = read_annotations(&ann)?
-                .iter()
-                .filter(|a| a.is_beat())
-                .map(|a| a.sample.max(0) as u64)
-                .collect();
-            let tol = (MATCH_WINDOW_S * run.fs).round() as u64;
-            (
-                Some(match_beats(&reference, &run.peaks(), tol)),
-                Some(reference.len()),
-            )
-        } else {
-            (None, None)
-        };
-        let table = numerics_path(&rec.path, &refs.rate_suffix);
-        let heart_rate = if table.exists() {
-            let n = read_numerics(&table)?;
-            let column = n.column(&refs.rate_column).ok_or_else(|| {
-                ReplayError(format!(
-                    "{}: no column '{}' (columns: {})",
-                    table.display(),
-                    refs.rate_column,
-                    n.names.join(", ")
-                ))
-            })?;
-            let reference: Vec<(f64, Option<f64>)> = n
-                .time_s
-                .iter()
-                .copied()
-                .zip(column.iter().copied())
-                .collect();
-            Some(rate_error(&run.heart_rate_track(), &reference))
-        } else {
-            None
-        };
+        let reference = reference_beats(&rec.path, &refs.annotator)?;
+        let tol = (MATCH_WINDOW_S * run.fs).round() as u64;
+        let beats = reference
+            .as_ref()
+            .map(|r| match_beats(r, &run.peaks(), tol));
+        let heart_rate = reference_rate(&rec.path, refs)?
+            .map(|series| rate_error(&run.heart_rate_track(), &series));
         Ok(RecordScore {
             record: rec.name.clone(),
             beats,
-            reference_beats,
+            reference_beats: reference.map(|r| r.len()),
             heart_rate,
             summary: run.summary(),
         })

@@ -15,6 +15,8 @@
 //!   per-sample processing cannot fail.
 //! * [`response`]: magnitude, phase and group delay of a cascade at any
 //!   frequency.
+//! * [`feed`]: the recorded-samples feed a host sends an emulated board
+//!   (header with the pipeline's configuration, then `f32` samples).
 //! * [`hrv`]: time-domain heart-rate variability (SDNN, RMSSD, NN50, pNN50)
 //!   over a slice of intervals or a fixed-capacity sliding window.
 //!
@@ -41,6 +43,7 @@
 extern crate std;
 
 pub mod design;
+pub mod feed;
 pub mod filter;
 pub mod hrv;
 pub mod math;

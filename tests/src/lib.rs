@@ -29,6 +29,7 @@
 //!   `python`).
 //! * `PLETHWIRE_QEMU`: `qemu-system-arm` binary to use (default: from `PATH`).
 
+pub mod emulation;
 pub mod selfcheck;
 
 use std::ffi::{OsStr, OsString};

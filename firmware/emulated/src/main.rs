@@ -1,136 +1,161 @@
-//! Self-check firmware for QEMU's `mps2-an386` (Cortex-M4F).
+//! plethwire firmware for QEMU's `mps2-an386` (Cortex-M4F).
 //!
-//! It designs the band-pass filter on the device, runs both section
-//! structures over a built-in signal and prints every number as raw bits over
-//! semihosting. The host test suite re-does the same work and requires the
-//! results to match bit for bit, so a difference in float handling between
-//! the board and the laptop shows up as a failing test instead of a subtle
-//! drift in detected beats.
+//! What it does depends on the semihosting command line
+//! (`-semihosting-config enable=on,target=native,arg=...`), whose first
+//! word must be `plethwire-emulated` for any of the run modes:
 //!
-//! Output, one record per line (all numbers are IEEE-754 bit patterns in
-//! lowercase hex: 16 digits for `f64`, 8 for `f32`):
+//! | command line | mode |
+//! |---|---|
+//! | (none: QEMU passes the kernel's file name) | self-check ([`selfcheck`]), report on standard output |
+//! | `plethwire-emulated stream FEED FRAMES` | whole recording: samples feed from the host file `FEED`, frames to the host file `FRAMES` |
+//! | `plethwire-emulated perf FEED FRAMES REPORT` | as `stream`, every `push` timed ([`perf`], needs `-icount shift=0`), figures to the host file `REPORT` |
+//! | `plethwire-emulated uart` | samples feed on UART0's receive line, frames on its transmit line |
 //!
-//! ```text
-//! plethwire-emulated selfcheck v1
-//! section <i> <b0> <b1> <b2> <a1> <a2>
-//! sample <n> <x> <delta y> <df2t y>
-//! end
-//! ```
-//!
-//! A panic prints `panic <message>` and a hard fault `fault <frame>`; both
-//! make QEMU exit with a non-zero status.
+//! The feed and the frames are documented in `docs/wire-format.md`; the
+//! session loop is [`session::run`]. Errors go to the host's standard error
+//! as one line `plethwire-emulated: ...` (never to standard output, which in
+//! UART mode carries the frames) and make QEMU exit with status 1; a panic
+//! prints `panic <message>` and a hard fault `fault <frame>` there too.
 
 #![no_std]
 #![no_main]
 
+mod links;
+mod perf;
+mod selfcheck;
+mod semihost;
+mod session;
+mod uart;
+
+use core::fmt::Write;
 use core::panic::PanicInfo;
 
 use cortex_m_rt::{entry, exception, ExceptionFrame};
 use cortex_m_semihosting::debug::{self, EXIT_FAILURE, EXIT_SUCCESS};
-use cortex_m_semihosting::hprintln;
-use plethwire_dsp::design::butterworth_bandpass;
-use plethwire_dsp::filter::{Cascade, Delta, Df2t};
 
-/// Number of built-in input samples; the host check insists on exactly this many.
-const SAMPLES: usize = 64;
-/// Band-pass order (per edge) of the self-check design; two biquad sections.
-const ORDER: usize = 2;
-/// Lower band edge in Hz: removes baseline wander.
-const LOW_HZ: f64 = 0.5;
-/// Upper band edge in Hz: keeps the pulse and its first harmonics.
-const HIGH_HZ: f64 = 8.0;
-/// Sample rate in Hz of the (pretend) ADC.
-const FS_HZ: f64 = 100.0;
+use links::{FileFeed, FileSink, UartFeed, UartSink};
+use semihost::HostFile;
+use session::{Plain, RunError};
+
+/// The first word of a command line that selects a run mode.
+const PROGRAM: &str = "plethwire-emulated";
 
 #[entry]
 fn main() -> ! {
-    hprintln!("plethwire-emulated selfcheck v1");
-
-    // Designing here rather than on the host is the point: it exercises the
-    // target's soft-f64 arithmetic, which must agree with the laptop's.
-    let design = butterworth_bandpass(ORDER, LOW_HZ, HIGH_HZ, FS_HZ).unwrap();
-    for (i, s) in design.sections().iter().enumerate() {
-        hprintln!(
-            "section {} {:016x} {:016x} {:016x} {:016x} {:016x}",
-            i,
-            s.b0.to_bits(),
-            s.b1.to_bits(),
-            s.b2.to_bits(),
-            s.a1.to_bits(),
-            s.a2.to_bits()
-        );
+    let mut buf = [0u8; 512];
+    let outcome = match semihost::command_line(&mut buf) {
+        Ok(line) => dispatch(line),
+        Err(e) => Err(Failure::Run(e.into())),
+    };
+    match outcome {
+        Ok(()) => exit(true),
+        Err(failure) => {
+            say_on_stderr(format_args!("plethwire-emulated: {failure}"));
+            exit(false)
+        }
     }
+}
 
-    let mut delta: Cascade<Delta, 2> = design.cascade().unwrap();
-    let mut df2t: Cascade<Df2t, 2> = design.cascade().unwrap();
-    let mut noise = Lcg(0x1234_5678);
-    for n in 0..SAMPLES {
-        let x = input(n, &mut noise);
-        let yd = delta.process(x);
-        let yt = df2t.process(x);
-        hprintln!(
-            "sample {} {:08x} {:08x} {:08x}",
-            n,
-            x.to_bits(),
-            yd.to_bits(),
-            yt.to_bits()
-        );
+/// Why the firmware gave up.
+enum Failure {
+    /// The command line names no known mode or has the wrong arguments.
+    Usage,
+    /// The perf mode could not count instructions.
+    Counter(&'static str),
+    /// A session stopped.
+    Run(RunError),
+}
+
+impl core::fmt::Display for Failure {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        match self {
+            Self::Usage => f.write_str(
+                "usage: plethwire-emulated (stream FEED FRAMES | perf FEED FRAMES REPORT | uart)",
+            ),
+            Self::Counter(why) => f.write_str(why),
+            Self::Run(e) => write!(f, "{e}"),
+        }
     }
+}
 
-    hprintln!("end");
-    debug::exit(EXIT_SUCCESS);
+impl From<RunError> for Failure {
+    fn from(e: RunError) -> Self {
+        Self::Run(e)
+    }
+}
+
+/// Run the mode the command line names.
+fn dispatch(line: &str) -> Result<(), Failure> {
+    let mut words = line.split(' ').filter(|w| !w.is_empty());
+    if words.next() != Some(PROGRAM) {
+        selfcheck::run();
+        return Ok(());
+    }
+    let mut args = [""; 4];
+    let mut n = 0;
+    for w in words {
+        if n == args.len() {
+            return Err(Failure::Usage);
+        }
+        args[n] = w;
+        n += 1;
+    }
+    match &args[..n] {
+        [] => selfcheck::run(),
+        ["stream", feed, frames] => {
+            let (mut src, mut sink) = (FileFeed::open(feed)?, FileSink::create(frames)?);
+            session::run(&mut src, &mut sink, &mut Plain)?;
+        }
+        ["perf", feed, frames, report] => {
+            let syst = cortex_m::Peripherals::take()
+                .ok_or(Failure::Counter("the core peripherals are taken"))?
+                .SYST;
+            let mut counter = perf::Counter::start(syst).map_err(Failure::Counter)?;
+            let (mut src, mut sink) = (FileFeed::open(feed)?, FileSink::create(frames)?);
+            let totals = session::run(&mut src, &mut sink, &mut counter)?;
+            counter
+                .report(&totals, report)
+                .map_err(|e| Failure::Run(e.into()))?;
+        }
+        ["uart"] => {
+            let (rx, tx) = uart::take();
+            let mut sink = UartSink(tx);
+            session::run(&mut UartFeed(rx), &mut sink, &mut Plain)?;
+            sink.0.flush();
+        }
+        _ => return Err(Failure::Usage),
+    }
+    Ok(())
+}
+
+/// One line on the host's standard error; nothing if that fails (there is
+/// nowhere else to say it).
+fn say_on_stderr(args: core::fmt::Arguments<'_>) {
+    if let Ok(mut err) = HostFile::stderr() {
+        let _ = writeln!(err, "{args}");
+    }
+}
+
+/// Stop QEMU with status 0 (`ok`) or 1.
+fn exit(ok: bool) -> ! {
+    debug::exit(if ok { EXIT_SUCCESS } else { EXIT_FAILURE });
     // Only reached without a semihosting host (e.g. on real hardware).
     loop {
         cortex_m::asm::wfi();
     }
 }
 
-/// Tiny linear congruential generator (Numerical Recipes constants).
-///
-/// Integer-only so the sequence is trivially identical everywhere; it adds
-/// low-order bits to the input so rounding inside the filters is exercised.
-struct Lcg(u32);
-
-impl Lcg {
-    /// Next value in `[-0.5, 0.5)`, built with plain f32 arithmetic.
-    fn next(&mut self) -> f32 {
-        self.0 = self.0.wrapping_mul(1_664_525).wrapping_add(1_013_904_223);
-        // Top 16 bits are the best-mixed ones; 16 bits convert to f32 exactly.
-        ((self.0 >> 16) as f32) / 65_536.0 - 0.5
-    }
-}
-
-/// Sample `n` of the built-in test signal: a DC level (the LED's ambient
-/// offset), a triangle "pulse" of period 16 samples, a step at the halfway
-/// point (a finger pressing harder) and a little noise.
-fn input(n: usize, noise: &mut Lcg) -> f32 {
-    let phase = (n % 16) as f32;
-    let triangle = if phase < 8.0 {
-        phase / 8.0
-    } else {
-        (16.0 - phase) / 8.0
-    };
-    let step = if n >= SAMPLES / 2 { 0.125 } else { 0.0 };
-    0.5 + 0.25 * triangle + step + 0.01 * noise.next()
-}
-
 /// Report the panic to the host and make QEMU exit with a failure status.
 #[panic_handler]
 fn panic(info: &PanicInfo) -> ! {
-    hprintln!("panic {}", info);
-    debug::exit(EXIT_FAILURE);
-    loop {
-        cortex_m::asm::wfi();
-    }
+    say_on_stderr(format_args!("panic {info}"));
+    exit(false)
 }
 
 /// Without this a fault would spin forever and only the host's timeout
 /// would notice; report it and fail fast instead.
 #[exception]
 unsafe fn HardFault(frame: &ExceptionFrame) -> ! {
-    hprintln!("fault {:?}", frame);
-    debug::exit(EXIT_FAILURE);
-    loop {
-        cortex_m::asm::wfi();
-    }
+    say_on_stderr(format_args!("fault {frame:?}"));
+    exit(false)
 }

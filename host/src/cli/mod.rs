@@ -4,14 +4,22 @@
 //! Each subcommand lives in its own module with an `Args` struct and a
 //! `run` method; adding one means a module and a variant of [`Command`].
 
+mod emulate;
 mod filter;
+mod frontend;
+mod listen;
 mod pipeline_opts;
 mod replay;
+mod report;
 mod score;
 
+pub use emulate::EmulateArgs;
 pub use filter::FilterArgs;
+pub use frontend::{FrontendArgs, LoadAtArg};
+pub use listen::ListenArgs;
 pub use pipeline_opts::{DetectorName, PipelineOpts};
 pub use replay::ReplayArgs;
+pub use report::ReportArgs;
 pub use score::ScoreArgs;
 
 use clap::error::{ContextKind, ContextValue, ErrorKind};
@@ -31,6 +39,10 @@ Examples:
   plethwire filter --rate 250 --band 0.5:8 --notch 50
   plethwire replay ../shared/data/capnobase/cb0009 --out /tmp/beats
   plethwire score ../shared/data/capnobase ../shared/data/bidmc
+  plethwire emulate ../shared/data/capnobase/cb0009 --out /tmp/beats
+  plethwire listen --port /dev/ttyACM0 --out recordings
+  plethwire report ../shared/data/capnobase/cb0009
+  plethwire frontend examples/frontend-fingerclip.toml
 
 Run 'plethwire <command> --help' for a command's options.";
 
@@ -56,6 +68,23 @@ pub enum Command {
     /// Score detected beats against reference annotations (±150 ms) and
     /// heart rate against a reference series, per record and pooled.
     Score(ScoreArgs),
+    /// Run a recording through the firmware on QEMU's emulated Cortex-M4F
+    /// board, show the beats it streams, write them as WFDB annotations
+    /// and check them against the host replay bit for bit.
+    Emulate(EmulateArgs),
+    /// Show and record what a board sends over a serial port (beats,
+    /// signal state, status, samples); survives unplugging. Not a medical
+    /// device; power the sensor from a battery or through a USB isolator.
+    Listen(ListenArgs),
+    /// Replay a recording and write one self-contained HTML page: signal
+    /// excerpt, heart rate, intervals, Poincaré plot, quality, HRV, the
+    /// band-pass's response and the score against a reference.
+    Report(ReportArgs),
+    /// Budget an analog front end (LED drive, detector, gain stages, RC
+    /// corners, ADC): transfer function, heart band check, pulse swing
+    /// against the ADC range, sample rate and digital band-pass, Bode plot
+    /// as SVG.
+    Frontend(FrontendArgs),
 }
 
 /// A failed run: its exit status and the one line to print, if any.
@@ -189,6 +218,10 @@ pub fn run(args: Vec<OsString>, out: &mut dyn Write) -> Result<(), Failure> {
         Command::Filter(filter) => filter.run(&command, out),
         Command::Replay(replay) => replay.run(out),
         Command::Score(score) => score.run(out),
+        Command::Emulate(emulate) => emulate.run(out),
+        Command::Listen(listen) => listen.run(out),
+        Command::Report(report) => report.run(out),
+        Command::Frontend(frontend) => frontend.run(out),
     }
 }
 

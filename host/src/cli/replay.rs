@@ -66,7 +66,8 @@ struct ReplayReport<'a> {
     written: &'a [String],
 }
 
-fn check_annotator(name: &str) -> Result<(), Failure> {
+/// Refuse an annotator name that cannot be a file extension.
+pub(super) fn check_annotator(name: &str) -> Result<(), Failure> {
     let ok = !name.is_empty() && name.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
     if ok {
         Ok(())

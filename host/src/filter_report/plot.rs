@@ -15,7 +15,7 @@ use super::{on_a_zero, FilterReport, ReportError};
 pub const SWEEP_POINTS: usize = 600;
 
 /// Heart rates of 30 to 220 beats per minute, Hz.
-const HEART_BAND_HZ: (f64, f64) = (0.5, 3.7);
+pub(crate) const HEART_BAND_HZ: (f64, f64) = (0.5, 3.7);
 /// Gains below this are drawn at it, so deep stop bands stay readable.
 const GAIN_FLOOR_DB: f64 = -100.0;
 const GAIN_CEILING_DB: f64 = 5.0;
@@ -24,10 +24,10 @@ const WIDTH: u32 = 960;
 const TITLE_CHARS_PER_LINE: usize = 90;
 const HEIGHT: u32 = 960;
 
-const DESIGN_COLOUR: RGBColor = RGBColor(22, 92, 125);
-const BOARD_COLOUR: RGBColor = RGBColor(214, 96, 38);
-const BAND_COLOUR: RGBColor = RGBColor(232, 70, 95);
-const CORNER_COLOUR: RGBColor = RGBColor(150, 150, 150);
+pub(crate) const DESIGN_COLOUR: RGBColor = RGBColor(22, 92, 125);
+pub(crate) const BOARD_COLOUR: RGBColor = RGBColor(214, 96, 38);
+pub(crate) const BAND_COLOUR: RGBColor = RGBColor(232, 70, 95);
+pub(crate) const CORNER_COLOUR: RGBColor = RGBColor(150, 150, 150);
 
 /// The response of design and board cascade at log-spaced frequencies.
 #[derive(Clone, Debug)]
@@ -120,7 +120,7 @@ pub fn phase_near_deg(points: &[Response], reference_deg: &[f64]) -> Vec<f64> {
 }
 
 /// A y range covering every finite value with a little room, never empty.
-fn padded_range(values: impl Iterator<Item = f64>, include_zero: bool) -> (f64, f64) {
+pub(crate) fn padded_range(values: impl Iterator<Item = f64>, include_zero: bool) -> (f64, f64) {
     let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
     for v in values.filter(|v| v.is_finite()) {
         lo = lo.min(v);
@@ -141,7 +141,7 @@ fn padded_range(values: impl Iterator<Item = f64>, include_zero: bool) -> (f64, 
 
 /// Words of `text` in lines of at most `width` characters (a longer word
 /// gets a line of its own).
-fn wrap_words(text: &str, width: usize) -> Vec<String> {
+pub(crate) fn wrap_words(text: &str, width: usize) -> Vec<String> {
     let mut lines: Vec<String> = Vec::new();
     for word in text.split_whitespace() {
         match lines.last_mut() {
@@ -156,13 +156,13 @@ fn wrap_words(text: &str, width: usize) -> Vec<String> {
 }
 
 /// Tick labels without trailing zeros: 0.01, 0.5, 20.
-fn hz_label(f: &f64) -> String {
+pub(crate) fn hz_label(f: &f64) -> String {
     let s = format!("{f:.3}");
     s.trim_end_matches('0').trim_end_matches('.').to_owned()
 }
 
 /// Y tick labels with as many decimals as the axis span needs.
-fn y_labeller(span: f64) -> impl Fn(&f64) -> String {
+pub(crate) fn y_labeller(span: f64) -> impl Fn(&f64) -> String {
     let decimals = if span >= 20.0 {
         0
     } else {

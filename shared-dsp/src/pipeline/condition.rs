@@ -74,8 +74,15 @@ impl Conditioner {
         let clipped = match self.rails {
             Rails::Known { low, high } => x <= low || x >= high,
             Rails::Auto => {
-                self.max = self.max.max(x);
-                self.min = self.min.min(x);
+                // x is finite here and the extremes never NaN, so plain
+                // comparisons do (a tie keeps the old extreme: the same
+                // number, and only compared with `==` below).
+                if x > self.max {
+                    self.max = x;
+                }
+                if x < self.min {
+                    self.min = x;
+                }
                 let at_extreme = x == self.max || x == self.min;
                 self.run = if self.seen && x == self.last && at_extreme {
                     self.run + 1

@@ -42,6 +42,7 @@ pub use zong::Zong;
 use crate::design::{butterworth_bandpass, butterworth_lowpass};
 use crate::filter::{Cascade, Delta};
 use crate::hrv::{HrvStats, HrvWindow};
+use crate::math::{max_f32, min_f32};
 use crate::DesignError;
 use condition::Conditioner;
 use quality::{Shape, Template};
@@ -179,7 +180,11 @@ impl Detector {
 
 /// The streaming pipeline.
 #[derive(Clone, Debug)]
+#[repr(C)]
 pub struct Pipeline {
+    // Fields touched on every sample first (`repr(C)` keeps the order):
+    // on Cortex-M a float load reaches only 1 KB past its base register,
+    // so the filters' and counters' state must not sit behind the rings.
     config: Config,
     fs: f32,
     fd: f32,
@@ -188,34 +193,36 @@ pub struct Pipeline {
     conditioner: Conditioner,
     band: Cascade<Delta, 2>,
     smooth: Cascade<Delta, 1>,
-    smoothed: Ring<SHAPE_RING>,
-    banded: Ring<SHAPE_RING>,
-    marks: Ring<SHAPE_RING, u8>,
+    monitor: Monitor,
     mark: u8,
-    detector: Detector,
+    started: bool,
+    last_good: bool,
     search_before: usize,
     search_after: usize,
-    template: Template,
-    intervals: Intervals,
-    // Every interval, trusted or not: the reference for plausibility, so one
-    // odd interval early on cannot lock every later beat out.
-    all_intervals: Intervals,
+    // Detector samples over which a step is measured (STEP_S).
+    step_lag: usize,
     // Median of the last RECENT_INTERVALS intervals, kept up to date per
     // beat so the per-sample path never sorts.
     recent_ibi: Option<f32>,
-    monitor: Monitor,
     n: u64,
     t: u64,
-    started: bool,
     last_peak: Option<u64>,
     // Sub-sample offset of the last peak, input samples.
     last_frac: f32,
-    last_good: bool,
     last_value: f32,
     peak_level: Option<f32>,
     step_level: Option<f32>,
     restarts: u64,
     epoch: u64,
+    detector: Detector,
+    smoothed: Ring<SHAPE_RING>,
+    banded: Ring<SHAPE_RING>,
+    marks: Ring<SHAPE_RING, u8>,
+    template: Template,
+    intervals: Intervals,
+    // Every interval, trusted or not: the reference for plausibility, so one
+    // odd interval early on cannot lock every later beat out.
+    all_intervals: Intervals,
     hrv: HrvWindow<HRV_INTERVALS>,
 }
 
@@ -235,7 +242,7 @@ impl Pipeline {
         if !(o.hr_window_s.is_finite() && o.hr_window_s > 0.0) {
             return Err(DesignError::NonPositiveCorner);
         }
-        let decim = libm::floorf(fs / DETECTOR_BASE_HZ).max(1.0) as u32;
+        let decim = max_f32(libm::floorf(fs / DETECTOR_BASE_HZ), 1.0) as u32;
         let fd = fs / decim as f32;
         let fs64 = fs as f64;
         let band = butterworth_bandpass(2, o.band_low_hz as f64, o.band_high_hz as f64, fs64)?
@@ -264,6 +271,7 @@ impl Pipeline {
             detector,
             search_before: libm::roundf(0.05 * fd) as usize,
             search_after: libm::roundf(0.25 * fd) as usize,
+            step_lag: (libm::roundf(STEP_S * fd) as usize).max(1),
             template: Template::new(),
             intervals: Intervals::new(),
             all_intervals: Intervals::new(),
@@ -390,7 +398,7 @@ impl Pipeline {
 
     /// Has the smoothed input jumped by many pulse heights?
     fn is_step(&self, s: f32) -> bool {
-        let lag = (libm::roundf(STEP_S * self.fd) as usize).max(1);
+        let lag = self.step_lag;
         // The last known pulse height, kept across restarts so the step
         // back (finger replaced) is caught as well as the step away.
         match self.step_level {
@@ -450,7 +458,7 @@ impl Pipeline {
         }
         // Follow the level both ways, but let one huge artefact move it
         // only by a bounded step.
-        self.peak_level = Some(level + 0.125 * (a.min(4.0 * level) - level));
+        self.peak_level = Some(level + 0.125 * (min_f32(a, 4.0 * level) - level));
         self.step_level = self.peak_level;
         true
     }
@@ -514,7 +522,7 @@ impl Pipeline {
         let oldest = (age + back).min(self.smoothed.len().saturating_sub(1));
         let mut foot = f32::INFINITY;
         for a in age..=oldest.max(age) {
-            foot = foot.min(self.smoothed.at(a));
+            foot = min_f32(foot, self.smoothed.at(a));
         }
         self.smoothed.at(age) - foot
     }
@@ -545,8 +553,8 @@ impl Pipeline {
             self.recent_ibi = self.all_intervals.recent_median(RECENT_INTERVALS);
         }
         let age = (now - peak_d) as f32;
-        let from = (age + 0.3 * period).min((self.banded.len().max(2) - 2) as f32);
-        let to = (age - 0.2 * period).max(0.0);
+        let from = min_f32(age + 0.3 * period, (self.banded.len().max(2) - 2) as f32);
+        let to = max_f32(age - 0.2 * period, 0.0);
         for a in (libm::floorf(to) as usize)..=(libm::ceilf(from) as usize) {
             let m = self.marks.at(a);
             if m & MARK_CLIPPED != 0 {

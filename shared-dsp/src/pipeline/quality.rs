@@ -10,6 +10,8 @@
 //! a fixed number of points resampled from a window around its peak whose
 //! width follows the recent interval.
 
+use crate::math::max_f32;
+
 /// Points per resampled pulse.
 pub const POINTS: usize = 32;
 /// Correlation below which a pulse is not trusted.
@@ -31,7 +33,7 @@ impl Shape {
         let step = (from - to) / (POINTS - 1) as f32;
         for (i, slot) in v.iter_mut().enumerate() {
             let age = from - step * i as f32;
-            let a0 = libm::floorf(age).max(0.0);
+            let a0 = max_f32(libm::floorf(age), 0.0);
             let frac = age - a0;
             let a0 = a0 as usize;
             // Older sample at a0 + 1, newer at a0: interpolate in time.

@@ -1,27 +1,32 @@
 //! A fixed-capacity ring of the most recent samples.
 
 /// The last `N` values pushed, newest at age 0.
+// `repr(C)`, counters first: they stay within reach of short load
+// offsets from the start of the ring, whatever its size.
 #[derive(Clone, Copy, Debug)]
+#[repr(C)]
 pub struct Ring<const N: usize, T = f32> {
-    data: [T; N],
     head: usize,
     filled: usize,
+    data: [T; N],
 }
 
 impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// An empty ring.
     pub fn new() -> Self {
         Self {
-            data: [T::default(); N],
             head: 0,
             filled: 0,
+            data: [T::default(); N],
         }
     }
 
     /// Append a value, forgetting the oldest once full.
     #[inline]
     pub fn push(&mut self, v: T) {
-        self.head = if self.head + 1 == N { 0 } else { self.head + 1 };
+        // `% N` is a mask for the power-of-two sizes used, and tells the
+        // compiler the index is in range (no bounds check).
+        self.head = (self.head + 1) % N;
         self.data[self.head] = v;
         if self.filled < N {
             self.filled += 1;
@@ -32,15 +37,13 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// (0) when older than what the ring holds.
     #[inline]
     pub fn at(&self, age: usize) -> T {
-        if age >= self.filled {
+        if age >= N {
             return T::default();
         }
-        let i = if age <= self.head {
-            self.head - age
-        } else {
-            N + self.head - age
-        };
-        self.data[i]
+        // A slot not yet written since `new` still holds the default, so
+        // ages between `filled` and `N` need no test of their own. age < N,
+        // so this cannot underflow.
+        self.data[(self.head + N - age) % N]
     }
 
     /// How many values are held.
@@ -102,6 +105,16 @@ mod tests {
         }
         assert_eq!([r.at(0), r.at(1), r.at(2), r.at(3)], [6.0, 5.0, 4.0, 3.0]);
         assert_eq!(r.at(4), 0.0);
+    }
+
+    #[test]
+    fn ages_not_yet_pushed_read_as_default() {
+        let mut r = Ring::<8, u8>::new();
+        r.push(7);
+        r.push(9);
+        assert_eq!(r.len(), 2);
+        let ages: [u8; 9] = core::array::from_fn(|a| r.at(a));
+        assert_eq!(ages, [9, 7, 0, 0, 0, 0, 0, 0, 0]);
     }
 
     #[test]

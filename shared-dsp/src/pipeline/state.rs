@@ -2,6 +2,7 @@
 //! hysteresis so it does not flicker.
 
 use super::events::{SignalState, StateEvent};
+use crate::math::max_f32;
 
 /// Clipped share of the last [`CLIP_WINDOW_S`] above which the signal is
 /// saturated (common practice: a front end at its rails most of the time
@@ -20,6 +21,22 @@ pub const JUDGED_BEATS: u32 = 5;
 /// Consecutive good beats needed to declare the signal good.
 pub const GOOD_RUN: u32 = 3;
 
+/// `v as f32`, with the library call that converting a u64 takes on a
+/// 32-bit core made only when `v` does not fit 32 bits (an out-of-line call
+/// is not evaluated ahead of its branch, as an inline conversion would be).
+#[inline(always)]
+fn as_f32(v: u64) -> f32 {
+    #[cold]
+    #[inline(never)]
+    fn wide(v: u64) -> f32 {
+        v as f32
+    }
+    match u32::try_from(v) {
+        Ok(small) => small as f32,
+        Err(_) => wide(v),
+    }
+}
+
 /// State machine over the signal's condition.
 #[derive(Clone, Copy, Debug)]
 pub struct Monitor {
@@ -29,8 +46,15 @@ pub struct Monitor {
     fs: f32,
     last_beat: Option<u64>,
     recent: u8,
+    // Bad beats among the last JUDGED_BEATS, kept with `recent`.
+    bad: u32,
     judged: u32,
     good_run: u32,
+    // The silence limit in samples and the median interval (bits) it was
+    // worked out for: the median changes once per beat, the check runs
+    // every sample.
+    silence_for: Option<u32>,
+    silence_samples: f32,
 }
 
 impl Monitor {
@@ -43,8 +67,11 @@ impl Monitor {
             fs: fs_hz,
             last_beat: None,
             recent: 0,
+            bad: 0,
             judged: 0,
             good_run: 0,
+            silence_for: None,
+            silence_samples: SILENCE_S * fs_hz,
         }
     }
 
@@ -57,6 +84,8 @@ impl Monitor {
     pub fn beat(&mut self, at: u64, good: bool) {
         self.last_beat = Some(at);
         self.recent = (self.recent << 1) | u8::from(!good);
+        let mask = (1u8 << JUDGED_BEATS) - 1;
+        self.bad = (self.recent & mask).count_ones();
         self.judged = (self.judged + 1).min(JUDGED_BEATS);
         self.good_run = if good { self.good_run + 1 } else { 0 };
     }
@@ -71,11 +100,16 @@ impl Monitor {
     ) -> Option<StateEvent> {
         let c = if clipped { 1.0 } else { 0.0 };
         self.clip_share += self.clip_alpha * (c - self.clip_share);
-        let silence_s = median_ibi_ms.map_or(SILENCE_S, |m| (2.5 * m / 1000.0).max(SILENCE_S));
+        let key = median_ibi_ms.map(f32::to_bits);
+        if key != self.silence_for {
+            let silence_s =
+                median_ibi_ms.map_or(SILENCE_S, |m| max_f32(2.5 * m / 1000.0, SILENCE_S));
+            self.silence_samples = silence_s * self.fs;
+            self.silence_for = key;
+        }
         let since = self.last_beat.map_or(n, |b| n.saturating_sub(b));
-        let silent = since as f32 > silence_s * self.fs;
-        let mask = (1u8 << JUDGED_BEATS) - 1;
-        let bad = (self.recent & mask).count_ones();
+        let silent = as_f32(since) > self.silence_samples;
+        let bad = self.bad;
         let next = if self.clip_share > SATURATED_SHARE {
             SignalState::Saturated
         } else if silent {
@@ -101,5 +135,41 @@ impl Monitor {
             self.good_run = 0;
         }
         Some(event)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_cheap_conversion_is_the_plain_one() {
+        for v in [
+            0,
+            1,
+            16_777_217,
+            u32::MAX as u64,
+            u32::MAX as u64 + 1,
+            (1 << 53) + 1,
+            u64::MAX,
+        ] {
+            assert_eq!(as_f32(v).to_bits(), (v as f32).to_bits(), "{v}");
+        }
+    }
+
+    #[test]
+    fn silence_follows_the_recent_interval() {
+        let mut m = Monitor::new(100.0);
+        m.beat(0, true);
+        // 3 s floor at 100 Hz: silent after sample 300.
+        assert_eq!(m.sample(300, false, None), None);
+        let e = m.sample(301, false, None).expect("no signal");
+        assert_eq!(e.state, SignalState::NoSignal);
+        // With 2 s intervals the limit is 2.5 intervals: 500 samples.
+        let mut m = Monitor::new(100.0);
+        m.beat(0, true);
+        assert_eq!(m.sample(301, false, Some(2000.0)), None);
+        assert_eq!(m.sample(500, false, Some(2000.0)), None);
+        assert!(m.sample(501, false, Some(2000.0)).is_some());
     }
 }

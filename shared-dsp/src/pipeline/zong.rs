@@ -18,6 +18,7 @@
 
 use super::ring::{Ring, RunningSum};
 use super::Candidate;
+use crate::math::max_f32;
 
 /// SSF window, seconds (Zong et al. 2003).
 pub const WINDOW_S: f32 = 0.128;
@@ -42,7 +43,9 @@ pub const DECAY_S: f32 = 2.5;
 const RING: usize = 256;
 
 /// Causal slope-sum detector state, at the detector's rate.
+// `repr(C)`, rings last, as for `Elgendi`.
 #[derive(Clone, Debug)]
+#[repr(C)]
 pub struct Zong {
     window: usize,
     refractory: u64,
@@ -50,9 +53,6 @@ pub struct Zong {
     peak_search: usize,
     learn: u64,
     decay: u64,
-    rises: Ring<RING>,
-    ssf_hist: Ring<RING>,
-    filtered: Ring<RING>,
     ssf: RunningSum,
     last_y: f32,
     learn_sum: f32,
@@ -63,6 +63,9 @@ pub struct Zong {
     last_change: u64,
     interval: f32,
     pending: Option<u64>,
+    rises: Ring<RING>,
+    ssf_hist: Ring<RING>,
+    filtered: Ring<RING>,
 }
 
 impl Zong {
@@ -101,12 +104,12 @@ impl Zong {
 
     /// Feed one band-passed sample.
     pub fn push(&mut self, y: f32) -> Option<Candidate> {
-        let rise = (y - self.last_y).max(0.0);
+        let rise = max_f32(y - self.last_y, 0.0);
         self.last_y = y;
         self.rises.push(rise);
         self.ssf.add(rise);
         self.ssf.add(-self.rises.at(self.window));
-        let ssf = self.ssf.get().max(0.0);
+        let ssf = max_f32(self.ssf.get(), 0.0);
         self.ssf_hist.push(ssf);
         self.filtered.push(y);
         let t = self.t;
@@ -161,7 +164,7 @@ impl Zong {
         let newest = age_cross.saturating_sub(self.search);
         let mut ssf_max = 0.0f32;
         for a in newest..=age_cross {
-            ssf_max = ssf_max.max(self.ssf_hist.at(a));
+            ssf_max = max_f32(ssf_max, self.ssf_hist.at(a));
         }
         // Onset: back from the crossing to where the SSF was still below
         // 1 % of that maximum.

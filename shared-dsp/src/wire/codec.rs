@@ -66,10 +66,20 @@ impl Reader<'_> {
     }
 }
 
-fn detector_code(d: DetectorKind) -> u8 {
+/// The detector's code in hello frames and sample feeds.
+pub(crate) fn detector_code(d: DetectorKind) -> u8 {
     match d {
         DetectorKind::Elgendi => 0,
         DetectorKind::Zong => 1,
+    }
+}
+
+/// The detector a code stands for, if any.
+pub(crate) fn detector_from_code(c: u8) -> Option<DetectorKind> {
+    match c {
+        0 => Some(DetectorKind::Elgendi),
+        1 => Some(DetectorKind::Zong),
+        _ => None,
     }
 }
 
@@ -202,11 +212,7 @@ fn decode_payload(kind: u8, r: &mut Reader<'_>) -> Option<Message> {
         1 => {
             let firmware_version = r.take::<3>()?;
             let sample_rate_hz = r.f32()?;
-            let detector = match r.u8()? {
-                0 => DetectorKind::Elgendi,
-                1 => DetectorKind::Zong,
-                _ => return None,
-            };
+            let detector = detector_from_code(r.u8()?)?;
             let band_low_hz = r.f32()?;
             let band_high_hz = r.f32()?;
             let hr_window_s = r.f32()?;

@@ -1,0 +1,182 @@
+//! plethwire firmware for STM32F411CE boards ("black pill" style, 25 MHz
+//! crystal): an IR LED and a photodetector front end sampled 250 times a
+//! second with ambient cancelling, LED drive kept in range, the beat
+//! pipeline on the device, and frames (`plethwire_dsp::wire`) out of
+//! USART1 at 115200 baud. Logs go over RTT (defmt).
+//!
+//! Everything but register access lives in `plethwire-board` and is tested
+//! on the PC; this crate sets up the peripherals and moves bytes.
+//!
+//! # Pin map
+//!
+//! | pin | function | to |
+//! |---|---|---|
+//! | PA1 | ADC1 channel 1 | front end output, 0–3.3 V |
+//! | PA6 | TIM3 channel 1, PWM 20 kHz | LED drive level (RC-filter it into the current source's set input) |
+//! | PB0 | push-pull output, high = on | LED enable (switches the current source) |
+//! | PA9 | USART1 TX | the host's serial adapter RX |
+//! | PA10 | USART1 RX | reserved (the adapter's TX), not used yet |
+//! | PC13 | on-board LED, low = lit | toggles with every beat |
+//! | PA13, PA14 | SWDIO, SWCLK | debug probe (with GND, 3V3, NRST) |
+//!
+//! TIM5 is embassy's time driver (the sample timer); DMA2 stream 7 feeds
+//! USART1's transmitter.
+
+#![no_std]
+#![no_main]
+#![deny(unsafe_code)]
+
+mod clocks;
+mod link;
+mod panic;
+mod photo;
+
+use core::cell::RefCell;
+
+use defmt_rtt as _;
+use embassy_executor::Spawner;
+use embassy_futures::join::join;
+use embassy_stm32::adc::Adc;
+use embassy_stm32::gpio::{Level, Output, OutputType, Speed};
+use embassy_stm32::mode::Async;
+use embassy_stm32::peripherals::TIM3;
+use embassy_stm32::time::Hertz;
+use embassy_stm32::timer::simple_pwm::{PwmPin, SimplePwm, SimplePwmChannel};
+use embassy_stm32::usart::{self, UartTx};
+use embassy_stm32::{bind_interrupts, dma, peripherals};
+use embassy_sync::blocking_mutex::raw::NoopRawMutex;
+use embassy_sync::signal::Signal;
+use embassy_time::{Delay, Instant, Timer, TICK_HZ};
+use plethwire_board::{Board, BoardConfig, Hardware};
+
+use photo::Photo;
+
+/// Samples per second.
+const SAMPLE_RATE_HZ: u32 = 250;
+/// USART1 baud rate: 100 MHz / 115200 divides to 54.25 exactly, and every
+/// USB serial adapter takes it. Beats, states and status need well under
+/// 1 kB/s of its 11.5 kB/s.
+const BAUD: u32 = 115_200;
+/// LED drive PWM frequency: far above the front end's band, and 5000 steps
+/// of duty from TIM3's 100 MHz clock.
+const PWM_HZ: u32 = 20_000;
+/// Transmit queue, bytes.
+const QUEUE_BYTES: usize = 512;
+
+/// This firmware's version, from the package's.
+const FIRMWARE_VERSION: [u8; 3] = [
+    version_part(env!("CARGO_PKG_VERSION_MAJOR")),
+    version_part(env!("CARGO_PKG_VERSION_MINOR")),
+    version_part(env!("CARGO_PKG_VERSION_PATCH")),
+];
+
+/// The board with this hardware.
+type Front =
+    Board<Output<'static>, SimplePwmChannel<'static, TIM3>, Photo<'static>, Delay, QUEUE_BYTES>;
+
+bind_interrupts!(struct Irqs {
+    DMA2_STREAM7 => dma::InterruptHandler<peripherals::DMA2_CH7>;
+});
+
+#[embassy_executor::main]
+async fn main(_spawner: Spawner) {
+    let p = embassy_stm32::init(clocks::config());
+    defmt::info!(
+        "plethwire {} on STM32F411CE at {} Hz",
+        env!("CARGO_PKG_VERSION"),
+        clocks::SYSCLK_HZ
+    );
+
+    let pwm = SimplePwm::new(
+        p.TIM3,
+        Some(PwmPin::new(p.PA6, OutputType::PushPull)),
+        None,
+        None,
+        None,
+        Hertz(PWM_HZ),
+        Default::default(),
+    );
+    let mut drive = pwm.split().ch1;
+    drive.enable();
+    let hw = Hardware {
+        led: Output::new(p.PB0, Level::Low, Speed::Low),
+        drive,
+        adc: Photo::new(Adc::new(p.ADC1), p.PA1),
+        delay: Delay,
+    };
+    let mut uart = usart::Config::default();
+    uart.baudrate = BAUD;
+    let tx: UartTx<'static, Async> = match UartTx::new(p.USART1, p.PA9, p.DMA2_CH7, Irqs, uart) {
+        Ok(tx) => tx,
+        Err(e) => defmt::panic!("USART1 setup: {}", e),
+    };
+    let mut config = BoardConfig::new(SAMPLE_RATE_HZ, TICK_HZ);
+    config.firmware_version = FIRMWARE_VERSION;
+    let board = match Board::new(config, hw) {
+        Ok(board) => RefCell::new(board),
+        Err(e) => defmt::panic!("board setup: {}", e),
+    };
+    let beat_led = Output::new(p.PC13, Level::High, Speed::Low);
+    let queued = Signal::new();
+    join(
+        sample(&board, &queued, beat_led),
+        link::send(&board, &queued, tx),
+    )
+    .await;
+}
+
+/// Take a sample at every deadline, log what happened, wake the sender
+/// when there is something to send.
+async fn sample(
+    board: &RefCell<Front>,
+    queued: &Signal<NoopRawMutex, ()>,
+    mut beat_led: Output<'static>,
+) -> ! {
+    board.borrow_mut().start(Instant::now().as_ticks());
+    loop {
+        let at = board.borrow().deadline();
+        // The timer paces: deadlines come from the schedule, not from the
+        // time this loop takes.
+        Timer::at(Instant::from_ticks(at)).await;
+        let report = board.borrow_mut().tick(Instant::now().as_ticks());
+        if let Some(due) = report.due.filter(|d| d.missed > 0) {
+            defmt::warn!(
+                "{} sample ticks missed before sample {}",
+                due.missed,
+                due.index
+            );
+        }
+        if let Some(c) = report.drive {
+            defmt::info!("LED drive {} -> {} (DC level {})", c.from, c.to, c.dc_level);
+        }
+        if let Some(s) = report.state {
+            defmt::info!("signal {} -> {}", s.previous, s.state);
+        }
+        if let Some(b) = report.beat {
+            beat_led.toggle();
+            defmt::debug!(
+                "beat at {}: {} bpm, flags {}",
+                b.peak_index,
+                b.hr_bpm,
+                b.flags
+            );
+        }
+        if !board.borrow().queue().is_empty() {
+            queued.signal(());
+        }
+    }
+}
+
+/// A version component ("0" to "255") as a number, at compile time.
+const fn version_part(s: &str) -> u8 {
+    let b = s.as_bytes();
+    let mut i = 0;
+    let mut v: u32 = 0;
+    while i < b.len() {
+        assert!(b[i].is_ascii_digit(), "version parts are numbers");
+        v = v * 10 + (b[i] - b'0') as u32;
+        i += 1;
+    }
+    assert!(v <= 255, "version parts fit in a byte");
+    v as u8
+}

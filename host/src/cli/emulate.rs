@@ -1,0 +1,274 @@
+//! `plethwire emulate`: run a recording through the firmware on the
+//! emulated board, show its beat stream as it arrives, and check it
+//! against the host's replay.
+
+use clap::Args;
+use std::io::Write;
+use std::path::PathBuf;
+
+use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, SignalState, StateEvent};
+use plethwire_dsp::wire::{Frame, Message};
+
+use super::pipeline_opts::PipelineOpts;
+use super::Failure;
+use crate::emulate::{compare, find_elf, find_qemu, Emulation, Link, PerfReport, Session};
+use crate::replay::{load, replay, write_beat_annotations, Summary, DEFAULT_ANNOTATOR};
+
+const EXAMPLES: &str = "\
+Examples:
+  plethwire emulate ../shared/data/capnobase/cb0009 --out /tmp/beats
+  plethwire emulate ../shared/data/bidmc/bidmc01 --uart --seconds 60
+  plethwire emulate ../shared/data/bidmc/bidmc01 --count-instructions --quiet
+
+Runs the firmware (firmware/emulated, built with `cd firmware && cargo build
+--release`) in QEMU's mps2-an386 board, prints each beat and state change it
+sends, writes <record>.<annotator> (WFDB annotations, as `plethwire replay`)
+in --out (default: beside the record), and checks every event against the
+host's replay bit for bit. Exit status: 0 done and identical, 1 the board,
+QEMU or the files failed or the events differ, 2 the command line could not
+be understood.";
+
+/// Options of `plethwire emulate`.
+#[derive(Args, Debug, Clone, PartialEq)]
+#[command(after_help = EXAMPLES)]
+pub struct EmulateArgs {
+    /// WFDB record (dir/name or dir/name.hea) or CSV file.
+    #[arg(value_name = "RECORD")]
+    pub record: PathBuf,
+
+    /// Folder for the annotation file [default: the record's folder].
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+
+    /// Annotator name: the output file's extension.
+    #[arg(long, value_name = "NAME", default_value = DEFAULT_ANNOTATOR)]
+    pub annotator: String,
+
+    /// Send the samples over the emulated UART (about 10 kB/s) instead of
+    /// semihosting files.
+    #[arg(long)]
+    pub uart: bool,
+
+    /// The emulated firmware's ELF [default: firmware/target/thumbv7em-none-eabihf/release/plethwire-emulated].
+    #[arg(long, value_name = "PATH")]
+    pub elf: Option<PathBuf>,
+
+    /// Only the first S seconds of the recording.
+    #[arg(long, value_name = "S", value_parser = parse_seconds)]
+    pub seconds: Option<f64>,
+
+    /// Count the pipeline's instructions per sample on the board (QEMU
+    /// with -icount; not with --uart).
+    #[arg(long, conflicts_with = "uart")]
+    pub count_instructions: bool,
+
+    /// Print only the summary, not every beat.
+    #[arg(long)]
+    pub quiet: bool,
+
+    /// Signal source and pipeline settings.
+    #[command(flatten)]
+    pub pipeline: PipelineOpts,
+}
+
+fn parse_seconds(s: &str) -> Result<f64, String> {
+    match s.parse::<f64>() {
+        Ok(v) if v.is_finite() && v > 0.0 => Ok(v),
+        _ => Err(format!("'{s}' is not a positive number of seconds")),
+    }
+}
+
+/// Flag names, in bit order.
+const FLAG_NAMES: [(u8, &str); 5] = [
+    (BeatFlags::NO_INTERVAL, "no-interval"),
+    (BeatFlags::IMPLAUSIBLE_INTERVAL, "implausible"),
+    (BeatFlags::CLIPPED, "clipped"),
+    (BeatFlags::LOW_CORRELATION, "low-correlation"),
+    (BeatFlags::INPUT_REJECTED, "replaced-input"),
+];
+
+fn state_name(s: SignalState) -> &'static str {
+    match s {
+        SignalState::Acquiring => "acquiring",
+        SignalState::Good => "good",
+        SignalState::NoSignal => "no-signal",
+        SignalState::Saturated => "saturated",
+        SignalState::Noisy => "noisy",
+    }
+}
+
+/// One line for a beat: peak time, interval, heart rates, quality, flags.
+fn beat_line(b: &BeatEvent, fs: f64) -> String {
+    let num = |v: Option<f32>, unit: &str| {
+        v.map_or(format!("{:>10}", "-"), |v| format!("{v:>6.1} {unit:<3}"))
+    };
+    let flags: Vec<&str> = FLAG_NAMES
+        .iter()
+        .filter(|(bit, _)| b.flags.has(*bit))
+        .map(|(_, name)| *name)
+        .collect();
+    let verdict = if b.flags.is_good() { "good" } else { "bad" };
+    let flags = if flags.is_empty() {
+        verdict.to_string()
+    } else {
+        format!("{verdict} {}", flags.join(","))
+    };
+    format!(
+        "{:>9.3} s  beat   ibi {}  hr {}  smoothed {}  q {:.2}  {flags}\n",
+        b.peak_index as f64 / fs,
+        num(b.ibi_ms, "ms"),
+        num(b.hr_bpm, "bpm"),
+        num(b.hr_smoothed_bpm, "bpm"),
+        b.quality
+    )
+}
+
+fn state_line(s: &StateEvent, fs: f64) -> String {
+    format!(
+        "{:>9.3} s  state  {} -> {}\n",
+        s.at as f64 / fs,
+        state_name(s.previous),
+        state_name(s.state)
+    )
+}
+
+impl EmulateArgs {
+    /// Run the command.
+    pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
+        super::replay::check_annotator(&self.annotator)?;
+        // The cheap checks first: no point loading 8 minutes of samples
+        // for a board that is not there.
+        let elf = find_elf(self.elf.as_deref()).map_err(Failure::refused)?;
+        let qemu = find_qemu().map_err(Failure::refused)?;
+        let rec = load(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
+        let fs = rec.signal.fs;
+        let config = self.pipeline.config(fs);
+        let n = match self.seconds {
+            Some(s) => ((s * fs).round() as usize).clamp(1, rec.signal.samples.len()),
+            None => rec.signal.samples.len(),
+        };
+        let samples = &rec.signal.samples[..n];
+        let link = if self.uart { Link::Uart } else { Link::File };
+        let emulation = Emulation {
+            qemu,
+            elf,
+            link,
+            count_instructions: self.count_instructions,
+            timeout: None,
+        };
+        let head = format!(
+            "{}: {:.1} s of {} at {fs} Hz on the emulated board ({})\n",
+            rec.name,
+            n as f64 / fs,
+            rec.signal.name,
+            if self.uart {
+                "UART"
+            } else {
+                "semihosting files"
+            }
+        );
+        out.write_all(head.as_bytes()).map_err(Failure::output)?;
+        let mut failed_output = None;
+        let mut show = |f: &Frame| {
+            let line = match &f.message {
+                Message::Beat(b) if !self.quiet => beat_line(b, fs),
+                Message::State(s) if !self.quiet => state_line(s, fs),
+                _ => return,
+            };
+            if failed_output.is_none() {
+                failed_output = out
+                    .write_all(line.as_bytes())
+                    .and_then(|_| out.flush())
+                    .err();
+            }
+        };
+        let session = emulation
+            .run(samples, config, &mut show)
+            .map_err(|e| Failure::refused(format!("{}: {e}", self.record.display())))?;
+        if let Some(e) = failed_output {
+            return Err(Failure::output(e));
+        }
+        session.verify().map_err(Failure::refused)?;
+        let host = replay(samples, config).map_err(|e| {
+            Failure::refused(format!(
+                "{}: cannot run the pipeline: {e}",
+                self.record.display()
+            ))
+        })?;
+        let board = session.to_replay();
+        let dir = match &self.out {
+            Some(d) => d.clone(),
+            None => rec
+                .path
+                .parent()
+                .map(|p| p.to_path_buf())
+                .unwrap_or_else(|| PathBuf::from(".")),
+        };
+        std::fs::create_dir_all(&dir).map_err(|e| {
+            Failure::refused(format!("{}: cannot create the folder: {e}", dir.display()))
+        })?;
+        let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &board)
+            .map_err(Failure::refused)?;
+        let agreement = compare(&board.beats, &board.states, &host);
+        let text = summary(&session, &board.summary(), agreement.as_ref().ok(), &ann);
+        out.write_all(text.as_bytes()).map_err(Failure::output)?;
+        agreement.map(|_| ()).map_err(|e| {
+            Failure::refused(format!(
+                "the board's events differ from the host replay: {e}"
+            ))
+        })
+    }
+}
+
+fn summary(
+    session: &Session,
+    s: &Summary,
+    agreement: Option<&crate::emulate::Agreement>,
+    ann: &std::path::Path,
+) -> String {
+    let st = &session.stats;
+    let mut t = format!(
+        "  frames      {} decoded, {} damaged, {} lost\n",
+        st.frames, st.damaged, st.lost_frames
+    );
+    t += &format!(
+        "  beats       {} ({} good, {:.1} %)\n",
+        s.beats,
+        s.good_beats,
+        100.0 * s.good_share
+    );
+    t += &match &s.heart_rate_bpm {
+        Some(h) => format!(
+            "  heart rate  mean {:.1} bpm, min {:.1}, max {:.1}\n",
+            h.mean, h.min, h.max
+        ),
+        None => "  heart rate  none (no good beats)\n".into(),
+    };
+    t += &format!(
+        "  input       {} samples replaced (not a number), {} at the rails\n",
+        s.rejected_samples, s.clipped_samples
+    );
+    if let Some(a) = agreement {
+        t += &format!(
+            "  host replay identical, bit for bit: {} beats, {} state change{}\n",
+            a.beats,
+            a.states,
+            if a.states == 1 { "" } else { "s" }
+        );
+    }
+    if let Some(p) = &session.perf {
+        t += &perf_line(p);
+    }
+    t += &format!("  wrote       {}\n", ann.display());
+    t
+}
+
+fn perf_line(p: &PerfReport) -> String {
+    format!(
+        "  cost        {:.1} instructions per sample ({} over {} samples; dearest sample about {})\n",
+        p.instructions_per_sample,
+        p.instructions,
+        p.samples,
+        p.max_instructions()
+    )
+}

@@ -1,0 +1,366 @@
+//! `plethwire frontend`: the analog front end's budget from a circuit file,
+//! options, or both.
+
+use clap::{Args, ValueEnum};
+use std::io::Write;
+use std::path::PathBuf;
+
+use super::Failure;
+use crate::frontend::{
+    human_report, parse_value, write_svg, DetectorDraft, DetectorKind, Draft, Farads,
+    FrontendError, FrontendReport, Kind, LedDraft, LoadAt, Ohms, Resistors, StageDraft, CAUTIONS,
+};
+
+const EXAMPLES: &str = "\
+Examples:
+  plethwire frontend examples/frontend-fingerclip.toml
+  plethwire frontend examples/frontend-fingerclip.toml --pulse-ua 0.2 --rate 100 --json
+  plethwire frontend --supply 5 --led-vf 1.7 --led-r 470 --led-parallel 3 --led-rated-ma 50 \\
+      --tia 10k --tia-cf 1u --stage highpass,r=1M,c=1u --stage inverting,rin=1k,rf=47k \\
+      --pulse-ua 1 --no-plot
+
+Stages (--stage, or [[stage]] in the file) run in the order given:
+  highpass,r=R,c=C    lowpass,r=R,c=C    buffer
+  inverting,rin=R,rf=R[,cf=C][,cin=C]    noninverting,rin=R,rf=R[,cf=C][,cin=C]
+Values take SI prefixes: 470, 4.7k, 4k7, 22u, 100n.
+
+Sample rate: at least 10 × the chain's highest analog corner and at least
+25 Hz, rounded up to 25, 50, 100, 200, 250, 500, 1000 Hz and so on (or
+--rate). Digital band-pass: Butterworth order 2, 0.3 Hz to 8 Hz (at most
+0.4 × the rate), printed as the plethwire filter command that designs it.
+
+The circuit file is TOML with the tables [led] (supply_v, forward_v,
+resistor = one value or a list in parallel, parallel, rated_ma), [detector]
+(kind = \"photodiode\" with feedback, feedback_cap; or \"phototransistor\"
+with load, load_cap, load_at = \"emitter\" or \"collector\"), [[stage]]
+(kind and the keys above), [adc] (bits, reference_v, bias_v, rate_hz),
+[pulse] (change_ua, dc_ua) and [rails] (low_v, high_v); see
+examples/frontend-fingerclip.toml. Options override the file's values;
+--stage, --tia and --phototransistor replace its stages or detector.
+
+Exit status: 0 done, 1 the circuit file could not be read or was refused,
+the LED cannot light, or the plot could not be written, 2 the command line
+could not be understood or does not describe a whole circuit.
+
+Cautions:
+  - ";
+
+/// Options of `plethwire frontend`.
+#[derive(Args, Debug, Clone, PartialEq)]
+#[command(after_help = after_help())]
+pub struct FrontendArgs {
+    /// Circuit file (TOML).
+    #[arg(value_name = "CIRCUIT.toml")]
+    pub circuit: Option<PathBuf>,
+
+    /// A title for the report and the plot.
+    #[arg(long, value_name = "TEXT")]
+    pub name: Option<String>,
+
+    /// LED supply voltage, V.
+    #[arg(long, value_name = "V", value_parser = positive, allow_negative_numbers = true)]
+    pub supply: Option<f64>,
+
+    /// LED forward voltage at its working current, V.
+    #[arg(long, value_name = "V", value_parser = positive, allow_negative_numbers = true)]
+    pub led_vf: Option<f64>,
+
+    /// LED series resistor; several, comma-separated, are in parallel.
+    #[arg(
+        long,
+        value_name = "OHMS[,OHMS...]",
+        value_delimiter = ',',
+        value_parser = ohms,
+        allow_negative_numbers = true
+    )]
+    pub led_r: Option<Vec<f64>>,
+
+    /// How many of the one --led-r resistor are in parallel.
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
+    pub led_parallel: Option<u32>,
+
+    /// The LED's rated continuous current, mA; a higher current warns.
+    #[arg(long, value_name = "MA", value_parser = positive, allow_negative_numbers = true)]
+    pub led_rated_ma: Option<f64>,
+
+    /// Detector: a photodiode into a transimpedance amplifier with this
+    /// feedback resistor.
+    #[arg(long, value_name = "RF", value_parser = ohms, conflicts_with = "phototransistor", allow_negative_numbers = true)]
+    pub tia: Option<f64>,
+
+    /// Capacitor across the transimpedance feedback resistor.
+    #[arg(long, value_name = "CF", value_parser = farads, requires = "tia", allow_negative_numbers = true)]
+    pub tia_cf: Option<f64>,
+
+    /// Detector: a phototransistor with this load resistor.
+    #[arg(long, value_name = "RLOAD", value_parser = ohms, allow_negative_numbers = true)]
+    pub phototransistor: Option<f64>,
+
+    /// Where the phototransistor's load sits [default: emitter].
+    #[arg(long, value_name = "WHERE", requires = "phototransistor")]
+    pub load_at: Option<LoadAtArg>,
+
+    /// Capacitor across the phototransistor's load.
+    #[arg(long, value_name = "C", value_parser = farads, requires = "phototransistor", allow_negative_numbers = true)]
+    pub load_cap: Option<f64>,
+
+    /// A stage after the detector, KIND[,KEY=VALUE...]; repeat in signal order.
+    #[arg(long = "stage", value_name = "KIND[,KEY=VALUE...]", value_parser = stage)]
+    pub stages: Vec<StageDraft>,
+
+    /// ADC resolution, bits [default: 12].
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..=32))]
+    pub adc_bits: Option<u32>,
+
+    /// ADC reference voltage (input range 0 to this), V [default: 3.3].
+    #[arg(long, value_name = "V", value_parser = positive, allow_negative_numbers = true)]
+    pub adc_ref: Option<f64>,
+
+    /// DC level of the signal at the ADC input, V [default: half the reference].
+    #[arg(long, value_name = "V", value_parser = finite, allow_negative_numbers = true)]
+    pub bias: Option<f64>,
+
+    /// Sample rate to use, Hz [default: the recommended one].
+    #[arg(long, value_name = "HZ", value_parser = positive, allow_negative_numbers = true)]
+    pub rate: Option<f64>,
+
+    /// Amplifier supply rails, V [default: 0 to the LED supply].
+    #[arg(long, value_name = "LOW:HIGH", value_parser = rails, allow_negative_numbers = true)]
+    pub rails: Option<(f64, f64)>,
+
+    /// Photocurrent change of one pulse, µA peak to peak.
+    #[arg(long, value_name = "UA", value_parser = positive, allow_negative_numbers = true)]
+    pub pulse_ua: Option<f64>,
+
+    /// Steady photocurrent, µA (shifts the output where the chain passes DC).
+    #[arg(long, value_name = "UA", value_parser = non_negative, allow_negative_numbers = true)]
+    pub dc_ua: Option<f64>,
+
+    /// Where to write the SVG Bode plot.
+    #[arg(long, value_name = "PATH", default_value = "plethwire-frontend.svg")]
+    pub plot: PathBuf,
+
+    /// Do not write a plot.
+    #[arg(long, conflicts_with = "plot")]
+    pub no_plot: bool,
+
+    /// Print one JSON document instead of the text report.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// `--load-at` values.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum LoadAtArg {
+    /// Load between emitter and ground: output rises with light.
+    Emitter,
+    /// Load between supply and collector: output falls with light.
+    Collector,
+}
+
+fn after_help() -> String {
+    format!("{EXAMPLES}{}", CAUTIONS.join("\n  - "))
+}
+
+fn number(text: &str) -> Result<f64, String> {
+    match text.trim().parse::<f64>() {
+        Ok(v) if v.is_finite() => Ok(v),
+        _ => Err("expected a number, such as 5 or 1.7".to_owned()),
+    }
+}
+
+fn positive(text: &str) -> Result<f64, String> {
+    let v = number(text)?;
+    if v > 0.0 {
+        Ok(v)
+    } else {
+        Err(format!("must be above 0, not {v}"))
+    }
+}
+
+fn non_negative(text: &str) -> Result<f64, String> {
+    let v = number(text)?;
+    if v >= 0.0 {
+        Ok(v)
+    } else {
+        Err(format!("must be 0 or more, not {v}"))
+    }
+}
+
+fn finite(text: &str) -> Result<f64, String> {
+    number(text)
+}
+
+fn ohms(text: &str) -> Result<f64, String> {
+    parse_value(text, Kind::Resistance)
+}
+
+fn farads(text: &str) -> Result<f64, String> {
+    parse_value(text, Kind::Capacitance)
+}
+
+fn rails(text: &str) -> Result<(f64, f64), String> {
+    let (low, high) = text
+        .split_once(':')
+        .ok_or_else(|| "expected LOW:HIGH in volts, such as 0:3.3".to_owned())?;
+    let (low, high) = (number(low)?, number(high)?);
+    if low < high {
+        Ok((low, high))
+    } else {
+        Err(format!(
+            "the low rail ({low} V) must be below the high one ({high} V)"
+        ))
+    }
+}
+
+/// `KIND[,KEY=VALUE...]`, read through the circuit file's own rules by
+/// writing it as the TOML of one stage.
+fn stage(text: &str) -> Result<StageDraft, String> {
+    let mut parts = text.split(',');
+    let kind = parts.next().unwrap_or("").trim();
+    let plain = |s: &str| {
+        !s.is_empty()
+            && s.chars()
+                .all(|c| c.is_alphanumeric() || "._+-µ".contains(c))
+    };
+    if !plain(kind) {
+        return Err(format!(
+            "'{text}': expected KIND[,KEY=VALUE...], such as lowpass,r=47k,c=1u"
+        ));
+    }
+    let mut toml = format!("kind = \"{kind}\"\n");
+    for part in parts {
+        let (key, value) = part
+            .split_once('=')
+            .map(|(k, v)| (k.trim(), v.trim()))
+            .filter(|(k, v)| plain(k) && plain(v))
+            .ok_or_else(|| format!("'{part}': expected KEY=VALUE, such as r=47k"))?;
+        toml.push_str(&format!("{key} = \"{value}\"\n"));
+    }
+    let draft: StageDraft = toml::from_str(&toml).map_err(|e| e.message().trim().to_owned())?;
+    draft
+        .resolve()
+        .map(|_| draft)
+        .map_err(|e| format!("{kind} {e}"))
+}
+
+impl FrontendArgs {
+    /// What the options say about the circuit, to lay over the file's.
+    pub fn draft(&self) -> Result<Draft, Failure> {
+        if self.led_parallel.is_some() && self.led_r.as_ref().is_some_and(|r| r.len() > 1) {
+            return Err(Failure::usage(
+                "--led-parallel goes with one --led-r value; a list of resistors is already in parallel",
+            ));
+        }
+        let detector = match (self.tia, self.phototransistor) {
+            (Some(rf), _) => Some(DetectorDraft {
+                kind: DetectorKind::Photodiode,
+                feedback: Some(Ohms(rf)),
+                feedback_cap: self.tia_cf.map(Farads),
+                load: None,
+                load_cap: None,
+                load_at: None,
+            }),
+            (None, Some(load)) => Some(DetectorDraft {
+                kind: DetectorKind::Phototransistor,
+                feedback: None,
+                feedback_cap: None,
+                load: Some(Ohms(load)),
+                load_cap: self.load_cap.map(Farads),
+                load_at: self.load_at.map(|w| match w {
+                    LoadAtArg::Emitter => LoadAt::Emitter,
+                    LoadAtArg::Collector => LoadAt::Collector,
+                }),
+            }),
+            (None, None) => None,
+        };
+        let mut d = Draft {
+            name: self.name.clone(),
+            led: LedDraft {
+                supply_v: self.supply,
+                forward_v: self.led_vf,
+                resistor: self.led_r.clone().map(Resistors),
+                parallel: self.led_parallel,
+                rated_ma: self.led_rated_ma,
+            },
+            detector,
+            stages: self.stages.clone(),
+            ..Draft::default()
+        };
+        d.adc.bits = self.adc_bits;
+        d.adc.reference_v = self.adc_ref;
+        d.adc.bias_v = self.bias;
+        d.adc.rate_hz = self.rate;
+        d.pulse.change_ua = self.pulse_ua;
+        d.pulse.dc_ua = self.dc_ua;
+        d.rails.low_v = self.rails.map(|r| r.0);
+        d.rails.high_v = self.rails.map(|r| r.1);
+        Ok(d)
+    }
+
+    /// Read the file (if any), lay the options over it, build the report,
+    /// write the plot (unless `--no-plot`) and print to `out`.
+    pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
+        let base = match &self.circuit {
+            Some(path) => Draft::load(path).map_err(Failure::refused)?,
+            None => Draft::default(),
+        };
+        let from_file = self.circuit.is_some();
+        let circuit = base
+            .overlaid(self.draft()?)
+            .resolve()
+            .map_err(|e| match e {
+                // Incomplete or inconsistent: the file's fault if there is one.
+                FrontendError::Missing { .. } | FrontendError::Invalid { .. } if !from_file => {
+                    Failure::usage(e)
+                }
+                other => Failure::refused(other),
+            })?;
+        let mut report = FrontendReport::build(&circuit).map_err(Failure::refused)?;
+        if !self.no_plot {
+            write_svg(&report, &self.plot).map_err(Failure::refused)?;
+            report.plot = Some(self.plot.display().to_string());
+        }
+        let text = if self.json {
+            let mut doc = serde_json::to_string_pretty(&report)
+                .map_err(|e| Failure::refused(format!("cannot render the report as JSON: {e}")))?;
+            doc.push('\n');
+            doc
+        } else {
+            human_report(&report)
+        };
+        out.write_all(text.as_bytes()).map_err(Failure::output)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn stage_options_read_like_the_file() {
+        let s = stage("inverting,rin=1k,rf=470k,cf=100n").unwrap();
+        assert_eq!(s.rin, Some(Ohms(1e3)));
+        assert_eq!(s.rf, Some(Ohms(470e3)));
+        assert!(s.cf.is_some_and(|c| (c.0 - 100e-9).abs() < 1e-20));
+        assert!(stage("buffer").is_ok());
+        let e = stage("lowpass,r=47k").unwrap_err();
+        assert_eq!(e, "lowpass missing c");
+        let e = stage("lowpass,r=47k,c=1u,rf=1k").unwrap_err();
+        assert_eq!(e, "lowpass does not take rf (it takes r, c)");
+        let e = stage("lowpass,r=-47k,c=1u").unwrap_err();
+        assert!(e.contains("above 0"), "{e}");
+        let e = stage("bandpass,r=1k").unwrap_err();
+        assert!(e.contains("unknown variant `bandpass`"), "{e}");
+        assert!(stage("lowpass,r=\"1k\"").is_err());
+        assert!(stage("lowpass,r").is_err());
+    }
+
+    #[test]
+    fn rails_must_be_ordered() {
+        assert_eq!(rails("0:3.3"), Ok((0.0, 3.3)));
+        assert_eq!(rails("-2.5:2.5"), Ok((-2.5, 2.5)));
+        assert!(rails("3.3:0").is_err());
+        assert!(rails("3.3").is_err());
+    }
+}

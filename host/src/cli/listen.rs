@@ -1,0 +1,236 @@
+//! `plethwire listen`: show and record what a board sends over a serial
+//! port. The work is in [`crate::listen`]; this is options and wiring.
+
+use clap::Args;
+use std::io::{self, IsTerminal, Write};
+use std::path::PathBuf;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Once;
+use std::time::{Duration, SystemTime};
+
+use super::Failure;
+use crate::listen::{
+    record_name, run, session_files, Ending, Event, ListenError, NeverCause, Recorder, Screen,
+    SerialConnector, Session, Settings, Setup, Sink, Summary,
+};
+use crate::replay::DEFAULT_ANNOTATOR;
+
+const EXAMPLES: &str = "\
+Cautions: plethwire is not a medical device and not for diagnosis. While
+someone is wired to the sensor, power it from a battery or connect it
+through a USB isolator (IEC 60601-1 practice).
+
+Examples:
+  plethwire listen --port /dev/ttyACM0
+  plethwire listen --port /dev/serial/by-id/usb-board --out recordings --name finger_rest
+  plethwire listen --port /dev/ttyUSB0 --baud 230400 --seconds 300 --json > session.jsonl
+
+Writes, in --out: NAME.pwire (WFDB annotations, symbol N at each beat's
+peak), NAME.hea/NAME.dat (format-16 WFDB record of the raw and filtered
+samples, when the board sends them) and NAME.session.json (summary). The
+files are finished on Ctrl-C, when --seconds are up, or when the port is
+gone for longer than --wait. Unplugging is survived: the same path is
+tried every 0.5 s and the recording goes on.
+Exit status: 0 recorded, 1 the port never opened or the files could not be
+written, 2 the command line could not be understood.";
+
+/// Options of `plethwire listen`.
+#[derive(Args, Debug, Clone, PartialEq)]
+#[command(after_help = EXAMPLES)]
+pub struct ListenArgs {
+    /// Serial port, e.g. /dev/ttyACM0 (a symlink such as /dev/serial/by-id/... is fine).
+    #[arg(long, value_name = "PATH")]
+    pub port: String,
+
+    /// Baud rate; 8 data bits, no parity, 1 stop bit.
+    #[arg(long, value_name = "N", default_value_t = 115_200,
+          value_parser = clap::value_parser!(u32).range(1..))]
+    pub baud: u32,
+
+    /// Folder for the recording (made if missing).
+    #[arg(long, value_name = "DIR", default_value = ".")]
+    pub out: PathBuf,
+
+    /// Record name: letters, digits, '_' [default: session_YYYYMMDD_HHMMSS, UTC].
+    #[arg(long, value_name = "NAME", value_parser = parse_name)]
+    pub name: Option<String>,
+
+    /// End the session after this many seconds.
+    #[arg(long, value_name = "S", value_parser = parse_positive, allow_negative_numbers = true)]
+    pub seconds: Option<f64>,
+
+    /// How long to keep trying the port, at the start and after it goes away.
+    #[arg(long, value_name = "S", default_value = "30", value_parser = parse_wait,
+          allow_negative_numbers = true)]
+    pub wait: f64,
+
+    /// Sample rate (Hz) to record at when the board's hello was missed.
+    #[arg(long, value_name = "HZ", value_parser = parse_positive, allow_negative_numbers = true)]
+    pub rate: Option<f64>,
+
+    /// Print JSON Lines (one object per event) instead of text.
+    #[arg(long)]
+    pub json: bool,
+}
+
+fn parse_name(s: &str) -> Result<String, String> {
+    let ok = !s.is_empty() && s.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
+    ok.then(|| s.to_string())
+        .ok_or_else(|| "a record name holds only letters, digits and '_'".into())
+}
+
+fn parse_positive(s: &str) -> Result<f64, String> {
+    match s.parse::<f64>() {
+        Ok(v) if v.is_finite() && v > 0.0 => Ok(v),
+        _ => Err("expected a number above 0".into()),
+    }
+}
+
+fn parse_wait(s: &str) -> Result<f64, String> {
+    match s.parse::<f64>() {
+        Ok(v) if v.is_finite() && v >= 0.0 => Ok(v),
+        _ => Err("expected a number of seconds, 0 or more".into()),
+    }
+}
+
+/// Set by Ctrl-C, SIGTERM or SIGHUP; the handler is installed once per
+/// process, the flag cleared by each session.
+static STOP: AtomicBool = AtomicBool::new(false);
+static HANDLER: Once = Once::new();
+
+fn install_stop_handler() -> Result<(), Failure> {
+    let mut result = Ok(());
+    HANDLER.call_once(|| {
+        result = ctrlc::set_handler(|| STOP.store(true, Ordering::SeqCst)).map_err(|e| {
+            Failure::refused(format!(
+                "cannot catch Ctrl-C, so files could not be finished: {e}"
+            ))
+        });
+    });
+    STOP.store(false, Ordering::SeqCst);
+    result
+}
+
+/// Colour only for a terminal that has not asked for none.
+fn want_colour(json: bool) -> bool {
+    !json
+        && io::stdout().is_terminal()
+        && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
+        && std::env::var("TERM").map_or(true, |t| t != "dumb")
+}
+
+/// Events to the recorder first, then the screen; remembers which failed.
+struct Tee<'a, 'b> {
+    recorder: &'a mut Recorder,
+    screen: &'a mut Screen<'b>,
+    screen_failed: bool,
+}
+
+impl Sink for Tee<'_, '_> {
+    fn event(&mut self, event: &Event) -> io::Result<()> {
+        self.recorder.event(event)?;
+        self.screen
+            .event(event)
+            .inspect_err(|_| self.screen_failed = true)
+    }
+}
+
+impl ListenArgs {
+    fn settings(&self) -> Settings {
+        Settings {
+            retry_every: Duration::from_millis(500),
+            give_up_after: Duration::from_secs_f64(self.wait),
+            duration: self.seconds.map(Duration::from_secs_f64),
+        }
+    }
+
+    /// Run the command.
+    pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
+        let started = SystemTime::now();
+        let name = self.name.clone().unwrap_or_else(|| record_name(started));
+        let dir = &self.out;
+        std::fs::create_dir_all(dir).map_err(|e| {
+            Failure::refused(format!("{}: cannot create the folder: {e}", dir.display()))
+        })?;
+        if let Some(f) = session_files(dir, &name, DEFAULT_ANNOTATOR)
+            .into_iter()
+            .find(|f| f.exists())
+        {
+            return Err(Failure::refused(format!(
+                "{} exists; choose another --name",
+                f.display()
+            )));
+        }
+        install_stop_handler()?;
+        let settings = self.settings();
+        let setup = Setup {
+            record: name.clone(),
+            port: self.port.clone(),
+            baud: self.baud,
+            started,
+        };
+        let mut screen = Screen::new(out, self.json, want_colour(self.json), &settings);
+        screen.start(&setup, dir).map_err(Failure::output)?;
+        let mut recorder = Recorder::new(dir, &name, DEFAULT_ANNOTATOR);
+        recorder.comment(&format!(
+            "plethwire listen on {} at {} baud; PLETH is raw, PLETH filtered the board's band-pass",
+            self.port, self.baud
+        ));
+        let mut session = Session::new(self.rate);
+        let mut connector = SerialConnector {
+            path: self.port.clone(),
+            baud: self.baud,
+        };
+        let mut tee = Tee {
+            recorder: &mut recorder,
+            screen: &mut screen,
+            screen_failed: false,
+        };
+        let result = run(&mut connector, &mut session, &mut tee, &settings, &STOP);
+        let screen_failed = tee.screen_failed;
+        let (ended_by, failure) = match result {
+            Ok(Ending::Stopped) => ("stopped", None),
+            Ok(Ending::TimeUp) => ("time_up", None),
+            Ok(Ending::PortGone) => ("port_gone", None),
+            Err(ListenError::Sink(e)) if screen_failed => ("failed", Some(Failure::output(e))),
+            Err(ListenError::Sink(e)) => (
+                "failed",
+                Some(Failure::refused(format!("cannot record: {e}"))),
+            ),
+            Err(e) => return Err(self.never_opened(e)),
+        };
+        let written = recorder
+            .finish()
+            .map_err(|e| Failure::refused(format!("cannot finish the recording: {e}")))?;
+        let summary = Summary::new(&setup, &session, ended_by, &written);
+        summary
+            .write(dir)
+            .map_err(|e| Failure::refused(e.to_string()))?;
+        if let Some(f) = failure {
+            return Err(f);
+        }
+        screen.end(&summary).map_err(Failure::output)
+    }
+
+    fn never_opened(&self, e: ListenError) -> Failure {
+        let port = &self.port;
+        Failure::refused(match e {
+            ListenError::Refused(e) => format!("cannot open {port} as a serial port: {e}"),
+            ListenError::NeverOpened {
+                waited,
+                cause: NeverCause::GaveUp(e),
+            } => format!(
+                "{port} did not appear within {:.1} s ({e}); nothing recorded",
+                waited.as_secs_f64()
+            ),
+            ListenError::NeverOpened {
+                cause: NeverCause::Ended(Ending::TimeUp),
+                ..
+            } => format!("{port} did not appear before --seconds ran out; nothing recorded"),
+            ListenError::NeverOpened { .. } => {
+                format!("stopped before {port} could be opened; nothing recorded")
+            }
+            ListenError::Sink(e) => format!("cannot record: {e}"),
+        })
+    }
+}

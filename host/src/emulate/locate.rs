@@ -1,0 +1,166 @@
+//! Finding QEMU and the emulated firmware, and the QEMU command line.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+
+use super::EmulateError;
+
+/// The machine: QEMU's MPS2 AN386 board (Cortex-M4F), no display, no
+/// monitor, UART0 on standard input and output. The same as the runner in
+/// `firmware/.cargo/config.toml` up to `-semihosting-config` (a check in
+/// `tests/` holds the two together).
+pub const MACHINE_ARGS: &[&str] = &[
+    "-M",
+    "mps2-an386",
+    "-cpu",
+    "cortex-m4",
+    "-display",
+    "none",
+    "-monitor",
+    "none",
+    "-serial",
+    "stdio",
+];
+
+/// Semihosting on, with file access on the host (`-semihosting-config`);
+/// the firmware's command line is appended as `,arg=...`.
+pub const SEMIHOSTING: &str = "enable=on,target=native";
+
+/// Makes SysTick count instructions: 1 ns of virtual time per instruction.
+pub const ICOUNT_ARGS: &[&str] = &["-icount", "shift=0"];
+
+/// The first word of the firmware's command line for its run modes.
+pub const FIRMWARE_PROGRAM: &str = "plethwire-emulated";
+
+/// Where `cargo build --release` in `firmware/` puts the ELF, below the
+/// repository root.
+pub const FIRMWARE_ELF: &str = "firmware/target/thumbv7em-none-eabihf/release/plethwire-emulated";
+
+/// How to build the firmware, for messages.
+pub const BUILD_HINT: &str = "build it with `cd firmware && cargo build --release`";
+
+/// The QEMU arguments for `elf` with the firmware command line `args`
+/// (each becomes `arg=...`), with or without instruction counting.
+pub fn qemu_args(elf: &Path, args: &[&str], count_instructions: bool) -> Vec<String> {
+    let mut v: Vec<String> = MACHINE_ARGS.iter().map(|s| s.to_string()).collect();
+    if count_instructions {
+        v.extend(ICOUNT_ARGS.iter().map(|s| s.to_string()));
+    }
+    let mut semihosting = SEMIHOSTING.to_owned();
+    for a in std::iter::once(FIRMWARE_PROGRAM).chain(args.iter().copied()) {
+        // QEMU splits options at commas (",," escapes one) and the firmware
+        // splits its command line at spaces; our words have neither.
+        debug_assert!(!a.contains([',', ' ']), "{a}");
+        semihosting.push_str(",arg=");
+        semihosting.push_str(a);
+    }
+    v.push("-semihosting-config".into());
+    v.push(semihosting);
+    v.push("-kernel".into());
+    v.push(elf.display().to_string());
+    v
+}
+
+/// `qemu-system-arm`: `PLETHWIRE_QEMU` if set, else the first on `PATH`;
+/// it must answer `--version`.
+pub fn find_qemu() -> Result<PathBuf, EmulateError> {
+    let exe = match std::env::var_os("PLETHWIRE_QEMU") {
+        Some(p) => Some(PathBuf::from(p)),
+        None => std::env::var_os("PATH").and_then(|path| {
+            std::env::split_paths(&path)
+                .map(|dir| dir.join("qemu-system-arm"))
+                .find(|c| c.is_file())
+        }),
+    };
+    let runs = |exe: &Path| {
+        Command::new(exe)
+            .arg("--version")
+            .stdin(Stdio::null())
+            .stdout(Stdio::null())
+            .stderr(Stdio::null())
+            .status()
+            .is_ok_and(|s| s.success())
+    };
+    match exe {
+        Some(exe) if runs(&exe) => Ok(exe),
+        _ => Err(EmulateError::NoQemu),
+    }
+}
+
+/// The repository roots to look in: the one this crate was built in, then
+/// any folder above the running program that holds `firmware/Cargo.toml`.
+fn repo_roots() -> Vec<PathBuf> {
+    let mut roots = vec![Path::new(env!("CARGO_MANIFEST_DIR")).join("..")];
+    if let Ok(exe) = std::env::current_exe() {
+        roots.extend(
+            exe.ancestors()
+                .filter(|d| d.join("firmware/Cargo.toml").is_file())
+                .map(Path::to_path_buf),
+        );
+    }
+    roots
+}
+
+/// The emulated firmware's ELF: `explicit` if given (it must exist), else
+/// [`FIRMWARE_ELF`] below the repository root.
+pub fn find_elf(explicit: Option<&Path>) -> Result<PathBuf, EmulateError> {
+    let found = match explicit {
+        Some(p) if p.is_file() => p.to_path_buf(),
+        Some(p) => return Err(EmulateError::NoElf(p.to_path_buf())),
+        None => {
+            let roots = repo_roots();
+            roots
+                .iter()
+                .map(|r| r.join(FIRMWARE_ELF))
+                .find(|p| p.is_file())
+                .ok_or_else(|| EmulateError::NoElf(roots[0].join(FIRMWARE_ELF)))?
+        }
+    };
+    // QEMU loads anything as a raw image and locks up; say so instead.
+    let mut magic = [0u8; 4];
+    let is_elf = std::fs::File::open(&found)
+        .and_then(|mut f| std::io::Read::read_exact(&mut f, &mut magic))
+        .is_ok()
+        && magic == *b"\x7fELF";
+    if !is_elf {
+        return Err(EmulateError::Io(format!(
+            "{} is not an ELF file; {BUILD_HINT}",
+            found.display()
+        )));
+    }
+    Ok(found)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_command_line_reaches_the_firmware_as_semihosting_args() {
+        let v = qemu_args(Path::new("/x/fw.elf"), &["stream", "a.bin", "b.bin"], false);
+        let at = v.iter().position(|a| a == "-semihosting-config").unwrap();
+        assert_eq!(
+            v[at + 1],
+            "enable=on,target=native,arg=plethwire-emulated,arg=stream,arg=a.bin,arg=b.bin"
+        );
+        assert_eq!(&v[v.len() - 2..], ["-kernel", "/x/fw.elf"]);
+        assert!(!v.iter().any(|a| a == "-icount"));
+        let counted = qemu_args(Path::new("fw"), &["perf"], true);
+        let i = counted.iter().position(|a| a == "-icount").unwrap();
+        assert_eq!(counted[i + 1], "shift=0");
+    }
+
+    #[test]
+    fn a_missing_elf_is_named_with_how_to_build_it() {
+        let e = find_elf(Some(Path::new("/no/such/firmware.elf"))).unwrap_err();
+        let text = e.to_string();
+        assert!(text.contains("/no/such/firmware.elf") && text.contains("cargo build"));
+        assert!(!text.contains('\n'));
+        let not_elf = find_elf(Some(
+            Path::new(env!("CARGO_MANIFEST_DIR"))
+                .join("Cargo.toml")
+                .as_path(),
+        ));
+        assert!(not_elf.unwrap_err().to_string().contains("not an ELF file"));
+    }
+}

@@ -1,0 +1,130 @@
+//! Running a recording through the firmware on QEMU's emulated Cortex-M4F
+//! board, and reading back what it sent.
+//!
+//! The host writes a samples feed ([`plethwire_dsp::feed`]: header with the
+//! pipeline's `Config`, then `f32` samples), starts QEMU on the emulated
+//! firmware (`firmware/emulated`), and decodes the wire frames it sends
+//! back: a hello, the beats and state changes, a final status. Two links:
+//!
+//! * [`Link::File`]: feed and frames are semihosting files in a temporary
+//!   folder; fast, for whole recordings. It can also count the pipeline's
+//!   instructions ([`Emulation::count_instructions`]).
+//! * [`Link::Uart`]: the feed goes into QEMU's standard input, which is
+//!   UART0's receive line, and the frames come out of its standard output,
+//!   as they would from a real board's serial port (about 10 kB/s).
+//!
+//! [`compare`] then checks the board's events against
+//! [`crate::replay::replay`] bit for bit.
+
+mod compare;
+mod locate;
+mod perf;
+mod run;
+mod session;
+
+pub use compare::{beat_difference, compare, Agreement};
+pub use locate::{
+    find_elf, find_qemu, qemu_args, BUILD_HINT, FIRMWARE_ELF, FIRMWARE_PROGRAM, ICOUNT_ARGS,
+    MACHINE_ARGS, SEMIHOSTING,
+};
+pub use perf::{parse as parse_perf, PerfReport};
+pub use session::Session;
+
+use std::fmt;
+use std::path::PathBuf;
+use std::time::Duration;
+
+use plethwire_dsp::feed::FeedHeader;
+use plethwire_dsp::pipeline::Config;
+use plethwire_dsp::wire::Frame;
+
+/// How samples reach the board and frames come back.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Link {
+    /// Semihosting files.
+    File,
+    /// UART0 on QEMU's standard input and output.
+    Uart,
+}
+
+/// One run to make.
+#[derive(Debug, Clone)]
+pub struct Emulation {
+    /// `qemu-system-arm` ([`find_qemu`]).
+    pub qemu: PathBuf,
+    /// The emulated firmware's ELF ([`find_elf`]).
+    pub elf: PathBuf,
+    /// The link.
+    pub link: Link,
+    /// Count the pipeline's instructions (file link only; runs QEMU with
+    /// `-icount shift=0`).
+    pub count_instructions: bool,
+    /// Kill QEMU and fail after this long; `None` waits for ever.
+    pub timeout: Option<Duration>,
+}
+
+/// Why a run failed; one line.
+#[derive(Debug)]
+pub enum EmulateError {
+    /// No usable `qemu-system-arm`.
+    NoQemu,
+    /// No firmware ELF at this path.
+    NoElf(PathBuf),
+    /// Instruction counting was asked for over the UART.
+    CountingNeedsFiles,
+    /// A host-side operation failed.
+    Io(String),
+    /// The board exited with a failure; its last words on standard error.
+    Board(String),
+    /// The run took longer than its timeout.
+    Timeout(Duration),
+    /// The perf report is unreadable.
+    Perf(String),
+}
+
+impl fmt::Display for EmulateError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Self::NoQemu => f.write_str(
+                "qemu-system-arm not found: install it (Debian/Ubuntu: `apt-get install qemu-system-arm`) or set PLETHWIRE_QEMU",
+            ),
+            Self::NoElf(p) => write!(f, "no emulated firmware at {}; {BUILD_HINT}, or pass --elf PATH", p.display()),
+            Self::CountingNeedsFiles => f.write_str("instruction counting works over semihosting files, not the UART"),
+            Self::Io(e) => f.write_str(e),
+            Self::Board(e) => write!(f, "the emulated board failed: {e}"),
+            Self::Timeout(t) => write!(f, "the emulated board did not finish within {} s and was stopped", t.as_secs()),
+            Self::Perf(e) => f.write_str(e),
+        }
+    }
+}
+
+impl std::error::Error for EmulateError {}
+
+impl Emulation {
+    /// Feed `samples` (taken as `f32`, as [`crate::replay::replay`] does)
+    /// with `config` to the board, hand every frame to `on_frame` as it
+    /// arrives, and return the session once the board has finished.
+    pub fn run(
+        &self,
+        samples: &[f64],
+        config: Config,
+        on_frame: &mut dyn FnMut(&Frame),
+    ) -> Result<Session, EmulateError> {
+        if self.count_instructions && self.link == Link::Uart {
+            return Err(EmulateError::CountingNeedsFiles);
+        }
+        let header = FeedHeader {
+            config,
+            samples: samples.len() as u64,
+        };
+        let mut feed = Vec::with_capacity(header.feed_len() as usize);
+        feed.extend_from_slice(&header.encode());
+        for &x in samples {
+            feed.extend_from_slice(&(x as f32).to_le_bytes());
+        }
+        match self.link {
+            Link::File => run::over_files(self, &feed, header.samples, on_frame),
+            Link::Uart => run::over_uart(self, feed, header.samples, on_frame),
+        }
+    }
+}

@@ -1,0 +1,277 @@
+//! A circuit as far as it has been described: what the circuit file (TOML)
+//! and the command-line options give, each value optional, merged and then
+//! checked into a [`Circuit`]. The file's keys are the field names here;
+//! see `examples/frontend-fingerclip.toml`.
+
+use serde::Deserialize;
+use std::path::Path;
+
+use super::circuit::{Adc, Circuit, LedDrive, Pulse, Rails};
+use super::FrontendError;
+
+mod parts;
+
+use parts::kind_name;
+pub use parts::{
+    AdcDraft, DetectorDraft, DetectorKind, LedDraft, PulseDraft, RailsDraft, Resistors, StageDraft,
+    StageKind,
+};
+
+/// ADC resolution when none is given: the 12-bit ADC of the STM32F411, the
+/// board plethwire's firmware targets.
+pub const DEFAULT_ADC_BITS: u32 = 12;
+/// ADC reference when none is given, volts (the same board's supply).
+pub const DEFAULT_ADC_REFERENCE_V: f64 = 3.3;
+
+/// A whole circuit file, or what the options add to it.
+#[derive(Clone, Debug, Default, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct Draft {
+    /// A title for the report.
+    pub name: Option<String>,
+    /// `[led]`.
+    #[serde(default)]
+    pub led: LedDraft,
+    /// `[detector]`.
+    pub detector: Option<DetectorDraft>,
+    /// `[[stage]]`, in signal order.
+    #[serde(default, rename = "stage")]
+    pub stages: Vec<StageDraft>,
+    /// `[adc]`.
+    #[serde(default)]
+    pub adc: AdcDraft,
+    /// `[pulse]`.
+    #[serde(default)]
+    pub pulse: PulseDraft,
+    /// `[rails]`.
+    #[serde(default)]
+    pub rails: RailsDraft,
+}
+
+/// A TOML error as `line N (text): message`, on one line.
+fn toml_problem(source: &str, e: &toml::de::Error) -> (Option<usize>, String) {
+    let message = e.message().split_whitespace().collect::<Vec<_>>().join(" ");
+    let Some(span) = e.span() else {
+        return (None, message);
+    };
+    let start = span.start.min(source.len());
+    let line = source[..start].matches('\n').count() + 1;
+    let text = source.lines().nth(line - 1).unwrap_or("").trim();
+    let quoted = if !text.is_empty() && text.chars().count() <= 60 {
+        format!(" (`{text}`)")
+    } else {
+        String::new()
+    };
+    (Some(line), format!("line {line}{quoted}: {message}"))
+}
+
+impl Draft {
+    /// Read a circuit from TOML text; the error is one line.
+    pub fn from_toml(text: &str) -> Result<Self, String> {
+        toml::from_str(text).map_err(|e| toml_problem(text, &e).1)
+    }
+
+    /// Read a circuit file.
+    pub fn load(path: &Path) -> Result<Self, FrontendError> {
+        let shown = path.display().to_string();
+        let text = std::fs::read_to_string(path).map_err(|e| FrontendError::Unreadable {
+            path: shown.clone(),
+            reason: e.to_string(),
+        })?;
+        Self::from_toml(&text).map_err(|reason| FrontendError::BadFile {
+            path: shown,
+            reason,
+        })
+    }
+
+    /// `self` with every value that `over` gives replaced by it. Given
+    /// stages or a detector replace the whole list or detector; given
+    /// resistors bring their own count in parallel.
+    pub fn overlaid(mut self, over: Draft) -> Draft {
+        self.name = over.name.or(self.name);
+        let (l, o) = (&mut self.led, over.led);
+        l.supply_v = o.supply_v.or(l.supply_v);
+        l.forward_v = o.forward_v.or(l.forward_v);
+        if o.resistor.is_some() {
+            l.resistor = o.resistor;
+            l.parallel = o.parallel;
+        } else {
+            l.parallel = o.parallel.or(l.parallel);
+        }
+        l.rated_ma = o.rated_ma.or(l.rated_ma);
+        self.detector = over.detector.or(self.detector);
+        if !over.stages.is_empty() {
+            self.stages = over.stages;
+        }
+        let (a, o) = (&mut self.adc, over.adc);
+        a.bits = o.bits.or(a.bits);
+        a.reference_v = o.reference_v.or(a.reference_v);
+        a.bias_v = o.bias_v.or(a.bias_v);
+        a.rate_hz = o.rate_hz.or(a.rate_hz);
+        self.pulse.change_ua = over.pulse.change_ua.or(self.pulse.change_ua);
+        self.pulse.dc_ua = over.pulse.dc_ua.or(self.pulse.dc_ua);
+        self.rails.low_v = over.rails.low_v.or(self.rails.low_v);
+        self.rails.high_v = over.rails.high_v.or(self.rails.high_v);
+        self
+    }
+}
+
+pub(super) fn missing(
+    what: &'static str,
+    key: &'static str,
+    option: &'static str,
+) -> FrontendError {
+    FrontendError::Missing { what, key, option }
+}
+
+pub(super) fn invalid(key: impl Into<String>, reason: impl Into<String>) -> FrontendError {
+    FrontendError::Invalid {
+        key: key.into(),
+        reason: reason.into(),
+    }
+}
+
+/// A finite number above zero, or which key is wrong.
+fn positive(v: f64, key: &str, unit: &str) -> Result<f64, FrontendError> {
+    if v.is_finite() && v > 0.0 {
+        Ok(v)
+    } else {
+        Err(invalid(key, format!("must be above 0 {unit}, not {v}")))
+    }
+}
+
+fn non_negative(v: f64, key: &str, unit: &str) -> Result<f64, FrontendError> {
+    if v.is_finite() && v >= 0.0 {
+        Ok(v)
+    } else {
+        Err(invalid(key, format!("must be 0 {unit} or more, not {v}")))
+    }
+}
+
+fn finite(v: f64, key: &str) -> Result<f64, FrontendError> {
+    if v.is_finite() {
+        Ok(v)
+    } else {
+        Err(invalid(key, format!("must be a finite number, not {v}")))
+    }
+}
+
+impl Draft {
+    /// Check everything and fill in the defaults: ADC of
+    /// [`DEFAULT_ADC_BITS`] at [`DEFAULT_ADC_REFERENCE_V`], bias at half the
+    /// reference, rails from 0 V to the LED supply, one resistor.
+    pub fn resolve(&self) -> Result<Circuit, FrontendError> {
+        let l = &self.led;
+        let supply_v = l
+            .supply_v
+            .ok_or_else(|| missing("the LED supply voltage", "led.supply_v", "--supply"))?;
+        let supply_v = positive(supply_v, "led.supply_v", "V")?;
+        let forward_v = l
+            .forward_v
+            .ok_or_else(|| missing("the LED forward voltage", "led.forward_v", "--led-vf"))?;
+        let forward_v = positive(forward_v, "led.forward_v", "V")?;
+        let Resistors(listed) = l
+            .resistor
+            .clone()
+            .ok_or_else(|| missing("the LED series resistor", "led.resistor", "--led-r"))?;
+        let resistors_ohm = match (listed.as_slice(), l.parallel) {
+            (_, Some(0)) => return Err(invalid("led.parallel", "must be 1 or more")),
+            ([one], n) => vec![*one; n.unwrap_or(1) as usize],
+            (_, Some(_)) => {
+                return Err(invalid(
+                    "led.parallel",
+                    "goes with one resistor value; a list of resistors is already in parallel",
+                ))
+            }
+            (many, None) => many.to_vec(),
+        };
+        let rated_ma = l
+            .rated_ma
+            .map(|v| positive(v, "led.rated_ma", "mA"))
+            .transpose()?;
+        if supply_v <= forward_v {
+            return Err(FrontendError::LedOff {
+                supply_v,
+                forward_v,
+            });
+        }
+        let detector = self
+            .detector
+            .as_ref()
+            .ok_or_else(|| missing("the detector", "[detector]", "--tia or --phototransistor"))?
+            .resolve()?;
+        let stages = self
+            .stages
+            .iter()
+            .enumerate()
+            .map(|(i, s)| {
+                s.resolve().map_err(|reason| {
+                    invalid(format!("stage {} ({})", i + 1, kind_name(s.kind)), reason)
+                })
+            })
+            .collect::<Result<Vec<_>, _>>()?;
+        Ok(Circuit {
+            name: self.name.clone(),
+            led: LedDrive {
+                supply_v,
+                forward_v,
+                resistors_ohm,
+                rated_ma,
+            },
+            detector,
+            stages,
+            adc: self.resolve_adc()?,
+            pulse: Pulse {
+                change_ua: self
+                    .pulse
+                    .change_ua
+                    .map(|v| positive(v, "pulse.change_ua", "µA"))
+                    .transpose()?,
+                dc_ua: self
+                    .pulse
+                    .dc_ua
+                    .map(|v| non_negative(v, "pulse.dc_ua", "µA"))
+                    .transpose()?,
+            },
+            rails: self.resolve_rails(supply_v)?,
+        })
+    }
+
+    fn resolve_adc(&self) -> Result<Adc, FrontendError> {
+        let a = &self.adc;
+        let bits = a.bits.unwrap_or(DEFAULT_ADC_BITS);
+        if !(1..=32).contains(&bits) {
+            return Err(invalid("adc.bits", format!("must be 1 to 32, not {bits}")));
+        }
+        let reference_v = positive(
+            a.reference_v.unwrap_or(DEFAULT_ADC_REFERENCE_V),
+            "adc.reference_v",
+            "V",
+        )?;
+        Ok(Adc {
+            bits,
+            reference_v,
+            bias_v: finite(a.bias_v.unwrap_or(reference_v / 2.0), "adc.bias_v")?,
+            bias_assumed: a.bias_v.is_none(),
+            rate_hz: a
+                .rate_hz
+                .map(|v| positive(v, "adc.rate_hz", "Hz"))
+                .transpose()?,
+        })
+    }
+
+    fn resolve_rails(&self, supply_v: f64) -> Result<Rails, FrontendError> {
+        let low_v = finite(self.rails.low_v.unwrap_or(0.0), "rails.low_v")?;
+        let high_v = finite(self.rails.high_v.unwrap_or(supply_v), "rails.high_v")?;
+        if low_v >= high_v {
+            return Err(invalid(
+                "rails",
+                format!("low_v ({low_v} V) must be below high_v ({high_v} V)"),
+            ));
+        }
+        Ok(Rails { low_v, high_v })
+    }
+}
+
+#[cfg(test)]
+mod tests;

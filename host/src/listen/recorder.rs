@@ -1,0 +1,269 @@
+//! Recording a session: the beats as a WFDB annotation file, and the
+//! samples, when the board sends them, as a format-16 WFDB record with
+//! two signals, `PLETH` (raw) and `PLETH filtered` (see [`super::scale`]).
+//! Sample numbers come from the board's frames, so a gap in them (frames
+//! lost, port away) is stored as invalid samples at the right place.
+
+use plethwire_dsp::wire::SampleBlock;
+use serde::Serialize;
+use std::io;
+use std::path::{Path, PathBuf};
+
+use super::event::{Event, Sink};
+use super::fields::detector_name;
+use super::scale::{Scale, INVALID};
+use crate::io::{annotation_path, write_annotations, Annotation, NewSignal, RecordWriter};
+
+/// Seconds of samples to look at before choosing a scale, when the hello
+/// gives no rails.
+pub const SCALE_AFTER_S: f64 = 2.0;
+
+/// The longest gap filled with invalid samples; a block further ahead
+/// has a sample number no real gap explains.
+pub const MAX_GAP_S: f64 = 86_400.0;
+
+/// What became of the samples.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize)]
+pub struct SampleCounts {
+    /// Samples written (both signals), gap fill excluded.
+    pub recorded: u64,
+    /// Samples missing from the board's numbering (lost frames, the port
+    /// away), stored as invalid.
+    pub missing: u64,
+    /// Values past the 16-bit range, stored at the limit.
+    pub clipped: u64,
+    /// Non-finite values, stored as invalid.
+    pub not_finite: u64,
+    /// Samples before the record's first sample (joined a running board).
+    pub before_record: u64,
+    /// Samples at places already written (not stored again).
+    pub repeated: u64,
+    /// Samples more than [`MAX_GAP_S`] past the record's end, which no
+    /// real gap explains (not stored).
+    pub far_off: u64,
+}
+
+/// What [`Recorder::finish`] wrote.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Written {
+    /// The beat annotation file.
+    pub annotations: PathBuf,
+    /// Beats in it.
+    pub beats_annotated: u64,
+    /// Beats whose peak lies before the record's first sample.
+    pub beats_before_record: u64,
+    /// The record's header, when samples arrived.
+    pub record: Option<PathBuf>,
+    /// Frames (samples per signal) in the record, gap fill included.
+    pub record_samples: u64,
+    /// The record's sample rate, Hz.
+    pub rate_hz: Option<f64>,
+    /// The scale the samples were stored with.
+    pub scale: Option<Scale>,
+    /// What became of the samples.
+    pub samples: SampleCounts,
+}
+
+struct Open {
+    writer: RecordWriter,
+    scale: Scale,
+}
+
+/// Takes a session's events and writes its files.
+pub struct Recorder {
+    dir: PathBuf,
+    name: String,
+    annotator: String,
+    rails: Option<Scale>,
+    beats: Vec<u64>,
+    beats_before: u64,
+    rate: Option<f64>,
+    pending: Vec<(i64, SampleBlock)>,
+    pending_samples: u64,
+    open: Option<Open>,
+    counts: SampleCounts,
+    comments: Vec<String>,
+}
+
+/// The files of record `name` in `dir`, with beat annotator `annotator`.
+pub fn session_files(dir: &Path, name: &str, annotator: &str) -> Vec<PathBuf> {
+    vec![
+        dir.join(format!("{name}.hea")),
+        dir.join(format!("{name}.dat")),
+        annotation_path(&dir.join(name), annotator),
+        super::summary::summary_path(dir, name),
+    ]
+}
+
+impl Recorder {
+    /// A recorder for record `name` in `dir`; nothing is written before
+    /// the first samples (the record) or [`Recorder::finish`] (the rest).
+    pub fn new(dir: &Path, name: &str, annotator: &str) -> Self {
+        Self {
+            dir: dir.to_path_buf(),
+            name: name.to_string(),
+            annotator: annotator.to_string(),
+            rails: None,
+            beats: Vec::new(),
+            beats_before: 0,
+            rate: None,
+            pending: Vec::new(),
+            pending_samples: 0,
+            open: None,
+            counts: SampleCounts::default(),
+            comments: Vec::new(),
+        }
+    }
+
+    /// Add a line to the record header's comments.
+    pub fn comment(&mut self, text: &str) {
+        self.comments.push(text.replace(['\n', '\r'], " "));
+    }
+
+    fn samples(&mut self, start: i64, block: SampleBlock, rate_hz: f64) -> io::Result<()> {
+        let rate = *self.rate.get_or_insert(rate_hz);
+        if self.open.is_none() {
+            self.pending.push((start, block));
+            self.pending_samples += u64::from(block.count);
+            let enough = self.pending_samples as f64 >= SCALE_AFTER_S * rate;
+            if self.rails.is_some() || enough {
+                self.start_record()?;
+            }
+            return Ok(());
+        }
+        self.write_block(start, &block)
+    }
+
+    fn start_record(&mut self) -> io::Result<()> {
+        let Some(rate) = self.rate else {
+            return Ok(());
+        };
+        let scale = self.rails.unwrap_or_else(|| {
+            Scale::from_samples(
+                self.pending
+                    .iter()
+                    .flat_map(|(_, b)| b.raw[..usize::from(b.count)].to_vec()),
+            )
+        });
+        let signals = [
+            NewSignal::new("PLETH", "NU", scale.gain, scale.raw_baseline),
+            NewSignal::new("PLETH filtered", "NU", scale.gain, 0),
+        ];
+        let writer = RecordWriter::create(&self.dir, &self.name, rate, &signals).map_err(other)?;
+        self.open = Some(Open { writer, scale });
+        for (start, block) in std::mem::take(&mut self.pending) {
+            self.write_block(start, &block)?;
+        }
+        Ok(())
+    }
+
+    fn write_block(&mut self, start: i64, block: &SampleBlock) -> io::Result<()> {
+        let Some(open) = self.open.as_mut() else {
+            return Ok(());
+        };
+        let max_gap = (MAX_GAP_S * self.rate.unwrap_or(1.0)) as u64;
+        let c = &mut self.counts;
+        for i in 0..usize::from(block.count) {
+            let Ok(at) = u64::try_from(start + i as i64) else {
+                c.before_record += 1;
+                continue;
+            };
+            let next = open.writer.frames();
+            if at < next {
+                c.repeated += 1;
+                continue;
+            }
+            if at - next > max_gap {
+                c.far_off += 1;
+                continue;
+            }
+            for _ in next..at {
+                open.writer.push_frame(&[INVALID, INVALID]).map_err(other)?;
+                c.missing += 1;
+            }
+            let (raw, filtered) = (block.raw[i], block.filtered[i]);
+            let (r, rc) = open.scale.store_raw(raw);
+            let (f, fc) = open.scale.store_filtered(filtered);
+            c.clipped += u64::from(rc) + u64::from(fc);
+            c.not_finite += u64::from(!raw.is_finite()) + u64::from(!filtered.is_finite());
+            open.writer.push_frame(&[r, f]).map_err(other)?;
+            c.recorded += 1;
+        }
+        Ok(())
+    }
+
+    /// Write what is still open: the record's header, the annotations.
+    pub fn finish(mut self) -> io::Result<Written> {
+        if self.open.is_none() && !self.pending.is_empty() {
+            self.start_record()?;
+        }
+        let (record, record_samples, scale) = match self.open.take() {
+            Some(mut open) => {
+                for c in &self.comments {
+                    open.writer.comment(c).map_err(other)?;
+                }
+                let frames = open.writer.frames();
+                let (_, path) = open.writer.finish().map_err(other)?;
+                (Some(path), frames, Some(open.scale))
+            }
+            None => (None, 0, None),
+        };
+        // Beats arrive in peak order; a board restart may break that.
+        self.beats.sort_unstable();
+        let annotations: Vec<Annotation> = self
+            .beats
+            .iter()
+            .map(|&p| Annotation::beat(i64::try_from(p).unwrap_or(i64::MAX)))
+            .collect();
+        let path = annotation_path(&self.dir.join(&self.name), &self.annotator);
+        write_annotations(&path, &annotations).map_err(other)?;
+        Ok(Written {
+            annotations: path,
+            beats_annotated: annotations.len() as u64,
+            beats_before_record: self.beats_before,
+            record,
+            record_samples,
+            rate_hz: self.rate,
+            scale,
+            samples: self.counts,
+        })
+    }
+}
+
+impl Sink for Recorder {
+    fn event(&mut self, event: &Event) -> io::Result<()> {
+        match event {
+            Event::Hello(h) => {
+                if let Some((lo, hi)) = h.options.rails {
+                    self.rails = self.rails.or(Scale::from_rails(lo, hi));
+                }
+                let [a, b, c] = h.firmware_version;
+                self.comment(&format!(
+                    "board: firmware {a}.{b}.{c}, {} Hz, {} detector, band {}-{} Hz",
+                    h.sample_rate_hz,
+                    detector_name(h.options.detector),
+                    h.options.band_low_hz,
+                    h.options.band_high_hz
+                ));
+            }
+            Event::Beat(b) => match b.peak {
+                Some(p) => self.beats.push(p),
+                None => self.beats_before += 1,
+            },
+            Event::Samples {
+                start,
+                block,
+                rate_hz,
+            } => self.samples(*start, *block, *rate_hz)?,
+            Event::Restart { sample } => self.comment(&format!(
+                "the board restarted; its new run starts at sample {sample}"
+            )),
+            _ => {}
+        }
+        Ok(())
+    }
+}
+
+fn other(e: crate::io::Error) -> io::Error {
+    io::Error::other(e.to_string())
+}

@@ -1,0 +1,282 @@
+//! The screen: one line per event, a fixed-width word first so the eye
+//! (and `grep`) finds its kind. Colour only on a terminal.
+
+use plethwire_dsp::pipeline::SignalState;
+use plethwire_dsp::wire::{DecodeStats, Hello, Status};
+
+use super::event::{BeatSeen, Event, StateSeen};
+use super::fields::{detector_name, FLAG_NAMES};
+
+/// How lines look.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Look {
+    /// ANSI colours (a terminal that wants them).
+    pub colour: bool,
+    /// Pause between attempts to reopen, s.
+    pub retry_every_s: f64,
+    /// Give-up time, s.
+    pub give_up_after_s: f64,
+}
+
+#[derive(Clone, Copy)]
+enum Tone {
+    Plain,
+    Good,
+    Warn,
+    Bad,
+}
+
+fn paint(look: &Look, tone: Tone, text: String) -> String {
+    let code = match tone {
+        Tone::Plain => return text,
+        Tone::Good => "32",
+        Tone::Warn => "33",
+        Tone::Bad => "31",
+    };
+    if look.colour {
+        format!("\x1b[{code}m{text}\x1b[0m")
+    } else {
+        text
+    }
+}
+
+fn opt(v: Option<f32>, width: usize, decimals: usize) -> String {
+    v.map_or_else(
+        || format!("{:>width$}", "-"),
+        |v| format!("{v:>width$.decimals$}"),
+    )
+}
+
+fn when(time_s: Option<f64>, sample: Option<u64>, board: u64) -> String {
+    match (time_s, sample) {
+        (Some(t), _) => format!("{t:>10.3} s"),
+        (None, Some(s)) => format!("{:>12}", format!("#{s}")),
+        (None, None) => format!("board #{board}"),
+    }
+}
+
+/// The screen lines of `event` (none for sample blocks).
+pub fn lines(event: &Event, look: &Look) -> Vec<String> {
+    let one = |tone, text| vec![paint(look, tone, text)];
+    match event {
+        Event::Opened { port, again_after } => match again_after {
+            None => one(Tone::Good, format!("port     {port} open")),
+            Some(d) => one(
+                Tone::Good,
+                format!(
+                    "port     {port} open again after {:.1} s away",
+                    d.as_secs_f64()
+                ),
+            ),
+        },
+        Event::Lost { port, reason } => one(
+            Tone::Bad,
+            format!(
+                "lost     {port}: {reason}; trying again every {} s for up to {} s",
+                look.retry_every_s, look.give_up_after_s
+            ),
+        ),
+        Event::Quiet { for_time } => one(
+            Tone::Warn,
+            format!(
+                "quiet    nothing decoded for {:.0} s: is the board sending, at this baud rate?",
+                for_time.as_secs_f64()
+            ),
+        ),
+        Event::Notice(text) => one(Tone::Warn, format!("note     {text}")),
+        Event::Hello(h) => one(Tone::Plain, hello(h)),
+        Event::Beat(b) => {
+            let tone = if b.beat.flags.is_good() {
+                Tone::Plain
+            } else {
+                Tone::Warn
+            };
+            one(tone, beat(b))
+        }
+        Event::State(s) => one(state_tone(s.change.state), state(s)),
+        Event::Status { status: s, link } => {
+            vec![paint(look, Tone::Plain, status(s)), link_line(look, link)]
+        }
+        Event::Link(stats) => vec![link_line(look, stats)],
+        Event::Restart { sample } => one(
+            Tone::Warn,
+            format!("restart  the board started over; the record goes on at sample {sample}"),
+        ),
+        Event::Samples { .. } => Vec::new(),
+    }
+}
+
+fn hello(h: &Hello) -> String {
+    let [a, b, c] = h.firmware_version;
+    let o = &h.options;
+    let rails = match o.rails {
+        Some((lo, hi)) => format!("rails {lo} to {hi}"),
+        None => "rails unknown".into(),
+    };
+    format!(
+        "board    firmware {a}.{b}.{c}, {} Hz, {} detector, band {}-{} Hz, \
+         smoothed rate over {} s, {rails}",
+        h.sample_rate_hz,
+        detector_name(o.detector),
+        o.band_low_hz,
+        o.band_high_hz,
+        o.hr_window_s
+    )
+}
+
+/// Flags in words, or `ok`.
+pub fn flag_words(flags: plethwire_dsp::pipeline::BeatFlags) -> String {
+    let words: Vec<&str> = FLAG_NAMES
+        .iter()
+        .filter(|(bit, _, _)| flags.has(*bit))
+        .map(|(_, _, words)| *words)
+        .collect();
+    if words.is_empty() {
+        "ok".into()
+    } else {
+        words.join(", ")
+    }
+}
+
+fn beat(b: &BeatSeen) -> String {
+    let e = &b.beat;
+    format!(
+        "beat   {}  IBI {} ms  HR {}  avg {} bpm  quality {:.2}  {}",
+        when(b.time_s, b.peak, e.peak_index),
+        opt(e.ibi_ms, 5, 0),
+        opt(e.hr_bpm, 5, 1),
+        opt(e.hr_smoothed_bpm, 5, 1),
+        e.quality,
+        flag_words(e.flags)
+    )
+}
+
+fn state_words(s: SignalState) -> &'static str {
+    match s {
+        SignalState::Acquiring => "acquiring",
+        SignalState::Good => "good signal",
+        SignalState::NoSignal => "no signal",
+        SignalState::Saturated => "saturated",
+        SignalState::Noisy => "noisy",
+    }
+}
+
+fn state_tone(s: SignalState) -> Tone {
+    match s {
+        SignalState::Good => Tone::Good,
+        SignalState::Acquiring => Tone::Plain,
+        SignalState::Noisy | SignalState::Saturated => Tone::Warn,
+        SignalState::NoSignal => Tone::Bad,
+    }
+}
+
+fn state(s: &StateSeen) -> String {
+    format!(
+        "state  {}  {} (was {})",
+        when(s.time_s, s.sample, s.change.at),
+        state_words(s.change.state),
+        state_words(s.change.previous)
+    )
+}
+
+fn status(s: &Status) -> String {
+    format!(
+        "status   LED {:.1} %  DC {:.1} % of full scale  board counts: clipped {}, \
+         ADC overruns {}, frames dropped {}, samples replaced {}",
+        100.0 * f64::from(s.led_drive) / 65_535.0,
+        100.0 * s.dc_level,
+        s.clipped_samples,
+        s.adc_overruns,
+        s.dropped_frames,
+        s.rejected_samples
+    )
+}
+
+fn link_line(look: &Look, s: &DecodeStats) -> String {
+    let tone = if s.damaged > 0 || s.lost_frames > 0 {
+        Tone::Warn
+    } else {
+        Tone::Plain
+    };
+    paint(
+        look,
+        tone,
+        format!(
+            "link     frames {}  damaged {} ({} CRC)  lost {}  bytes dropped {}",
+            s.frames, s.damaged, s.crc_errors, s.lost_frames, s.dropped_bytes
+        ),
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, StateEvent};
+
+    fn look(colour: bool) -> Look {
+        Look {
+            colour,
+            retry_every_s: 0.5,
+            give_up_after_s: 30.0,
+        }
+    }
+
+    fn seen(flags: u8, ibi: Option<f32>) -> Event {
+        Event::Beat(BeatSeen {
+            beat: BeatEvent {
+                peak_index: 3085,
+                onset_index: None,
+                emitted_at: 3100,
+                ibi_ms: ibi,
+                hr_bpm: ibi.map(|i| 60_000.0 / i),
+                hr_smoothed_bpm: ibi.map(|_| 74.25),
+                amplitude: 40.0,
+                quality: 0.974,
+                flags: BeatFlags(flags),
+            },
+            peak: Some(3085),
+            time_s: Some(12.34),
+        })
+    }
+
+    #[test]
+    fn beat_lines_line_up_and_say_flags_in_words() {
+        let good = lines(&seen(0, Some(812.0)), &look(false));
+        let first = lines(&seen(BeatFlags::NO_INTERVAL, None), &look(false));
+        assert_eq!(
+            good,
+            ["beat       12.340 s  IBI   812 ms  HR  73.9  avg  74.2 bpm  quality 0.97  ok"]
+        );
+        assert_eq!(
+            first,
+            ["beat       12.340 s  IBI     - ms  HR     -  avg     - bpm  quality 0.97  no interval"]
+        );
+        let bad = lines(
+            &seen(
+                BeatFlags::CLIPPED | BeatFlags::IMPLAUSIBLE_INTERVAL,
+                Some(300.0),
+            ),
+            &look(false),
+        );
+        assert!(bad[0].ends_with("implausible interval, clipped"), "{bad:?}");
+    }
+
+    #[test]
+    fn colour_only_when_asked() {
+        let e = Event::State(StateSeen {
+            change: StateEvent {
+                state: SignalState::NoSignal,
+                previous: SignalState::Good,
+                at: 500,
+            },
+            sample: Some(500),
+            time_s: Some(2.0),
+        });
+        let plain = lines(&e, &look(false));
+        assert_eq!(plain, ["state       2.000 s  no signal (was good signal)"]);
+        let painted = lines(&e, &look(true));
+        assert_eq!(painted, [format!("\x1b[31m{}\x1b[0m", plain[0])]);
+        assert!(lines(&seen(BeatFlags::CLIPPED, Some(800.0)), &look(true))[0].contains('\x1b'));
+        assert!(!lines(&seen(0, Some(800.0)), &look(true))[0].contains('\x1b'));
+    }
+}

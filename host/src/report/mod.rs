@@ -1,0 +1,201 @@
+//! A recording's replay as one self-contained HTML page: `plethwire
+//! report`'s engine, free of command-line concerns, for any caller that
+//! has samples and the pipeline's output.
+//!
+//! The page holds a header of key figures, a signal excerpt with the
+//! detected beats, the heart-rate trend, the interval tachogram, the
+//! Poincaré plot with SD1/SD2, the quality timeline, the HRV figures, the
+//! band-pass's response at the record's rate, the score against a
+//! reference when there is one, and the usual cautions. Figures are inline
+//! SVG, the style sheet inline, nothing is fetched and no script runs; the
+//! markup also parses as XML. Every number is marked
+//! (`<span data-figure="sdnn_ms" data-value="…">`) and equals the field of
+//! the same name in [`Figures`], which `--json` prints.
+//!
+//! Long traces are thinned for drawing (see [`thin`]): per screen column
+//! the lowest and highest sample, and of overlapping markers one.
+//!
+//! ```
+//! use plethwire::replay::replay;
+//! use plethwire::report::{build, ReportInput};
+//! use plethwire::synth::{generate, SynthOptions};
+//! use plethwire_dsp::pipeline::Config;
+//! let rec = generate(&SynthOptions { duration_s: 30.0, ..SynthOptions::default() }).unwrap();
+//! let samples: Vec<f64> = rec.samples.iter().map(|&x| f64::from(x)).collect();
+//! let config = Config::new(100.0);
+//! let run = replay(&samples, config).unwrap();
+//! let page = build(&ReportInput::new("demo", &samples, config, &run)).unwrap();
+//! assert!(page.contains(r#"data-figure="sdnn_ms""#));
+//! ```
+
+mod band;
+mod charts;
+mod excerpt;
+mod figures;
+mod html;
+mod page;
+mod poincare;
+mod reference;
+pub mod thin;
+mod timeline;
+mod views;
+
+pub use band::{BandPass, BAND_ORDER};
+pub use excerpt::{choose as choose_excerpt, Excerpt, DEFAULT_EXCERPT_S};
+pub use figures::{ExcerptFigures, Figures, FilterFigures, HrvFigures, PoincareFigures};
+pub use html::escape;
+pub use poincare::{nn_pairs, poincare, PoincareStats};
+pub use reference::{score, Reference, ScoreFigures};
+pub use timeline::{spans as state_spans, state_name, StateSeconds, StateSpan};
+
+use crate::replay::Replay;
+use plethwire_dsp::pipeline::Config;
+use std::fmt;
+use std::path::Path;
+
+/// What a report is made from.
+#[derive(Clone, Copy, Debug)]
+pub struct ReportInput<'a> {
+    /// Record name, shown as the title.
+    pub name: &'a str,
+    /// Signal name (e.g. `PLETH`).
+    pub signal: &'a str,
+    /// The signal's units, when known.
+    pub units: Option<&'a str>,
+    /// The samples the pipeline was fed.
+    pub samples: &'a [f64],
+    /// The pipeline's configuration (rate, detector, band).
+    pub config: Config,
+    /// What the pipeline said about `samples`.
+    pub replay: &'a Replay,
+    /// Reference beats and heart rate to score against, if any.
+    pub reference: Option<&'a Reference>,
+    /// The stretch the signal plot shows; `None` chooses one
+    /// ([`choose_excerpt`]).
+    pub excerpt: Option<Excerpt>,
+}
+
+impl<'a> ReportInput<'a> {
+    /// An input with signal name `signal`, no units, no reference and the
+    /// excerpt chosen automatically; change the fields as needed.
+    pub fn new(name: &'a str, samples: &'a [f64], config: Config, replay: &'a Replay) -> Self {
+        Self {
+            name,
+            signal: "signal",
+            units: None,
+            samples,
+            config,
+            replay,
+            reference: None,
+            excerpt: None,
+        }
+    }
+}
+
+/// Why a report could not be made; one line.
+#[derive(Clone, Debug, PartialEq)]
+pub enum ReportError {
+    /// The samples, configuration and replay do not belong together.
+    Mismatch(String),
+    /// The excerpt asked for lies outside the recording.
+    Excerpt {
+        /// What was asked for.
+        asked: Excerpt,
+        /// The recording's length, s.
+        duration_s: f64,
+    },
+    /// The band-pass could not be designed at this rate.
+    Design(plethwire_dsp::DesignError),
+    /// A figure could not be drawn.
+    Draw(String),
+    /// The page could not be written.
+    Write {
+        /// Where.
+        path: String,
+        /// Why.
+        reason: String,
+    },
+}
+
+impl fmt::Display for ReportError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Self::Mismatch(m) => f.write_str(m),
+            Self::Excerpt { asked, duration_s } => write!(
+                f,
+                "excerpt {}:{} lies outside the recording (0 to {duration_s:.1} s)",
+                asked.start_s, asked.length_s
+            ),
+            Self::Design(e) => write!(f, "cannot design the band-pass: {e}"),
+            Self::Draw(e) => write!(f, "cannot draw a figure: {e}"),
+            Self::Write { path, reason } => write!(f, "{path}: cannot write the report: {reason}"),
+        }
+    }
+}
+
+impl std::error::Error for ReportError {}
+
+/// Everything checked and decided before drawing.
+struct Prepared {
+    excerpt: Excerpt,
+    band: BandPass,
+    figures: Figures,
+}
+
+fn prepare(input: &ReportInput<'_>) -> Result<Prepared, ReportError> {
+    let run = input.replay;
+    if input.samples.len() as u64 != run.samples {
+        return Err(ReportError::Mismatch(format!(
+            "{} samples given but the replay saw {}",
+            input.samples.len(),
+            run.samples
+        )));
+    }
+    if (f64::from(input.config.sample_rate_hz) - run.fs).abs() > 1e-6 * run.fs {
+        return Err(ReportError::Mismatch(format!(
+            "configuration at {} Hz but the replay ran at {} Hz",
+            input.config.sample_rate_hz, run.fs
+        )));
+    }
+    let duration_s = run.samples as f64 / run.fs;
+    let excerpt = match input.excerpt {
+        Some(asked) => asked
+            .within(duration_s)
+            .ok_or(ReportError::Excerpt { asked, duration_s })?,
+        None => excerpt::choose(run),
+    };
+    let band = BandPass::new(&input.config).map_err(ReportError::Design)?;
+    let figures = figures::compute(input, excerpt, &band);
+    Ok(Prepared {
+        excerpt,
+        band,
+        figures,
+    })
+}
+
+/// The numbers the page shows, without drawing it.
+pub fn figures(input: &ReportInput<'_>) -> Result<Figures, ReportError> {
+    prepare(input).map(|p| p.figures)
+}
+
+/// The page and its numbers.
+pub fn render(input: &ReportInput<'_>) -> Result<(String, Figures), ReportError> {
+    let p = prepare(input)?;
+    let page = page::page(input, &p.figures, p.excerpt, &p.band).map_err(ReportError::Draw)?;
+    Ok((page, p.figures))
+}
+
+/// The page.
+pub fn build(input: &ReportInput<'_>) -> Result<String, ReportError> {
+    render(input).map(|r| r.0)
+}
+
+/// Write the page to `path`; returns its numbers.
+pub fn write(path: &Path, input: &ReportInput<'_>) -> Result<Figures, ReportError> {
+    let (page, figures) = render(input)?;
+    std::fs::write(path, page).map_err(|e| ReportError::Write {
+        path: path.display().to_string(),
+        reason: e.to_string(),
+    })?;
+    Ok(figures)
+}

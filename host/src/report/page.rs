@@ -1,0 +1,238 @@
+//! The page: header of key figures, the sections in order (those around
+//! a figure are in `views`), the tables of HRV and score, the cautions.
+
+use super::band::BandPass;
+use super::excerpt::Excerpt;
+use super::figures::Figures;
+use super::html::{count, escape, fig, table, STYLE};
+use super::views::{
+    excerpt_section, filter_section, poincare_section, quality_section, trend_sections,
+};
+use super::ReportInput;
+
+/// Sections in page order: `(id, heading)`.
+pub const SECTIONS: [(&str, &str); 8] = [
+    ("excerpt", "Signal excerpt"),
+    ("heart-rate", "Heart-rate trend"),
+    ("intervals", "Interval tachogram"),
+    ("poincare", "Poincaré plot"),
+    ("quality", "Quality timeline"),
+    ("hrv", "Heart-rate variability"),
+    ("filter", "Band-pass filter"),
+    ("score", "Score against the reference"),
+];
+
+/// A section with its heading from [`SECTIONS`].
+pub fn section(id: &str, body: &str) -> String {
+    let heading = SECTIONS.iter().find(|s| s.0 == id).map_or(id, |s| s.1);
+    format!("<section id=\"{id}\">\n<h2>{heading}</h2>\n{body}\n</section>\n")
+}
+
+fn card(label: &str, value: String) -> String {
+    format!("<div><dt>{}</dt><dd>{value}</dd></div>", escape(label))
+}
+
+fn header(input: &ReportInput<'_>, f: &Figures) -> String {
+    let hr = match f.hr_mean_bpm {
+        Some(_) => format!(
+            "{} <small>bpm</small>",
+            fig("hr_mean_bpm", f.hr_mean_bpm, 1)
+        ),
+        None => format!(
+            "{} <small>no good beats</small>",
+            fig("hr_mean_bpm", None, 1)
+        ),
+    };
+    let range = format!(
+        "{}–{} <small>bpm</small>",
+        fig("hr_min_bpm", f.hr_min_bpm, 1),
+        fig("hr_max_bpm", f.hr_max_bpm, 1)
+    );
+    let mut cards = vec![
+        card(
+            "duration",
+            format!(
+                "{} <small>s</small>",
+                fig("duration_s", Some(f.duration_s), 1)
+            ),
+        ),
+        card(
+            "sample rate",
+            format!(
+                "{} <small>Hz</small>",
+                fig("sample_rate_hz", Some(f.sample_rate_hz), 1)
+            ),
+        ),
+        card(
+            "detector",
+            format!(
+                r#"<span data-figure="detector">{}</span>"#,
+                escape(&f.detector)
+            ),
+        ),
+        card(
+            "beats",
+            format!(
+                "{} <small>{} good</small>",
+                count("beats", Some(f.beats)),
+                count("good_beats", Some(f.good_beats))
+            ),
+        ),
+        card(
+            "good share",
+            format!(
+                "{} <small>%</small>",
+                fig("good_share_percent", Some(f.good_share_percent), 1)
+            ),
+        ),
+        card("heart rate, mean", hr),
+        card("heart rate range", range),
+        card(
+            "latency, peak to event",
+            format!(
+                "{} <small>ms (median)</small>",
+                fig("latency_median_ms", f.latency_median_ms, 0)
+            ),
+        ),
+    ];
+    if let Some(s) = &f.score {
+        if s.f1_percent.is_some() {
+            cards.push(card(
+                "F1 against reference",
+                format!("{} <small>%</small>", fig("f1_percent", s.f1_percent, 2)),
+            ));
+        }
+    }
+    let units = input
+        .units
+        .map(|u| format!(" ({})", escape(u)))
+        .unwrap_or_default();
+    let nav: String = SECTIONS
+        .iter()
+        .map(|(id, h)| format!(r##"<a href="#{id}">{h}</a>"##))
+        .collect();
+    format!(
+        "<header id=\"summary\">\n<h1><span data-figure=\"record\">{name}</span><span class=\"tool\">plethwire report</span></h1>\n\
+         <p class=\"sub\">signal <span data-figure=\"signal\">{signal}</span>{units}; input: {} samples replaced (not a number), {} at the rails, {} filter restarts</p>\n\
+         <dl class=\"cards\">{}</dl>\n<nav>{nav}</nav>\n</header>\n",
+        count("rejected_samples", Some(f.rejected_samples as usize)),
+        count("clipped_samples", Some(f.clipped_samples as usize)),
+        count("restarts", Some(f.restarts as usize)),
+        cards.concat(),
+        name = escape(&f.record),
+        signal = escape(&f.signal),
+    )
+}
+fn hrv_section(f: &Figures) -> String {
+    let h = &f.hrv;
+    let rows = table(&[
+        ("NN intervals", count("nn_intervals", Some(h.nn_intervals))),
+        (
+            "successive differences",
+            count("successive_differences", Some(h.successive_differences)),
+        ),
+        (
+            "mean NN",
+            format!("{} ms", fig("mean_nn_ms", h.mean_nn_ms, 1)),
+        ),
+        ("SDNN", format!("{} ms", fig("sdnn_ms", h.sdnn_ms, 1))),
+        ("RMSSD", format!("{} ms", fig("rmssd_ms", h.rmssd_ms, 1))),
+        ("NN50", count("nn50", Some(h.nn50))),
+        (
+            "pNN50",
+            format!("{} %", fig("pnn50_percent", h.pnn50_percent, 1)),
+        ),
+    ]);
+    section(
+        "hrv",
+        &format!(
+            "<div class=\"row\">{rows}\n<p class=\"note\">Time-domain measures as defined by the Task Force of the ESC \
+             and NASPE (1996) over the whole recording. An interval is normal-to-normal (NN) when the beats at both \
+             its ends are good; successive differences are formed only between adjacent NN intervals. Pulse intervals \
+             from a finger sensor stand in for the ECG's RR intervals here, and recordings of a few minutes give \
+             short-term figures only.</p></div>"
+        ),
+    )
+}
+fn score_section(input: &ReportInput<'_>, f: &Figures) -> String {
+    let (Some(s), Some(r)) = (&f.score, input.reference) else {
+        return section(
+            "score",
+            "<p>No reference: no reference beats or heart-rate series were given or found beside the record.</p>",
+        );
+    };
+    let mut rows: Vec<(&str, String)> = Vec::new();
+    if s.reference_beats.is_some() {
+        rows.push((
+            "reference beats",
+            format!(
+                "{} ({})",
+                count("reference_beats", s.reference_beats),
+                escape(&r.beats_source)
+            ),
+        ));
+        rows.push(("true positives (TP)", count("tp", s.tp)));
+        rows.push(("false positives (FP)", count("fp", s.fp)));
+        rows.push(("false negatives (FN)", count("fn", s.fn_)));
+        rows.push((
+            "sensitivity Se",
+            format!("{} %", fig("se_percent", s.se_percent, 2)),
+        ));
+        rows.push((
+            "positive predictivity +P",
+            format!("{} %", fig("ppv_percent", s.ppv_percent, 2)),
+        ));
+        rows.push(("F1", format!("{} %", fig("f1_percent", s.f1_percent, 2))));
+    }
+    if s.hr_seconds.is_some() {
+        rows.push(("heart-rate series", escape(&r.rate_source)));
+        rows.push((
+            "heart-rate MAE",
+            format!("{} bpm", fig("hr_mae_bpm", s.hr_mae_bpm, 2)),
+        ));
+        rows.push(("seconds compared", count("hr_seconds", s.hr_seconds)));
+    }
+    section(
+        "score",
+        &format!(
+            "<div class=\"row\">{}\n<p class=\"note\">Beats match one to one within ±150 ms, closest pairs first \
+             (ANSI/AAMI EC57 practice); Se = TP/(TP+FN), +P = TP/(TP+FP), F1 = 2TP/(2TP+FP+FN). The heart-rate error \
+             compares, at each second of the reference series, the smoothed rate the pipeline had last reported; \
+             seconds without a reference value or before the first report are left out.</p></div>",
+            table(&rows)
+        ),
+    )
+}
+
+const CAUTIONS: &str = "<footer id=\"cautions\">\n<p><strong>plethwire is not a medical device.</strong> This report \
+is not for diagnosis, treatment or monitoring of anyone's health; its numbers are engineering estimates for checking \
+a sensor and its software. Local regulations and qualified practice decide what may be built and used on people.</p>\n";
+
+/// The whole page.
+pub fn page(
+    input: &ReportInput<'_>,
+    f: &Figures,
+    e: Excerpt,
+    band: &BandPass,
+) -> Result<String, String> {
+    let body = [
+        excerpt_section(input, f, e, band)?,
+        trend_sections(input)?,
+        poincare_section(input, f)?,
+        quality_section(input, f)?,
+        hrv_section(f),
+        filter_section(input, f, band)?,
+        score_section(input, f),
+    ]
+    .concat();
+    Ok(format!(
+        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n\
+         <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n\
+         <title>{} · plethwire report</title>\n<style>{STYLE}</style>\n</head>\n<body>\n{}<main>\n{body}</main>\n\
+         {CAUTIONS}<p>Made by plethwire {} from {} samples.</p>\n</footer>\n</body>\n</html>\n",
+        escape(&f.record),
+        header(input, f),
+        env!("CARGO_PKG_VERSION"),
+        input.samples.len(),
+    ))
+}
