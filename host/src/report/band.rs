@@ -1,14 +1,14 @@
 //! The pipeline's band-pass at the record's rate: its sections as the
 //! board runs them, the band-passed signal, and its response.
 
-use plethwire_dsp::design::butterworth_bandpass;
+use plethwire_dsp::design::{butterworth_highpass, butterworth_lowpass};
 use plethwire_dsp::filter::{Biquad, Cascade, Delta};
 use plethwire_dsp::pipeline::Config;
 use plethwire_dsp::response::response;
 use plethwire_dsp::DesignError;
 
-/// Order of the pipeline's Butterworth band-pass (see
-/// `plethwire_dsp::pipeline`: two sections).
+/// Sections of the pipeline's band: a Butterworth low-pass and a
+/// Butterworth high-pass, order 2 each (see `plethwire_dsp::pipeline`).
 pub const BAND_ORDER: usize = 2;
 
 /// The band-pass the pipeline builds from `config`.
@@ -24,15 +24,20 @@ pub struct BandPass {
 }
 
 impl BandPass {
-    /// Design it as the pipeline does: same order, edges, rate and section
-    /// structure ([`Delta`], `f32`).
+    /// Design it as the pipeline does: same orders, edges and section
+    /// structure ([`Delta`], `f32`). The pipeline runs the high-pass at its
+    /// detector's rate (62.5 Hz or more) after decimation; here both run at
+    /// the record's rate, which moves the 0.5 Hz corner's response by far
+    /// less than a plot can show.
     pub fn new(config: &Config) -> Result<Self, DesignError> {
         let fs = f64::from(config.sample_rate_hz);
         let (low_hz, high_hz) = (
             f64::from(config.options.band_low_hz),
             f64::from(config.options.band_high_hz),
         );
-        let cascade = butterworth_bandpass(BAND_ORDER, low_hz, high_hz, fs)?.cascade()?;
+        let cascade = butterworth_lowpass(2, high_hz, fs)?
+            .then(&butterworth_highpass(2, low_hz, fs)?)?
+            .cascade()?;
         Ok(Self {
             low_hz,
             high_hz,

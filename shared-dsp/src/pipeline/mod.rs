@@ -3,11 +3,14 @@
 //!
 //! Stages, all causal, with fixed memory and bounded work per sample:
 //! input conditioning ([`condition`]: non-finite samples replaced and
-//! counted, samples at the ADC rails marked) → band-pass (Butterworth,
-//! 0.5–8 Hz, order 2, [`crate::filter::Delta`] sections settled on the first
-//! sample so a DC offset does not ring) → decimation to the detector's rate
-//! (at most 250 Hz; the band is far below) → beat detector
-//! ([`Elgendi`] or [`Zong`]) → peak placed on the lightly smoothed signal →
+//! counted, samples at the ADC rails marked) → the band's upper edge, a
+//! Butterworth low-pass at 8 Hz, order 2, at the input rate → decimation to
+//! the detector's rate (62.5 to 125 Hz, or the input rate when lower: the
+//! band is far below) → the band's lower edge, a Butterworth high-pass at
+//! 0.5 Hz, order 2, at the detector's rate (both [`crate::filter::Delta`]
+//! sections, settled on the first sample so a DC offset does not ring) →
+//! beat detector ([`Elgendi`] or [`Zong`]) → peak placed on the low-passed
+//! signal →
 //! interval, heart rate, per-beat quality ([`quality`]) → signal state
 //! ([`state`]).
 //!
@@ -39,7 +42,7 @@ pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
 pub use ring::{Ring, RunningSum};
 pub use zong::Zong;
 
-use crate::design::{butterworth_bandpass, butterworth_lowpass};
+use crate::design::{butterworth_highpass, butterworth_lowpass};
 use crate::filter::{Cascade, Delta};
 use crate::hrv::{HrvStats, HrvWindow};
 use crate::math::{max_f32, min_f32};
@@ -53,9 +56,11 @@ use state::Monitor;
 pub const MIN_RATE_HZ: f32 = 25.0;
 /// Highest input sample rate accepted, Hz.
 pub const MAX_RATE_HZ: f32 = 1000.0;
-/// The detector runs at the input rate divided by `floor(fs / 125)`, so at
-/// 125 to 250 Hz (or the input rate when lower).
-pub const DETECTOR_BASE_HZ: f32 = 125.0;
+/// The detector runs at the input rate divided by `floor(fs / 62.5)`, so at
+/// 62.5 to 125 Hz (or the input rate when lower). Work at the input rate is
+/// then one filter section and the conditioning; everything else runs at
+/// the detector's rate.
+pub const DETECTOR_BASE_HZ: f32 = 62.5;
 
 /// A candidate below this fraction of the running peak level is dropped.
 pub const SMALL_FRACTION: f32 = 0.4;
@@ -191,8 +196,11 @@ pub struct Pipeline {
     decim: u32,
     phase: u32,
     conditioner: Conditioner,
-    band: Cascade<Delta, 2>,
-    smooth: Cascade<Delta, 1>,
+    // Upper band edge at the input rate; its output is also the smoothed
+    // signal peaks are placed on.
+    lowpass: Cascade<Delta, 1>,
+    // Lower band edge at the detector's rate.
+    highpass: Cascade<Delta, 1>,
     monitor: Monitor,
     mark: u8,
     started: bool,
@@ -211,6 +219,8 @@ pub struct Pipeline {
     last_frac: f32,
     last_value: f32,
     peak_level: Option<f32>,
+    // Clipped input samples since the last detector-rate sample.
+    clipped_in_block: u32,
     step_level: Option<f32>,
     restarts: u64,
     epoch: u64,
@@ -245,11 +255,15 @@ impl Pipeline {
         let decim = max_f32(libm::floorf(fs / DETECTOR_BASE_HZ), 1.0) as u32;
         let fd = fs / decim as f32;
         let fs64 = fs as f64;
-        let band = butterworth_bandpass(2, o.band_low_hz as f64, o.band_high_hz as f64, fs64)?
-            .cascade()?;
-        // Light smoothing for placing the peak: keeps the pulse's shape,
-        // removes ADC noise and up-sampling steps.
-        let smooth = butterworth_lowpass(2, 10.0_f64.min(0.4 * fs64), fs64)?.cascade()?;
+        if o.band_low_hz.partial_cmp(&o.band_high_hz) != Some(core::cmp::Ordering::Less) {
+            return Err(DesignError::BandEdgesReversed);
+        }
+        // The band as a low-pass at the input rate and a high-pass at the
+        // detector's rate: a band-pass of the same four poles, but only one
+        // section runs per input sample. The low-pass also keeps the
+        // pulse's shape for placing peaks, without ADC noise or steps.
+        let lowpass = butterworth_lowpass(2, o.band_high_hz as f64, fs64)?.cascade()?;
+        let highpass = butterworth_highpass(2, o.band_low_hz as f64, fd as f64)?.cascade()?;
         let rails = match o.rails {
             Some((low, high)) => Rails::Known { low, high },
             None => Rails::Auto,
@@ -262,8 +276,8 @@ impl Pipeline {
             decim,
             phase: 0,
             conditioner: Conditioner::new(rails, fs),
-            band,
-            smooth,
+            lowpass,
+            highpass,
             smoothed: Ring::new(),
             banded: Ring::new(),
             marks: Ring::new(),
@@ -285,6 +299,7 @@ impl Pipeline {
             last_good: false,
             last_value: 0.0,
             peak_level: None,
+            clipped_in_block: 0,
             step_level: None,
             restarts: 0,
             epoch: 0,
@@ -339,26 +354,33 @@ impl Pipeline {
         let c = self.conditioner.push(x);
         if !self.started {
             // Start as if this value had always been there: no transient.
-            self.band.settle(c.value);
-            self.smooth.settle(c.value);
+            let rest = self.lowpass.settle(c.value);
+            self.highpass.settle(rest);
             self.started = true;
         }
         self.last_value = c.value;
-        let y = self.band.process(c.value);
-        let s = self.smooth.process(c.value);
+        let s = self.lowpass.process(c.value);
         if c.clipped {
             self.mark |= MARK_CLIPPED;
+            self.clipped_in_block += 1;
         }
         if c.rejected {
             self.mark |= MARK_REJECTED;
         }
         let n = self.n;
         self.n += 1;
-        let median = self.recent_ibi;
+        self.phase += 1;
+        if self.phase < self.decim {
+            return Output::default();
+        }
+        self.phase = 0;
         let mut out = Output {
             beat: None,
-            state: self.monitor.sample(n, c.clipped, median),
+            state: self
+                .monitor
+                .block(n, self.clipped_in_block, self.decim, self.recent_ibi),
         };
+        self.clipped_in_block = 0;
         if let Some(e) = out.state {
             if e.state == SignalState::NoSignal {
                 // The finger may come back elsewhere: start afresh.
@@ -367,15 +389,10 @@ impl Pipeline {
                 self.last_good = false;
             }
         }
-        self.phase += 1;
-        if self.phase < self.decim {
-            return out;
-        }
-        self.phase = 0;
         let y = if self.is_step(s) {
-            self.restart(c.value)
+            self.restart(s)
         } else {
-            y
+            self.highpass.process(s)
         };
         self.smoothed.push(s);
         self.banded.push(y);
@@ -409,10 +426,10 @@ impl Pipeline {
         }
     }
 
-    /// Start the band-pass and the detector again from input level `x`;
-    /// returns the band-pass output at rest.
-    fn restart(&mut self, x: f32) -> f32 {
-        let rest = self.band.settle(x);
+    /// Start the high-pass and the detector again from low-passed level
+    /// `s`; returns the band-passed output at rest.
+    fn restart(&mut self, s: f32) -> f32 {
+        let rest = self.highpass.settle(s);
         self.detector = Detector::new(self.config.options.detector, self.fd);
         self.epoch = self.t;
         self.peak_level = None;
@@ -596,8 +613,12 @@ impl Pipeline {
             }
         }
         self.monitor.beat(peak, beat_flags.is_good());
-        if let Some(i) = ibi {
-            self.hrv.push(i, beat_flags.is_good() && self.last_good);
+        match ibi {
+            Some(i) => self.hrv.push(i, beat_flags.is_good() && self.last_good),
+            // No interval (signal lost, filters restarted): a bad entry, so
+            // no successive difference is formed across the gap.
+            None if !self.hrv.is_empty() => self.hrv.push(f32::NAN, false),
+            None => {}
         }
         self.last_good = beat_flags.is_good();
         self.last_peak = Some(peak);

@@ -33,9 +33,11 @@ impl Shape {
         let step = (from - to) / (POINTS - 1) as f32;
         for (i, slot) in v.iter_mut().enumerate() {
             let age = from - step * i as f32;
-            let a0 = max_f32(libm::floorf(age), 0.0);
-            let frac = age - a0;
-            let a0 = a0 as usize;
+            // For ages ≥ 0 truncation is floor (and a library call cheaper
+            // than none at all on a Cortex-M); below 0, clamp to the newest.
+            let whole = if age > 0.0 { age as usize } else { 0 };
+            let frac = max_f32(age - whole as f32, 0.0);
+            let a0 = whole;
             // Older sample at a0 + 1, newer at a0: interpolate in time.
             let older = get(a0 + 1);
             let newer = get(a0);

@@ -2,7 +2,7 @@
 //! hysteresis so it does not flicker.
 
 use super::events::{SignalState, StateEvent};
-use crate::math::max_f32;
+use crate::math::{max_f32, min_f32};
 
 /// Clipped share of the last [`CLIP_WINDOW_S`] above which the signal is
 /// saturated (common practice: a front end at its rails most of the time
@@ -90,16 +90,20 @@ impl Monitor {
         self.good_run = if good { self.good_run + 1 } else { 0 };
     }
 
-    /// Update once per input sample (index `n`, clipped or not, with the
-    /// recent median interval) and report a change of state.
-    pub fn sample(
+    /// Update once per block of `samples` input samples ending at input
+    /// index `n`, `clipped` of them at the rails, with the recent median
+    /// interval; report a change of state. (The pipeline calls it at the
+    /// detector's rate: state needs no finer timing.)
+    pub fn block(
         &mut self,
         n: u64,
-        clipped: bool,
+        clipped: u32,
+        samples: u32,
         median_ibi_ms: Option<f32>,
     ) -> Option<StateEvent> {
-        let c = if clipped { 1.0 } else { 0.0 };
-        self.clip_share += self.clip_alpha * (c - self.clip_share);
+        let share = clipped as f32 / samples.max(1) as f32;
+        let alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
+        self.clip_share += alpha * (share - self.clip_share);
         let key = median_ibi_ms.map(f32::to_bits);
         if key != self.silence_for {
             let silence_s =
@@ -162,14 +166,29 @@ mod tests {
         let mut m = Monitor::new(100.0);
         m.beat(0, true);
         // 3 s floor at 100 Hz: silent after sample 300.
-        assert_eq!(m.sample(300, false, None), None);
-        let e = m.sample(301, false, None).expect("no signal");
+        assert_eq!(m.block(300, 0, 1, None), None);
+        let e = m.block(301, 0, 1, None).expect("no signal");
         assert_eq!(e.state, SignalState::NoSignal);
         // With 2 s intervals the limit is 2.5 intervals: 500 samples.
         let mut m = Monitor::new(100.0);
         m.beat(0, true);
-        assert_eq!(m.sample(301, false, Some(2000.0)), None);
-        assert_eq!(m.sample(500, false, Some(2000.0)), None);
-        assert!(m.sample(501, false, Some(2000.0)).is_some());
+        assert_eq!(m.block(301, 0, 1, Some(2000.0)), None);
+        assert_eq!(m.block(500, 0, 1, Some(2000.0)), None);
+        assert!(m.block(501, 0, 1, Some(2000.0)).is_some());
+    }
+
+    #[test]
+    fn clipped_share_counts_whole_blocks() {
+        // Blocks of 4 samples, 3 clipped: a 75 % share, saturated within
+        // the 2 s window (100 Hz: 50 blocks).
+        let mut m = Monitor::new(100.0);
+        let mut saw = false;
+        for k in 0..50u64 {
+            m.beat(4 * k, true);
+            if let Some(e) = m.block(4 * k + 3, 3, 4, Some(800.0)) {
+                saw |= e.state == SignalState::Saturated;
+            }
+        }
+        assert!(saw);
     }
 }
