@@ -9,6 +9,7 @@
 #![deny(missing_docs)]
 
 pub mod cli;
+pub mod demo;
 pub mod emulate;
 pub mod filter_report;
 pub mod frontend;

@@ -37,7 +37,7 @@ fn misspelt_options_and_commands_are_usage_errors() {
         "did you mean '--band'",
     );
     check_failure(&["filtre", "--rate", "250"], USAGE, "did you mean 'filter'");
-    check_failure(&[], USAGE, "missing a command (one of: filter, ");
+    check_failure(&[], USAGE, "missing a command (one of: demo, filter, ");
 }
 
 #[test]

@@ -4,6 +4,7 @@
 //! Each subcommand lives in its own module with an `Args` struct and a
 //! `run` method; adding one means a module and a variant of [`Command`].
 
+mod demo;
 mod emulate;
 mod filter;
 mod frontend;
@@ -13,6 +14,7 @@ mod replay;
 mod report;
 mod score;
 
+pub use demo::DemoArgs;
 pub use emulate::EmulateArgs;
 pub use filter::FilterArgs;
 pub use frontend::{FrontendArgs, LoadAtArg};
@@ -36,6 +38,7 @@ pub const EXIT_REFUSED: u8 = 1;
 
 const EXAMPLES: &str = "\
 Examples:
+  plethwire demo
   plethwire filter --rate 250 --band 0.5:8 --notch 50
   plethwire replay ../shared/data/capnobase/cb0009 --out /tmp/beats
   plethwire score ../shared/data/capnobase ../shared/data/bidmc
@@ -58,6 +61,10 @@ pub struct Cli {
 /// The subcommands.
 #[derive(Subcommand, Debug)]
 pub enum Command {
+    /// The whole tool on a made-up bike-trainer ride with known beats:
+    /// stream it through the pipeline, score it, run it on the emulated
+    /// board when QEMU is there, and write a report page.
+    Demo(DemoArgs),
     /// Design a filter chain, print it as Rust and JSON with its response
     /// (design and board cascade), and plot the response as SVG.
     Filter(FilterArgs),
@@ -215,6 +222,7 @@ pub fn run(args: Vec<OsString>, out: &mut dyn Write) -> Result<(), Failure> {
     };
     let command = command_line(&args);
     match cli.command {
+        Command::Demo(demo) => demo.run(out),
         Command::Filter(filter) => filter.run(&command, out),
         Command::Replay(replay) => replay.run(out),
         Command::Score(score) => score.run(out),

@@ -60,15 +60,16 @@ impl ScoreArgs {
             rate_suffix: self.rate_suffix.clone(),
             rate_column: self.rate_column.clone(),
         };
-        let progress = indicatif_free_progress();
+        let (bar, progress) = progress_line();
         let scores = score_all(
             &self.paths,
             &self.pipeline.source(),
             self.pipeline.config(100.0),
             &refs,
             progress,
-        )
-        .map_err(Failure::refused)?;
+        );
+        bar.finish_and_clear();
+        let scores = scores.map_err(Failure::refused)?;
         let text = if self.json {
             serde_json::to_string_pretty(&scores).unwrap_or_default() + "\n"
         } else {
@@ -78,15 +79,20 @@ impl ScoreArgs {
     }
 }
 
-/// A quiet progress line on stderr when it is a terminal.
-fn indicatif_free_progress() -> impl FnMut(&str) {
+/// A spinner naming the record being scored, on stderr when it is a
+/// terminal (hidden otherwise, so pipes and JSON stay clean).
+fn progress_line() -> (indicatif::ProgressBar, impl FnMut(&str)) {
     use std::io::IsTerminal;
-    let tty = std::io::stderr().is_terminal();
-    move |name: &str| {
-        if tty {
-            eprint!("\rscoring {name}\x1b[K");
-        }
-    }
+    let bar = if std::io::stderr().is_terminal() {
+        indicatif::ProgressBar::new_spinner()
+    } else {
+        indicatif::ProgressBar::hidden()
+    };
+    let handle = bar.clone();
+    (bar, move |name: &str| {
+        handle.set_message(format!("scoring {name}"));
+        handle.tick();
+    })
 }
 
 fn pct(v: Option<f64>) -> String {
@@ -120,11 +126,7 @@ fn rate_cells(r: &Option<RateError>) -> String {
 }
 
 fn table(s: &Scores) -> String {
-    use std::io::IsTerminal;
     let mut t = String::new();
-    if std::io::stderr().is_terminal() {
-        eprint!("\r\x1b[K");
-    }
     t += &format!(
         "{:<12} {:>6} {:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7} {:>8} {:>6}\n",
         "record", "beats", "ref", "TP", "FP", "FN", "Se %", "+P %", "F1 %", "HR MAE", "secs"

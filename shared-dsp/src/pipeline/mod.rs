@@ -77,6 +77,10 @@ pub const STEP_FACTOR: f32 = 8.0;
 /// Time over which a step is measured, seconds.
 pub const STEP_S: f32 = 0.1;
 
+/// Candidates dropped as small in a row after which the next is taken as
+/// the new peak level.
+pub const RELEVEL_AFTER: u32 = 6;
+
 /// Intervals whose median is the reference for plausibility, peak search
 /// and pulse windows.
 pub const RECENT_INTERVALS: usize = 8;
@@ -221,6 +225,8 @@ pub struct Pipeline {
     peak_level: Option<f32>,
     // Clipped input samples since the last detector-rate sample.
     clipped_in_block: u32,
+    // Candidates dropped as small since the last accepted one.
+    dropped_in_row: u32,
     step_level: Option<f32>,
     restarts: u64,
     epoch: u64,
@@ -300,6 +306,7 @@ impl Pipeline {
             last_value: 0.0,
             peak_level: None,
             clipped_in_block: 0,
+            dropped_in_row: 0,
             step_level: None,
             restarts: 0,
             epoch: 0,
@@ -458,6 +465,7 @@ impl Pipeline {
         let Some(level) = self.peak_level else {
             self.peak_level = Some(a);
             self.step_level = Some(a);
+            self.dropped_in_row = 0;
             return true;
         };
         let since_ms = self
@@ -471,8 +479,20 @@ impl Pipeline {
         let small = a < SMALL_FRACTION * level;
         let too_small_for_early = early && a < EARLY_LEVEL_FRACTION * level;
         if small || too_small_for_early {
+            // A level set by an artefact would lock every real pulse out:
+            // after a run of small ones in a row, take this one as the new
+            // level (the search-back idea of Pan and Tompkins).
+            self.dropped_in_row += 1;
+            if small && !early && self.dropped_in_row >= RELEVEL_AFTER {
+                // The step reference stays: a lower one would take pulses
+                // for steps.
+                self.dropped_in_row = 0;
+                self.peak_level = Some(a);
+                return true;
+            }
             return false;
         }
+        self.dropped_in_row = 0;
         // Follow the level both ways, but let one huge artefact move it
         // only by a bounded step.
         self.peak_level = Some(level + 0.125 * (min_f32(a, 4.0 * level) - level));

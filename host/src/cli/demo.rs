@@ -1,0 +1,282 @@
+//! `plethwire demo`: the main job, start to end, on a ride of our own.
+
+use clap::Args;
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use std::io::{IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::time::{Duration, Instant};
+
+use super::Failure;
+use crate::demo::{
+    against_truth, run_board, save_ride, scenario, state_words, stream, write_report, BoardOutcome,
+    DemoResult, Progress,
+};
+use plethwire_dsp::pipeline::Config;
+
+const EXAMPLES: &str = "\
+Examples:
+  plethwire demo
+  plethwire demo --out /tmp/ride --speed 0
+  plethwire demo --no-board --json
+
+A 4-minute ride on a bike trainer with a finger-clip sensor, made up for
+this demo with known beats: rest, effort, a sprint that shakes the clip,
+recovery, the clip slipping off for 6 s, cool-down. The ride is streamed
+through the beat pipeline, scored against its true beats, run through the
+emulated board when QEMU is installed (and compared bit for bit), saved as
+a WFDB record, and summed up in a report page to open in a browser.
+
+Not a medical device; not for diagnosis. Exit status: 0 done, 1 the board
+disagreed with the host or a file could not be written, 2 the command line
+could not be understood.";
+
+/// Options of `plethwire demo`.
+#[derive(Args, Debug, Clone, PartialEq)]
+#[command(after_help = EXAMPLES)]
+pub struct DemoArgs {
+    /// Folder for the ride, its beats and the report.
+    #[arg(long, value_name = "DIR", default_value = "plethwire-demo")]
+    pub out: PathBuf,
+
+    /// How many times faster than real time to stream the ride on a
+    /// terminal (0: as fast as possible; never paced in a pipe).
+    #[arg(long, value_name = "X", default_value_t = 40.0)]
+    pub speed: f64,
+
+    /// Skip the emulated board even if QEMU is installed.
+    #[arg(long)]
+    pub no_board: bool,
+
+    /// Seed of the ride's randomness (beat-to-beat variability, noise).
+    #[arg(long, value_name = "N", default_value_t = 7)]
+    pub seed: u64,
+
+    /// Print the results as JSON instead of the running commentary.
+    #[arg(long)]
+    pub json: bool,
+}
+
+fn firmware_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../firmware")
+}
+
+/// Build the emulated firmware when the Rust target for it is there.
+fn build_firmware(say: &mut dyn FnMut(&str)) -> Result<(), String> {
+    let dir = firmware_dir();
+    if !dir.join("Cargo.toml").is_file() {
+        return Err("the firmware sources are not next to this program".into());
+    }
+    let targets = std::process::Command::new("rustup")
+        .args(["target", "list", "--installed"])
+        .output()
+        .map(|o| String::from_utf8_lossy(&o.stdout).into_owned())
+        .unwrap_or_default();
+    if !targets.lines().any(|l| l.trim() == "thumbv7em-none-eabihf") {
+        return Err("the Rust target thumbv7em-none-eabihf is not installed (`rustup target add thumbv7em-none-eabihf`)".into());
+    }
+    say("building the emulated firmware (cd firmware && cargo build --release; quick when up to date) ...");
+    let status =
+        std::process::Command::new(std::env::var_os("CARGO").unwrap_or_else(|| "cargo".into()))
+            .args(["build", "--release", "--quiet"])
+            .current_dir(&dir)
+            .env_remove("CARGO_TARGET_DIR")
+            .env_remove("RUSTFLAGS")
+            .env_remove("CARGO_BUILD_TARGET")
+            .env_remove("CARGO_ENCODED_RUSTFLAGS")
+            .status()
+            .map_err(|e| format!("cannot run cargo: {e}"))?;
+    if status.success() {
+        Ok(())
+    } else {
+        Err(format!("cargo build failed ({status})"))
+    }
+}
+
+impl DemoArgs {
+    /// Run the demo.
+    pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
+        if !(self.speed.is_finite() && self.speed >= 0.0) {
+            return Err(Failure::usage("--speed must be 0 or a positive number"));
+        }
+        let chatty = !self.json;
+        let mut lines: Vec<String> = Vec::new();
+        let say = |out: &mut dyn Write, text: &str| -> Result<(), Failure> {
+            if chatty {
+                writeln!(out, "{text}").map_err(Failure::output)?;
+            }
+            Ok(())
+        };
+        say(out, "plethwire demo: a finger-clip pulse sensor on a bike trainer (made up, with known beats)")?;
+        say(out, "  not a medical device, not for diagnosis; wire real sensors to people only through a battery or a USB isolator (IEC 60601-1 practice)")?;
+        std::fs::create_dir_all(&self.out).map_err(|e| {
+            Failure::refused(format!(
+                "{}: cannot create the folder: {e}",
+                self.out.display()
+            ))
+        })?;
+        let ride = scenario::ride(self.seed)
+            .map_err(|e| Failure::refused(format!("cannot make the ride: {e}")))?;
+        let (samples, mut files) = save_ride(&self.out, &ride).map_err(Failure::refused)?;
+        let config = Config::new(ride.sample_rate_hz as f32);
+        say(
+            out,
+            &format!(
+                "  {} s at {} Hz, {} true beats; streaming it through the beat pipeline ...",
+                scenario::DURATION_S,
+                scenario::RATE_HZ,
+                ride.beats.len()
+            ),
+        )?;
+
+        // Stream, paced on a terminal so the events can be watched.
+        let tty = std::io::stdout().is_terminal() && chatty;
+        let pace = if tty && self.speed > 0.0 {
+            Some(self.speed)
+        } else {
+            None
+        };
+        let bar = if tty {
+            ProgressBar::with_draw_target(Some(samples.len() as u64), ProgressDrawTarget::stderr())
+        } else {
+            ProgressBar::hidden()
+        };
+        bar.set_style(
+            ProgressStyle::with_template("  {bar:40} {percent:>3}%  {msg}")
+                .unwrap_or_else(|_| ProgressStyle::default_bar()),
+        );
+        let fs = ride.sample_rate_hz;
+        let start = Instant::now();
+        let mut last_shown = -10.0;
+        let replay = stream(&samples, config, &mut |p| match p {
+            Progress::Sample(n) => {
+                if n % 25 == 0 {
+                    bar.set_position(n);
+                    if let Some(x) = pace {
+                        let due = Duration::from_secs_f64(n as f64 / fs / x);
+                        if let Some(wait) = due.checked_sub(start.elapsed()) {
+                            std::thread::sleep(wait);
+                        }
+                    }
+                }
+            }
+            Progress::Phase(ph) => lines.push(format!("  {:>6.1} s  ── {}", ph.start_s, ph.what)),
+            Progress::State(s) => lines.push(format!(
+                "  {:>6.1} s  state: {}",
+                s.at as f64 / fs,
+                state_words(s.state)
+            )),
+            Progress::Beat(b) => {
+                let t = b.peak_index as f64 / fs;
+                bar.set_message(format!(
+                    "{:>5.1} s  HR {}",
+                    t,
+                    b.hr_smoothed_bpm
+                        .map_or("-".into(), |h| format!("{h:.0} bpm"))
+                ));
+                // One beat line every 10 s of ride keeps the stream readable.
+                if t - last_shown >= 10.0 {
+                    last_shown = t;
+                    lines.push(format!(
+                        "  {:>6.1} s  beat: IBI {} ms, HR {} bpm, quality {:.2}{}",
+                        t,
+                        b.ibi_ms.map_or("-".into(), |i| format!("{i:.0}")),
+                        b.hr_smoothed_bpm.map_or("-".into(), |h| format!("{h:.0}")),
+                        b.quality,
+                        if b.flags.is_good() { "" } else { " (flagged)" }
+                    ));
+                }
+            }
+        });
+        // Print the commentary as it came (above the bar on a terminal).
+        for l in lines.drain(..) {
+            if chatty {
+                if tty {
+                    bar.println(&l);
+                } else {
+                    writeln!(out, "{l}").map_err(Failure::output)?;
+                }
+            }
+        }
+        bar.finish_and_clear();
+
+        let truth = against_truth(&ride, &replay);
+        let summary = replay.summary();
+        say(
+            out,
+            &format!(
+            "  found {} beats ({:.1} % good): against the true beats TP {} FP {} FN {}, F1 {:.2} %",
+            summary.beats,
+            100.0 * summary.good_share,
+            truth.tp,
+            truth.fp,
+            truth.fn_,
+            100.0 * truth.f1().unwrap_or(0.0)
+        ),
+        )?;
+        if let Some(h) = &summary.heart_rate_bpm {
+            say(
+                out,
+                &format!(
+                    "  heart rate {:.0} to {:.0} bpm (mean {:.0}); events {:.0} ms after each peak",
+                    h.min,
+                    h.max,
+                    h.mean,
+                    summary.latency_median_ms.unwrap_or(f64::NAN)
+                ),
+            )?;
+        }
+
+        let board = if self.no_board {
+            BoardOutcome::NotRun("skipped (--no-board)".into())
+        } else {
+            let mut note = |t: &str| {
+                if chatty {
+                    let _ = writeln!(std::io::stderr(), "  {t}");
+                }
+            };
+            run_board(&samples, config, &replay, &mut || build_firmware(&mut note))
+        };
+        match &board {
+            BoardOutcome::Agreed { beats, states } => say(out, &format!(
+                "  emulated board (QEMU, Cortex-M4F): the same {beats} beats and {states} state changes, bit for bit"
+            ))?,
+            BoardOutcome::Disagreed(d) => say(out, &format!("  emulated board DISAGREES with the host: {d}"))?,
+            BoardOutcome::NotRun(why) => say(out, &format!("  emulated board not run: {why}"))?,
+        }
+
+        let ann = crate::replay::write_beat_annotations(
+            &self.out,
+            "ride",
+            crate::replay::DEFAULT_ANNOTATOR,
+            &replay,
+        )
+        .map_err(Failure::refused)?;
+        files.push(ann.display().to_string());
+        let report =
+            write_report(&self.out, &samples, config, &replay, &ride).map_err(Failure::refused)?;
+        files.push(report.display().to_string());
+        say(out, &format!("  wrote the ride as WFDB (ride.hea, ride.dat, true beats ride.truth, found beats ride.{})", crate::replay::DEFAULT_ANNOTATOR))?;
+        say(
+            out,
+            &format!("  report: {}  (open it in a browser)", report.display()),
+        )?;
+
+        let result = DemoResult {
+            summary,
+            against_truth: truth,
+            true_beats: ride.beats.len(),
+            board: board.clone(),
+            files,
+        };
+        if self.json {
+            let text = serde_json::to_string_pretty(&result).unwrap_or_default() + "\n";
+            out.write_all(text.as_bytes()).map_err(Failure::output)?;
+        }
+        if let BoardOutcome::Disagreed(d) = board {
+            return Err(Failure::refused(format!(
+                "the emulated board disagrees with the host: {d}"
+            )));
+        }
+        Ok(())
+    }
+}
