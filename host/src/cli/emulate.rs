@@ -19,6 +19,7 @@ Examples:
   plethwire emulate ../shared/data/capnobase/cb0009 --out /tmp/beats
   plethwire emulate ../shared/data/bidmc/bidmc01 --uart --seconds 60
   plethwire emulate ../shared/data/bidmc/bidmc01 --count-instructions --quiet
+  plethwire emulate ../shared/data/bidmc/bidmc01 --seconds 30 --json
 
 Runs the firmware (firmware/emulated, built with `cd firmware && cargo build
 --release`) in QEMU's mps2-an386 board, prints each beat and state change it
@@ -65,6 +66,11 @@ pub struct EmulateArgs {
     /// Print only the summary, not every beat.
     #[arg(long)]
     pub quiet: bool,
+
+    /// Print one JSON document with the results instead of the lines
+    /// (implies --quiet).
+    #[arg(long)]
+    pub json: bool,
 
     /// Signal source and pipeline settings.
     #[command(flatten)]
@@ -167,12 +173,15 @@ impl EmulateArgs {
                 "semihosting files"
             }
         );
-        out.write_all(head.as_bytes()).map_err(Failure::output)?;
+        let quiet = self.quiet || self.json;
+        if !self.json {
+            out.write_all(head.as_bytes()).map_err(Failure::output)?;
+        }
         let mut failed_output = None;
         let mut show = |f: &Frame| {
             let line = match &f.message {
-                Message::Beat(b) if !self.quiet => beat_line(b, fs),
-                Message::State(s) if !self.quiet => state_line(s, fs),
+                Message::Beat(b) if !quiet => beat_line(b, fs),
+                Message::State(s) if !quiet => state_line(s, fs),
                 _ => return,
             };
             if failed_output.is_none() {
@@ -210,7 +219,26 @@ impl EmulateArgs {
         let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &board)
             .map_err(Failure::refused)?;
         let agreement = compare(&board.beats, &board.states, &host);
-        let text = summary(&session, &board.summary(), agreement.as_ref().ok(), &ann);
+        let text = if self.json {
+            let doc = serde_json::json!({
+                "record": rec.name,
+                "link": if self.uart { "uart" } else { "files" },
+                "seconds": n as f64 / fs,
+                "frames": {
+                    "decoded": session.stats.frames,
+                    "damaged": session.stats.damaged,
+                    "lost": session.stats.lost_frames,
+                },
+                "summary": board.summary(),
+                "identical_to_host": agreement.is_ok(),
+                "difference": agreement.as_ref().err(),
+                "perf": session.perf,
+                "annotations": ann.display().to_string(),
+            });
+            serde_json::to_string_pretty(&doc).unwrap_or_default() + "\n"
+        } else {
+            summary(&session, &board.summary(), agreement.as_ref().ok(), &ann)
+        };
         out.write_all(text.as_bytes()).map_err(Failure::output)?;
         agreement.map(|_| ()).map_err(|e| {
             Failure::refused(format!(
