@@ -259,19 +259,7 @@ fn summary(
         "  frames      {} decoded, {} damaged, {} lost\n",
         st.frames, st.damaged, st.lost_frames
     );
-    t += &format!(
-        "  beats       {} ({} good, {:.1} %)\n",
-        s.beats,
-        s.good_beats,
-        100.0 * s.good_share
-    );
-    t += &match &s.heart_rate_bpm {
-        Some(h) => format!(
-            "  heart rate  mean {:.1} bpm, min {:.1}, max {:.1}\n",
-            h.mean, h.min, h.max
-        ),
-        None => "  heart rate  none (no good beats)\n".into(),
-    };
+    t += &super::replay::beats_and_rate_lines(s);
     t += &format!(
         "  input       {} samples replaced (not a number), {} at the rails\n",
         s.rejected_samples, s.clipped_samples

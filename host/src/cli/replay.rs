@@ -150,9 +150,10 @@ fn opt(v: Option<f32>, unit: &str) -> String {
     v.map_or("-".into(), |v| format!("{v:.1} {unit}"))
 }
 
-fn human(name: &str, signal: &str, fs: f64, s: &Summary, written: &[String]) -> String {
-    let mut t = format!("{name}: {:.1} s of {signal} at {fs} Hz\n", s.duration_s);
-    t += &format!(
+/// The summary's beat count and heart-rate lines, as `replay` and
+/// `emulate` print them.
+pub(super) fn beats_and_rate_lines(s: &Summary) -> String {
+    let mut t = format!(
         "  beats       {} ({} good, {:.1} %)\n",
         s.beats,
         s.good_beats,
@@ -165,6 +166,12 @@ fn human(name: &str, signal: &str, fs: f64, s: &Summary, written: &[String]) -> 
         ),
         None => "  heart rate  none (no good beats)\n".into(),
     };
+    t
+}
+
+fn human(name: &str, signal: &str, fs: f64, s: &Summary, written: &[String]) -> String {
+    let mut t = format!("{name}: {:.1} s of {signal} at {fs} Hz\n", s.duration_s);
+    t += &beats_and_rate_lines(s);
     t += &format!(
         "  HRV         {} NN intervals: SDNN {}, RMSSD {}, pNN50 {}\n",
         s.hrv.nn_intervals,
