@@ -20,7 +20,7 @@ mod spec;
 pub use plot::{phase_near_deg, render_svg, unwrapped_phase_deg, write_svg, Sweep, SWEEP_POINTS};
 // Shared with `plethwire frontend`'s plot, so both look alike.
 pub(crate) use plot::{
-    hz_label, padded_range, wrap_words, y_labeller, BAND_COLOUR, BOARD_COLOUR, CORNER_COLOUR,
+    draw_band_and_marks, hz_label, padded_range, wrap_words, y_labeller, BAND_COLOUR, BOARD_COLOUR,
     DESIGN_COLOUR, HEART_BAND_HZ,
 };
 pub use render::{check_const_name, human_report, response_table, rust_const_block};

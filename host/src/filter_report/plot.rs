@@ -183,6 +183,48 @@ struct Curves<'c> {
     legend: bool,
 }
 
+/// A response panel: log-frequency x axis, linear y.
+pub(crate) type LogPanelChart<'a, 'b> = ChartContext<
+    'a,
+    SVGBackend<'b>,
+    Cartesian2d<LogCoord<f64>, plotters::coord::types::RangedCoordf64>,
+>;
+
+/// Shade the heart band (clipped to the x range `x`) with its legend entry,
+/// and draw a dashed line at each of `marks` inside it, over the y range
+/// `y`: the same on every response plot.
+pub(crate) fn draw_band_and_marks(
+    chart: &mut LogPanelChart<'_, '_>,
+    x: (f64, f64),
+    y: (f64, f64),
+    marks: &[f64],
+) -> Result<(), Box<dyn Error>> {
+    let (band_lo, band_hi) = (HEART_BAND_HZ.0.max(x.0), HEART_BAND_HZ.1.min(x.1));
+    if band_lo < band_hi {
+        chart
+            .draw_series(std::iter::once(Rectangle::new(
+                [(band_lo, y.0), (band_hi, y.1)],
+                BAND_COLOUR.mix(0.13).filled(),
+            )))?
+            .label("heart band 0.5-3.7 Hz (30-220 bpm)")
+            .legend(|(px, py)| {
+                Rectangle::new(
+                    [(px, py - 5), (px + 22, py + 5)],
+                    BAND_COLOUR.mix(0.3).filled(),
+                )
+            });
+    }
+    for &f in marks.iter().filter(|&&f| f > x.0 && f < x.1) {
+        chart.draw_series(DashedLineSeries::new(
+            [(f, y.0), (f, y.1)],
+            3,
+            4,
+            CORNER_COLOUR.stroke_width(1),
+        ))?;
+    }
+    Ok(())
+}
+
 fn draw_panel(
     area: &Panel<'_>,
     x: (f64, f64),
@@ -205,29 +247,7 @@ fn draw_panel(
         .bold_line_style(RGBColor(215, 215, 215))
         .light_line_style(RGBColor(246, 246, 246))
         .draw()?;
-    let (band_lo, band_hi) = (HEART_BAND_HZ.0.max(x.0), HEART_BAND_HZ.1.min(x.1));
-    if band_lo < band_hi {
-        chart
-            .draw_series(std::iter::once(Rectangle::new(
-                [(band_lo, c.y.0), (band_hi, c.y.1)],
-                BAND_COLOUR.mix(0.13).filled(),
-            )))?
-            .label("heart band 0.5-3.7 Hz (30-220 bpm)")
-            .legend(|(px, py)| {
-                Rectangle::new(
-                    [(px, py - 5), (px + 22, py + 5)],
-                    BAND_COLOUR.mix(0.3).filled(),
-                )
-            });
-    }
-    for &f in corners.iter().filter(|&&f| f > x.0 && f < x.1) {
-        chart.draw_series(DashedLineSeries::new(
-            [(f, c.y.0), (f, c.y.1)],
-            3,
-            4,
-            CORNER_COLOUR.stroke_width(1),
-        ))?;
-    }
+    draw_band_and_marks(&mut chart, x, c.y, corners)?;
     chart
         .draw_series(LineSeries::new(c.design, DESIGN_COLOUR.stroke_width(2)))?
         .label("design (f64)")

@@ -8,13 +8,13 @@ use plotters::prelude::*;
 use std::error::Error;
 use std::path::Path;
 
-use super::band::{ALLOWED_LOSS_DB, HEART_BAND_HZ};
+use super::band::ALLOWED_LOSS_DB;
 use super::quantity::sig3;
 use super::report::FrontendReport;
 use super::FrontendError;
 use crate::filter_report::{
-    hz_label, padded_range, unwrapped_phase_deg, wrap_words, y_labeller, BAND_COLOUR, BOARD_COLOUR,
-    CORNER_COLOUR, DESIGN_COLOUR,
+    draw_band_and_marks, hz_label, padded_range, unwrapped_phase_deg, wrap_words, y_labeller,
+    BAND_COLOUR, BOARD_COLOUR, DESIGN_COLOUR,
 };
 
 /// The plot's frequency axis, Hz.
@@ -119,26 +119,7 @@ fn draw_panel(
         .bold_line_style(RGBColor(215, 215, 215))
         .light_line_style(RGBColor(246, 246, 246))
         .draw()?;
-    chart
-        .draw_series(std::iter::once(Rectangle::new(
-            [(HEART_BAND_HZ.0, spec.y.0), (HEART_BAND_HZ.1, spec.y.1)],
-            BAND_COLOUR.mix(0.13).filled(),
-        )))?
-        .label("heart band 0.5-3.7 Hz (30-220 bpm)")
-        .legend(|(px, py)| {
-            Rectangle::new(
-                [(px, py - 5), (px + 22, py + 5)],
-                BAND_COLOUR.mix(0.3).filled(),
-            )
-        });
-    for &f in marks.iter().filter(|&&f| f > x.0 && f < x.1) {
-        chart.draw_series(DashedLineSeries::new(
-            [(f, spec.y.0), (f, spec.y.1)],
-            3,
-            4,
-            CORNER_COLOUR.stroke_width(1),
-        ))?;
-    }
+    draw_band_and_marks(&mut chart, x, spec.y, marks)?;
     if spec.gain {
         chart
             .draw_series(DashedLineSeries::new(
