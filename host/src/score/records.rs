@@ -1,0 +1,202 @@
+//! Scoring whole recordings: beats against a reference annotation file,
+//! heart rate against a reference numerics table, per record and pooled.
+
+use super::{match_beats, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
+use crate::io::{annotation_path, read_annotations, read_numerics};
+use crate::replay::{load, replay, Recording, Replay, ReplayError, Source, Summary};
+use plethwire_dsp::pipeline::Config;
+use serde::Serialize;
+use std::path::{Path, PathBuf};
+
+/// What to compare against.
+#[derive(Debug, Clone, PartialEq)]
+pub struct References {
+    /// Annotator of the reference beats (`<record>.<annotator>`).
+    pub annotator: String,
+    /// Suffix of the reference heart-rate table (`<record><suffix>`).
+    pub rate_suffix: String,
+    /// Column of that table holding the heart rate, bpm.
+    pub rate_column: String,
+}
+
+impl Default for References {
+    fn default() -> Self {
+        Self {
+            annotator: "peak".into(),
+            rate_suffix: "n.csv".into(),
+            rate_column: "pulse_bpm".into(),
+        }
+    }
+}
+
+/// One recording's score.
+#[derive(Debug, Clone, Serialize)]
+pub struct RecordScore {
+    /// Record name.
+    pub record: String,
+    /// Beat comparison, when reference beats exist.
+    pub beats: Option<MatchCounts>,
+    /// Reference beats.
+    pub reference_beats: Option<usize>,
+    /// Heart-rate comparison, when a reference series exists.
+    pub heart_rate: Option<RateError>,
+    /// The replay's summary.
+    pub summary: Summary,
+}
+
+/// Scores of several recordings and their pooled totals.
+#[derive(Debug, Clone, Serialize)]
+pub struct Scores {
+    /// Per record, in the order scored.
+    pub records: Vec<RecordScore>,
+    /// Beat counts summed over the records that have reference beats.
+    pub pooled_beats: Option<MatchCounts>,
+    /// Heart-rate error pooled over every compared second.
+    pub pooled_heart_rate: Option<RateError>,
+}
+
+/// Every WFDB record in `paths`: records as given, folders expanded to
+/// the records whose headers they hold (sorted by name).
+pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
+    let mut out = Vec::new();
+    for p in paths {
+        if p.is_dir() {
+            let entries = std::fs::read_dir(p).map_err(|e| {
+                ReplayError(format!("{}: cannot list the folder: {e}", p.display()))
+            })?;
+            let mut found: Vec<PathBuf> = entries
+                .filter_map(|e| e.ok().map(|e| e.path()))
+                .filter(|f| f.extension().is_some_and(|x| x == "hea"))
+                .map(|f| f.with_extension(""))
+                .collect();
+            if found.is_empty() {
+                return Err(ReplayError(format!(
+                    "{}: no WFDB records (.hea) in this folder",
+                    p.display()
+                )));
+            }
+            found.sort();
+            out.extend(found);
+        } else {
+            out.push(p.clone());
+        }
+    }
+    Ok(out)
+}
+
+/// Reference beats of the record at `record` (path without
+/// extension): the beat annotations of `<record>.<annotator>` as sample
+/// indices, or `None` when that file does not exist.
+pub fn reference_beats(record: &Path, annotator: &str) -> Result<Option<Vec<u64>>, ReplayError> {
+    let ann = annotation_path(record, annotator);
+    if !ann.exists() {
+        return Ok(None);
+    }
+    Ok(Some(
+        read_annotations(&ann)?
+            .iter()
+            .filter(|a| a.is_beat())
+            .map(|a| a.sample.max(0) as u64)
+            .collect(),
+    ))
+}
+
+/// A heart-rate series: `(time_s, bpm)`, `None` for seconds without a
+/// value.
+pub type RateSeries = Vec<(f64, Option<f64>)>;
+
+/// The reference heart-rate series of the record at `record`:
+/// `(time_s, bpm)` from column `refs.rate_column` of
+/// `<record><refs.rate_suffix>`, or `None` when that table does not
+/// exist. A table without the column is an error.
+pub fn reference_rate(record: &Path, refs: &References) -> Result<Option<RateSeries>, ReplayError> {
+    let table = numerics_path(record, &refs.rate_suffix);
+    if !table.exists() {
+        return Ok(None);
+    }
+    let n = read_numerics(&table)?;
+    let column = n.column(&refs.rate_column).ok_or_else(|| {
+        ReplayError(format!(
+            "{}: no column '{}' (columns: {})",
+            table.display(),
+            refs.rate_column,
+            n.names.join(", ")
+        ))
+    })?;
+    Ok(Some(
+        n.time_s
+            .iter()
+            .copied()
+            .zip(column.iter().copied())
+            .collect(),
+    ))
+}
+
+/// Score one loaded and replayed recording.
+pub fn score_one(
+    rec: &Recording,
+    run: &Replay,
+    refs: &References,
+) -> Result<RecordScore, ReplayError> {
+    let reference = reference_beats(&rec.path, &refs.annotator)?;
+    let tol = (MATCH_WINDOW_S * run.fs).round() as u64;
+    let beats = reference
+        .as_ref()
+        .map(|r| match_beats(r, &run.peaks(), tol));
+    let heart_rate =
+        reference_rate(&rec.path, refs)?.map(|series| rate_error(&run.heart_rate_track(), &series));
+    Ok(RecordScore {
+        record: rec.name.clone(),
+        beats,
+        reference_beats: reference.map(|r| r.len()),
+        heart_rate,
+        summary: run.summary(),
+    })
+}
+
+fn numerics_path(record: &Path, suffix: &str) -> PathBuf {
+    let mut name = record.file_name().unwrap_or_default().to_os_string();
+    name.push(suffix);
+    record.with_file_name(name)
+}
+
+/// Load, replay and score every record in `paths` with `config`'s
+/// options (the sample rate comes from each record); `progress` is
+/// told each record's name before it runs.
+pub fn score_all(
+    paths: &[PathBuf],
+    source: &Source,
+    config: Config,
+    refs: &References,
+    mut progress: impl FnMut(&str),
+) -> Result<Scores, ReplayError> {
+    let mut records = Vec::new();
+    for path in expand(paths)? {
+        progress(&path.display().to_string());
+        let rec = load(&path, source)?;
+        let cfg = Config {
+            sample_rate_hz: rec.signal.fs as f32,
+            ..config
+        };
+        let run = replay(&rec.signal.samples, cfg)
+            .map_err(|e| ReplayError(format!("{}: {e}", path.display())))?;
+        records.push(score_one(&rec, &run, refs)?);
+    }
+    let mut pooled_beats: Option<MatchCounts> = None;
+    let mut pooled_heart_rate: Option<RateError> = None;
+    for r in &records {
+        if let Some(b) = &r.beats {
+            pooled_beats.get_or_insert_with(MatchCounts::default).add(b);
+        }
+        if let Some(h) = &r.heart_rate {
+            pooled_heart_rate
+                .get_or_insert_with(RateError::default)
+                .add(h);
+        }
+    }
+    Ok(Scores {
+        records,
+        pooled_beats,
+        pooled_heart_rate,
+    })
+}
