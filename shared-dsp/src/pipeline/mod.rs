@@ -46,6 +46,7 @@ use crate::design::{butterworth_highpass, butterworth_lowpass};
 use crate::filter::{Cascade, Delta};
 use crate::hrv::{HrvStats, HrvWindow};
 use crate::math::{max_f32, min_f32};
+use crate::response::response;
 use crate::DesignError;
 use condition::Conditioner;
 use quality::{Shape, Template};
@@ -81,6 +82,15 @@ pub const STEP_S: f32 = 0.1;
 /// the new peak level.
 pub const RELEVEL_AFTER: u32 = 6;
 
+/// Frequency at which the low-pass's group delay is taken to move peaks
+/// and onsets back to where they are in the input, Hz: a pulse's
+/// fundamental (72 bpm), where the systolic upstroke's energy is.
+pub const DELAY_AT_HZ: f64 = 1.2;
+
+/// A candidate this soon after the last beat is the same pulse found
+/// again, ms (three quarters of the shortest plausible interval).
+pub const DUPLICATE_MS: f32 = 0.75 * rate::MIN_IBI_MS;
+
 /// Intervals whose median is the reference for plausibility, peak search
 /// and pulse windows.
 pub const RECENT_INTERVALS: usize = 8;
@@ -88,8 +98,25 @@ pub const RECENT_INTERVALS: usize = 8;
 /// Intervals kept for heart-rate variability (about two minutes at 60 bpm).
 pub const HRV_INTERVALS: usize = 128;
 
-/// Detector-rate samples kept for pulse shapes and clipping marks.
-const SHAPE_RING: usize = 512;
+/// Detector-rate samples kept for pulse shapes and clipping marks (2 s at
+/// 125 Hz: a 30 bpm pulse's foot and shape, at the latest it is judged).
+const SHAPE_RING: usize = 256;
+
+/// Input samples kept to place each peak on the input itself (0.5 s at
+/// 1000 Hz, 2 s at 250 Hz: longer than an event's latency at the usual
+/// rates; beyond it the delay-compensated smoothed peak stands).
+const INPUT_RING: usize = 512;
+
+/// Half-width of the search for the input's maximum around the
+/// delay-compensated smoothed peak, seconds: the low-pass leans an
+/// asymmetric pulse's peak later by up to ~30 ms beyond its group delay.
+pub const PEAK_REFINE_S: f32 = 0.04;
+
+/// The peak is where the input first comes within this fraction of the
+/// pulse height of its maximum (about one ADC step of a typical pulse): a
+/// flat or slowly rising top, common in finger pulses with a late
+/// systolic shoulder, would otherwise put the peak at its far end.
+pub const TOP_FRACTION: f32 = 0.005;
 
 /// A detected beat before bookkeeping, at the detector's rate.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -221,6 +248,9 @@ pub struct Pipeline {
     last_peak: Option<u64>,
     // Sub-sample offset of the last peak, input samples.
     last_frac: f32,
+    // Group delay of the low-pass near the pulse's fundamental, input
+    // samples: subtracted so peaks and onsets are those of the input.
+    lowpass_delay: f32,
     last_value: f32,
     peak_level: Option<f32>,
     // Clipped input samples since the last detector-rate sample.
@@ -240,6 +270,8 @@ pub struct Pipeline {
     // odd interval early on cannot lock every later beat out.
     all_intervals: Intervals,
     hrv: HrvWindow<HRV_INTERVALS>,
+    input: Ring<INPUT_RING>,
+    refine: usize,
 }
 
 // Per detector-rate sample: bit 0 clipped, bit 1 replaced (not a number).
@@ -268,7 +300,10 @@ impl Pipeline {
         // detector's rate: a band-pass of the same four poles, but only one
         // section runs per input sample. The low-pass also keeps the
         // pulse's shape for placing peaks, without ADC noise or steps.
-        let lowpass = butterworth_lowpass(2, o.band_high_hz as f64, fs64)?.cascade()?;
+        let lowpass_design = butterworth_lowpass(2, o.band_high_hz as f64, fs64)?;
+        let lowpass_delay =
+            (response(lowpass_design.sections(), DELAY_AT_HZ, fs64).group_delay_s * fs64) as f32;
+        let lowpass = lowpass_design.cascade()?;
         let highpass = butterworth_highpass(2, o.band_low_hz as f64, fd as f64)?.cascade()?;
         let rails = match o.rails {
             Some((low, high)) => Rails::Known { low, high },
@@ -302,6 +337,7 @@ impl Pipeline {
             started: false,
             last_peak: None,
             last_frac: 0.0,
+            lowpass_delay,
             last_good: false,
             last_value: 0.0,
             peak_level: None,
@@ -311,6 +347,8 @@ impl Pipeline {
             restarts: 0,
             epoch: 0,
             hrv: HrvWindow::new(),
+            input: Ring::new(),
+            refine: (libm::roundf(PEAK_REFINE_S * fs) as usize).max(1),
         })
     }
 
@@ -366,6 +404,7 @@ impl Pipeline {
             self.started = true;
         }
         self.last_value = c.value;
+        self.input.push(c.value);
         let s = self.lowpass.process(c.value);
         if c.clipped {
             self.mark |= MARK_CLIPPED;
@@ -413,8 +452,9 @@ impl Pipeline {
             cand.onset = cand.onset.map(|o| o + self.epoch);
             let peak_d = self.locate_peak(now, cand.peak);
             let height = self.pulse_height(now, peak_d);
-            if self.accept(self.to_input(peak_d), height) {
-                out.beat = Some(self.beat(&cand, peak_d, height, now, n));
+            let (peak, frac) = self.input_peak(peak_d, height, now, n);
+            if self.accept(peak, height) {
+                out.beat = Some(self.beat(&cand, peak, frac, height, n));
             }
         }
         out
@@ -471,6 +511,11 @@ impl Pipeline {
         let since_ms = self
             .last_peak
             .map(|p| peak.saturating_sub(p) as f32 * 1000.0 / self.fs);
+        if since_ms.is_some_and(|s| s < DUPLICATE_MS) {
+            // The same pulse found twice (its top is placed on the input,
+            // so two candidates can land on it), or faster than any heart.
+            return false;
+        }
         let median = self.recent_ibi;
         let early = match (since_ms, median) {
             (Some(s), Some(m)) => s < EARLY_FRACTION * m,
@@ -502,18 +547,29 @@ impl Pipeline {
 
     /// At the end of a recording: feed the last value again for long
     /// enough to close any beat still open, and hand over the beats whose
-    /// peaks lie within the recording. A live stream never calls this.
+    /// tops lie wholly within the recording. A live stream never calls this.
     pub fn finish(&mut self, mut emit: impl FnMut(BeatEvent)) {
         let end = self.n;
         let flush = (1.5 * self.fs) as u64;
         let v = self.last_value;
+        // A peak whose top reaches the end may be an upstroke cut short.
+        let whole_before = end.saturating_sub(self.refine as u64);
         for _ in 0..flush {
             if let Some(b) = self.push(v).beat {
-                if b.peak_index < end {
+                if b.peak_index < whole_before {
                     emit(b);
                 }
             }
         }
+    }
+
+    /// The onset at detector index `onset` as an input index, moved back by
+    /// the low-pass's delay as the peak is; `None` unless it comes before
+    /// the beat's own peak (after a restart or an artefact the detector's
+    /// onset can belong to another wave).
+    fn onset_index(&self, onset: u64, peak: u64) -> Option<u64> {
+        let at = self.to_input(onset) as i64 - libm::roundf(self.lowpass_delay) as i64;
+        (at >= 0 && (at as u64) < peak).then_some(at as u64)
     }
 
     fn to_input(&self, detector_index: u64) -> u64 {
@@ -542,6 +598,72 @@ impl Pipeline {
         }
     }
 
+    /// Where the peak lies in the input, as an input index and a sub-sample
+    /// offset (−1 to ½ input samples, later positive): the smoothed
+    /// signal's peak at detector index `peak_d`, refined between samples
+    /// and moved back by the low-pass's group delay; then the input's own
+    /// maximum within [`PEAK_REFINE_S`] of there, and the first sample
+    /// within [`TOP_FRACTION`] of `height` of it, with the crossing
+    /// interpolated between samples for the interval. `now` is the detector
+    /// index and `n` the input index of the newest sample. Beyond the input
+    /// ring (slow events at 1 kHz) the compensated smoothed peak stands.
+    fn input_peak(&self, peak_d: u64, height: f32, now: u64, n: u64) -> (u64, f32) {
+        let shift =
+            self.peak_offset((now - peak_d) as usize) * self.decim as f32 - self.lowpass_delay;
+        let guess = self.to_input(peak_d) as f32 + shift;
+        // Age of the guess in input samples (the newest input is age 0).
+        let age = n as f32 - guess;
+        let held = self.input.len();
+        let newest = libm::roundf(age) as i64 - self.refine as i64;
+        let oldest = libm::roundf(age) as i64 + self.refine as i64;
+        if newest < 1 || oldest + 1 >= held as i64 {
+            let whole = libm::roundf(guess);
+            return ((whole as i64).max(0) as u64, guess - whole);
+        }
+        let (newest, oldest) = (newest as usize, oldest as usize);
+        let mut best = f32::NEG_INFINITY;
+        let mut best_age = oldest;
+        for a in (newest..=oldest).rev() {
+            let v = self.input.at(a);
+            if v > best {
+                best = v;
+                best_age = a;
+            }
+        }
+        // The top is where the input first comes within TOP_FRACTION of
+        // the pulse height of that maximum.
+        let level = best - TOP_FRACTION * max_f32(height, 0.0);
+        let mut at = best_age;
+        for a in (best_age..=oldest).rev() {
+            if self.input.at(a) >= level {
+                at = a;
+                break;
+            }
+        }
+        let (older, v, newer) = (
+            self.input.at(at + 1),
+            self.input.at(at),
+            self.input.at(at - 1),
+        );
+        let frac = if at == best_age && newer < v {
+            // A single-sample top: the vertex of the parabola through it
+            // and its neighbours (at 25–50 Hz a whole-sample peak would put
+            // up to ±20 ms of jitter into every interval).
+            let curvature = older - 2.0 * v + newer;
+            if curvature < 0.0 {
+                (0.5 * (older - newer) / curvature).clamp(-0.5, 0.5)
+            } else {
+                0.0
+            }
+        } else if older < level && v > older {
+            // A flat or slowly rising top: where the input crossed the level.
+            -((v - level) / (v - older))
+        } else {
+            0.0
+        };
+        (n - at as u64, frac)
+    }
+
     /// Foot-to-peak height on the smoothed input: the lowest point since
     /// the last beat's peak (at most 60 % of an interval back). Unlike the
     /// band-passed value it does not ride with baseline wander, and a
@@ -564,9 +686,7 @@ impl Pipeline {
         self.smoothed.at(age) - foot
     }
 
-    fn beat(&mut self, cand: &Candidate, peak_d: u64, height: f32, now: u64, n: u64) -> BeatEvent {
-        let peak = self.to_input(peak_d);
-        let frac = self.peak_offset((now - peak_d) as usize) * self.decim as f32;
+    fn beat(&mut self, cand: &Candidate, peak: u64, frac: f32, height: f32, n: u64) -> BeatEvent {
         let mut flags = 0u8;
         let median = self.recent_ibi;
         let ibi = match self.last_peak {
@@ -589,7 +709,8 @@ impl Pipeline {
             self.all_intervals.push(i, peak);
             self.recent_ibi = self.all_intervals.recent_median(RECENT_INTERVALS);
         }
-        let age = (now - peak_d) as f32;
+        // The refined peak's age in detector samples.
+        let age = (n - peak) as f32 / self.decim as f32;
         let from = min_f32(age + 0.3 * period, (self.banded.len().max(2) - 2) as f32);
         let to = max_f32(age - 0.2 * period, 0.0);
         for a in (libm::floorf(to) as usize)..=(libm::ceilf(from) as usize) {
@@ -650,7 +771,7 @@ impl Pipeline {
             .map(|(m, _)| 60_000.0 / m);
         BeatEvent {
             peak_index: peak,
-            onset_index: cand.onset.map(|o| self.to_input(o)),
+            onset_index: cand.onset.and_then(|o| self.onset_index(o, peak)),
             emitted_at: n,
             ibi_ms: ibi,
             hr_bpm: ibi.map(|i| 60_000.0 / i),
