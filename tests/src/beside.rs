@@ -255,8 +255,8 @@ mod tests {
     #[test]
     fn the_rate_track_takes_the_median_of_recent_intervals() {
         // 10 Hz: intervals 1.0, 1.0, 0.5 s; at the last peak (2.5 s) all
-        // three ended within 12 s: median 1 s, 60 bpm. With a 0.6 s
-        // window only the last: 120 bpm.
+        // three ended within 12 s: median 1 s, 60 bpm. With 0.6 s the
+        // last two (1.0, 0.5 s: 80 bpm), with 0.4 s only the last (120).
         let track = peak_rate_track(&[0, 10, 20, 25], 10.0, 12.0);
         assert_eq!(track, vec![(1.0, 60.0), (2.0, 60.0), (2.5, 60.0)]);
         assert_eq!(
