@@ -259,9 +259,8 @@ mod tests {
         // last two (1.0, 0.5 s: 80 bpm), with 0.4 s only the last (120).
         let track = peak_rate_track(&[0, 10, 20, 25], 10.0, 12.0);
         assert_eq!(track, vec![(1.0, 60.0), (2.0, 60.0), (2.5, 60.0)]);
-        assert_eq!(
-            peak_rate_track(&[0, 10, 20, 25], 10.0, 0.6)[2],
-            (2.5, 120.0)
-        );
+        let peaks = [0, 10, 20, 25];
+        assert_eq!(peak_rate_track(&peaks, 10.0, 0.6)[2], (2.5, 80.0));
+        assert_eq!(peak_rate_track(&peaks, 10.0, 0.4)[2], (2.5, 120.0));
     }
 }
