@@ -57,8 +57,13 @@ def fill_missing(values):
     return filled
 
 
+def design(fs):
+    """The band-pass of step 2 as second-order sections."""
+    return sg.butter(ORDER, list(BAND_HZ), "bandpass", fs=fs, output="sos")
+
+
 def band_pass(x, fs):
-    sos = sg.butter(ORDER, list(BAND_HZ), "bandpass", fs=fs, output="sos")
+    sos = design(fs)
     zi = sg.sosfilt_zi(sos) * x[0]
     y, _ = sg.sosfilt(sos, x, zi=zi)
     return y
