@@ -150,8 +150,9 @@ fn median(v: &mut [f64]) -> f64 {
     }
 }
 
-/// Window figures of one beat list (or several pooled).
-#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize)]
+/// Window figures of one beat list (or several pooled). In JSON the
+/// counts come with `coverage`, `within_share` (0 to 1) and `mae_bpm`.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct WindowScore {
     /// Reference windows.
     pub windows: usize,
@@ -182,6 +183,21 @@ impl WindowScore {
         self.covered += o.covered;
         self.within += o.within;
         self.abs_sum += o.abs_sum;
+    }
+}
+
+impl Serialize for WindowScore {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeStruct;
+        let mut st = serializer.serialize_struct("WindowScore", 7)?;
+        st.serialize_field("windows", &self.windows)?;
+        st.serialize_field("covered", &self.covered)?;
+        st.serialize_field("within", &self.within)?;
+        st.serialize_field("abs_sum", &self.abs_sum)?;
+        st.serialize_field("coverage", &self.coverage())?;
+        st.serialize_field("within_share", &self.within_share())?;
+        st.serialize_field("mae_bpm", &self.mae())?;
+        st.end()
     }
 }
 
@@ -269,6 +285,9 @@ mod tests {
         assert_eq!(s.mae(), Some(10.0));
         assert_eq!(s.coverage(), Some(2.0 / 3.0));
         assert_eq!(s.within_share(), Some(0.5));
+        let json = serde_json::to_value(s).unwrap();
+        assert_eq!(json["within_share"], 0.5);
+        assert_eq!(json["mae_bpm"], 10.0);
     }
 
     #[test]
