@@ -29,8 +29,12 @@
 //!   `python`).
 //! * `PLETHWIRE_QEMU`: `qemu-system-arm` binary to use (default: from `PATH`).
 
+pub mod baseline;
+pub mod beside;
 pub mod emulation;
 pub mod selfcheck;
+
+pub use baseline::{baseline_detections, baseline_peaks, BaselineInput, BaselinePeaks};
 
 use std::ffi::{OsStr, OsString};
 use std::io::{self, Read, Write};

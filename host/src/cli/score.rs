@@ -7,6 +7,8 @@ use std::path::PathBuf;
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
 use crate::score::records::{score_all, References, Scores};
+use crate::score::timing::PeakTiming;
+use crate::score::windows::{ReplayWindows, WindowScore};
 use crate::score::{MatchCounts, RateError};
 
 const EXAMPLES: &str = "\
@@ -19,7 +21,11 @@ Each record is replayed through the pipeline. Beats are matched one to one
 within ±150 ms (ANSI/AAMI EC57 practice) against <record>.<reference>;
 heart rate, once per reference row, against column --rate-column of
 <record><rate-suffix> (the latest smoothed heart rate reported by then).
-Records without one of the references are scored on the other. Exit
+Peak timing: our matched peak minus the reference beat, ms. Heart rate in
+reference windows (<record><window-suffix>: window_start_s,window_end_s,bpm)
+when that table exists: 60000 / median of the intervals of the beats whose
+peak lies in the window, at least 2 intervals, from good beats and from all.
+Records without one of the references are scored on the others. Exit
 status: 0 done, 1 a record could not be read, 2 the command line could not
 be understood.";
 
@@ -43,6 +49,11 @@ pub struct ScoreArgs {
     #[arg(long, value_name = "NAME", default_value = "pulse_bpm")]
     pub rate_column: String,
 
+    /// Suffix of the reference window table next to each record
+    /// (`window_start_s,window_end_s,bpm`), used when it exists.
+    #[arg(long, value_name = "SUFFIX", default_value = "bpm.csv")]
+    pub window_suffix: String,
+
     /// Print the scores as JSON.
     #[arg(long)]
     pub json: bool,
@@ -59,6 +70,7 @@ impl ScoreArgs {
             annotator: self.reference.clone(),
             rate_suffix: self.rate_suffix.clone(),
             rate_column: self.rate_column.clone(),
+            window_suffix: self.window_suffix.clone(),
         };
         let (bar, progress) = progress_line();
         let scores = score_all(
@@ -128,27 +140,95 @@ fn rate_cells(r: &Option<RateError>) -> String {
 fn table(s: &Scores) -> String {
     let mut t = String::new();
     t += &format!(
-        "{:<12} {:>6} {:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7} {:>8} {:>6}\n",
-        "record", "beats", "ref", "TP", "FP", "FN", "Se %", "+P %", "F1 %", "HR MAE", "secs"
+        "{:<12} {:>6} {:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7} {:>8} {:>6}{}{}\n",
+        "record",
+        "beats",
+        "ref",
+        "TP",
+        "FP",
+        "FN",
+        "Se %",
+        "+P %",
+        "F1 %",
+        "HR MAE",
+        "secs",
+        timing_header(),
+        windows_header()
     );
     for r in &s.records {
         t += &format!(
-            "{:<12} {:>6} {} {}\n",
+            "{:<12} {:>6} {} {}{}{}\n",
             r.record,
             r.summary.beats,
             beats_cells(&r.beats, r.reference_beats),
-            rate_cells(&r.heart_rate)
+            rate_cells(&r.heart_rate),
+            timing_cells(&r.peak_timing),
+            windows_cells(&r.windows)
         );
     }
     let refs: usize = s.records.iter().filter_map(|r| r.reference_beats).sum();
     let beats: usize = s.records.iter().map(|r| r.summary.beats).sum();
     t += &format!(
-        "{:<12} {:>6} {} {}\n",
+        "{:<12} {:>6} {} {}{}{}\n",
         "pooled",
         beats,
         beats_cells(&s.pooled_beats, Some(refs)),
-        rate_cells(&s.pooled_heart_rate)
+        rate_cells(&s.pooled_heart_rate),
+        timing_cells(&s.pooled_peak_timing),
+        windows_cells(&s.pooled_windows)
     );
     t += "HR MAE: mean absolute difference in bpm from the reference series, over 'secs' compared rows.\n";
+    t += "dt: our matched peak minus the reference beat, ms: signed median, median and p95 of |dt|.\n";
+    t += "win: reference windows; cov: share with a rate (2+ intervals), in10: share of those within 10 bpm, WMAE: bpm; from good beats, then 'all' beats.\n";
     t
+}
+
+fn cell(v: Option<f64>, digits: usize, width: usize) -> String {
+    v.map_or(format!(" {:>width$}", "-"), |v| {
+        format!(" {v:>width$.digits$}")
+    })
+}
+
+fn timing_header() -> String {
+    format!(" {:>7} {:>7} {:>7}", "dt med", "|dt|med", "|dt|p95")
+}
+
+fn timing_cells(t: &Option<PeakTiming>) -> String {
+    match t {
+        Some(t) => [t.median_ms, t.abs_median_ms, t.abs_p95_ms]
+            .map(|v| cell(v, 1, 7))
+            .concat(),
+        None => cell(None, 1, 7).repeat(3),
+    }
+}
+
+fn windows_header() -> String {
+    format!(
+        " {:>5} {:>6} {:>6} {:>6} {:>7} {:>8} {:>7}",
+        "win", "cov %", "in10 %", "WMAE", "all cov", "all in10", "all MAE"
+    )
+}
+
+fn window_cells(w: &WindowScore, widths: [usize; 3]) -> String {
+    let share = |v: Option<f64>| v.map(|v| 100.0 * v);
+    cell(share(w.coverage()), 1, widths[0])
+        + &cell(share(w.within_share()), 1, widths[1])
+        + &cell(w.mae(), 2, widths[2])
+}
+
+fn windows_cells(w: &Option<ReplayWindows>) -> String {
+    match w {
+        Some(w) => {
+            format!(" {:>5}", w.good.windows)
+                + &window_cells(&w.good, [6, 6, 6])
+                + &window_cells(&w.all, [7, 8, 7])
+        }
+        None => {
+            format!(" {:>5}", "-")
+                + &cell(None, 0, 6).repeat(3)
+                + &cell(None, 0, 7)
+                + &cell(None, 0, 8)
+                + &cell(None, 0, 7)
+        }
+    }
 }

@@ -174,3 +174,5 @@ mod tests {
 }
 
 pub mod records;
+pub mod timing;
+pub mod windows;

@@ -1,7 +1,9 @@
 //! Scoring whole recordings: beats against a reference annotation file,
 //! heart rate against a reference numerics table, per record and pooled.
 
-use super::{match_beats, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
+use super::timing::PeakTiming;
+use super::windows::{read_rate_windows, ReplayWindows};
+use super::{match_beats, match_pairs, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
 use crate::io::{annotation_path, read_annotations, read_numerics};
 use crate::replay::{load, replay, Recording, Replay, ReplayError, Source, Summary};
 use plethwire_dsp::pipeline::Config;
@@ -17,6 +19,9 @@ pub struct References {
     pub rate_suffix: String,
     /// Column of that table holding the heart rate, bpm.
     pub rate_column: String,
+    /// Suffix of the reference window table (`<record><suffix>`,
+    /// `window_start_s,window_end_s,bpm`), used when it exists.
+    pub window_suffix: String,
 }
 
 impl Default for References {
@@ -25,6 +30,7 @@ impl Default for References {
             annotator: "peak".into(),
             rate_suffix: "n.csv".into(),
             rate_column: "pulse_bpm".into(),
+            window_suffix: "bpm.csv".into(),
         }
     }
 }
@@ -42,6 +48,10 @@ pub struct RecordScore {
     pub heart_rate: Option<RateError>,
     /// The replay's summary.
     pub summary: Summary,
+    /// Offsets of our matched peaks from the reference beats.
+    pub peak_timing: Option<PeakTiming>,
+    /// Heart rate in the reference windows, when a window table exists.
+    pub windows: Option<ReplayWindows>,
 }
 
 /// Scores of several recordings and their pooled totals.
@@ -53,6 +63,10 @@ pub struct Scores {
     pub pooled_beats: Option<MatchCounts>,
     /// Heart-rate error pooled over every compared second.
     pub pooled_heart_rate: Option<RateError>,
+    /// Peak timing over the matched pairs of every record together.
+    pub pooled_peak_timing: Option<PeakTiming>,
+    /// Window figures summed over the records that have a window table.
+    pub pooled_windows: Option<ReplayWindows>,
 }
 
 /// Every WFDB record in `paths`: records as given, folders expanded to
@@ -143,6 +157,11 @@ pub fn score_one(
     let beats = reference
         .as_ref()
         .map(|r| match_beats(r, &run.peaks(), tol));
+    let peak_timing = reference
+        .as_ref()
+        .map(|r| PeakTiming::from_pairs(&match_pairs(r, &run.peaks(), tol), run.fs));
+    let windows =
+        reference_windows(&rec.path, &refs.window_suffix)?.map(|w| ReplayWindows::of(&w, run));
     let heart_rate =
         reference_rate(&rec.path, refs)?.map(|series| rate_error(&run.heart_rate_track(), &series));
     Ok(RecordScore {
@@ -151,7 +170,22 @@ pub fn score_one(
         reference_beats: reference.map(|r| r.len()),
         heart_rate,
         summary: run.summary(),
+        peak_timing,
+        windows,
     })
+}
+
+/// The reference window table `<record><suffix>` of the record at
+/// `record`, or `None` when it does not exist.
+pub fn reference_windows(
+    record: &Path,
+    suffix: &str,
+) -> Result<Option<Vec<super::windows::RateWindow>>, ReplayError> {
+    let table = numerics_path(record, suffix);
+    if !table.exists() {
+        return Ok(None);
+    }
+    read_rate_windows(&table).map(Some)
 }
 
 fn numerics_path(record: &Path, suffix: &str) -> PathBuf {
@@ -194,9 +228,22 @@ pub fn score_all(
                 .add(h);
         }
     }
+    let timings: Vec<&PeakTiming> = records
+        .iter()
+        .filter_map(|r| r.peak_timing.as_ref())
+        .collect();
+    let pooled_peak_timing = (!timings.is_empty()).then(|| PeakTiming::pooled(timings));
+    let mut pooled_windows: Option<ReplayWindows> = None;
+    for w in records.iter().filter_map(|r| r.windows.as_ref()) {
+        pooled_windows
+            .get_or_insert_with(ReplayWindows::default)
+            .add(w);
+    }
     Ok(Scores {
         records,
         pooled_beats,
         pooled_heart_rate,
+        pooled_peak_timing,
+        pooled_windows,
     })
 }
