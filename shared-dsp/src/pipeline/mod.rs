@@ -33,6 +33,7 @@ pub mod events;
 pub mod quality;
 pub mod rate;
 mod ring;
+pub mod scale;
 pub mod state;
 mod zong;
 
@@ -51,6 +52,7 @@ use crate::DesignError;
 use condition::Conditioner;
 use quality::{Shape, Template};
 use rate::Intervals;
+use scale::{Change, Scale};
 use state::Monitor;
 
 /// Lowest input sample rate accepted, Hz (a phone camera's rate).
@@ -71,16 +73,18 @@ pub const EARLY_FRACTION: f32 = 0.6;
 /// …is dropped when below this fraction of the running peak level.
 pub const EARLY_LEVEL_FRACTION: f32 = 0.6;
 
-/// A change of the smoothed input within [`STEP_S`] larger than this many
-/// pulse heights is a step (finger placed or lifted, a knock): the filters
-/// restart from the new level instead of ringing for seconds.
-pub const STEP_FACTOR: f32 = 8.0;
-/// Time over which a step is measured, seconds.
+/// Time over which a step is measured, seconds (the size that makes a
+/// step is in [`scale`]).
 pub const STEP_S: f32 = 0.1;
 
-/// Candidates dropped as small in a row after which the next is taken as
-/// the new peak level.
-pub const RELEVEL_AFTER: u32 = 6;
+/// Small candidates in a row, of like height, after which the last is
+/// taken as a beat and as the new peak level: a level set by an artefact,
+/// or a pulse that shrank, must not lock real pulses out for long.
+pub const RELEVEL_AFTER: u32 = 2;
+
+/// Two small candidates are of like height when neither is more than this
+/// many times the other.
+pub const RELEVEL_LIKE: f32 = 2.0;
 
 /// Frequency at which the low-pass's group delay is taken to move peaks
 /// and onsets back to where they are in the input, Hz: a pulse's
@@ -233,6 +237,7 @@ pub struct Pipeline {
     // Lower band edge at the detector's rate.
     highpass: Cascade<Delta, 1>,
     monitor: Monitor,
+    scale: Scale,
     mark: u8,
     started: bool,
     last_good: bool,
@@ -255,9 +260,12 @@ pub struct Pipeline {
     peak_level: Option<f32>,
     // Clipped input samples since the last detector-rate sample.
     clipped_in_block: u32,
-    // Candidates dropped as small since the last accepted one.
+    // Candidates dropped as small since the last accepted one, and the
+    // height of the last of them.
     dropped_in_row: u32,
-    step_level: Option<f32>,
+    dropped_height: f32,
+    // Detector index of the last restart.
+    restarted_at: u64,
     restarts: u64,
     epoch: u64,
     detector: Detector,
@@ -332,6 +340,7 @@ impl Pipeline {
             all_intervals: Intervals::new(),
             recent_ibi: None,
             monitor: Monitor::new(fs),
+            scale: Scale::new(fd),
             n: 0,
             t: 0,
             started: false,
@@ -343,7 +352,8 @@ impl Pipeline {
             peak_level: None,
             clipped_in_block: 0,
             dropped_in_row: 0,
-            step_level: None,
+            dropped_height: 0.0,
+            restarted_at: 0,
             restarts: 0,
             epoch: 0,
             hrv: HrvWindow::new(),
@@ -427,15 +437,18 @@ impl Pipeline {
                 .block(n, self.clipped_in_block, self.decim, self.recent_ibi),
         };
         self.clipped_in_block = 0;
-        if let Some(e) = out.state {
-            if e.state == SignalState::NoSignal {
-                // The finger may come back elsewhere: start afresh.
-                self.template.reset();
-                self.last_peak = None;
-                self.last_good = false;
-            }
-        }
-        let y = if self.is_step(s) {
+        let jump = if self.smoothed.len() >= self.step_lag {
+            s - self.smoothed.at(self.step_lag - 1)
+        } else {
+            0.0
+        };
+        let change = self.scale.push(s, jump);
+        // Without beats for the silence limit, start afresh, and again each
+        // time the limit passes: whatever an artefact taught the filters
+        // and thresholds is forgotten (the finger may also be back elsewhere).
+        let lost = self.monitor.state() == SignalState::NoSignal
+            && (self.t - self.restarted_at) as f32 > state::SILENCE_S * self.fd;
+        let y = if change != Change::None || lost {
             self.restart(s)
         } else {
             self.highpass.process(s)
@@ -460,29 +473,23 @@ impl Pipeline {
         out
     }
 
-    /// Has the smoothed input jumped by many pulse heights?
-    fn is_step(&self, s: f32) -> bool {
-        let lag = self.step_lag;
-        // The last known pulse height, kept across restarts so the step
-        // back (finger replaced) is caught as well as the step away.
-        match self.step_level {
-            Some(level) if self.smoothed.len() > lag => {
-                (s - self.smoothed.at(lag - 1)).abs() > STEP_FACTOR * level
-            }
-            _ => false,
-        }
-    }
-
-    /// Start the high-pass and the detector again from low-passed level
-    /// `s`; returns the band-passed output at rest.
+    /// Start the high-pass, the detector and every level learnt from the
+    /// signal again from low-passed level `s`; returns the band-passed
+    /// output at rest. (The heart-rate and HRV history stay: they hold only
+    /// beats already reported.)
     fn restart(&mut self, s: f32) -> f32 {
         let rest = self.highpass.settle(s);
         self.detector = Detector::new(self.config.options.detector, self.fd);
         self.epoch = self.t;
+        self.restarted_at = self.t;
         self.peak_level = None;
+        self.dropped_in_row = 0;
         self.last_peak = None;
         self.last_good = false;
         self.template.reset();
+        self.all_intervals.clear();
+        self.recent_ibi = None;
+        self.scale.forget();
         self.restarts += 1;
         rest
     }
@@ -504,7 +511,6 @@ impl Pipeline {
         }
         let Some(level) = self.peak_level else {
             self.peak_level = Some(a);
-            self.step_level = Some(a);
             self.dropped_in_row = 0;
             return true;
         };
@@ -524,13 +530,19 @@ impl Pipeline {
         let small = a < SMALL_FRACTION * level;
         let too_small_for_early = early && a < EARLY_LEVEL_FRACTION * level;
         if small || too_small_for_early {
-            // A level set by an artefact would lock every real pulse out:
-            // after a run of small ones in a row, take this one as the new
-            // level (the search-back idea of Pan and Tompkins).
-            self.dropped_in_row += 1;
-            if small && !early && self.dropped_in_row >= RELEVEL_AFTER {
-                // The step reference stays: a lower one would take pulses
-                // for steps.
+            // A level set by an artefact, or a pulse that shrank, would
+            // lock every real pulse out: small candidates of like height in
+            // a row, none of them early, set a new level (the search-back
+            // idea of Pan and Tompkins).
+            let like = self.dropped_in_row > 0
+                && a * RELEVEL_LIKE >= self.dropped_height
+                && a <= RELEVEL_LIKE * self.dropped_height;
+            if early {
+                return false;
+            }
+            self.dropped_in_row = if like { self.dropped_in_row + 1 } else { 1 };
+            self.dropped_height = a;
+            if self.dropped_in_row >= RELEVEL_AFTER {
                 self.dropped_in_row = 0;
                 self.peak_level = Some(a);
                 return true;
@@ -538,10 +550,11 @@ impl Pipeline {
             return false;
         }
         self.dropped_in_row = 0;
-        // Follow the level both ways, but let one huge artefact move it
-        // only by a bounded step.
-        self.peak_level = Some(level + 0.125 * (min_f32(a, 4.0 * level) - level));
-        self.step_level = self.peak_level;
+        // Follow a larger pulse quickly (half the way), a smaller one
+        // slowly (an eighth), so one small pulse does not open the gate to
+        // diastolic waves and a grown pulse soon sets the level.
+        let rate = if a > level { 0.5 } else { 0.125 };
+        self.peak_level = Some(level + rate * (a - level));
         true
     }
 
@@ -554,6 +567,9 @@ impl Pipeline {
         let v = self.last_value;
         // A peak whose top reaches the end may be an upstroke cut short.
         let whole_before = end.saturating_sub(self.refine as u64);
+        // The held value looks like a signal that stopped; a restart it
+        // causes is not one of the recording's.
+        let restarts = self.restarts;
         for _ in 0..flush {
             if let Some(b) = self.push(v).beat {
                 if b.peak_index < whole_before {
@@ -561,6 +577,7 @@ impl Pipeline {
                 }
             }
         }
+        self.restarts = restarts;
     }
 
     /// The onset at detector index `onset` as an input index, moved back by
