@@ -26,17 +26,28 @@ impl From<DetectorName> for DetectorKind {
 /// Where the samples come from and how the pipeline is set up.
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct PipelineOpts {
-    /// WFDB signal to use [default: PLETH]; for CSV, the value column.
+    /// Signal to use: a WFDB signal or CSV column; a list NAME,NAME,... to
+    /// choose the clearest pulse among; or `auto` to choose among all
+    /// [default: PLETH for WFDB, auto for CSV (all columns but the time)].
     #[arg(long, value_name = "NAME")]
     pub signal: Option<String>,
 
-    /// CSV only: the sample rate, Hz.
+    /// CSV only: the sample rate, Hz; with a time column, the rate of the
+    /// uniform grid the rows are resampled onto [default: the median frame
+    /// rate when the times are uneven].
     #[arg(long, value_name = "HZ")]
     pub rate: Option<f64>,
 
-    /// CSV only: take the sample rate from this column of times (seconds).
-    #[arg(long, value_name = "NAME", conflicts_with = "rate")]
+    /// CSV only: take the sample times from this column [default: a column
+    /// named time, time_s, time_ms or time_us when --rate is not given].
+    #[arg(long, value_name = "NAME")]
     pub time_column: Option<String>,
+
+    /// CSV only: unit of the time column, s, ms or us [default: s for
+    /// --time-column; for a column found by name, the unit its name says,
+    /// or for plain `time` the one that makes the frame rate 25-1000 Hz].
+    #[arg(long, value_name = "UNIT")]
+    pub time_unit: Option<String>,
 
     /// Beat detector.
     #[arg(long, value_enum, default_value = "elgendi")]
@@ -73,6 +84,7 @@ impl PipelineOpts {
             signal: self.signal.clone(),
             rate: self.rate,
             time_column: self.time_column.clone(),
+            time_unit: self.time_unit.clone(),
         }
     }
 
