@@ -36,7 +36,28 @@ pub struct Source {
     /// CSV: the time column's unit, `s`, `ms` or `us` (default: seconds for
     /// a time column named on the command line; see [`load`]).
     pub time_unit: Option<String>,
+    /// Which way the pulse points in the file.
+    pub polarity: Polarity,
 }
+
+/// Which way a pulse points in the recorded signal.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Polarity {
+    /// Up for WFDB signals and CSV columns in general; down for CSV columns
+    /// named `R`, `G`, `B`, `red`, `green` or `blue` (any case): a camera's
+    /// brightness, which falls as blood fills the finger with each beat.
+    #[default]
+    Auto,
+    /// Systolic peaks are maxima (a pulse oximeter's plethysmogram).
+    Up,
+    /// Systolic peaks are minima (light through or off the finger): the
+    /// signal is negated before the pipeline.
+    Down,
+}
+
+/// Camera colour channel names, whose pulse points down.
+const COLOUR_CHANNELS: [&str; 6] = ["r", "g", "b", "red", "green", "blue"];
 
 /// How the samples were got from the file, for summaries.
 #[derive(Debug, Clone, Default, PartialEq, Serialize)]
@@ -52,6 +73,8 @@ pub struct InputInfo {
     pub resampled: Option<ResampleReport>,
     /// The channel choice, when there were several candidates.
     pub channel: Option<ChannelChoice>,
+    /// Whether the signal was negated (its pulse pointed down).
+    pub inverted: bool,
 }
 
 /// A loaded recording.
@@ -101,6 +124,26 @@ fn is_csv(path: &Path) -> bool {
 /// do not overlap, so at most one does). The grid rate must lie in that
 /// range too.
 pub fn load(path: &Path, source: &Source) -> Result<Recording, ReplayError> {
+    let mut rec = load_as_recorded(path, source)?;
+    let down = match source.polarity {
+        Polarity::Up => false,
+        Polarity::Down => true,
+        Polarity::Auto => {
+            is_csv(path)
+                && COLOUR_CHANNELS
+                    .iter()
+                    .any(|c| rec.signal.name.eq_ignore_ascii_case(c))
+        }
+    };
+    if down {
+        rec.signal.samples.iter_mut().for_each(|x| *x = -*x);
+        rec.input.inverted = true;
+    }
+    Ok(rec)
+}
+
+/// [`load`] without the polarity.
+fn load_as_recorded(path: &Path, source: &Source) -> Result<Recording, ReplayError> {
     let stem = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())

@@ -3,7 +3,18 @@
 use clap::{Args, ValueEnum};
 use plethwire_dsp::pipeline::{Config, DetectorKind};
 
-use crate::replay::Source;
+use crate::replay::{Polarity, Source};
+
+/// Which way the pulse points, as named on the command line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum PolarityName {
+    /// Down for CSV columns R, G, B, red, green, blue (camera brightness), up otherwise.
+    Auto,
+    /// Systolic peaks are maxima.
+    Up,
+    /// Systolic peaks are minima: the signal is negated.
+    Down,
+}
 
 /// The published detectors, as named on the command line.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -49,6 +60,10 @@ pub struct PipelineOpts {
     #[arg(long, value_name = "UNIT")]
     pub time_unit: Option<String>,
 
+    /// Which way the pulse points in the file.
+    #[arg(long, value_enum, default_value = "auto")]
+    pub polarity: PolarityName,
+
     /// Beat detector.
     #[arg(long, value_enum, default_value = "elgendi")]
     pub detector: DetectorName,
@@ -85,6 +100,11 @@ impl PipelineOpts {
             rate: self.rate,
             time_column: self.time_column.clone(),
             time_unit: self.time_unit.clone(),
+            polarity: match self.polarity {
+                PolarityName::Auto => Polarity::Auto,
+                PolarityName::Up => Polarity::Up,
+                PolarityName::Down => Polarity::Down,
+            },
         }
     }
 

@@ -196,6 +196,9 @@ pub(crate) fn input_lines(input: &InputInfo) -> String {
             1000.0 * r.max_gap_s
         );
     }
+    if input.inverted {
+        t += "  polarity    pulse points down in the file: signal negated\n";
+    }
     if let Some(c) = &input.channel {
         let figures: Vec<String> = c
             .candidates

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
-use crate::score::records::{score_all, References, Scores};
+use crate::score::records::{score_all, References, Scores, DEFAULT_STRAP_SUFFIX};
 use crate::score::{MatchCounts, RateError};
 
 const EXAMPLES: &str = "\
@@ -14,12 +14,17 @@ Examples:
   plethwire score ../shared/data/capnobase
   plethwire score ../shared/data/bidmc --rate-column pulse_bpm --json
   plethwire score rec1 rec2 --reference atr --detector zong
+  plethwire score ../shared/data/phonefinger
 
 Each record is replayed through the pipeline. Beats are matched one to one
 within ±150 ms (ANSI/AAMI EC57 practice) against <record>.<reference>;
 heart rate, once per reference row, against column --rate-column of
 <record><rate-suffix> (the latest smoothed heart rate reported by then).
-Records without one of the references are scored on the other. Exit
+Records without one of the references are scored on the other. Folders
+give their WFDB records and CSV files. Where <record><strap-suffix> (R-R
+intervals in ms, one a line, from a chest strap on a clock of its own)
+exists, it is aligned to the detected beats and a second table compares
+intervals, heart rate and HRV (see plethwire::score::strap). Exit
 status: 0 done, 1 a record could not be read, 2 the command line could not
 be understood.";
 
@@ -43,6 +48,10 @@ pub struct ScoreArgs {
     #[arg(long, value_name = "NAME", default_value = "pulse_bpm")]
     pub rate_column: String,
 
+    /// Suffix of a chest strap's R-R interval list next to each recording.
+    #[arg(long, value_name = "SUFFIX", default_value = DEFAULT_STRAP_SUFFIX)]
+    pub strap_suffix: String,
+
     /// Print the scores as JSON.
     #[arg(long)]
     pub json: bool,
@@ -59,6 +68,7 @@ impl ScoreArgs {
             annotator: self.reference.clone(),
             rate_suffix: self.rate_suffix.clone(),
             rate_column: self.rate_column.clone(),
+            strap_suffix: self.strap_suffix.clone(),
         };
         let (bar, progress) = progress_line();
         let scores = score_all(
@@ -73,7 +83,7 @@ impl ScoreArgs {
         let text = if self.json {
             serde_json::to_string_pretty(&scores).unwrap_or_default() + "\n"
         } else {
-            table(&scores)
+            table(&scores) + &super::score_strap::strap_table(&scores)
         };
         out.write_all(text.as_bytes()).map_err(Failure::output)
     }

@@ -174,3 +174,4 @@ mod tests {
 }
 
 pub mod records;
+pub mod strap;

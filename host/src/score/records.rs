@@ -1,9 +1,11 @@
 //! Scoring whole recordings: beats against a reference annotation file,
 //! heart rate against a reference numerics table, per record and pooled.
 
+use super::strap::{score_strap, StrapScore};
 use super::{match_beats, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
+use crate::io::read_rr_intervals;
 use crate::io::{annotation_path, read_annotations, read_numerics};
-use crate::replay::{load, replay, Recording, Replay, ReplayError, Source, Summary};
+use crate::replay::{load, replay, InputInfo, Recording, Replay, ReplayError, Source, Summary};
 use plethwire_dsp::pipeline::Config;
 use serde::Serialize;
 use std::path::{Path, PathBuf};
@@ -17,7 +19,13 @@ pub struct References {
     pub rate_suffix: String,
     /// Column of that table holding the heart rate, bpm.
     pub rate_column: String,
+    /// Suffix of a chest strap's R-R interval list (`<record><suffix>`,
+    /// `<record>` without `.csv` for a CSV recording).
+    pub strap_suffix: String,
 }
+
+/// Suffix of the strap's R-R list unless told otherwise.
+pub const DEFAULT_STRAP_SUFFIX: &str = ".rr.txt";
 
 impl Default for References {
     fn default() -> Self {
@@ -25,6 +33,7 @@ impl Default for References {
             annotator: "peak".into(),
             rate_suffix: "n.csv".into(),
             rate_column: "pulse_bpm".into(),
+            strap_suffix: DEFAULT_STRAP_SUFFIX.into(),
         }
     }
 }
@@ -42,6 +51,10 @@ pub struct RecordScore {
     pub heart_rate: Option<RateError>,
     /// The replay's summary.
     pub summary: Summary,
+    /// How the samples were got (time column, resampling, channel choice).
+    pub input: InputInfo,
+    /// Against a chest strap's R-R list, when one exists.
+    pub strap: Option<StrapScore>,
 }
 
 /// Scores of several recordings and their pooled totals.
@@ -55,8 +68,9 @@ pub struct Scores {
     pub pooled_heart_rate: Option<RateError>,
 }
 
-/// Every WFDB record in `paths`: records as given, folders expanded to
-/// the records whose headers they hold (sorted by name).
+/// Every recording in `paths`: records and files as given, folders
+/// expanded to the WFDB records whose headers they hold and the CSV files
+/// they hold (sorted by name).
 pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
     let mut out = Vec::new();
     for p in paths {
@@ -66,12 +80,11 @@ pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
             })?;
             let mut found: Vec<PathBuf> = entries
                 .filter_map(|e| e.ok().map(|e| e.path()))
-                .filter(|f| f.extension().is_some_and(|x| x == "hea"))
-                .map(|f| f.with_extension(""))
+                .filter_map(recording_in_folder)
                 .collect();
             if found.is_empty() {
                 return Err(ReplayError(format!(
-                    "{}: no WFDB records (.hea) in this folder",
+                    "{}: no WFDB records (.hea) or CSV files in this folder",
                     p.display()
                 )));
             }
@@ -82,6 +95,42 @@ pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
         }
     }
     Ok(out)
+}
+
+/// The recording a folder entry stands for: a header's record, or a CSV
+/// file (of which the numerics tables `<record>n.csv` of
+/// [`References::rate_suffix`]'s default are not recordings).
+fn recording_in_folder(f: PathBuf) -> Option<PathBuf> {
+    let ext = f.extension()?.to_str()?.to_ascii_lowercase();
+    match ext.as_str() {
+        "hea" => Some(f.with_extension("")),
+        "csv" => {
+            let stem = f.file_stem()?.to_string_lossy().into_owned();
+            let numerics = stem
+                .strip_suffix('n')
+                .is_some_and(|base| f.with_file_name(format!("{base}.hea")).exists());
+            (!numerics).then_some(f)
+        }
+        _ => None,
+    }
+}
+
+/// The strap's R-R intervals (ms) for the recording at `path`, from
+/// `<record><suffix>`, or `None` when that file does not exist.
+pub fn strap_intervals(path: &Path, suffix: &str) -> Result<Option<Vec<f64>>, ReplayError> {
+    let record = if path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
+    {
+        path.with_extension("")
+    } else {
+        path.to_path_buf()
+    };
+    let file = numerics_path(&record, suffix);
+    if !file.exists() {
+        return Ok(None);
+    }
+    Ok(Some(read_rr_intervals(&file)?))
 }
 
 /// Reference beats of the record at `record` (path without
@@ -145,12 +194,16 @@ pub fn score_one(
         .map(|r| match_beats(r, &run.peaks(), tol));
     let heart_rate =
         reference_rate(&rec.path, refs)?.map(|series| rate_error(&run.heart_rate_track(), &series));
+    let strap =
+        strap_intervals(&rec.path, &refs.strap_suffix)?.and_then(|rr| score_strap(run, &rr));
     Ok(RecordScore {
         record: rec.name.clone(),
         beats,
         reference_beats: reference.map(|r| r.len()),
         heart_rate,
         summary: run.summary(),
+        input: rec.input.clone(),
+        strap,
     })
 }
 
