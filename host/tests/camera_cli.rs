@@ -3,6 +3,7 @@
 //! and the refusals of bad times, units and R-R lists. Recordings are
 //! invented in a temp folder (a synthetic pulse, `plethwire::synth`).
 
+use plethwire::io::{write_record, NewSignal};
 use plethwire::synth::{generate, HrSchedule, SynthOptions};
 use std::fmt::Write as _;
 use std::path::Path;
@@ -122,6 +123,24 @@ fn uneven_camera_frames_are_resampled_chosen_and_scored_against_the_strap() {
     let (code, out, _) = plethwire(&["score", dir.path().to_str().unwrap()]);
     assert_eq!(code, 0);
     assert!(out.contains("offset s") && out.contains("clip"), "{out}");
+
+    // A WFDB record with a table beside it: the table is no recording.
+    let pulse: Vec<i32> = (0..3000)
+        .map(|k| (1000.0 * (k as f64 * 0.05).sin()) as i32)
+        .collect();
+    let sig = NewSignal::new("PLETH", "NU", 1000.0, 0);
+    write_record(dir.path(), "rec", 100.0, &[sig], &[pulse]).unwrap();
+    std::fs::write(dir.path().join("recn.csv"), "time_s,pulse_bpm\n0,60\n").unwrap();
+    let (code, out, err) = plethwire(&["score", dir.path().to_str().unwrap(), "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let names: Vec<&str> = v["records"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["record"].as_str().unwrap())
+        .collect();
+    assert_eq!(names, ["clip", "rec"]);
 }
 
 #[test]

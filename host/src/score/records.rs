@@ -78,10 +78,8 @@ pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
             let entries = std::fs::read_dir(p).map_err(|e| {
                 ReplayError(format!("{}: cannot list the folder: {e}", p.display()))
             })?;
-            let mut found: Vec<PathBuf> = entries
-                .filter_map(|e| e.ok().map(|e| e.path()))
-                .filter_map(recording_in_folder)
-                .collect();
+            let mut found =
+                recordings_in_folder(entries.filter_map(|e| e.ok().map(|e| e.path())).collect());
             if found.is_empty() {
                 return Err(ReplayError(format!(
                     "{}: no WFDB records (.hea) or CSV files in this folder",
@@ -97,22 +95,33 @@ pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
     Ok(out)
 }
 
-/// The recording a folder entry stands for: a header's record, or a CSV
-/// file (of which the numerics tables `<record>n.csv` of
-/// [`References::rate_suffix`]'s default are not recordings).
-fn recording_in_folder(f: PathBuf) -> Option<PathBuf> {
-    let ext = f.extension()?.to_str()?.to_ascii_lowercase();
-    match ext.as_str() {
-        "hea" => Some(f.with_extension("")),
-        "csv" => {
-            let stem = f.file_stem()?.to_string_lossy().into_owned();
-            let numerics = stem
-                .strip_suffix('n')
-                .is_some_and(|base| f.with_file_name(format!("{base}.hea")).exists());
-            (!numerics).then_some(f)
-        }
-        _ => None,
-    }
+/// The recordings among a folder's `entries`: each header's record, and
+/// each CSV file that is not a table beside a record (a CSV whose name
+/// starts with a record's name, as `<record>n.csv` or `<record>bpm.csv`).
+fn recordings_in_folder(entries: Vec<PathBuf>) -> Vec<PathBuf> {
+    let ext_is = |f: &Path, e: &str| {
+        f.extension()
+            .and_then(|x| x.to_str())
+            .is_some_and(|x| x.eq_ignore_ascii_case(e))
+    };
+    let records: Vec<PathBuf> = entries
+        .iter()
+        .filter(|f| ext_is(f, "hea"))
+        .map(|f| f.with_extension(""))
+        .collect();
+    let beside_a_record = |f: &Path| {
+        let stem = f.file_stem().unwrap_or_default().to_string_lossy();
+        records.iter().any(|r| {
+            r.file_name()
+                .is_some_and(|n| stem.starts_with(&*n.to_string_lossy()))
+        })
+    };
+    let tables: Vec<PathBuf> = entries
+        .iter()
+        .filter(|f| ext_is(f, "csv") && !beside_a_record(f))
+        .cloned()
+        .collect();
+    records.into_iter().chain(tables).collect()
 }
 
 /// The strap's R-R intervals (ms) for the recording at `path`, from
