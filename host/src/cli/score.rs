@@ -83,7 +83,9 @@ impl ScoreArgs {
         let text = if self.json {
             serde_json::to_string_pretty(&scores).unwrap_or_default() + "\n"
         } else {
-            table(&scores) + &super::score_strap::strap_table(&scores)
+            table(&scores)
+                + &super::score_strap::strap_table(&scores)
+                + &super::score_strap::input_lines(&scores)
         };
         out.write_all(text.as_bytes()).map_err(Failure::output)
     }

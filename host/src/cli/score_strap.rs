@@ -7,6 +7,52 @@ fn num(v: Option<f64>, decimals: usize) -> String {
     v.map_or("-".into(), |v| format!("{v:.decimals$}"))
 }
 
+/// One line per CSV recording read from a time column: the unit, the grid
+/// and the channel figures (the replay summary's input lines, condensed).
+pub(super) fn input_lines(s: &Scores) -> String {
+    let mut t = String::new();
+    for r in &s.records {
+        let input = &r.input;
+        let (Some(column), Some(unit)) = (&input.time_column, input.time_unit) else {
+            continue;
+        };
+        t += &format!(
+            "{}: time {column:?} in {} ({})",
+            r.record,
+            unit.name(),
+            input.time_unit_from.unwrap_or("given")
+        );
+        match &input.resampled {
+            Some(x) => {
+                t += &format!(
+                    ", resampled onto {:.2} Hz, {:.0} % of frames off the grid, longest gap {:.0} ms, {} samples missing",
+                    x.grid_hz,
+                    100.0 * x.resampled_share,
+                    1000.0 * x.longest_gap_s,
+                    x.missing_samples
+                )
+            }
+            None => t += ", uniform",
+        }
+        if let Some(c) = &input.channel {
+            let f: Vec<String> = c
+                .candidates
+                .iter()
+                .map(|f| format!("{} {:.2}", f.name, f.figure))
+                .collect();
+            t += &format!("; {} chosen of {}", c.chosen, f.join(", "));
+        }
+        if input.inverted {
+            t += "; negated";
+        }
+        t += "\n";
+    }
+    if !t.is_empty() {
+        t.insert(0, '\n');
+    }
+    t
+}
+
 /// The strap table, or nothing when no recording had a strap list.
 pub(super) fn strap_table(s: &Scores) -> String {
     if s.records.iter().all(|r| r.strap.is_none()) {
@@ -28,11 +74,7 @@ pub(super) fn strap_table(s: &Scores) -> String {
     );
     for r in &s.records {
         let Some(x) = &r.strap else { continue };
-        let channel = r
-            .input
-            .channel
-            .as_ref()
-            .map_or_else(|| "-".to_string(), |c| c.chosen.clone());
+        let channel = &r.signal;
         let a = &x.alignment;
         t += &format!(
             "{:<12} {:>9} {:>9.3} {:>5.2}{} {:>3}/{:<3} {:>5}/{:<5} {:>4}/{:<4} {:>4}/{:<4} {:>5} {:>5}/{:<5} {:>5}/{:<5}\n",

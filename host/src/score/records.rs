@@ -51,6 +51,8 @@ pub struct RecordScore {
     pub heart_rate: Option<RateError>,
     /// The replay's summary.
     pub summary: Summary,
+    /// The signal scored (the chosen one, when there was a choice).
+    pub signal: String,
     /// How the samples were got (time column, resampling, channel choice).
     pub input: InputInfo,
     /// Against a chest strap's R-R list, when one exists.
@@ -211,6 +213,7 @@ pub fn score_one(
         reference_beats: reference.map(|r| r.len()),
         heart_rate,
         summary: run.summary(),
+        signal: rec.signal.name.clone(),
         input: rec.input.clone(),
         strap,
     })
