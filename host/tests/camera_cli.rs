@@ -144,6 +144,59 @@ fn uneven_camera_frames_are_resampled_chosen_and_scored_against_the_strap() {
 }
 
 #[test]
+fn a_list_of_signals_chooses_among_csv_columns_and_wfdb_signals() {
+    let dir = tempfile::tempdir().unwrap();
+    make_camera_clip(dir.path(), "clip");
+    let csv = dir.path().join("clip.csv");
+    let (code, out, err) =
+        plethwire(&["replay", csv.to_str().unwrap(), "--signal", "R,B", "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(
+        v["input"]["channel"]["candidates"]
+            .as_array()
+            .unwrap()
+            .len(),
+        2
+    );
+    // One column by name: no choice, that column.
+    let (code, out, err) = plethwire(&["replay", csv.to_str().unwrap(), "--signal", "B", "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["signal"], "B");
+    assert!(v["input"]["channel"].is_null());
+    // A record with two LEDs' signals: noise in LED1, the pulse in LED2.
+    let s = generate(&SynthOptions {
+        sample_rate_hz: 125.0,
+        duration_s: 40.0,
+        hr: HrSchedule::constant(66.0),
+        ..SynthOptions::default()
+    })
+    .unwrap();
+    let pulse: Vec<i32> = s.samples.iter().map(|&v| (v * 1000.0) as i32).collect();
+    let noise: Vec<i32> = (0..pulse.len() as i64)
+        .map(|k| ((k * 7919 + 13) % 201 - 100) as i32)
+        .collect();
+    let led1 = NewSignal::new("LED1", "NU", 1000.0, 0);
+    let led2 = NewSignal::new("LED2", "NU", 1000.0, 0);
+    write_record(dir.path(), "two", 125.0, &[led1, led2], &[noise, pulse]).unwrap();
+    let rec = dir.path().join("two");
+    let (code, out, err) = plethwire(&[
+        "replay",
+        rec.to_str().unwrap(),
+        "--signal",
+        "LED1,LED2",
+        "--out",
+        dir.path().to_str().unwrap(),
+        "--json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["input"]["channel"]["chosen"], "LED2", "{}", v["input"]);
+    assert_eq!(v["input"]["inverted"], false);
+}
+
+#[test]
 fn bad_times_units_and_strap_lists_are_one_line_refusals() {
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
@@ -172,6 +225,11 @@ fn bad_times_units_and_strap_lists_are_one_line_refusals() {
     one_line_failure(
         &["replay", clip.to_str().unwrap(), "--time-column", "time"],
         &["clip.csv", "--time-unit"],
+    );
+    // A grid rate that would need memory without end.
+    one_line_failure(
+        &["replay", clip.to_str().unwrap(), "--rate", "1e12"],
+        &["clip.csv", "more than"],
     );
     // An empty R-R list, then one with a word on line 2.
     let rr = d.join("clip.rr.txt");

@@ -26,6 +26,10 @@ use super::resample::{median_rate, ResampleReport, Resampler, DEFAULT_MAX_GAP_S}
 use super::LoadedSignal;
 use serde::Serialize;
 
+/// Most samples a resampling grid may hold (a rate or unit given wrongly
+/// would otherwise ask for memory without end).
+pub const MAX_GRID_SAMPLES: f64 = 1e8;
+
 /// The unit of a time column.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
 #[serde(rename_all = "lowercase")]
@@ -444,6 +448,15 @@ pub fn read_csv_signals(
     }
     let seconds: Vec<f64> = times.iter().map(|&(_, t)| t).collect();
     let fs = grid.unwrap_or_else(|| median_rate(&seconds));
+    let span = seconds[seconds.len() - 1] - seconds[0];
+    if span * fs > MAX_GRID_SAMPLES {
+        return Err(Error::new(
+            path,
+            ErrorKind::Invalid(format!(
+                "a grid at {fs:.6} Hz over {span} s would hold more than {MAX_GRID_SAMPLES} samples"
+            )),
+        ));
+    }
     let resampler = Resampler {
         fs,
         max_gap_s: options.max_gap_s,
