@@ -228,7 +228,16 @@ fn bad_times_units_and_strap_lists_are_one_line_refusals() {
     );
     // A grid rate that would need memory without end.
     one_line_failure(
-        &["replay", clip.to_str().unwrap(), "--rate", "1e12"],
+        &[
+            "replay",
+            clip.to_str().unwrap(),
+            "--time-column",
+            "time",
+            "--time-unit",
+            "ms",
+            "--rate",
+            "1e12",
+        ],
         &["clip.csv", "more than"],
     );
     // An empty R-R list, then one with a word on line 2.
