@@ -1,6 +1,7 @@
 //! plethwire host library: the `plethwire` command line ([`cli`]) and the
 //! engines behind its subcommands, usable without it ([`filter_report`]).
 //! Synthetic recordings with known beats, for tests and demos: [`synth`].
+//! Choosing the channel with the clearest pulse among several: [`channel`].
 //! Reading and writing recordings (WFDB records and annotations, CSV): [`io`].
 //! Listening to a board over a serial port and recording it: [`listen`].
 //! Running recordings through the firmware on the emulated board: [`emulate`].
@@ -8,6 +9,7 @@
 //! The analog front end's budget, LED to ADC: [`frontend`].
 #![deny(missing_docs)]
 
+pub mod channel;
 pub mod cli;
 pub mod demo;
 pub mod emulate;

@@ -13,6 +13,7 @@ mod pipeline_opts;
 mod replay;
 mod report;
 mod score;
+mod score_strap;
 
 pub use demo::DemoArgs;
 pub use emulate::EmulateArgs;

@@ -3,7 +3,18 @@
 use clap::{Args, ValueEnum};
 use plethwire_dsp::pipeline::{Config, DetectorKind};
 
-use crate::replay::Source;
+use crate::replay::{Polarity, Source};
+
+/// Which way the pulse points, as named on the command line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum PolarityName {
+    /// Down for CSV columns R, G, B, red, green, blue (camera brightness), up otherwise.
+    Auto,
+    /// Systolic peaks are maxima.
+    Up,
+    /// Systolic peaks are minima: the signal is negated.
+    Down,
+}
 
 /// The published detectors, as named on the command line.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -26,17 +37,32 @@ impl From<DetectorName> for DetectorKind {
 /// Where the samples come from and how the pipeline is set up.
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct PipelineOpts {
-    /// WFDB signal to use [default: PLETH]; for CSV, the value column.
+    /// Signal to use: a WFDB signal or CSV column; a list NAME,NAME,... to
+    /// choose the clearest pulse among; or `auto` to choose among all
+    /// [default: PLETH for WFDB, auto for CSV (all columns but the time)].
     #[arg(long, value_name = "NAME")]
     pub signal: Option<String>,
 
-    /// CSV only: the sample rate, Hz.
+    /// CSV only: the sample rate, Hz; with a time column, the rate of the
+    /// uniform grid the rows are resampled onto [default: the median frame
+    /// rate when the times are uneven].
     #[arg(long, value_name = "HZ")]
     pub rate: Option<f64>,
 
-    /// CSV only: take the sample rate from this column of times (seconds).
-    #[arg(long, value_name = "NAME", conflicts_with = "rate")]
+    /// CSV only: take the sample times from this column [default: a column
+    /// named time, time_s, time_ms or time_us when --rate is not given].
+    #[arg(long, value_name = "NAME")]
     pub time_column: Option<String>,
+
+    /// CSV only: unit of the time column, s, ms or us [default: s for
+    /// --time-column; for a column found by name, the unit its name says,
+    /// or for plain `time` the one that makes the frame rate 25-1000 Hz].
+    #[arg(long, value_name = "UNIT")]
+    pub time_unit: Option<String>,
+
+    /// Which way the pulse points in the file.
+    #[arg(long, value_enum, default_value = "auto")]
+    pub polarity: PolarityName,
 
     /// Beat detector.
     #[arg(long, value_enum, default_value = "elgendi")]
@@ -73,6 +99,12 @@ impl PipelineOpts {
             signal: self.signal.clone(),
             rate: self.rate,
             time_column: self.time_column.clone(),
+            time_unit: self.time_unit.clone(),
+            polarity: match self.polarity {
+                PolarityName::Auto => Polarity::Auto,
+                PolarityName::Up => Polarity::Up,
+                PolarityName::Down => Polarity::Down,
+            },
         }
     }
 

@@ -8,7 +8,8 @@ use std::path::PathBuf;
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
 use crate::replay::{
-    beat_rows, beats_csv, load, replay, write_beat_annotations, BeatRow, Summary, DEFAULT_ANNOTATOR,
+    beat_rows, beats_csv, load, replay, write_beat_annotations, BeatRow, InputInfo, Summary,
+    DEFAULT_ANNOTATOR,
 };
 
 const EXAMPLES: &str = "\
@@ -62,6 +63,7 @@ struct ReplayReport<'a> {
     signal: &'a str,
     sample_rate_hz: f64,
     detector: String,
+    input: &'a InputInfo,
     summary: &'a Summary,
     written: &'a [String],
 }
@@ -129,6 +131,7 @@ impl ReplayArgs {
                 signal: &rec.signal.name,
                 sample_rate_hz: rec.signal.fs,
                 detector: format!("{:?}", config.options.detector).to_lowercase(),
+                input: &rec.input,
                 summary: &summary,
                 written: &written,
             };
@@ -141,6 +144,7 @@ impl ReplayArgs {
                 &summary,
                 &written,
             )
+            .replacen('\n', &format!("\n{}", input_lines(&rec.input)), 1)
         };
         out.write_all(text.as_bytes()).map_err(Failure::output)
     }
@@ -166,6 +170,47 @@ pub(super) fn beats_and_rate_lines(s: &Summary) -> String {
         ),
         None => "  heart rate  none (no good beats)\n".into(),
     };
+    t
+}
+
+/// How the samples were got (time column, resampling, channel choice),
+/// as `replay` and `score` print it; empty for a plain record.
+pub(crate) fn input_lines(input: &InputInfo) -> String {
+    let mut t = String::new();
+    if let (Some(column), Some(unit)) = (&input.time_column, input.time_unit) {
+        t += &format!(
+            "  times       column {column:?} in {} ({})\n",
+            unit.name(),
+            input.time_unit_from.unwrap_or("given")
+        );
+    }
+    if let Some(r) = &input.resampled {
+        t += &format!(
+            "  resampled   onto {:.3} Hz ({}): {:.1} % of {} frames off the grid by over 1/4 period, longest gap {:.0} ms, {} samples in gaps over {:.0} ms left missing\n",
+            r.grid_hz,
+            r.grid_rate_from,
+            100.0 * r.resampled_share,
+            r.frames,
+            1000.0 * r.longest_gap_s,
+            r.missing_samples,
+            1000.0 * r.max_gap_s
+        );
+    }
+    if input.inverted {
+        t += "  polarity    pulse points down in the file: signal negated\n";
+    }
+    if let Some(c) = &input.channel {
+        let figures: Vec<String> = c
+            .candidates
+            .iter()
+            .map(|f| format!("{} {:.3}", f.name, f.figure))
+            .collect();
+        t += &format!(
+            "  channel     {} chosen (clearest pulse: {})\n",
+            c.chosen,
+            figures.join(", ")
+        );
+    }
     t
 }
 

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
-use crate::score::records::{score_all, References, Scores};
+use crate::score::records::{score_all, References, Scores, DEFAULT_STRAP_SUFFIX};
 use crate::score::timing::PeakTiming;
 use crate::score::windows::{ReplayWindows, WindowScore};
 use crate::score::{MatchCounts, RateError};
@@ -16,6 +16,7 @@ Examples:
   plethwire score ../shared/data/capnobase
   plethwire score ../shared/data/bidmc --rate-column pulse_bpm --json
   plethwire score rec1 rec2 --reference atr --detector zong
+  plethwire score ../shared/data/phonefinger
 
 Each record is replayed through the pipeline. Beats are matched one to one
 within ±150 ms (ANSI/AAMI EC57 practice) against <record>.<reference>;
@@ -26,6 +27,11 @@ reference windows (<record><window-suffix>: window_start_s,window_end_s,bpm)
 when that table exists: 60000 / median of the intervals of the beats whose
 peak lies in the window, at least 2 intervals, from good beats and from all.
 Records without one of the references are scored on the others. Exit
+Records without one of the references are scored on the other. Folders
+give their WFDB records and CSV files. Where <record><strap-suffix> (R-R
+intervals in ms, one a line, from a chest strap on a clock of its own)
+exists, it is aligned to the detected beats and a second table compares
+intervals, heart rate and HRV (see plethwire::score::strap). Exit
 status: 0 done, 1 a record could not be read, 2 the command line could not
 be understood.";
 
@@ -53,6 +59,9 @@ pub struct ScoreArgs {
     /// (`window_start_s,window_end_s,bpm`), used when it exists.
     #[arg(long, value_name = "SUFFIX", default_value = "bpm.csv")]
     pub window_suffix: String,
+    /// Suffix of a chest strap's R-R interval list next to each recording.
+    #[arg(long, value_name = "SUFFIX", default_value = DEFAULT_STRAP_SUFFIX)]
+    pub strap_suffix: String,
 
     /// Print the scores as JSON.
     #[arg(long)]
@@ -71,6 +80,7 @@ impl ScoreArgs {
             rate_suffix: self.rate_suffix.clone(),
             rate_column: self.rate_column.clone(),
             window_suffix: self.window_suffix.clone(),
+            strap_suffix: self.strap_suffix.clone(),
         };
         let (bar, progress) = progress_line();
         let scores = score_all(
@@ -86,6 +96,8 @@ impl ScoreArgs {
             serde_json::to_string_pretty(&scores).unwrap_or_default() + "\n"
         } else {
             table(&scores)
+                + &super::score_strap::strap_table(&scores)
+                + &super::score_strap::input_lines(&scores)
         };
         out.write_all(text.as_bytes()).map_err(Failure::output)
     }

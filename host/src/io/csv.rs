@@ -8,12 +8,73 @@
 //! Cells of the value column must be numbers. The text `nan` (any case)
 //! is read as NaN, a missing sample; an empty cell is an error unless
 //! [`CsvSignalOptions::empty_as_nan`] is set, when it too becomes NaN.
-//! Time cells must be finite numbers, always.
+//! Time cells must be finite numbers, always, in the [`TimeUnit`] given
+//! (seconds by default), and must increase from row to row: a time that
+//! goes back or repeats is refused with its line, since two frames at one
+//! instant, or out of order, leave no way to know which came first.
+//!
+//! Times that are uniform (every row within [`CsvSignalOptions::tolerance`]
+//! periods of a fitted grid) give the rate and the rows are the samples.
+//! Uneven times (camera frames) are resampled onto a uniform grid by linear
+//! interpolation ([`super::resample`]): at a given rate
+//! ([`Rate::Resample`]) or at the median frame rate.
 
 use std::path::Path;
 
 use super::error::{Error, ErrorKind, Result};
+use super::resample::{median_rate, ResampleReport, Resampler, DEFAULT_MAX_GAP_S};
 use super::LoadedSignal;
+use serde::Serialize;
+
+/// Most samples a resampling grid may hold (a rate or unit given wrongly
+/// would otherwise ask for memory without end).
+pub const MAX_GRID_SAMPLES: f64 = 1e8;
+
+/// The unit of a time column.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum TimeUnit {
+    /// Seconds (the default).
+    #[default]
+    S,
+    /// Milliseconds.
+    Ms,
+    /// Microseconds.
+    Us,
+}
+
+impl TimeUnit {
+    /// Seconds in one of this unit.
+    pub fn seconds(self) -> f64 {
+        match self {
+            TimeUnit::S => 1.0,
+            TimeUnit::Ms => 1e-3,
+            TimeUnit::Us => 1e-6,
+        }
+    }
+
+    /// The unit's name: `s`, `ms` or `us`.
+    pub fn name(self) -> &'static str {
+        match self {
+            TimeUnit::S => "s",
+            TimeUnit::Ms => "ms",
+            TimeUnit::Us => "us",
+        }
+    }
+
+    /// Parse `s`, `ms` or `us`; anything else is a one-line message.
+    pub fn parse(text: &str) -> std::result::Result<TimeUnit, String> {
+        match text {
+            "s" => Ok(TimeUnit::S),
+            "ms" => Ok(TimeUnit::Ms),
+            "us" => Ok(TimeUnit::Us),
+            other => Err(format!(
+                "unknown time unit {} (use s, ms or us)",
+                super::error::quoted(other)
+            )),
+        }
+    }
+}
 
 /// A column, by header name or by 0-based position.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -29,8 +90,17 @@ pub enum ColumnRef {
 pub enum Rate {
     /// Known: samples per second.
     Given(f64),
-    /// Measured from a column of times in seconds, which must be uniform.
+    /// From a column of times: measured when they are uniform, else the
+    /// median frame rate, with the rows resampled onto that grid.
     FromTime(ColumnRef),
+    /// From a column of times, the rows always resampled onto a grid at
+    /// `fs` Hz.
+    Resample {
+        /// The time column.
+        time: ColumnRef,
+        /// Grid rate, Hz.
+        fs: f64,
+    },
 }
 
 /// What [`read_csv_signal`] reads.
@@ -50,6 +120,12 @@ pub struct CsvSignalOptions {
     pub tolerance: f64,
     /// Read empty value cells as NaN instead of refusing them (default `false`).
     pub empty_as_nan: bool,
+    /// Unit of the time column (default seconds).
+    pub time_unit: TimeUnit,
+    /// When resampling, frames further apart than this (seconds) are not
+    /// bridged: the grid samples between them are NaN (default
+    /// [`DEFAULT_MAX_GAP_S`]).
+    pub max_gap_s: f64,
 }
 
 impl CsvSignalOptions {
@@ -61,6 +137,8 @@ impl CsvSignalOptions {
             header: true,
             tolerance: 0.25,
             empty_as_nan: false,
+            time_unit: TimeUnit::S,
+            max_gap_s: DEFAULT_MAX_GAP_S,
         }
     }
 
@@ -76,12 +154,18 @@ impl CsvSignalOptions {
 /// How a time column turned out.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct TimeBase {
-    /// Sample rate: 1 / the step of the least-squares line through the times.
+    /// Sample rate: 1 / the step of the least-squares line through the
+    /// times, or the grid rate when resampled.
     pub fs: f64,
     /// Time of the first row, in seconds.
     pub start_s: f64,
-    /// Largest distance of a time from the fitted grid, in sample periods.
+    /// Largest distance of a time from the fitted grid, in sample periods
+    /// (of the least-squares grid, resampled or not).
     pub max_deviation: f64,
+    /// The unit the times were read in.
+    pub unit: TimeUnit,
+    /// What resampling did, when the rows were resampled.
+    pub resampled: Option<ResampleReport>,
 }
 
 /// A signal read from CSV, with the time base when it was measured.
@@ -89,7 +173,16 @@ pub struct TimeBase {
 pub struct CsvSignal {
     /// The signal; its name is the column's header text (or `#index`).
     pub signal: LoadedSignal,
-    /// The measured time base, for [`Rate::FromTime`].
+    /// The measured time base, for [`Rate::FromTime`] and [`Rate::Resample`].
+    pub time: Option<TimeBase>,
+}
+
+/// Several columns of one CSV file on one time base.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CsvSignals {
+    /// The signals, in the order asked for.
+    pub signals: Vec<LoadedSignal>,
+    /// The measured time base, for [`Rate::FromTime`] and [`Rate::Resample`].
     pub time: Option<TimeBase>,
 }
 
@@ -255,50 +348,50 @@ pub(super) fn parse_cell(text: &str) -> std::result::Result<Option<f64>, ()> {
 
 /// Read one column of the CSV file at `path` as a signal.
 pub fn read_csv_signal(path: impl AsRef<Path>, options: &CsvSignalOptions) -> Result<CsvSignal> {
+    let mut read = read_csv_signals(path, std::slice::from_ref(&options.column), options)?;
+    Ok(CsvSignal {
+        signal: read.signals.remove(0),
+        time: read.time,
+    })
+}
+
+/// The header names of the CSV file at `path` (its first non-blank line).
+pub fn csv_column_names(path: impl AsRef<Path>) -> Result<Vec<String>> {
     let path = path.as_ref();
-    if !options.header {
-        if let ColumnRef::Name(_) = &options.column {
-            return Err(Error::new(
-                path,
-                ErrorKind::Invalid(
-                    "columns of a file without a header can only be picked by index".into(),
-                ),
-            ));
-        }
+    let table = Table::read(path, true)?;
+    Ok(table.names.unwrap_or_default())
+}
+
+/// Read `columns` of the CSV file at `path` (in place of
+/// `options.column`) on one time base: every column is resampled onto the
+/// same grid when the times are uneven.
+pub fn read_csv_signals(
+    path: impl AsRef<Path>,
+    columns: &[ColumnRef],
+    options: &CsvSignalOptions,
+) -> Result<CsvSignals> {
+    let path = path.as_ref();
+    if !options.header && columns.iter().any(|c| matches!(c, ColumnRef::Name(_))) {
+        return Err(Error::new(
+            path,
+            ErrorKind::Invalid(
+                "columns of a file without a header can only be picked by index".into(),
+            ),
+        ));
     }
     let table = Table::read(path, options.header)?;
-    let col = table.find(path, &options.column)?;
+    let cols = columns
+        .iter()
+        .map(|c| table.find(path, c))
+        .collect::<Result<Vec<usize>>>()?;
     if table.rows.is_empty() {
         return Err(Error::new(path, ErrorKind::Syntax("no data rows".into())));
     }
-    let not_number = |no: usize, i: usize, text: &str| {
-        Error::new(
-            path,
-            ErrorKind::NotANumber {
-                column: table.name(i),
-                text: text.to_string(),
-            },
-        )
-        .at_line(no)
-    };
-    let mut samples = Vec::with_capacity(table.rows.len());
-    for (no, cells) in &table.rows {
-        let text = &cells[col];
-        let v = match parse_cell(text) {
-            Ok(Some(v)) => v,
-            Ok(None) if options.empty_as_nan => f64::NAN,
-            Ok(None) => {
-                return Err(Error::new(
-                    path,
-                    ErrorKind::Invalid(format!("column {:?}: empty cell", table.name(col))),
-                )
-                .at_line(*no))
-            }
-            Err(()) => return Err(not_number(*no, col, text)),
-        };
-        samples.push(v);
+    let mut values: Vec<Vec<f64>> = Vec::with_capacity(cols.len());
+    for &col in &cols {
+        values.push(read_values(path, &table, col, options.empty_as_nan)?);
     }
-    let (fs, time) = match &options.rate {
+    let (time_col, grid) = match &options.rate {
         Rate::Given(fs) => {
             if !(fs.is_finite() && *fs > 0.0) {
                 return Err(Error::new(
@@ -306,47 +399,134 @@ pub fn read_csv_signal(path: impl AsRef<Path>, options: &CsvSignalOptions) -> Re
                     ErrorKind::Invalid(format!("sample rate {fs} must be above 0")),
                 ));
             }
-            (*fs, None)
+            return Ok(CsvSignals {
+                signals: named(&table, &cols, values, *fs),
+                time: None,
+            });
         }
-        Rate::FromTime(time_col) => {
-            let tc = table.find(path, time_col)?;
-            let mut times = Vec::with_capacity(table.rows.len());
-            for (no, cells) in &table.rows {
-                match parse_cell(&cells[tc]) {
-                    Ok(Some(t)) if t.is_finite() => times.push((*no, t)),
-                    _ => return Err(not_number(*no, tc, &cells[tc])),
-                }
-            }
-            let base = time_base(&times, options.tolerance).map_err(|(line, m)| {
-                let e = Error::new(
+        Rate::FromTime(t) => (t, None),
+        Rate::Resample { time, fs } => {
+            if !(fs.is_finite() && *fs > 0.0) {
+                return Err(Error::new(
                     path,
-                    ErrorKind::Invalid(format!("column {:?}: {m}", table.name(tc))),
-                );
-                match line {
-                    Some(l) => e.at_line(l),
-                    None => e,
-                }
-            })?;
-            (base.fs, Some(base))
+                    ErrorKind::Invalid(format!("grid rate {fs} must be above 0")),
+                ));
+            }
+            (time, Some(*fs))
         }
     };
-    Ok(CsvSignal {
-        signal: LoadedSignal {
-            name: table.name(col),
-            units: None,
+    let tc = table.find(path, time_col)?;
+    let mut times = Vec::with_capacity(table.rows.len());
+    for (no, cells) in &table.rows {
+        match parse_cell(&cells[tc]) {
+            Ok(Some(t)) if t.is_finite() => times.push((*no, t * options.time_unit.seconds())),
+            _ => return Err(not_number(path, &table, *no, tc, &cells[tc])),
+        }
+    }
+    let in_column = |(line, m): (Option<usize>, String)| {
+        let e = Error::new(
+            path,
+            ErrorKind::Invalid(format!("column {:?}: {m}", table.name(tc))),
+        );
+        match line {
+            Some(l) => e.at_line(l),
+            None => e,
+        }
+    };
+    let fit = time_fit(&times).map_err(in_column)?;
+    let uniform = fit.max_deviation <= options.tolerance;
+    if uniform && grid.is_none() {
+        let base = TimeBase {
+            unit: options.time_unit,
+            resampled: None,
+            ..fit
+        };
+        return Ok(CsvSignals {
+            signals: named(&table, &cols, values, base.fs),
+            time: Some(base),
+        });
+    }
+    let seconds: Vec<f64> = times.iter().map(|&(_, t)| t).collect();
+    let fs = grid.unwrap_or_else(|| median_rate(&seconds));
+    let span = seconds[seconds.len() - 1] - seconds[0];
+    if span * fs > MAX_GRID_SAMPLES {
+        return Err(Error::new(
+            path,
+            ErrorKind::Invalid(format!(
+                "a grid at {fs:.6} Hz over {span} s would hold more than {MAX_GRID_SAMPLES} samples"
+            )),
+        ));
+    }
+    let resampler = Resampler {
+        fs,
+        max_gap_s: options.max_gap_s,
+    };
+    let slices: Vec<&[f64]> = values.iter().map(Vec::as_slice).collect();
+    let (values, mut report) = resampler.run(&seconds, &slices);
+    if grid.is_none() {
+        report.grid_rate_from = "median frame rate";
+    }
+    Ok(CsvSignals {
+        signals: named(&table, &cols, values, fs),
+        time: Some(TimeBase {
             fs,
-            samples,
-        },
-        time,
+            unit: options.time_unit,
+            resampled: Some(report),
+            ..fit
+        }),
     })
 }
 
-/// Fit a uniform grid to `times` ((line, seconds) pairs) by least squares
-/// and check every time lies within `tolerance` periods of it.
-fn time_base(
-    times: &[(usize, f64)],
-    tolerance: f64,
-) -> std::result::Result<TimeBase, (Option<usize>, String)> {
+/// The error for a cell of a number column that is not a number.
+fn not_number(path: &Path, table: &Table, no: usize, col: usize, text: &str) -> Error {
+    Error::new(
+        path,
+        ErrorKind::NotANumber {
+            column: table.name(col),
+            text: text.to_string(),
+        },
+    )
+    .at_line(no)
+}
+
+/// The numbers of column `col`.
+fn read_values(path: &Path, table: &Table, col: usize, empty_as_nan: bool) -> Result<Vec<f64>> {
+    let mut samples = Vec::with_capacity(table.rows.len());
+    for (no, cells) in &table.rows {
+        let text = &cells[col];
+        let v = match parse_cell(text) {
+            Ok(Some(v)) => v,
+            Ok(None) if empty_as_nan => f64::NAN,
+            Ok(None) => {
+                return Err(Error::new(
+                    path,
+                    ErrorKind::Invalid(format!("column {:?}: empty cell", table.name(col))),
+                )
+                .at_line(*no))
+            }
+            Err(()) => return Err(not_number(path, table, *no, col, text)),
+        };
+        samples.push(v);
+    }
+    Ok(samples)
+}
+
+/// Columns `cols` with their `values` as signals at `fs`.
+fn named(table: &Table, cols: &[usize], values: Vec<Vec<f64>>, fs: f64) -> Vec<LoadedSignal> {
+    cols.iter()
+        .zip(values)
+        .map(|(&c, samples)| LoadedSignal {
+            name: table.name(c),
+            units: None,
+            fs,
+            samples,
+        })
+        .collect()
+}
+
+/// Fit a uniform grid to `times` ((line, seconds) pairs) by least
+/// squares; refuse times that do not increase.
+fn time_fit(times: &[(usize, f64)]) -> std::result::Result<TimeBase, (Option<usize>, String)> {
     if times.len() < 2 {
         return Err((
             None,
@@ -355,9 +535,17 @@ fn time_base(
     }
     for w in times.windows(2) {
         if w[1].1 <= w[0].1 {
+            let what = if w[1].1 == w[0].1 {
+                "repeats"
+            } else {
+                "goes back"
+            };
             return Err((
                 Some(w[1].0),
-                format!("time {} does not follow {}", w[1].1, w[0].1),
+                format!(
+                    "time {} s {what} (row before: {} s); times must increase",
+                    w[1].1, w[0].1
+                ),
             ));
         }
     }
@@ -374,32 +562,17 @@ fn time_base(
     }
     let period = skt / skk;
     let grid_start = t_mean - period * k_mean;
-    let mut worst = (0.0f64, times[0].0);
-    for (k, &(line, t)) in times.iter().enumerate() {
-        let off = ((t - (grid_start + k as f64 * period)) / period).abs();
-        if off > worst.0 {
-            worst = (off, line);
-        }
-    }
-    // Written so that a NaN tolerance or deviation fails too.
-    let within = matches!(
-        worst.0.partial_cmp(&tolerance),
-        Some(std::cmp::Ordering::Less | std::cmp::Ordering::Equal)
-    );
-    if !within {
-        return Err((
-            Some(worst.1),
-            format!(
-                "times are not uniform: {:.3} sample periods off the grid of {:.6} Hz (tolerance {tolerance})",
-                worst.0,
-                1.0 / period
-            ),
-        ));
-    }
+    let worst = times
+        .iter()
+        .enumerate()
+        .map(|(k, &(_, t))| ((t - (grid_start + k as f64 * period)) / period).abs())
+        .fold(0.0f64, f64::max);
     Ok(TimeBase {
         fs: 1.0 / period,
         start_s: times[0].1,
-        max_deviation: worst.0,
+        max_deviation: worst,
+        unit: TimeUnit::S,
+        resampled: None,
     })
 }
 

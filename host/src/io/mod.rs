@@ -7,7 +7,9 @@
 //! * [`read_annotations`] / [`write_annotations`] handle WFDB annotation
 //!   files (MIT format), e.g. reference beat positions.
 //! * [`read_csv_signal`] takes one column of a CSV file as a signal;
-//!   [`read_numerics`] reads a table of sparse once-a-second values.
+//!   [`read_numerics`] reads a table of sparse once-a-second values; uneven
+//!   frame times are put on a uniform grid by [`resample`].
+//! * [`read_rr_intervals`] reads a list of R-R intervals (a chest strap's).
 //!
 //! Every failure is an [`Error`] whose `Display` is one line naming the
 //! file (and line) and the problem; malformed input never panics.
@@ -15,6 +17,8 @@
 mod csv;
 mod error;
 mod numerics;
+pub mod resample;
+mod rr;
 mod wfdb_annotation;
 mod wfdb_format;
 mod wfdb_header;
@@ -24,9 +28,13 @@ mod wfdb_write;
 #[cfg(test)]
 pub(crate) mod test_support;
 
-pub use csv::{read_csv_signal, ColumnRef, CsvSignal, CsvSignalOptions, Rate, TimeBase};
+pub use csv::{
+    csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignal, CsvSignalOptions,
+    CsvSignals, Rate, TimeBase, TimeUnit,
+};
 pub use error::{Error, ErrorKind, Result};
 pub use numerics::{read_numerics, Numerics};
+pub use rr::read_rr_intervals;
 pub use wfdb_annotation::{
     annotation_path, code_for_symbol, decode_annotations, encode_annotations, read_annotations,
     symbol_for_code, write_annotations, Annotation, NORMAL,

@@ -174,5 +174,6 @@ mod tests {
 }
 
 pub mod records;
+pub mod strap;
 pub mod timing;
 pub mod windows;

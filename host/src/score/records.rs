@@ -1,11 +1,13 @@
 //! Scoring whole recordings: beats against a reference annotation file,
 //! heart rate against a reference numerics table, per record and pooled.
 
+use super::strap::{score_strap, StrapScore};
 use super::timing::PeakTiming;
 use super::windows::{read_rate_windows, ReplayWindows};
 use super::{match_beats, match_pairs, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
+use crate::io::read_rr_intervals;
 use crate::io::{annotation_path, read_annotations, read_numerics};
-use crate::replay::{load, replay, Recording, Replay, ReplayError, Source, Summary};
+use crate::replay::{load, replay, InputInfo, Recording, Replay, ReplayError, Source, Summary};
 use plethwire_dsp::pipeline::Config;
 use serde::Serialize;
 use std::path::{Path, PathBuf};
@@ -22,7 +24,13 @@ pub struct References {
     /// Suffix of the reference window table (`<record><suffix>`,
     /// `window_start_s,window_end_s,bpm`), used when it exists.
     pub window_suffix: String,
+    /// Suffix of a chest strap's R-R interval list (`<record><suffix>`,
+    /// `<record>` without `.csv` for a CSV recording).
+    pub strap_suffix: String,
 }
+
+/// Suffix of the strap's R-R list unless told otherwise.
+pub const DEFAULT_STRAP_SUFFIX: &str = ".rr.txt";
 
 impl Default for References {
     fn default() -> Self {
@@ -31,6 +39,7 @@ impl Default for References {
             rate_suffix: "n.csv".into(),
             rate_column: "pulse_bpm".into(),
             window_suffix: "bpm.csv".into(),
+            strap_suffix: DEFAULT_STRAP_SUFFIX.into(),
         }
     }
 }
@@ -52,6 +61,12 @@ pub struct RecordScore {
     pub peak_timing: Option<PeakTiming>,
     /// Heart rate in the reference windows, when a window table exists.
     pub windows: Option<ReplayWindows>,
+    /// The signal scored (the chosen one, when there was a choice).
+    pub signal: String,
+    /// How the samples were got (time column, resampling, channel choice).
+    pub input: InputInfo,
+    /// Against a chest strap's R-R list, when one exists.
+    pub strap: Option<StrapScore>,
 }
 
 /// Scores of several recordings and their pooled totals.
@@ -69,8 +84,9 @@ pub struct Scores {
     pub pooled_windows: Option<ReplayWindows>,
 }
 
-/// Every WFDB record in `paths`: records as given, folders expanded to
-/// the records whose headers they hold (sorted by name).
+/// Every recording in `paths`: records and files as given, folders
+/// expanded to the WFDB records whose headers they hold and the CSV files
+/// they hold (sorted by name).
 pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
     let mut out = Vec::new();
     for p in paths {
@@ -78,14 +94,11 @@ pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
             let entries = std::fs::read_dir(p).map_err(|e| {
                 ReplayError(format!("{}: cannot list the folder: {e}", p.display()))
             })?;
-            let mut found: Vec<PathBuf> = entries
-                .filter_map(|e| e.ok().map(|e| e.path()))
-                .filter(|f| f.extension().is_some_and(|x| x == "hea"))
-                .map(|f| f.with_extension(""))
-                .collect();
+            let mut found =
+                recordings_in_folder(entries.filter_map(|e| e.ok().map(|e| e.path())).collect());
             if found.is_empty() {
                 return Err(ReplayError(format!(
-                    "{}: no WFDB records (.hea) in this folder",
+                    "{}: no WFDB records (.hea) or CSV files in this folder",
                     p.display()
                 )));
             }
@@ -96,6 +109,53 @@ pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
         }
     }
     Ok(out)
+}
+
+/// The recordings among a folder's `entries`: each header's record, and
+/// each CSV file that is not a table beside a record (a CSV whose name
+/// starts with a record's name, as `<record>n.csv` or `<record>bpm.csv`).
+fn recordings_in_folder(entries: Vec<PathBuf>) -> Vec<PathBuf> {
+    let ext_is = |f: &Path, e: &str| {
+        f.extension()
+            .and_then(|x| x.to_str())
+            .is_some_and(|x| x.eq_ignore_ascii_case(e))
+    };
+    let records: Vec<PathBuf> = entries
+        .iter()
+        .filter(|f| ext_is(f, "hea"))
+        .map(|f| f.with_extension(""))
+        .collect();
+    let beside_a_record = |f: &Path| {
+        let stem = f.file_stem().unwrap_or_default().to_string_lossy();
+        records.iter().any(|r| {
+            r.file_name()
+                .is_some_and(|n| stem.starts_with(&*n.to_string_lossy()))
+        })
+    };
+    let tables: Vec<PathBuf> = entries
+        .iter()
+        .filter(|f| ext_is(f, "csv") && !beside_a_record(f))
+        .cloned()
+        .collect();
+    records.into_iter().chain(tables).collect()
+}
+
+/// The strap's R-R intervals (ms) for the recording at `path`, from
+/// `<record><suffix>`, or `None` when that file does not exist.
+pub fn strap_intervals(path: &Path, suffix: &str) -> Result<Option<Vec<f64>>, ReplayError> {
+    let record = if path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
+    {
+        path.with_extension("")
+    } else {
+        path.to_path_buf()
+    };
+    let file = numerics_path(&record, suffix);
+    if !file.exists() {
+        return Ok(None);
+    }
+    Ok(Some(read_rr_intervals(&file)?))
 }
 
 /// Reference beats of the record at `record` (path without
@@ -164,6 +224,8 @@ pub fn score_one(
         reference_windows(&rec.path, &refs.window_suffix)?.map(|w| ReplayWindows::of(&w, run));
     let heart_rate =
         reference_rate(&rec.path, refs)?.map(|series| rate_error(&run.heart_rate_track(), &series));
+    let strap =
+        strap_intervals(&rec.path, &refs.strap_suffix)?.and_then(|rr| score_strap(run, &rr));
     Ok(RecordScore {
         record: rec.name.clone(),
         beats,
@@ -172,6 +234,9 @@ pub fn score_one(
         summary: run.summary(),
         peak_timing,
         windows,
+        signal: rec.signal.name.clone(),
+        input: rec.input.clone(),
+        strap,
     })
 }
 

@@ -144,7 +144,11 @@ mod tests {
         let mut out = Vec::new();
         for (k, v) in values.enumerate() {
             held[k % 64] = v;
-            let jump = if k >= lag { v - held[(k - lag) % 64] } else { 0.0 };
+            let jump = if k >= lag {
+                v - held[(k - lag) % 64]
+            } else {
+                0.0
+            };
             out.push(scale.push(v, jump));
         }
         out
@@ -160,7 +164,13 @@ mod tests {
         let pulse = (0..400).map(|k| libm::sinf(k as f32 * 0.075));
         assert!(feed(&mut s, pulse, 10).iter().all(|c| *c == Change::None));
         let mut s = Scale::new(fd);
-        let with_step = (0..400).map(|k| if k < 300 { libm::sinf(k as f32 * 0.075) } else { 100.0 });
+        let with_step = (0..400).map(|k| {
+            if k < 300 {
+                libm::sinf(k as f32 * 0.075)
+            } else {
+                100.0
+            }
+        });
         assert!(feed(&mut s, with_step, 10).contains(&Change::Step));
     }
 
@@ -168,9 +178,22 @@ mod tests {
     fn loud_noise_that_stops_is_a_collapse() {
         let fd = 100.0;
         let mut s = Scale::new(fd);
-        let v = (0..600).map(|k| if k < 300 { if k % 2 == 0 { 500.0 } else { -500.0 } } else { libm::sinf(k as f32 * 0.075) });
+        let v = (0..600).map(|k| {
+            if k < 300 {
+                if k % 2 == 0 {
+                    500.0
+                } else {
+                    -500.0
+                }
+            } else {
+                libm::sinf(k as f32 * 0.075)
+            }
+        });
         let changes = feed(&mut s, v, 10);
-        let at = changes.iter().position(|c| *c == Change::Collapse).expect("collapse");
+        let at = changes
+            .iter()
+            .position(|c| *c == Change::Collapse)
+            .expect("collapse");
         assert!((300..=425).contains(&at), "{at}");
     }
 }

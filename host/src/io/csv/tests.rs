@@ -54,27 +54,70 @@ fn rate_from_a_rounded_time_column() {
 }
 
 #[test]
-fn a_dropped_sample_is_not_uniform() {
+fn a_dropped_sample_is_resampled_and_times_must_increase() {
     let dir = tempfile::tempdir().unwrap();
     let mut text = String::from("time_s,v\n");
     for k in (0..100).filter(|&k| k != 40) {
         text.push_str(&format!("{},{k}\n", k as f64 * 0.01));
     }
     let p = write(dir.path(), "d.csv", &text);
-    let e = read_csv_signal(
+    let s = read_csv_signal(
         &p,
         &CsvSignalOptions::with_time(by_name("v"), by_name("time_s")),
     )
-    .unwrap_err();
-    assert!(e.to_string().contains("times are not uniform"), "{e}");
-    assert!(e.line().is_some());
-    let p = write(dir.path(), "back.csv", "time_s,v\n0,1\n0.02,2\n0.01,3\n");
-    let e = read_csv_signal(
-        &p,
-        &CsvSignalOptions::with_time(by_name("v"), by_name("time_s")),
-    )
-    .unwrap_err();
-    assert_eq!(e.line(), Some(4));
+    .unwrap();
+    let t = s.time.unwrap();
+    let r = t.resampled.expect("uneven times are resampled");
+    assert!((r.grid_hz - 100.0).abs() < 1e-9, "{r:?}");
+    assert_eq!(r.grid_rate_from, "median frame rate");
+    // The lost sample is interpolated back: v = k on the grid.
+    assert_eq!(s.signal.samples.len(), 100);
+    assert!((s.signal.samples[40] - 40.0).abs() < 1e-9);
+    assert_eq!(r.missing_samples, 0);
+    for (name, body, line) in [
+        ("back.csv", "time_s,v\n0,1\n0.02,2\n0.01,3\n", 4),
+        ("same.csv", "time_s,v\n0,1\n0.01,2\n0.01,3\n", 4),
+    ] {
+        let p = write(dir.path(), name, body);
+        let e = read_csv_signal(
+            &p,
+            &CsvSignalOptions::with_time(by_name("v"), by_name("time_s")),
+        )
+        .unwrap_err();
+        assert_eq!(e.line(), Some(line), "{e}");
+        assert!(e.to_string().contains("times must increase"), "{e}");
+    }
+}
+
+#[test]
+fn milliseconds_and_a_given_grid_rate() {
+    let dir = tempfile::tempdir().unwrap();
+    // Frames at 0, 30, 70, 100 ms of v = t (ms), onto a 100 Hz grid.
+    let p = write(
+        dir.path(),
+        "ms.csv",
+        "time,R,G\n0,0,5\n30,30,5\n70,70,5\n100,100,5\n",
+    );
+    let mut o = CsvSignalOptions::with_rate(by_name("R"), 1.0);
+    o.rate = Rate::Resample {
+        time: by_name("time"),
+        fs: 100.0,
+    };
+    o.time_unit = TimeUnit::Ms;
+    let s = read_csv_signals(&p, &[by_name("R"), by_name("G")], &o).unwrap();
+    assert_eq!(s.signals.len(), 2);
+    assert_eq!(s.signals[0].fs, 100.0);
+    assert_eq!(s.signals[0].samples.len(), 11);
+    for (k, v) in s.signals[0].samples.iter().enumerate() {
+        assert!((v - 10.0 * k as f64).abs() < 1e-9, "{:?}", s.signals[0]);
+    }
+    assert!(s.signals[1].samples.iter().all(|&v| v == 5.0));
+    let t = s.time.unwrap();
+    assert_eq!(t.unit, TimeUnit::Ms);
+    assert!((t.resampled.unwrap().longest_gap_s - 0.04).abs() < 1e-12);
+    assert!(TimeUnit::parse("min")
+        .unwrap_err()
+        .contains("unknown time unit"));
 }
 
 #[test]
