@@ -10,6 +10,7 @@
 
 pub mod cli;
 pub mod demo;
+pub mod ecg;
 pub mod emulate;
 pub mod filter_report;
 pub mod frontend;
