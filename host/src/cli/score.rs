@@ -6,6 +6,7 @@ use std::path::PathBuf;
 
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
+use crate::ecg::EcgScore;
 use crate::score::records::{score_all, References, Scores};
 use crate::score::{MatchCounts, RateError};
 
@@ -14,12 +15,19 @@ Examples:
   plethwire score ../shared/data/capnobase
   plethwire score ../shared/data/bidmc --rate-column pulse_bpm --json
   plethwire score rec1 rec2 --reference atr --detector zong
+  plethwire score ../shared/data/bidmc --ecg II
+  plethwire score ../shared/data/exercise --signal PPG1 --ecg ECG
 
 Each record is replayed through the pipeline. Beats are matched one to one
 within ±150 ms (ANSI/AAMI EC57 practice) against <record>.<reference>;
 heart rate, once per reference row, against column --rate-column of
 <record><rate-suffix> (the latest smoothed heart rate reported by then).
-Records without one of the references are scored on the other. Exit
+Records without one of the references are scored on the other.
+With --ecg, the pulses are also scored against the R peaks of that ECG
+signal of the same record (Pan and Tompkins; same sample rate needed),
+each R peak moved by the local pulse-arrival delay (the densest R-to-pulse
+offset over 60 s); stretches with no R peak for over 3 s, or with the
+ECG at its rails for over 0.2 s, are left out ('excl s'). 'PAT ms' is the median matched pulse minus R peak. Exit
 status: 0 done, 1 a record could not be read, 2 the command line could not
 be understood.";
 
@@ -43,6 +51,10 @@ pub struct ScoreArgs {
     #[arg(long, value_name = "NAME", default_value = "pulse_bpm")]
     pub rate_column: String,
 
+    /// ECG signal of the same record to score the pulses against.
+    #[arg(long, value_name = "SIGNAL")]
+    pub ecg: Option<String>,
+
     /// Print the scores as JSON.
     #[arg(long)]
     pub json: bool,
@@ -59,6 +71,7 @@ impl ScoreArgs {
             annotator: self.reference.clone(),
             rate_suffix: self.rate_suffix.clone(),
             rate_column: self.rate_column.clone(),
+            ecg: self.ecg.clone(),
         };
         let (bar, progress) = progress_line();
         let scores = score_all(
@@ -125,30 +138,74 @@ fn rate_cells(r: &Option<RateError>) -> String {
     }
 }
 
+/// The ECG columns of a row: R peaks, Se, +P, F1, median delay and its
+/// quartiles, time left out.
+fn ecg_cells(counts: Option<&MatchCounts>, e: Option<&EcgScore>) -> String {
+    let Some(m) = counts else {
+        return format!(
+            " {:>6} {:>7} {:>7} {:>7} {:>6} {:>9} {:>6}",
+            "-", "-", "-", "-", "-", "-", "-"
+        );
+    };
+    let r = e.map_or("-".into(), |e| e.r_peaks.to_string());
+    let delay = e
+        .and_then(|e| e.delay_ms)
+        .map_or("-".into(), |d| format!("{d:.0}"));
+    let iqr = e
+        .and_then(|e| e.delay_iqr_ms)
+        .map_or("-".into(), |(a, b)| format!("{a:.0}-{b:.0}"));
+    let excl = e.map_or("-".into(), |e| format!("{:.0}", e.excluded_s));
+    format!(
+        " {r:>6} {:>7} {:>7} {:>7} {delay:>6} {iqr:>9} {excl:>6}",
+        pct(m.se()),
+        pct(m.ppv()),
+        pct(m.f1())
+    )
+}
+
 fn table(s: &Scores) -> String {
+    let with_ecg = s.pooled_ecg.is_some();
     let mut t = String::new();
     t += &format!(
-        "{:<12} {:>6} {:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7} {:>8} {:>6}\n",
+        "{:<12} {:>6} {:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7} {:>8} {:>6}",
         "record", "beats", "ref", "TP", "FP", "FN", "Se %", "+P %", "F1 %", "HR MAE", "secs"
     );
+    if with_ecg {
+        t += &format!(
+            " {:>6} {:>7} {:>7} {:>7} {:>6} {:>9} {:>6}",
+            "ECG R", "ECG Se", "ECG +P", "ECG F1", "PAT ms", "PAT IQR", "excl s"
+        );
+    }
+    t += "\n";
     for r in &s.records {
         t += &format!(
-            "{:<12} {:>6} {} {}\n",
+            "{:<12} {:>6} {} {}",
             r.record,
             r.summary.beats,
             beats_cells(&r.beats, r.reference_beats),
             rate_cells(&r.heart_rate)
         );
+        if with_ecg {
+            t += &ecg_cells(r.ecg.as_ref().map(|e| &e.counts), r.ecg.as_ref());
+        }
+        t += "\n";
     }
     let refs: usize = s.records.iter().filter_map(|r| r.reference_beats).sum();
     let beats: usize = s.records.iter().map(|r| r.summary.beats).sum();
     t += &format!(
-        "{:<12} {:>6} {} {}\n",
+        "{:<12} {:>6} {} {}",
         "pooled",
         beats,
         beats_cells(&s.pooled_beats, Some(refs)),
         rate_cells(&s.pooled_heart_rate)
     );
+    if with_ecg {
+        t += &ecg_cells(s.pooled_ecg.as_ref(), None);
+    }
+    t += "\n";
     t += "HR MAE: mean absolute difference in bpm from the reference series, over 'secs' compared rows.\n";
+    if with_ecg {
+        t += "ECG: pulses against R peaks moved by the local arrival delay; PAT: matched pulse minus R peak, ms (median, quartiles); excl s: ECG time left out (no R peak for over 3 s, ECG at its rails).\n";
+    }
     t
 }

@@ -3,9 +3,10 @@
 //! A pulse reaches the sensor a pulse-arrival delay after its R peak; the
 //! delay changes with effort and posture, so it is estimated locally: for
 //! each R peak, over the R peaks within ±30 s (a 60 s window), the delay
-//! in 50-600 ms after an R peak at which the most R peaks have a detected
-//! pulse within ±25 ms (the mode of the R-to-pulse offsets), refined to
-//! the median of those offsets. A mode rather than the median of
+//! in 150-1000 ms after an R peak, and within 200 ms of the whole record's
+//! own such delay, at which the most R peaks have a detected pulse within
+//! ±25 ms (the mode of the R-to-pulse offsets), refined to the median of
+//! those offsets. A mode rather than the median of
 //! "the next pulse after each R peak": spurious pulses spread evenly over
 //! the offsets and missed ones push the next beat's pulse a whole interval
 //! later, so neither moves the mode, while both pull a median. Each R peak
@@ -17,13 +18,23 @@ use super::{r_peaks, EcgError};
 use crate::score::{match_pairs, MatchCounts, MATCH_WINDOW_S};
 use serde::Serialize;
 
-/// Offsets after an R peak a pulse may arrive at, seconds (common
-/// practice: about 0.2-0.3 s at the finger at rest, from memory).
-pub const DELAY_RANGE_S: (f64, f64) = (0.050, 0.600);
+/// Offsets after an R peak a pulse may arrive at, seconds. The pulse
+/// itself takes about 0.2-0.3 s to the finger at rest and hardly less than
+/// 0.15 s anywhere (from memory); the
+/// range reaches 1 s because bedside monitor recordings carry their own
+/// lag between the ECG and pleth outputs (BIDMC: 0.6-0.7 s, measured with
+/// this module), and the densest offset still picks a pulse's own R peak
+/// over the one before, whose offsets spread with the R-R variability.
+pub const DELAY_RANGE_S: (f64, f64) = (0.150, 1.000);
 /// Span of R peaks each local delay is estimated over, seconds.
 pub const DELAY_WINDOW_S: f64 = 60.0;
 /// Half-width of the bin the offsets are counted in, seconds.
 const BIN_HALF_S: f64 = 0.025;
+/// How far a local delay may be from the record's, seconds: the delay
+/// moves with effort by tens of ms (about 0.1 s from rest to a run, from
+/// memory), and a bound keeps a regular rhythm's windows from switching
+/// to the offset from the R peak before (one R-R interval away).
+const LOCAL_REACH_S: f64 = 0.200;
 /// Grid the delay is searched on, seconds.
 const GRID_S: f64 = 0.005;
 /// Fewest R peaks with a pulse in the winning bin for a local estimate;
@@ -45,10 +56,13 @@ pub struct EcgScore {
     pub delay_ms: Option<f64>,
     /// 25th and 75th percentile of the same, ms.
     pub delay_iqr_ms: Option<(f64, f64)>,
-    /// Time left out: before the first and after the last R peak and in
-    /// gaps of over 3 s ([`super::MAX_R_GAP_S`]), seconds.
+    /// ECG time left out ([`super::unusable_spans`]): before the first
+    /// and after the last R peak, gaps of over 3 s between R peaks, and
+    /// the ECG at its rails, seconds.
     pub excluded_s: f64,
-    /// Pulses in that time, left out of the counts.
+    /// R peaks in that time, left out of the reference.
+    pub excluded_r_peaks: usize,
+    /// Pulses whose R peak would fall in that time, left out of the counts.
     pub excluded_pulses: usize,
 }
 
@@ -56,41 +70,52 @@ pub struct EcgScore {
 /// sampled at the same rate.
 pub fn score_pulses(ecg: &[f64], fs: f64, pulses: &[u64]) -> Result<EcgScore, EcgError> {
     let r = r_peaks(ecg, fs)?;
-    Ok(score_against_r_peaks(&r, ecg.len() as u64, fs, pulses))
+    let tol = (MATCH_WINDOW_S * fs).round() as u64;
+    let unusable = unusable_spans(ecg, &r, fs, tol);
+    Ok(score_against_r_peaks(&r, &unusable, fs, pulses))
 }
 
-/// Score `pulses` against known R peaks (`r`, ascending) of a recording
-/// of `len` samples at `fs` Hz.
-pub fn score_against_r_peaks(r: &[u64], len: u64, fs: f64, pulses: &[u64]) -> EcgScore {
+/// Score `pulses` against known R peaks (`r`, ascending) at `fs` Hz,
+/// leaving out the ECG time `unusable` (sorted spans of sample indices,
+/// end exclusive): the R peaks in it, and the pulses whose R peak, their
+/// time less the local delay, would fall in it.
+pub fn score_against_r_peaks(
+    r: &[u64],
+    unusable: &[(u64, u64)],
+    fs: f64,
+    pulses: &[u64],
+) -> EcgScore {
     let mut pulses = pulses.to_vec();
     pulses.sort_unstable();
     let tol = (MATCH_WINDOW_S * fs).round() as u64;
-    let delays = local_delays(r, &pulses, fs);
-    let shifted: Vec<u64> = r
+    let delays: Vec<u64> = local_delays(r, &pulses, fs)
         .iter()
-        .zip(&delays)
-        .map(|(&ri, &d)| ri + (d * fs).round() as u64)
+        .map(|d| (d * fs).round() as u64)
         .collect();
-    let spans = unusable_spans(&shifted, len, fs, tol);
+    let kept: Vec<usize> = (0..r.len())
+        .filter(|&k| !in_spans(unusable, r[k]))
+        .collect();
+    let shifted: Vec<u64> = kept.iter().map(|&k| r[k] + delays[k]).collect();
+    let all_shifted: Vec<u64> = r.iter().zip(&delays).map(|(a, b)| a + b).collect();
     let scored: Vec<u64> = pulses
         .iter()
         .copied()
-        .filter(|&p| !in_spans(&spans, p))
+        .filter(|&p| match nearest(&all_shifted, p) {
+            Some(k) => !in_spans(unusable, p.saturating_sub(delays[k])),
+            None => false,
+        })
         .collect();
     let pairs = match_pairs(&shifted, &scored, tol);
     // Each matched reference back to its R peak: shifted is ascending.
     let mut offsets_ms: Vec<f64> = pairs
         .iter()
         .filter_map(|&(s, p)| {
-            let k = shifted.binary_search(&s).ok()?;
+            let k = kept[shifted.binary_search(&s).ok()?];
             Some((p as f64 - r[k] as f64) * 1000.0 / fs)
         })
         .collect();
     offsets_ms.sort_unstable_by(f64::total_cmp);
-    let excluded_s = spans
-        .iter()
-        .map(|&(a, b)| b.min(len).saturating_sub(a) as f64 / fs)
-        .sum();
+    let excluded_s = unusable.iter().map(|&(a, b)| (b - a) as f64 / fs).sum();
     EcgScore {
         counts: MatchCounts {
             tp: pairs.len(),
@@ -101,6 +126,7 @@ pub fn score_against_r_peaks(r: &[u64], len: u64, fs: f64, pulses: &[u64]) -> Ec
         delay_ms: quantile(&offsets_ms, 0.5),
         delay_iqr_ms: quantile(&offsets_ms, 0.25).zip(quantile(&offsets_ms, 0.75)),
         excluded_s,
+        excluded_r_peaks: r.len() - kept.len(),
         excluded_pulses: pulses.len() - scored.len(),
     }
 }
@@ -109,8 +135,12 @@ pub fn score_against_r_peaks(r: &[u64], len: u64, fs: f64, pulses: &[u64]) -> Ec
 /// the detected `pulses` (ascending), seconds: see the module comment.
 pub fn local_delays(r: &[u64], pulses: &[u64], fs: f64) -> Vec<f64> {
     let offsets = offsets_after(r, pulses, fs);
-    let whole = mode_delay(&offsets, 0..r.len());
+    let whole = mode_delay(&offsets, 0..r.len(), DELAY_RANGE_S);
     let fallback = whole.map_or(NOMINAL_DELAY_S, |(d, _)| d);
+    let reach = (
+        (fallback - LOCAL_REACH_S).max(DELAY_RANGE_S.0),
+        (fallback + LOCAL_REACH_S).min(DELAY_RANGE_S.1),
+    );
     let half = (DELAY_WINDOW_S / 2.0 * fs) as u64;
     let (mut lo, mut hi) = (0, 0);
     r.iter()
@@ -121,12 +151,21 @@ pub fn local_delays(r: &[u64], pulses: &[u64], fs: f64) -> Vec<f64> {
             while hi < r.len() && r[hi] <= ri + half {
                 hi += 1;
             }
-            match mode_delay(&offsets, lo..hi) {
+            match mode_delay(&offsets, lo..hi, reach) {
                 Some((d, n)) if n >= MIN_PAIRS => d,
                 _ => fallback,
             }
         })
         .collect()
+}
+
+/// Index of the value of `sorted` nearest `x`.
+fn nearest(sorted: &[u64], x: u64) -> Option<usize> {
+    let k = sorted.partition_point(|&v| v < x);
+    [k.checked_sub(1), (k < sorted.len()).then_some(k)]
+        .into_iter()
+        .flatten()
+        .min_by_key(|&i| sorted[i].abs_diff(x))
 }
 
 /// For each R peak, the offsets (seconds) of every pulse within
@@ -146,12 +185,17 @@ fn offsets_after(r: &[u64], pulses: &[u64], fs: f64) -> Vec<Vec<f64>> {
         .collect()
 }
 
-/// The densest delay over the R peaks `range`: the grid delay at which
-/// the most R peaks have an offset within ±[`BIN_HALF_S`], then the median
-/// of each such R peak's offset closest to it; with that count.
-fn mode_delay(offsets: &[Vec<f64>], range: std::ops::Range<usize>) -> Option<(f64, usize)> {
-    let steps = ((DELAY_RANGE_S.1 - DELAY_RANGE_S.0) / GRID_S).round() as usize + 1;
-    let grid = |k: usize| DELAY_RANGE_S.0 + k as f64 * GRID_S;
+/// The densest delay in `limits` (seconds) over the R peaks `range`: the
+/// grid delay at which the most R peaks have an offset within
+/// ±[`BIN_HALF_S`], then the median of each such R peak's offset closest
+/// to it; with that count.
+fn mode_delay(
+    offsets: &[Vec<f64>],
+    range: std::ops::Range<usize>,
+    limits: (f64, f64),
+) -> Option<(f64, usize)> {
+    let steps = ((limits.1 - limits.0) / GRID_S).round() as usize + 1;
+    let grid = |k: usize| limits.0 + k as f64 * GRID_S;
     let mut counts = vec![0usize; steps];
     for o in &offsets[range.clone()] {
         for (k, c) in counts.iter_mut().enumerate() {
@@ -193,6 +237,7 @@ fn quantile(v: &[f64], q: f64) -> Option<f64> {
 #[cfg(test)]
 mod tests {
     use super::super::test_ecg::{ecg_train, TestEcg};
+    use super::super::usable::gap_spans;
     use super::*;
 
     /// R peaks every 0.8 s for 300 s at 100 Hz, with a delay going from
@@ -220,7 +265,7 @@ mod tests {
         let d = local_delays(&r, &pulses, 100.0);
         assert!((d[10] - 0.30).abs() < 1e-9, "{}", d[10]);
         assert!((d[360] - 0.20).abs() < 1e-9, "{}", d[360]);
-        let s = score_against_r_peaks(&r, len, 100.0, &pulses);
+        let s = score_against_r_peaks(&r, &gap_spans(&r, len, 100.0, 15), 100.0, &pulses);
         assert_eq!(
             s.counts,
             MatchCounts {
@@ -258,7 +303,7 @@ mod tests {
         }
         // Pulses at random: few matches, as chance gives.
         let random: Vec<u64> = (0..374).map(|_| lcg(&mut seed) % len).collect();
-        let s = score_against_r_peaks(&r, len, 100.0, &random);
+        let s = score_against_r_peaks(&r, &gap_spans(&r, len, 100.0, 15), 100.0, &random);
         assert!(s.counts.f1().unwrap() < 0.6, "{:?}", s.counts);
     }
 
@@ -271,13 +316,13 @@ mod tests {
             .copied()
             .filter(|&x| !(10_000..12_000).contains(&x))
             .collect();
-        let s = score_against_r_peaks(&kept, len, 100.0, &pulses);
+        let s = score_against_r_peaks(&kept, &gap_spans(&kept, len, 100.0, 15), 100.0, &pulses);
         assert_eq!(s.counts.fp, 0, "{s:?}");
         assert_eq!(s.counts.fn_, 0);
         assert!((24..=26).contains(&s.excluded_pulses), "{s:?}");
-        // 0.95 s before the first pulse's window, 20.49 s of the gap (less
-        // the tolerance at both ends), 0.44 s after the last.
-        assert!((s.excluded_s - 21.88).abs() < 1e-9, "{s:?}");
+        // 0.65 s before the first R peak, 20.49 s of the gap (less the
+        // tolerance at both ends), 0.64 s after the last.
+        assert!((s.excluded_s - 21.78).abs() < 1e-9, "{s:?}");
     }
 
     #[test]

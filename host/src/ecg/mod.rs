@@ -1,7 +1,9 @@
 //! The ECG recorded beside a pulse signal as a beat reference: R peaks
 //! found by Pan and Tompkins ([`r_peaks`]), and detected pulses scored
 //! against them once each R peak is moved by the pulse-arrival delay
-//! ([`score_pulses`]).
+//! ([`score_pulses`]), leaving out the ECG time it cannot vouch for by
+//! rules on the signal alone ([`unusable_spans`]: no R peak for over 3 s,
+//! the ECG at its rails).
 //!
 //! Everything here runs offline on a whole recording on the PC; it is a
 //! reference for the streaming pipeline, not part of it.
@@ -15,7 +17,9 @@ mod usable;
 
 pub use arrival::{local_delays, score_against_r_peaks, score_pulses, EcgScore};
 pub use pan_tompkins::r_peaks;
-pub use usable::{unusable_spans, MAX_R_GAP_S};
+pub use usable::{
+    gap_spans, rail_spans, unusable_spans, MAX_R_GAP_S, RAIL_MADS, RAIL_MARGIN_S, RAIL_RUN_S,
+};
 
 use std::fmt;
 

@@ -2,7 +2,8 @@
 //! heart rate against a reference numerics table, per record and pooled.
 
 use super::{match_beats, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
-use crate::io::{annotation_path, read_annotations, read_numerics};
+use crate::ecg::{score_pulses, EcgScore};
+use crate::io::{annotation_path, read_annotations, read_numerics, read_wfdb_signal};
 use crate::replay::{load, replay, Recording, Replay, ReplayError, Source, Summary};
 use plethwire_dsp::pipeline::Config;
 use serde::Serialize;
@@ -17,6 +18,9 @@ pub struct References {
     pub rate_suffix: String,
     /// Column of that table holding the heart rate, bpm.
     pub rate_column: String,
+    /// ECG signal of the same WFDB record to score the pulses against
+    /// ([`crate::ecg`]), if any.
+    pub ecg: Option<String>,
 }
 
 impl Default for References {
@@ -25,6 +29,7 @@ impl Default for References {
             annotator: "peak".into(),
             rate_suffix: "n.csv".into(),
             rate_column: "pulse_bpm".into(),
+            ecg: None,
         }
     }
 }
@@ -42,6 +47,8 @@ pub struct RecordScore {
     pub heart_rate: Option<RateError>,
     /// The replay's summary.
     pub summary: Summary,
+    /// Pulses against the ECG's R peaks, when an ECG signal was named.
+    pub ecg: Option<EcgScore>,
 }
 
 /// Scores of several recordings and their pooled totals.
@@ -53,6 +60,8 @@ pub struct Scores {
     pub pooled_beats: Option<MatchCounts>,
     /// Heart-rate error pooled over every compared second.
     pub pooled_heart_rate: Option<RateError>,
+    /// Counts against the ECG's R peaks summed over the records.
+    pub pooled_ecg: Option<MatchCounts>,
 }
 
 /// Every WFDB record in `paths`: records as given, folders expanded to
@@ -151,7 +160,38 @@ pub fn score_one(
         reference_beats: reference.map(|r| r.len()),
         heart_rate,
         summary: run.summary(),
+        ecg: match &refs.ecg {
+            Some(name) => Some(ecg_score(rec, run, name)?),
+            None => None,
+        },
     })
+}
+
+/// The pulses of `run` against the R peaks of signal `name` of the WFDB
+/// record `rec` was loaded from, which must have the pulse signal's rate.
+pub fn ecg_score(rec: &Recording, run: &Replay, name: &str) -> Result<EcgScore, ReplayError> {
+    if rec
+        .path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
+    {
+        return Err(ReplayError(format!(
+            "{}: --ecg needs a WFDB record, not a CSV file",
+            rec.path.display()
+        )));
+    }
+    let ecg = read_wfdb_signal(&rec.path, Some(name))?;
+    if ecg.fs != rec.signal.fs {
+        return Err(ReplayError(format!(
+            "{}: ECG signal '{name}' is at {} Hz, the pulse signal '{}' at {} Hz; they must be the same",
+            rec.path.display(),
+            ecg.fs,
+            rec.signal.name,
+            rec.signal.fs
+        )));
+    }
+    score_pulses(&ecg.samples, ecg.fs, &run.peaks())
+        .map_err(|e| ReplayError(format!("{}: {e}", rec.path.display())))
 }
 
 fn numerics_path(record: &Path, suffix: &str) -> PathBuf {
@@ -184,7 +224,13 @@ pub fn score_all(
     }
     let mut pooled_beats: Option<MatchCounts> = None;
     let mut pooled_heart_rate: Option<RateError> = None;
+    let mut pooled_ecg: Option<MatchCounts> = None;
     for r in &records {
+        if let Some(e) = &r.ecg {
+            pooled_ecg
+                .get_or_insert_with(MatchCounts::default)
+                .add(&e.counts);
+        }
         if let Some(b) = &r.beats {
             pooled_beats.get_or_insert_with(MatchCounts::default).add(b);
         }
@@ -198,5 +244,6 @@ pub fn score_all(
         records,
         pooled_beats,
         pooled_heart_rate,
+        pooled_ecg,
     })
 }
