@@ -247,3 +247,46 @@ pub fn score_all(
         pooled_ecg,
     })
 }
+
+#[cfg(test)]
+mod ecg_tests {
+    use super::*;
+    use crate::io::{write_record, LoadedSignal, NewSignal};
+    use plethwire_dsp::pipeline::Config;
+
+    #[test]
+    fn an_ecg_at_another_rate_or_beside_a_csv_is_refused_naming_the_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let wave: Vec<i32> = (0..1250).map(|i| (i % 125) * 10).collect();
+        let signals = [
+            NewSignal::new("PLETH", "NU", 1000.0, 0),
+            NewSignal::new("II", "mV", 1000.0, 0),
+        ];
+        write_record(dir.path(), "r", 125.0, &signals, &[wave.clone(), wave]).unwrap();
+        // As if the pulse signal had come at 100 Hz.
+        let samples = vec![0.0; 1000];
+        let rec = Recording {
+            name: "r".into(),
+            path: dir.path().join("r"),
+            signal: LoadedSignal {
+                name: "PLETH".into(),
+                units: None,
+                fs: 100.0,
+                samples: samples.clone(),
+            },
+        };
+        let run = replay(&samples, Config::new(100.0)).unwrap();
+        let e = ecg_score(&rec, &run, "II").unwrap_err().0;
+        assert!(
+            e.contains("r") && e.contains("125 Hz") && e.contains("100 Hz"),
+            "{e}"
+        );
+        assert_eq!(e.lines().count(), 1);
+        let csv = Recording {
+            path: dir.path().join("r.csv"),
+            ..rec
+        };
+        let e = ecg_score(&csv, &run, "II").unwrap_err().0;
+        assert!(e.contains("r.csv") && e.contains("WFDB"), "{e}");
+    }
+}
