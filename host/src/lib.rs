@@ -12,6 +12,7 @@
 pub mod channel;
 pub mod cli;
 pub mod demo;
+pub mod ecg;
 pub mod emulate;
 pub mod filter_report;
 pub mod frontend;

@@ -6,6 +6,7 @@ use std::path::PathBuf;
 
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
+use crate::ecg::EcgScore;
 use crate::score::records::{score_all, References, Scores, DEFAULT_STRAP_SUFFIX};
 use crate::score::timing::PeakTiming;
 use crate::score::windows::{ReplayWindows, WindowScore};
@@ -17,6 +18,8 @@ Examples:
   plethwire score ../shared/data/bidmc --rate-column pulse_bpm --json
   plethwire score rec1 rec2 --reference atr --detector zong
   plethwire score ../shared/data/phonefinger
+  plethwire score ../shared/data/bidmc --ecg II
+  plethwire score ../shared/data/exercise --signal PPG1 --ecg ECG
 
 Each record is replayed through the pipeline. Beats are matched one to one
 within ±150 ms (ANSI/AAMI EC57 practice) against <record>.<reference>;
@@ -26,12 +29,17 @@ Peak timing: our matched peak minus the reference beat, ms. Heart rate in
 reference windows (<record><window-suffix>: window_start_s,window_end_s,bpm)
 when that table exists: 60000 / median of the intervals of the beats whose
 peak lies in the window, at least 2 intervals, from good beats and from all.
-Records without one of the references are scored on the others. Exit
-Records without one of the references are scored on the other. Folders
-give their WFDB records and CSV files. Where <record><strap-suffix> (R-R
-intervals in ms, one a line, from a chest strap on a clock of its own)
-exists, it is aligned to the detected beats and a second table compares
-intervals, heart rate and HRV (see plethwire::score::strap). Exit
+Folders give their WFDB records and CSV files. Where <record><strap-suffix>
+(R-R intervals in ms, one a line, from a chest strap on a clock of its own)
+exists, it is aligned to the detected beats and a table compares
+intervals, heart rate and HRV (see plethwire::score::strap).
+With --ecg, the pulses are also scored against the R peaks of that ECG
+signal of the same record (Pan and Tompkins; same sample rate needed),
+each R peak moved by the local pulse-arrival delay (the densest R-to-pulse
+offset over 60 s); stretches with no R peak for over 3 s, or with the
+ECG at its rails for over 0.2 s, are left out ('excl s'). 'PAT ms' is the
+median matched pulse minus R peak. Records without one of the references
+are scored on the others. Exit
 status: 0 done, 1 a record could not be read, 2 the command line could not
 be understood.";
 
@@ -62,6 +70,9 @@ pub struct ScoreArgs {
     /// Suffix of a chest strap's R-R interval list next to each recording.
     #[arg(long, value_name = "SUFFIX", default_value = DEFAULT_STRAP_SUFFIX)]
     pub strap_suffix: String,
+    /// ECG signal of the same record to score the pulses against.
+    #[arg(long, value_name = "SIGNAL")]
+    pub ecg: Option<String>,
 
     /// Print the scores as JSON.
     #[arg(long)]
@@ -81,6 +92,7 @@ impl ScoreArgs {
             rate_column: self.rate_column.clone(),
             window_suffix: self.window_suffix.clone(),
             strap_suffix: self.strap_suffix.clone(),
+            ecg: self.ecg.clone(),
         };
         let (bar, progress) = progress_line();
         let scores = score_all(
@@ -149,10 +161,35 @@ fn rate_cells(r: &Option<RateError>) -> String {
     }
 }
 
+/// The ECG columns of a row: R peaks, Se, +P, F1, median delay and its
+/// quartiles, time left out.
+fn ecg_cells(counts: Option<&MatchCounts>, e: Option<&EcgScore>) -> String {
+    let Some(m) = counts else {
+        return format!(
+            " {:>6} {:>7} {:>7} {:>7} {:>6} {:>9} {:>6}",
+            "-", "-", "-", "-", "-", "-", "-"
+        );
+    };
+    let r = e.map_or("-".into(), |e| e.r_peaks.to_string());
+    let delay = e
+        .and_then(|e| e.delay_ms)
+        .map_or("-".into(), |d| format!("{d:.0}"));
+    let iqr = e
+        .and_then(|e| e.delay_iqr_ms)
+        .map_or("-".into(), |(a, b)| format!("{a:.0}-{b:.0}"));
+    let excl = e.map_or("-".into(), |e| format!("{:.0}", e.excluded_s));
+    format!(
+        " {r:>6} {:>7} {:>7} {:>7} {delay:>6} {iqr:>9} {excl:>6}",
+        pct(m.se()),
+        pct(m.ppv()),
+        pct(m.f1())
+    )
+}
+
 fn table(s: &Scores) -> String {
     let mut t = String::new();
     t += &format!(
-        "{:<12} {:>6} {:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7} {:>8} {:>6}{}{}\n",
+        "{:<12} {:>6} {:>6} {:>6} {:>4} {:>4} {:>7} {:>7} {:>7} {:>8} {:>6}{}\n",
         "record",
         "beats",
         "ref",
@@ -165,33 +202,56 @@ fn table(s: &Scores) -> String {
         "HR MAE",
         "secs",
         timing_header(),
-        windows_header()
     );
     for r in &s.records {
         t += &format!(
-            "{:<12} {:>6} {} {}{}{}\n",
+            "{:<12} {:>6} {} {}{}\n",
             r.record,
             r.summary.beats,
             beats_cells(&r.beats, r.reference_beats),
             rate_cells(&r.heart_rate),
             timing_cells(&r.peak_timing),
-            windows_cells(&r.windows)
         );
     }
     let refs: usize = s.records.iter().filter_map(|r| r.reference_beats).sum();
     let beats: usize = s.records.iter().map(|r| r.summary.beats).sum();
     t += &format!(
-        "{:<12} {:>6} {} {}{}{}\n",
+        "{:<12} {:>6} {} {}{}\n",
         "pooled",
         beats,
         beats_cells(&s.pooled_beats, Some(refs)),
         rate_cells(&s.pooled_heart_rate),
         timing_cells(&s.pooled_peak_timing),
-        windows_cells(&s.pooled_windows)
     );
     t += "HR MAE: mean absolute difference in bpm from the reference series, over 'secs' compared rows.\n";
     t += "dt: our matched peak minus the reference beat, ms: signed median, median and p95 of |dt|.\n";
-    t += "win: reference windows; cov: share with a rate (2+ intervals), in10: share of those within 10 bpm, WMAE: bpm; from good beats, then 'all' beats.\n";
+    if s.pooled_windows.is_some() {
+        t += &format!("\n{:<12}{}\n", "record", windows_header());
+        for r in s.records.iter().filter(|r| r.windows.is_some()) {
+            t += &format!("{:<12}{}\n", r.record, windows_cells(&r.windows));
+        }
+        t += &format!("{:<12}{}\n", "pooled", windows_cells(&s.pooled_windows));
+        t += "win: reference windows; cov: share with a rate (2+ intervals), in10: share of those within 10 bpm, WMAE: bpm; from good beats, then 'all' beats.\n";
+    }
+    if s.pooled_ecg.is_some() {
+        t += &format!(
+            "\n{:<12} {:>6} {:>7} {:>7} {:>7} {:>6} {:>9} {:>6}\n",
+            "record", "ECG R", "ECG Se", "ECG +P", "ECG F1", "PAT ms", "PAT IQR", "excl s"
+        );
+        for r in &s.records {
+            t += &format!(
+                "{:<12}{}\n",
+                r.record,
+                ecg_cells(r.ecg.as_ref().map(|e| &e.counts), r.ecg.as_ref())
+            );
+        }
+        t += &format!(
+            "{:<12}{}\n",
+            "pooled",
+            ecg_cells(s.pooled_ecg.as_ref(), None)
+        );
+        t += "ECG: pulses against R peaks moved by the local arrival delay; PAT: matched pulse minus R peak, ms (median, quartiles); excl s: ECG time left out (no R peak for over 3 s, ECG at its rails).\n";
+    }
     t
 }
 

@@ -5,8 +5,9 @@ use super::strap::{score_strap, StrapScore};
 use super::timing::PeakTiming;
 use super::windows::{read_rate_windows, ReplayWindows};
 use super::{match_beats, match_pairs, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
+use crate::ecg::{score_pulses, EcgScore};
 use crate::io::read_rr_intervals;
-use crate::io::{annotation_path, read_annotations, read_numerics};
+use crate::io::{annotation_path, read_annotations, read_numerics, read_wfdb_signal};
 use crate::replay::{load, replay, InputInfo, Recording, Replay, ReplayError, Source, Summary};
 use plethwire_dsp::pipeline::Config;
 use serde::Serialize;
@@ -27,6 +28,9 @@ pub struct References {
     /// Suffix of a chest strap's R-R interval list (`<record><suffix>`,
     /// `<record>` without `.csv` for a CSV recording).
     pub strap_suffix: String,
+    /// ECG signal of the same WFDB record to score the pulses against
+    /// ([`crate::ecg`]), if any.
+    pub ecg: Option<String>,
 }
 
 /// Suffix of the strap's R-R list unless told otherwise.
@@ -40,6 +44,7 @@ impl Default for References {
             rate_column: "pulse_bpm".into(),
             window_suffix: "bpm.csv".into(),
             strap_suffix: DEFAULT_STRAP_SUFFIX.into(),
+            ecg: None,
         }
     }
 }
@@ -67,6 +72,8 @@ pub struct RecordScore {
     pub input: InputInfo,
     /// Against a chest strap's R-R list, when one exists.
     pub strap: Option<StrapScore>,
+    /// Pulses against the ECG's R peaks, when an ECG signal was named.
+    pub ecg: Option<EcgScore>,
 }
 
 /// Scores of several recordings and their pooled totals.
@@ -82,6 +89,8 @@ pub struct Scores {
     pub pooled_peak_timing: Option<PeakTiming>,
     /// Window figures summed over the records that have a window table.
     pub pooled_windows: Option<ReplayWindows>,
+    /// Counts against the ECG's R peaks summed over the records.
+    pub pooled_ecg: Option<MatchCounts>,
 }
 
 /// Every recording in `paths`: records and files as given, folders
@@ -237,6 +246,10 @@ pub fn score_one(
         signal: rec.signal.name.clone(),
         input: rec.input.clone(),
         strap,
+        ecg: match &refs.ecg {
+            Some(name) => Some(ecg_score(rec, run, name)?),
+            None => None,
+        },
     })
 }
 
@@ -251,6 +264,33 @@ pub fn reference_windows(
         return Ok(None);
     }
     read_rate_windows(&table).map(Some)
+}
+
+/// The pulses of `run` against the R peaks of signal `name` of the WFDB
+/// record `rec` was loaded from, which must have the pulse signal's rate.
+pub fn ecg_score(rec: &Recording, run: &Replay, name: &str) -> Result<EcgScore, ReplayError> {
+    if rec
+        .path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
+    {
+        return Err(ReplayError(format!(
+            "{}: --ecg needs a WFDB record, not a CSV file",
+            rec.path.display()
+        )));
+    }
+    let ecg = read_wfdb_signal(&rec.path, Some(name))?;
+    if ecg.fs != rec.signal.fs {
+        return Err(ReplayError(format!(
+            "{}: ECG signal '{name}' is at {} Hz, the pulse signal '{}' at {} Hz; they must be the same",
+            rec.path.display(),
+            ecg.fs,
+            rec.signal.name,
+            rec.signal.fs
+        )));
+    }
+    score_pulses(&ecg.samples, ecg.fs, &run.peaks())
+        .map_err(|e| ReplayError(format!("{}: {e}", rec.path.display())))
 }
 
 fn numerics_path(record: &Path, suffix: &str) -> PathBuf {
@@ -283,7 +323,13 @@ pub fn score_all(
     }
     let mut pooled_beats: Option<MatchCounts> = None;
     let mut pooled_heart_rate: Option<RateError> = None;
+    let mut pooled_ecg: Option<MatchCounts> = None;
     for r in &records {
+        if let Some(e) = &r.ecg {
+            pooled_ecg
+                .get_or_insert_with(MatchCounts::default)
+                .add(&e.counts);
+        }
         if let Some(b) = &r.beats {
             pooled_beats.get_or_insert_with(MatchCounts::default).add(b);
         }
@@ -310,5 +356,49 @@ pub fn score_all(
         pooled_heart_rate,
         pooled_peak_timing,
         pooled_windows,
+        pooled_ecg,
     })
+}
+
+#[cfg(test)]
+mod ecg_tests {
+    use super::*;
+    use crate::io::{write_record, LoadedSignal, NewSignal};
+    use plethwire_dsp::pipeline::Config;
+
+    #[test]
+    fn an_ecg_at_another_rate_or_beside_a_csv_is_refused_naming_the_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let wave: Vec<i32> = (0..1250).map(|i| (i % 125) * 10).collect();
+        let signals = [
+            NewSignal::new("PLETH", "NU", 1000.0, 0),
+            NewSignal::new("II", "mV", 1000.0, 0),
+        ];
+        write_record(dir.path(), "r", 125.0, &signals, &[wave.clone(), wave]).unwrap();
+        // As if the pulse signal had come at 100 Hz.
+        let samples = vec![0.0; 1000];
+        let rec = Recording {
+            name: "r".into(),
+            path: dir.path().join("r"),
+            signal: LoadedSignal {
+                name: "PLETH".into(),
+                units: None,
+                fs: 100.0,
+                samples: samples.clone(),
+            },
+        };
+        let run = replay(&samples, Config::new(100.0)).unwrap();
+        let e = ecg_score(&rec, &run, "II").unwrap_err().0;
+        assert!(
+            e.contains("r") && e.contains("125 Hz") && e.contains("100 Hz"),
+            "{e}"
+        );
+        assert_eq!(e.lines().count(), 1);
+        let csv = Recording {
+            path: dir.path().join("r.csv"),
+            ..rec
+        };
+        let e = ecg_score(&csv, &run, "II").unwrap_err().0;
+        assert!(e.contains("r.csv") && e.contains("WFDB"), "{e}");
+    }
 }

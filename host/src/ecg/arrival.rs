@@ -1,0 +1,339 @@
+//! Detected pulses against the R peaks of an ECG from the same record.
+//!
+//! A pulse reaches the sensor a pulse-arrival delay after its R peak; the
+//! delay changes with effort and posture, so it is estimated locally: for
+//! each R peak, over the R peaks within ±30 s (a 60 s window), the delay
+//! in 150-1000 ms after an R peak, and within 200 ms of the whole record's
+//! own such delay, at which the most R peaks have a detected pulse within
+//! ±25 ms (the mode of the R-to-pulse offsets), refined to the median of
+//! those offsets. A mode rather than the median of
+//! "the next pulse after each R peak": spurious pulses spread evenly over
+//! the offsets and missed ones push the next beat's pulse a whole interval
+//! later, so neither moves the mode, while both pull a median. Each R peak
+//! is then moved by its delay and the pulses are matched one to one within
+//! ±150 ms (ANSI/AAMI EC57 practice, [`crate::score::match_pairs`]).
+
+use super::usable::{in_spans, unusable_spans};
+use super::{r_peaks, EcgError};
+use crate::score::{match_pairs, MatchCounts, MATCH_WINDOW_S};
+use serde::Serialize;
+
+/// Offsets after an R peak a pulse may arrive at, seconds. The pulse
+/// itself takes about 0.2-0.3 s to the finger at rest and hardly less than
+/// 0.15 s anywhere (from memory); the
+/// range reaches 1 s because bedside monitor recordings carry their own
+/// lag between the ECG and pleth outputs (BIDMC: 0.6-0.7 s, measured with
+/// this module), and the densest offset still picks a pulse's own R peak
+/// over the one before, whose offsets spread with the R-R variability.
+pub const DELAY_RANGE_S: (f64, f64) = (0.150, 1.000);
+/// Span of R peaks each local delay is estimated over, seconds.
+pub const DELAY_WINDOW_S: f64 = 60.0;
+/// Half-width of the bin the offsets are counted in, seconds.
+const BIN_HALF_S: f64 = 0.025;
+/// How far a local delay may be from the record's, seconds: the delay
+/// moves with effort by tens of ms (about 0.1 s from rest to a run, from
+/// memory), and a bound keeps a regular rhythm's windows from switching
+/// to the offset from the R peak before (one R-R interval away).
+const LOCAL_REACH_S: f64 = 0.200;
+/// Grid the delay is searched on, seconds.
+const GRID_S: f64 = 0.005;
+/// Fewest R peaks with a pulse in the winning bin for a local estimate;
+/// with fewer the record's own estimate is used.
+const MIN_PAIRS: usize = 8;
+/// Delay used when a record has no R-to-pulse offset at all, seconds
+/// (nothing can match then; from memory, as [`DELAY_RANGE_S`]).
+const NOMINAL_DELAY_S: f64 = 0.25;
+
+/// Pulses against the ECG's R peaks for one recording.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EcgScore {
+    /// The R peaks moved by their delay as the reference, the pulses out
+    /// of unusable stretches as the detections.
+    pub counts: MatchCounts,
+    /// R peaks found in the ECG.
+    pub r_peaks: usize,
+    /// Median of matched pulse minus R peak, ms.
+    pub delay_ms: Option<f64>,
+    /// 25th and 75th percentile of the same, ms.
+    pub delay_iqr_ms: Option<(f64, f64)>,
+    /// ECG time left out ([`super::unusable_spans`]): before the first
+    /// and after the last R peak, gaps of over 3 s between R peaks, and
+    /// the ECG at its rails, seconds.
+    pub excluded_s: f64,
+    /// R peaks in that time, left out of the reference.
+    pub excluded_r_peaks: usize,
+    /// Pulses whose R peak would fall in that time, left out of the counts.
+    pub excluded_pulses: usize,
+}
+
+/// Score `pulses` (sample indices at `fs`) against the R peaks of `ecg`
+/// sampled at the same rate.
+pub fn score_pulses(ecg: &[f64], fs: f64, pulses: &[u64]) -> Result<EcgScore, EcgError> {
+    let r = r_peaks(ecg, fs)?;
+    let tol = (MATCH_WINDOW_S * fs).round() as u64;
+    let unusable = unusable_spans(ecg, &r, fs, tol);
+    Ok(score_against_r_peaks(&r, &unusable, fs, pulses))
+}
+
+/// Score `pulses` against known R peaks (`r`, ascending) at `fs` Hz,
+/// leaving out the ECG time `unusable` (sorted spans of sample indices,
+/// end exclusive): the R peaks in it, and the pulses whose R peak, their
+/// time less the local delay, would fall in it.
+pub fn score_against_r_peaks(
+    r: &[u64],
+    unusable: &[(u64, u64)],
+    fs: f64,
+    pulses: &[u64],
+) -> EcgScore {
+    let mut pulses = pulses.to_vec();
+    pulses.sort_unstable();
+    let tol = (MATCH_WINDOW_S * fs).round() as u64;
+    let delays: Vec<u64> = local_delays(r, &pulses, fs)
+        .iter()
+        .map(|d| (d * fs).round() as u64)
+        .collect();
+    let kept: Vec<usize> = (0..r.len())
+        .filter(|&k| !in_spans(unusable, r[k]))
+        .collect();
+    let shifted: Vec<u64> = kept.iter().map(|&k| r[k] + delays[k]).collect();
+    let all_shifted: Vec<u64> = r.iter().zip(&delays).map(|(a, b)| a + b).collect();
+    let scored: Vec<u64> = pulses
+        .iter()
+        .copied()
+        .filter(|&p| match nearest(&all_shifted, p) {
+            Some(k) => !in_spans(unusable, p.saturating_sub(delays[k])),
+            None => false,
+        })
+        .collect();
+    let pairs = match_pairs(&shifted, &scored, tol);
+    // Each matched reference back to its R peak: shifted is ascending.
+    let mut offsets_ms: Vec<f64> = pairs
+        .iter()
+        .filter_map(|&(s, p)| {
+            let k = kept[shifted.binary_search(&s).ok()?];
+            Some((p as f64 - r[k] as f64) * 1000.0 / fs)
+        })
+        .collect();
+    offsets_ms.sort_unstable_by(f64::total_cmp);
+    let excluded_s = unusable.iter().map(|&(a, b)| (b - a) as f64 / fs).sum();
+    EcgScore {
+        counts: MatchCounts {
+            tp: pairs.len(),
+            fp: scored.len() - pairs.len(),
+            fn_: shifted.len() - pairs.len(),
+        },
+        r_peaks: r.len(),
+        delay_ms: quantile(&offsets_ms, 0.5),
+        delay_iqr_ms: quantile(&offsets_ms, 0.25).zip(quantile(&offsets_ms, 0.75)),
+        excluded_s,
+        excluded_r_peaks: r.len() - kept.len(),
+        excluded_pulses: pulses.len() - scored.len(),
+    }
+}
+
+/// The local pulse-arrival delay of each R peak in `r` (ascending) given
+/// the detected `pulses` (ascending), seconds: see the module comment.
+pub fn local_delays(r: &[u64], pulses: &[u64], fs: f64) -> Vec<f64> {
+    let offsets = offsets_after(r, pulses, fs);
+    let whole = mode_delay(&offsets, 0..r.len(), DELAY_RANGE_S);
+    let fallback = whole.map_or(NOMINAL_DELAY_S, |(d, _)| d);
+    let reach = (
+        (fallback - LOCAL_REACH_S).max(DELAY_RANGE_S.0),
+        (fallback + LOCAL_REACH_S).min(DELAY_RANGE_S.1),
+    );
+    let half = (DELAY_WINDOW_S / 2.0 * fs) as u64;
+    let (mut lo, mut hi) = (0, 0);
+    r.iter()
+        .map(|&ri| {
+            while r[lo] + half < ri {
+                lo += 1;
+            }
+            while hi < r.len() && r[hi] <= ri + half {
+                hi += 1;
+            }
+            match mode_delay(&offsets, lo..hi, reach) {
+                Some((d, n)) if n >= MIN_PAIRS => d,
+                _ => fallback,
+            }
+        })
+        .collect()
+}
+
+/// Index of the value of `sorted` nearest `x`.
+fn nearest(sorted: &[u64], x: u64) -> Option<usize> {
+    let k = sorted.partition_point(|&v| v < x);
+    [k.checked_sub(1), (k < sorted.len()).then_some(k)]
+        .into_iter()
+        .flatten()
+        .min_by_key(|&i| sorted[i].abs_diff(x))
+}
+
+/// For each R peak, the offsets (seconds) of every pulse within
+/// [`DELAY_RANGE_S`] after it.
+fn offsets_after(r: &[u64], pulses: &[u64], fs: f64) -> Vec<Vec<f64>> {
+    let lo = (DELAY_RANGE_S.0 * fs).round() as u64;
+    let hi = (DELAY_RANGE_S.1 * fs).round() as u64;
+    r.iter()
+        .map(|&ri| {
+            let start = pulses.partition_point(|&p| p < ri + lo);
+            pulses[start..]
+                .iter()
+                .take_while(|&&p| p <= ri + hi)
+                .map(|&p| (p - ri) as f64 / fs)
+                .collect()
+        })
+        .collect()
+}
+
+/// The densest delay in `limits` (seconds) over the R peaks `range`: the
+/// grid delay at which the most R peaks have an offset within
+/// ±[`BIN_HALF_S`], then the median of each such R peak's offset closest
+/// to it; with that count.
+fn mode_delay(
+    offsets: &[Vec<f64>],
+    range: std::ops::Range<usize>,
+    limits: (f64, f64),
+) -> Option<(f64, usize)> {
+    let steps = ((limits.1 - limits.0) / GRID_S).round() as usize + 1;
+    let grid = |k: usize| limits.0 + k as f64 * GRID_S;
+    let mut counts = vec![0usize; steps];
+    for o in &offsets[range.clone()] {
+        for (k, c) in counts.iter_mut().enumerate() {
+            if o.iter().any(|x| (x - grid(k)).abs() <= BIN_HALF_S) {
+                *c += 1;
+            }
+        }
+    }
+    let best = counts.iter().copied().max().filter(|&n| n > 0)?;
+    // The middle of the run of best bins, so a plateau is not cut at an edge.
+    let first = counts.iter().position(|&c| c == best)?;
+    let run = counts[first..].iter().take_while(|&&c| c == best).count();
+    let centre = grid(first + run / 2);
+    let mut near: Vec<f64> = offsets[range]
+        .iter()
+        .filter_map(|o| {
+            o.iter()
+                .copied()
+                .filter(|x| (x - centre).abs() <= BIN_HALF_S)
+                .min_by(|a, b| (a - centre).abs().total_cmp(&(b - centre).abs()))
+        })
+        .collect();
+    near.sort_unstable_by(f64::total_cmp);
+    Some((quantile(&near, 0.5)?, best))
+}
+
+/// Quantile `q` of sorted `v` with linear interpolation between order
+/// statistics (numpy's default).
+fn quantile(v: &[f64], q: f64) -> Option<f64> {
+    if v.is_empty() {
+        return None;
+    }
+    let pos = q * (v.len() - 1) as f64;
+    let (i, frac) = (pos.floor() as usize, pos - pos.floor());
+    let next = v[(i + 1).min(v.len() - 1)];
+    Some(v[i] + frac * (next - v[i]))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::super::test_ecg::{ecg_train, TestEcg};
+    use super::super::usable::gap_spans;
+    use super::*;
+
+    /// R peaks every 0.8 s for 300 s at 100 Hz, with a delay going from
+    /// 300 ms to 200 ms halfway (effort), and their pulses.
+    fn beats() -> (Vec<u64>, Vec<u64>, u64) {
+        let r: Vec<u64> = (1..375).map(|k| k * 80).collect();
+        let pulses = r
+            .iter()
+            .map(|&ri| ri + if ri < 15_000 { 30 } else { 20 })
+            .collect();
+        (r, pulses, 30_000)
+    }
+
+    /// A small deterministic generator for the tests.
+    fn lcg(seed: &mut u64) -> u64 {
+        *seed = seed
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        *seed >> 33
+    }
+
+    #[test]
+    fn local_delay_follows_a_change() {
+        let (r, pulses, len) = beats();
+        let d = local_delays(&r, &pulses, 100.0);
+        assert!((d[10] - 0.30).abs() < 1e-9, "{}", d[10]);
+        assert!((d[360] - 0.20).abs() < 1e-9, "{}", d[360]);
+        let s = score_against_r_peaks(&r, &gap_spans(&r, len, 100.0, 15), 100.0, &pulses);
+        assert_eq!(
+            s.counts,
+            MatchCounts {
+                tp: 374,
+                fp: 0,
+                fn_: 0
+            }
+        );
+        assert_eq!(s.delay_iqr_ms, Some((200.0, 300.0)));
+    }
+
+    #[test]
+    fn missed_and_spurious_pulses_do_not_move_the_delay() {
+        let (r, pulses, len) = beats();
+        let mut seed = 7;
+        // A third of the pulses missed, as many again spurious anywhere.
+        let mut noisy: Vec<u64> = pulses
+            .iter()
+            .copied()
+            .filter(|_| lcg(&mut seed) % 3 != 0)
+            .collect();
+        noisy.extend((0..370).map(|_| lcg(&mut seed) % len));
+        noisy.sort_unstable();
+        let d = local_delays(&r, &noisy, 100.0);
+        for (k, &ri) in r.iter().enumerate() {
+            // Away from the change, where the window holds both delays.
+            let truth = if ri < 12_000 {
+                0.30
+            } else if ri > 18_000 {
+                0.20
+            } else {
+                continue;
+            };
+            assert!((d[k] - truth).abs() <= 0.011, "R {ri}: {} vs {truth}", d[k]);
+        }
+        // Pulses at random: few matches, as chance gives.
+        let random: Vec<u64> = (0..374).map(|_| lcg(&mut seed) % len).collect();
+        let s = score_against_r_peaks(&r, &gap_spans(&r, len, 100.0, 15), 100.0, &random);
+        assert!(s.counts.f1().unwrap() < 0.6, "{:?}", s.counts);
+    }
+
+    #[test]
+    fn lead_off_stretches_are_left_out() {
+        let (r, pulses, len) = beats();
+        // No R peak from 100 s to 120 s: the ECG fell off.
+        let kept: Vec<u64> = r
+            .iter()
+            .copied()
+            .filter(|&x| !(10_000..12_000).contains(&x))
+            .collect();
+        let s = score_against_r_peaks(&kept, &gap_spans(&kept, len, 100.0, 15), 100.0, &pulses);
+        assert_eq!(s.counts.fp, 0, "{s:?}");
+        assert_eq!(s.counts.fn_, 0);
+        assert!((24..=26).contains(&s.excluded_pulses), "{s:?}");
+        // 0.65 s before the first R peak, 20.49 s of the gap (less the
+        // tolerance at both ends), 0.64 s after the last.
+        assert!((s.excluded_s - 21.78).abs() < 1e-9, "{s:?}");
+    }
+
+    #[test]
+    fn scores_pulses_against_an_ecg() {
+        let (ecg, truth) = ecg_train(&TestEcg::default());
+        let pulses: Vec<u64> = truth.iter().map(|&t| t + 60).collect();
+        let s = score_pulses(&ecg, 250.0, &pulses).unwrap();
+        assert_eq!(s.counts.tp, truth.len(), "{s:?}");
+        assert_eq!(s.counts.fp + s.counts.fn_, 0);
+        let d = s.delay_ms.unwrap();
+        assert!((d - 240.0).abs() <= 8.0, "{d}");
+        assert!(score_pulses(&ecg, 20.0, &pulses).is_err());
+    }
+}
