@@ -82,6 +82,15 @@ pub const STEP_S: f32 = 0.1;
 /// or a pulse that shrank, must not lock real pulses out for long.
 pub const RELEVEL_AFTER: u32 = 2;
 
+/// After a restart (a step, a collapse, silence), candidates below the
+/// old peak level divided by this are not pulses (noise on a lifted
+/// finger); while there is no signal the floor sinks (see
+/// [`FLOOR_HALF_S`]), so it cannot lock a smaller pulse out for long.
+pub const FLOOR_DIVISOR: f32 = 30.0;
+
+/// While there is no signal, the floor halves every this many seconds.
+pub const FLOOR_HALF_S: f32 = 4.0;
+
 /// Two small candidates are of like height when neither is more than this
 /// many times the other.
 pub const RELEVEL_LIKE: f32 = 2.0;
@@ -251,7 +260,9 @@ pub struct Pipeline {
     n: u64,
     t: u64,
     last_peak: Option<u64>,
-    // Sub-sample offset of the last peak, input samples.
+    // Input index of the last beat's smoothed peak, for intervals.
+    last_at: Option<u64>,
+    // Sub-sample offset of the last upstroke (interval fiducial), input samples.
     last_frac: f32,
     // Group delay of the low-pass near the pulse's fundamental, input
     // samples: subtracted so peaks and onsets are those of the input.
@@ -264,8 +275,14 @@ pub struct Pipeline {
     // height of the last of them.
     dropped_in_row: u32,
     dropped_height: f32,
-    // Detector index of the last restart.
+    // Detector index of the last restart, and of the last beat.
     restarted_at: u64,
+    last_beat_t: u64,
+    // Smallest candidate height that may count, after a step or silence
+    // (0: none).
+    level_floor: f32,
+    // Factor per detector sample that halves the floor in FLOOR_HALF_S.
+    floor_decay: f32,
     restarts: u64,
     epoch: u64,
     detector: Detector,
@@ -345,6 +362,7 @@ impl Pipeline {
             t: 0,
             started: false,
             last_peak: None,
+            last_at: None,
             last_frac: 0.0,
             lowpass_delay,
             last_good: false,
@@ -354,6 +372,9 @@ impl Pipeline {
             dropped_in_row: 0,
             dropped_height: 0.0,
             restarted_at: 0,
+            last_beat_t: 0,
+            level_floor: 0.0,
+            floor_decay: libm::exp2f(-1.0 / (FLOOR_HALF_S * fd)),
             restarts: 0,
             epoch: 0,
             hrv: HrvWindow::new(),
@@ -443,12 +464,25 @@ impl Pipeline {
             0.0
         };
         let change = self.scale.push(s, jump);
-        // Without beats for the silence limit, start afresh, and again each
-        // time the limit passes: whatever an artefact taught the filters
+        // Without a beat for twice the silence limit (longer than any
+        // detector needs to learn its threshold), start afresh, and again
+        // each time that passes: whatever an artefact taught the filters
         // and thresholds is forgotten (the finger may also be back elsewhere).
-        let lost = self.monitor.state() == SignalState::NoSignal
-            && (self.t - self.restarted_at) as f32 > state::SILENCE_S * self.fd;
+        let quiet_since = self.restarted_at.max(self.last_beat_t);
+        let lost = (self.t - quiet_since) as f32 > 2.0 * state::SILENCE_S * self.fd;
+        if self.monitor.state() == SignalState::NoSignal {
+            // Without pulses the floor sinks, halving every FLOOR_HALF_S: a
+            // pulse much smaller than the old one is found within seconds.
+            self.level_floor *= self.floor_decay;
+        }
         let y = if change != Change::None || lost {
+            // After a step or a silence the sensor is likely the same and
+            // so is the pulse's size within a wide margin: candidates far
+            // below the old level (noise on a lifted finger) cannot set a
+            // new one. After a collapse the old level was an artefact's.
+            if let Some(level) = self.peak_level {
+                self.level_floor = max_f32(level / FLOOR_DIVISOR, self.level_floor);
+            }
             self.restart(s)
         } else {
             self.highpass.process(s)
@@ -465,9 +499,13 @@ impl Pipeline {
             cand.onset = cand.onset.map(|o| o + self.epoch);
             let peak_d = self.locate_peak(now, cand.peak);
             let height = self.pulse_height(now, peak_d);
-            let (peak, frac) = self.input_peak(peak_d, height, now, n);
+            let peak = self.input_peak(peak_d, height, now, n);
             if self.accept(peak, height) {
-                out.beat = Some(self.beat(&cand, peak, frac, height, n));
+                // Intervals run between the smoothed peaks (sub-sample): the
+                // low-pass's delay cancels, and its peak wanders less with
+                // noise than the input's own top.
+                let fid = self.upstroke(now, peak_d);
+                out.beat = Some(self.beat(&cand, peak, fid, height, n));
             }
         }
         out
@@ -507,6 +545,9 @@ impl Pipeline {
     /// (running level updated by 1/8 of each accepted peak).
     fn accept(&mut self, peak: u64, a: f32) -> bool {
         if a.is_nan() || a <= 0.0 {
+            return false;
+        }
+        if a < self.level_floor {
             return false;
         }
         let Some(level) = self.peak_level else {
@@ -615,16 +656,15 @@ impl Pipeline {
         }
     }
 
-    /// Where the peak lies in the input, as an input index and a sub-sample
-    /// offset (−1 to ½ input samples, later positive): the smoothed
+    /// Where the peak lies in the input, as an input index: the smoothed
     /// signal's peak at detector index `peak_d`, refined between samples
     /// and moved back by the low-pass's group delay; then the input's own
     /// maximum within [`PEAK_REFINE_S`] of there, and the first sample
-    /// within [`TOP_FRACTION`] of `height` of it, with the crossing
-    /// interpolated between samples for the interval. `now` is the detector
-    /// index and `n` the input index of the newest sample. Beyond the input
-    /// ring (slow events at 1 kHz) the compensated smoothed peak stands.
-    fn input_peak(&self, peak_d: u64, height: f32, now: u64, n: u64) -> (u64, f32) {
+    /// before it within [`TOP_FRACTION`] of `height` of it. `now` is the
+    /// detector index and `n` the input index of the newest sample. Beyond
+    /// the input ring (slow events at 1 kHz) the compensated smoothed peak
+    /// stands.
+    fn input_peak(&self, peak_d: u64, height: f32, now: u64, n: u64) -> u64 {
         let shift =
             self.peak_offset((now - peak_d) as usize) * self.decim as f32 - self.lowpass_delay;
         let guess = self.to_input(peak_d) as f32 + shift;
@@ -634,8 +674,7 @@ impl Pipeline {
         let newest = libm::roundf(age) as i64 - self.refine as i64;
         let oldest = libm::roundf(age) as i64 + self.refine as i64;
         if newest < 1 || oldest + 1 >= held as i64 {
-            let whole = libm::roundf(guess);
-            return ((whole as i64).max(0) as u64, guess - whole);
+            return (libm::roundf(guess) as i64).max(0) as u64;
         }
         let (newest, oldest) = (newest as usize, oldest as usize);
         let mut best = f32::NEG_INFINITY;
@@ -657,28 +696,42 @@ impl Pipeline {
                 break;
             }
         }
-        let (older, v, newer) = (
-            self.input.at(at + 1),
-            self.input.at(at),
-            self.input.at(at - 1),
-        );
-        let frac = if at == best_age && newer < v {
-            // A single-sample top: the vertex of the parabola through it
-            // and its neighbours (at 25–50 Hz a whole-sample peak would put
-            // up to ±20 ms of jitter into every interval).
-            let curvature = older - 2.0 * v + newer;
+        n - at as u64
+    }
+
+    /// The steepest point of the upstroke before the smoothed peak at
+    /// detector index `peak_d`, as an input index and a sub-sample offset
+    /// (input samples): the vertex of the parabola through the largest rise
+    /// per sample and its neighbours.
+    fn upstroke(&self, now: u64, peak_d: u64) -> (u64, f32) {
+        let age = (now - peak_d) as usize;
+        let period = self.recent_ibi.unwrap_or(800.0) * self.fd / 1000.0;
+        let back = (libm::roundf(0.35 * period) as usize).max(2);
+        let oldest = (age + back).min(self.smoothed.len().saturating_sub(3));
+        let rise = |a: usize| self.smoothed.at(a) - self.smoothed.at(a + 1);
+        let mut best = f32::NEG_INFINITY;
+        let mut best_age = age;
+        for a in age..=oldest.max(age) {
+            let r = rise(a);
+            if r > best {
+                best = r;
+                best_age = a;
+            }
+        }
+        let frac = if best_age > age && best_age + 1 <= oldest {
+            let (older, newer) = (rise(best_age + 1), rise(best_age - 1));
+            let curvature = older - 2.0 * best + newer;
             if curvature < 0.0 {
                 (0.5 * (older - newer) / curvature).clamp(-0.5, 0.5)
             } else {
                 0.0
             }
-        } else if older < level && v > older {
-            // A flat or slowly rising top: where the input crossed the level.
-            -((v - level) / (v - older))
         } else {
             0.0
         };
-        (n - at as u64, frac)
+        // The rise at age a lies between samples a and a + 1.
+        let d = self.decim as f32;
+        (self.to_input(now - best_age as u64), (frac - 0.5) * d)
     }
 
     /// Foot-to-peak height on the smoothed input: the lowest point since
@@ -703,12 +756,19 @@ impl Pipeline {
         self.smoothed.at(age) - foot
     }
 
-    fn beat(&mut self, cand: &Candidate, peak: u64, frac: f32, height: f32, n: u64) -> BeatEvent {
+    fn beat(
+        &mut self,
+        cand: &Candidate,
+        peak: u64,
+        (at, frac): (u64, f32),
+        height: f32,
+        n: u64,
+    ) -> BeatEvent {
         let mut flags = 0u8;
         let median = self.recent_ibi;
-        let ibi = match self.last_peak {
-            Some(p) if peak > p => {
-                Some(((peak - p) as f32 + frac - self.last_frac) * 1000.0 / self.fs)
+        let ibi = match (self.last_peak, self.last_at) {
+            (Some(p), Some(last_at)) if peak > p && at > last_at => {
+                Some(((at - last_at) as f32 + frac - self.last_frac) * 1000.0 / self.fs)
             }
             _ => None,
         };
@@ -753,6 +813,7 @@ impl Pipeline {
                 0.0
             }
         };
+
         let beat_flags = BeatFlags(flags);
         // The template follows every clean pulse, even one that correlates
         // poorly, as the paper's window average does: a slowly changing pulse
@@ -780,6 +841,8 @@ impl Pipeline {
         }
         self.last_good = beat_flags.is_good();
         self.last_peak = Some(peak);
+        self.last_beat_t = self.t;
+        self.last_at = Some(at);
         self.last_frac = frac;
         let window = (self.config.options.hr_window_s * self.fs) as u64;
         let smoothed = self
