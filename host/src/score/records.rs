@@ -386,6 +386,7 @@ mod ecg_tests {
                 fs: 100.0,
                 samples: samples.clone(),
             },
+            input: Default::default(),
         };
         let run = replay(&samples, Config::new(100.0)).unwrap();
         let e = ecg_score(&rec, &run, "II").unwrap_err().0;

@@ -718,7 +718,7 @@ impl Pipeline {
                 best_age = a;
             }
         }
-        let frac = if best_age > age && best_age + 1 <= oldest {
+        let frac = if best_age > age && best_age < oldest {
             let (older, newer) = (rise(best_age + 1), rise(best_age - 1));
             let curvature = older - 2.0 * best + newer;
             if curvature < 0.0 {
