@@ -47,7 +47,6 @@ use crate::design::{butterworth_highpass, butterworth_lowpass};
 use crate::filter::{Cascade, Delta};
 use crate::hrv::{HrvStats, HrvWindow};
 use crate::math::{max_f32, min_f32};
-use crate::response::response;
 use crate::DesignError;
 use condition::Conditioner;
 use quality::{Shape, Template};
@@ -98,11 +97,24 @@ pub const RELEVEL_LIKE: f32 = 2.0;
 /// Frequency at which the low-pass's group delay is taken to move peaks
 /// and onsets back to where they are in the input, Hz: a pulse's
 /// fundamental (72 bpm), where the systolic upstroke's energy is.
-pub const DELAY_AT_HZ: f64 = 1.2;
+pub const DELAY_AT_HZ: f32 = 1.2;
 
 /// A candidate this soon after the last beat is the same pulse found
 /// again, ms (three quarters of the shortest plausible interval).
 pub const DUPLICATE_MS: f32 = 0.75 * rate::MIN_IBI_MS;
+
+/// Group delay, seconds, of a second-order Butterworth low-pass with
+/// corner `corner_hz` at `at_hz`: for H(s) = ωc² / (s² + √2·ωc·s + ωc²),
+/// τ(ω) = √2·ωc·(ωc² + ω²) / ((ωc² − ω²)² + 2·ωc²·ω²) (the analog
+/// prototype; the bilinear transform changes it by far less than a sample
+/// at corners well below the sample rate, and no trigonometry is needed on
+/// the chip).
+fn butterworth2_delay_s(corner_hz: f32, at_hz: f32) -> f32 {
+    let wc = 2.0 * core::f32::consts::PI * corner_hz;
+    let w = 2.0 * core::f32::consts::PI * at_hz;
+    let (wc2, w2) = (wc * wc, w * w);
+    core::f32::consts::SQRT_2 * wc * (wc2 + w2) / ((wc2 - w2) * (wc2 - w2) + 2.0 * wc2 * w2)
+}
 
 /// Intervals whose median is the reference for plausibility, peak search
 /// and pulse windows.
@@ -325,10 +337,8 @@ impl Pipeline {
         // detector's rate: a band-pass of the same four poles, but only one
         // section runs per input sample. The low-pass also keeps the
         // pulse's shape for placing peaks, without ADC noise or steps.
-        let lowpass_design = butterworth_lowpass(2, o.band_high_hz as f64, fs64)?;
-        let lowpass_delay =
-            (response(lowpass_design.sections(), DELAY_AT_HZ, fs64).group_delay_s * fs64) as f32;
-        let lowpass = lowpass_design.cascade()?;
+        let lowpass = butterworth_lowpass(2, o.band_high_hz as f64, fs64)?.cascade()?;
+        let lowpass_delay = butterworth2_delay_s(o.band_high_hz, DELAY_AT_HZ) * fs;
         let highpass = butterworth_highpass(2, o.band_low_hz as f64, fd as f64)?.cascade()?;
         let rails = match o.rails {
             Some((low, high)) => Rails::Known { low, high },
@@ -374,7 +384,8 @@ impl Pipeline {
             restarted_at: 0,
             last_beat_t: 0,
             level_floor: 0.0,
-            floor_decay: libm::exp2f(-1.0 / (FLOOR_HALF_S * fd)),
+            // 1 − ln 2 / n: halves in n samples to within 0.3 % (n ≥ 100).
+            floor_decay: 1.0 - core::f32::consts::LN_2 / (FLOOR_HALF_S * fd),
             restarts: 0,
             epoch: 0,
             hrv: HrvWindow::new(),
@@ -499,7 +510,7 @@ impl Pipeline {
             cand.onset = cand.onset.map(|o| o + self.epoch);
             let peak_d = self.locate_peak(now, cand.peak);
             let height = self.pulse_height(now, peak_d);
-            let peak = self.input_peak(peak_d, height, now, n);
+            let peak = self.input_peak(peak_d, height, n);
             if self.accept(peak, height) {
                 // Intervals run between the smoothed peaks (sub-sample): the
                 // low-pass's delay cancels, and its peak wanders less with
@@ -635,39 +646,16 @@ impl Pipeline {
         detector_index * k + k - 1
     }
 
-    /// Where between samples the peak at `age` lies, in detector samples
-    /// (−½ to ½, later positive), from the parabola through it and its two
-    /// neighbours: at 25–50 Hz a whole-sample peak would put up to ±20 ms of
-    /// jitter into every interval.
-    fn peak_offset(&self, age: usize) -> f32 {
-        if age == 0 || age + 1 >= self.smoothed.len() {
-            return 0.0;
-        }
-        let (older, mid, newer) = (
-            self.smoothed.at(age + 1),
-            self.smoothed.at(age),
-            self.smoothed.at(age - 1),
-        );
-        let curvature = older - 2.0 * mid + newer;
-        if curvature < 0.0 {
-            (0.5 * (older - newer) / curvature).clamp(-0.5, 0.5)
-        } else {
-            0.0
-        }
-    }
-
     /// Where the peak lies in the input, as an input index: the smoothed
-    /// signal's peak at detector index `peak_d`, refined between samples
-    /// and moved back by the low-pass's group delay; then the input's own
+    /// signal's peak at detector index `peak_d` moved back by the
+    /// low-pass's group delay; then the input's own
     /// maximum within [`PEAK_REFINE_S`] of there, and the first sample
-    /// before it within [`TOP_FRACTION`] of `height` of it. `now` is the
-    /// detector index and `n` the input index of the newest sample. Beyond
+    /// before it within [`TOP_FRACTION`] of `height` of it. `n` is the
+    /// input index of the newest sample. Beyond
     /// the input ring (slow events at 1 kHz) the compensated smoothed peak
     /// stands.
-    fn input_peak(&self, peak_d: u64, height: f32, now: u64, n: u64) -> u64 {
-        let shift =
-            self.peak_offset((now - peak_d) as usize) * self.decim as f32 - self.lowpass_delay;
-        let guess = self.to_input(peak_d) as f32 + shift;
+    fn input_peak(&self, peak_d: u64, height: f32, n: u64) -> u64 {
+        let guess = self.to_input(peak_d) as f32 - self.lowpass_delay;
         // Age of the guess in input samples (the newest input is age 0).
         let age = n as f32 - guess;
         let held = self.input.len();
