@@ -257,8 +257,11 @@ fn events_come_about_half_a_second_after_the_peak() {
 
 #[test]
 fn time_domain_hrv_of_the_pipeline_matches_the_generated_rhythm() {
-    // SDNN of good intervals vs the generator's drawn intervals (Task Force
-    // of the ESC and NASPE 1996 definitions; truth from the generator).
+    // SDNN of good intervals vs the generator's rhythm (Task Force of the
+    // ESC and NASPE 1996 definitions; truth from the generator). The
+    // pipeline's intervals run between upstrokes, and the generator stretches
+    // each beat's shape over its own interval, so the true fiducial is the
+    // template's steepest rise at its fraction of each beat.
     let s = generate(&SynthOptions {
         hr_variability_sd_ms: 40.0,
         ..opts(65.0, 250.0, 120.0, 21)
@@ -266,10 +269,24 @@ fn time_domain_hrv_of_the_pipeline_matches_the_generated_rhythm() {
     .unwrap();
     let r = run(&s, DetectorKind::Elgendi);
     let stats = r.pipeline.hrv();
+    let template = SynthOptions::default().template;
+    let steepest = (1..10_000)
+        .map(|k| k as f64 / 10_000.0)
+        .max_by(|&a, &b| {
+            let slope = |f: f64| {
+                let th = |f: f64| -std::f64::consts::PI + 2.0 * std::f64::consts::PI * f;
+                template.raw(th(f + 1e-5)) - template.raw(th(f - 1e-5))
+            };
+            slope(a).total_cmp(&slope(b))
+        })
+        .unwrap();
     let truth: Vec<f32> = s
         .beats
         .windows(2)
-        .map(|w| ((w[1].peak_s - w[0].peak_s) * 1000.0) as f32)
+        .map(|w| {
+            let at = |b: &plethwire::synth::TrueBeat| b.onset_s + steepest * b.interval_ms / 1000.0;
+            ((at(&w[1]) - at(&w[0])) * 1000.0) as f32
+        })
         .collect();
     let want = plethwire_dsp::hrv::hrv(&truth[truth.len() - stats.nn_count..], None).unwrap();
     let (got, want) = (stats.sdnn_ms.unwrap(), want.sdnn_ms.unwrap());

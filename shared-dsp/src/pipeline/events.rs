@@ -46,7 +46,9 @@ pub struct BeatEvent {
     /// Input sample index at which the event was emitted (the sample whose
     /// `push` returned it); `emitted_at − peak_index` is the latency.
     pub emitted_at: u64,
-    /// Interval from the previous beat's peak, ms.
+    /// Interval from the previous beat, ms, measured between the steepest
+    /// points of the two upstrokes (sub-sample): steadier than the peaks
+    /// under noise and at low sample rates.
     pub ibi_ms: Option<f32>,
     /// Instantaneous heart rate, 60000 / IBI, bpm.
     pub hr_bpm: Option<f32>,

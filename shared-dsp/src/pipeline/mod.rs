@@ -33,6 +33,7 @@ pub mod events;
 pub mod quality;
 pub mod rate;
 mod ring;
+pub mod scale;
 pub mod state;
 mod zong;
 
@@ -50,6 +51,7 @@ use crate::DesignError;
 use condition::Conditioner;
 use quality::{Shape, Template};
 use rate::Intervals;
+use scale::{Change, Scale};
 use state::Monitor;
 
 /// Lowest input sample rate accepted, Hz (a phone camera's rate).
@@ -70,16 +72,49 @@ pub const EARLY_FRACTION: f32 = 0.6;
 /// …is dropped when below this fraction of the running peak level.
 pub const EARLY_LEVEL_FRACTION: f32 = 0.6;
 
-/// A change of the smoothed input within [`STEP_S`] larger than this many
-/// pulse heights is a step (finger placed or lifted, a knock): the filters
-/// restart from the new level instead of ringing for seconds.
-pub const STEP_FACTOR: f32 = 8.0;
-/// Time over which a step is measured, seconds.
+/// Time over which a step is measured, seconds (the size that makes a
+/// step is in [`scale`]).
 pub const STEP_S: f32 = 0.1;
 
-/// Candidates dropped as small in a row after which the next is taken as
-/// the new peak level.
-pub const RELEVEL_AFTER: u32 = 6;
+/// Small candidates in a row, of like height, after which the last is
+/// taken as a beat and as the new peak level: a level set by an artefact,
+/// or a pulse that shrank, must not lock real pulses out for long.
+pub const RELEVEL_AFTER: u32 = 2;
+
+/// After a restart (a step, a collapse, silence), candidates below the
+/// old peak level divided by this are not pulses (noise on a lifted
+/// finger); while there is no signal the floor sinks (see
+/// [`FLOOR_HALF_S`]), so it cannot lock a smaller pulse out for long.
+pub const FLOOR_DIVISOR: f32 = 30.0;
+
+/// While there is no signal, the floor halves every this many seconds.
+pub const FLOOR_HALF_S: f32 = 4.0;
+
+/// Two small candidates are of like height when neither is more than this
+/// many times the other.
+pub const RELEVEL_LIKE: f32 = 2.0;
+
+/// Frequency at which the low-pass's group delay is taken to move peaks
+/// and onsets back to where they are in the input, Hz: a pulse's
+/// fundamental (72 bpm), where the systolic upstroke's energy is.
+pub const DELAY_AT_HZ: f32 = 1.2;
+
+/// A candidate this soon after the last beat is the same pulse found
+/// again, ms (three quarters of the shortest plausible interval).
+pub const DUPLICATE_MS: f32 = 0.75 * rate::MIN_IBI_MS;
+
+/// Group delay, seconds, of a second-order Butterworth low-pass with
+/// corner `corner_hz` at `at_hz`: for H(s) = ωc² / (s² + √2·ωc·s + ωc²),
+/// τ(ω) = √2·ωc·(ωc² + ω²) / ((ωc² − ω²)² + 2·ωc²·ω²) (the analog
+/// prototype; the bilinear transform changes it by far less than a sample
+/// at corners well below the sample rate, and no trigonometry is needed on
+/// the chip).
+fn butterworth2_delay_s(corner_hz: f32, at_hz: f32) -> f32 {
+    let wc = 2.0 * core::f32::consts::PI * corner_hz;
+    let w = 2.0 * core::f32::consts::PI * at_hz;
+    let (wc2, w2) = (wc * wc, w * w);
+    core::f32::consts::SQRT_2 * wc * (wc2 + w2) / ((wc2 - w2) * (wc2 - w2) + 2.0 * wc2 * w2)
+}
 
 /// Intervals whose median is the reference for plausibility, peak search
 /// and pulse windows.
@@ -88,8 +123,25 @@ pub const RECENT_INTERVALS: usize = 8;
 /// Intervals kept for heart-rate variability (about two minutes at 60 bpm).
 pub const HRV_INTERVALS: usize = 128;
 
-/// Detector-rate samples kept for pulse shapes and clipping marks.
-const SHAPE_RING: usize = 512;
+/// Detector-rate samples kept for pulse shapes and clipping marks (2 s at
+/// 125 Hz: a 30 bpm pulse's foot and shape, at the latest it is judged).
+const SHAPE_RING: usize = 256;
+
+/// Input samples kept to place each peak on the input itself (0.5 s at
+/// 1000 Hz, 2 s at 250 Hz: longer than an event's latency at the usual
+/// rates; beyond it the delay-compensated smoothed peak stands).
+const INPUT_RING: usize = 512;
+
+/// Half-width of the search for the input's maximum around the
+/// delay-compensated smoothed peak, seconds: the low-pass leans an
+/// asymmetric pulse's peak later by up to ~30 ms beyond its group delay.
+pub const PEAK_REFINE_S: f32 = 0.04;
+
+/// The peak is where the input first comes within this fraction of the
+/// pulse height of its maximum (about one ADC step of a typical pulse): a
+/// flat or slowly rising top, common in finger pulses with a late
+/// systolic shoulder, would otherwise put the peak at its far end.
+pub const TOP_FRACTION: f32 = 0.005;
 
 /// A detected beat before bookkeeping, at the detector's rate.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -206,6 +258,7 @@ pub struct Pipeline {
     // Lower band edge at the detector's rate.
     highpass: Cascade<Delta, 1>,
     monitor: Monitor,
+    scale: Scale,
     mark: u8,
     started: bool,
     last_good: bool,
@@ -219,15 +272,29 @@ pub struct Pipeline {
     n: u64,
     t: u64,
     last_peak: Option<u64>,
-    // Sub-sample offset of the last peak, input samples.
+    // Input index of the last beat's smoothed peak, for intervals.
+    last_at: Option<u64>,
+    // Sub-sample offset of the last upstroke (interval fiducial), input samples.
     last_frac: f32,
+    // Group delay of the low-pass near the pulse's fundamental, input
+    // samples: subtracted so peaks and onsets are those of the input.
+    lowpass_delay: f32,
     last_value: f32,
     peak_level: Option<f32>,
     // Clipped input samples since the last detector-rate sample.
     clipped_in_block: u32,
-    // Candidates dropped as small since the last accepted one.
+    // Candidates dropped as small since the last accepted one, and the
+    // height of the last of them.
     dropped_in_row: u32,
-    step_level: Option<f32>,
+    dropped_height: f32,
+    // Detector index of the last restart, and of the last beat.
+    restarted_at: u64,
+    last_beat_t: u64,
+    // Smallest candidate height that may count, after a step or silence
+    // (0: none).
+    level_floor: f32,
+    // Factor per detector sample that halves the floor in FLOOR_HALF_S.
+    floor_decay: f32,
     restarts: u64,
     epoch: u64,
     detector: Detector,
@@ -240,6 +307,8 @@ pub struct Pipeline {
     // odd interval early on cannot lock every later beat out.
     all_intervals: Intervals,
     hrv: HrvWindow<HRV_INTERVALS>,
+    input: Ring<INPUT_RING>,
+    refine: usize,
 }
 
 // Per detector-rate sample: bit 0 clipped, bit 1 replaced (not a number).
@@ -269,6 +338,7 @@ impl Pipeline {
         // section runs per input sample. The low-pass also keeps the
         // pulse's shape for placing peaks, without ADC noise or steps.
         let lowpass = butterworth_lowpass(2, o.band_high_hz as f64, fs64)?.cascade()?;
+        let lowpass_delay = butterworth2_delay_s(o.band_high_hz, DELAY_AT_HZ) * fs;
         let highpass = butterworth_highpass(2, o.band_low_hz as f64, fd as f64)?.cascade()?;
         let rails = match o.rails {
             Some((low, high)) => Rails::Known { low, high },
@@ -297,20 +367,30 @@ impl Pipeline {
             all_intervals: Intervals::new(),
             recent_ibi: None,
             monitor: Monitor::new(fs),
+            scale: Scale::new(fd),
             n: 0,
             t: 0,
             started: false,
             last_peak: None,
+            last_at: None,
             last_frac: 0.0,
+            lowpass_delay,
             last_good: false,
             last_value: 0.0,
             peak_level: None,
             clipped_in_block: 0,
             dropped_in_row: 0,
-            step_level: None,
+            dropped_height: 0.0,
+            restarted_at: 0,
+            last_beat_t: 0,
+            level_floor: 0.0,
+            // 1 − ln 2 / n: halves in n samples to within 0.3 % (n ≥ 100).
+            floor_decay: 1.0 - core::f32::consts::LN_2 / (FLOOR_HALF_S * fd),
             restarts: 0,
             epoch: 0,
             hrv: HrvWindow::new(),
+            input: Ring::new(),
+            refine: (libm::roundf(PEAK_REFINE_S * fs) as usize).max(1),
         })
     }
 
@@ -366,6 +446,7 @@ impl Pipeline {
             self.started = true;
         }
         self.last_value = c.value;
+        self.input.push(c.value);
         let s = self.lowpass.process(c.value);
         if c.clipped {
             self.mark |= MARK_CLIPPED;
@@ -388,15 +469,31 @@ impl Pipeline {
                 .block(n, self.clipped_in_block, self.decim, self.recent_ibi),
         };
         self.clipped_in_block = 0;
-        if let Some(e) = out.state {
-            if e.state == SignalState::NoSignal {
-                // The finger may come back elsewhere: start afresh.
-                self.template.reset();
-                self.last_peak = None;
-                self.last_good = false;
-            }
+        let jump = if self.smoothed.len() >= self.step_lag {
+            s - self.smoothed.at(self.step_lag - 1)
+        } else {
+            0.0
+        };
+        let change = self.scale.push(s, jump);
+        // Without a beat for twice the silence limit (longer than any
+        // detector needs to learn its threshold), start afresh, and again
+        // each time that passes: whatever an artefact taught the filters
+        // and thresholds is forgotten (the finger may also be back elsewhere).
+        let quiet_since = self.restarted_at.max(self.last_beat_t);
+        let lost = (self.t - quiet_since) as f32 > 2.0 * state::SILENCE_S * self.fd;
+        if self.monitor.state() == SignalState::NoSignal {
+            // Without pulses the floor sinks, halving every FLOOR_HALF_S: a
+            // pulse much smaller than the old one is found within seconds.
+            self.level_floor *= self.floor_decay;
         }
-        let y = if self.is_step(s) {
+        let y = if change != Change::None || lost {
+            // After a step or a silence the sensor is likely the same and
+            // so is the pulse's size within a wide margin: candidates far
+            // below the old level (noise on a lifted finger) cannot set a
+            // new one. After a collapse the old level was an artefact's.
+            if let Some(level) = self.peak_level {
+                self.level_floor = max_f32(level / FLOOR_DIVISOR, self.level_floor);
+            }
             self.restart(s)
         } else {
             self.highpass.process(s)
@@ -413,36 +510,35 @@ impl Pipeline {
             cand.onset = cand.onset.map(|o| o + self.epoch);
             let peak_d = self.locate_peak(now, cand.peak);
             let height = self.pulse_height(now, peak_d);
-            if self.accept(self.to_input(peak_d), height) {
-                out.beat = Some(self.beat(&cand, peak_d, height, now, n));
+            let peak = self.input_peak(peak_d, height, n);
+            if self.accept(peak, height) {
+                // Intervals run between the smoothed peaks (sub-sample): the
+                // low-pass's delay cancels, and its peak wanders less with
+                // noise than the input's own top.
+                let fid = self.upstroke(now, peak_d);
+                out.beat = Some(self.beat(&cand, peak, fid, height, n));
             }
         }
         out
     }
 
-    /// Has the smoothed input jumped by many pulse heights?
-    fn is_step(&self, s: f32) -> bool {
-        let lag = self.step_lag;
-        // The last known pulse height, kept across restarts so the step
-        // back (finger replaced) is caught as well as the step away.
-        match self.step_level {
-            Some(level) if self.smoothed.len() > lag => {
-                (s - self.smoothed.at(lag - 1)).abs() > STEP_FACTOR * level
-            }
-            _ => false,
-        }
-    }
-
-    /// Start the high-pass and the detector again from low-passed level
-    /// `s`; returns the band-passed output at rest.
+    /// Start the high-pass, the detector and every level learnt from the
+    /// signal again from low-passed level `s`; returns the band-passed
+    /// output at rest. (The heart-rate and HRV history stay: they hold only
+    /// beats already reported.)
     fn restart(&mut self, s: f32) -> f32 {
         let rest = self.highpass.settle(s);
         self.detector = Detector::new(self.config.options.detector, self.fd);
         self.epoch = self.t;
+        self.restarted_at = self.t;
         self.peak_level = None;
+        self.dropped_in_row = 0;
         self.last_peak = None;
         self.last_good = false;
         self.template.reset();
+        self.all_intervals.clear();
+        self.recent_ibi = None;
+        self.scale.forget();
         self.restarts += 1;
         rest
     }
@@ -462,15 +558,22 @@ impl Pipeline {
         if a.is_nan() || a <= 0.0 {
             return false;
         }
+        if a < self.level_floor {
+            return false;
+        }
         let Some(level) = self.peak_level else {
             self.peak_level = Some(a);
-            self.step_level = Some(a);
             self.dropped_in_row = 0;
             return true;
         };
         let since_ms = self
             .last_peak
             .map(|p| peak.saturating_sub(p) as f32 * 1000.0 / self.fs);
+        if since_ms.is_some_and(|s| s < DUPLICATE_MS) {
+            // The same pulse found twice (its top is placed on the input,
+            // so two candidates can land on it), or faster than any heart.
+            return false;
+        }
         let median = self.recent_ibi;
         let early = match (since_ms, median) {
             (Some(s), Some(m)) => s < EARLY_FRACTION * m,
@@ -479,13 +582,19 @@ impl Pipeline {
         let small = a < SMALL_FRACTION * level;
         let too_small_for_early = early && a < EARLY_LEVEL_FRACTION * level;
         if small || too_small_for_early {
-            // A level set by an artefact would lock every real pulse out:
-            // after a run of small ones in a row, take this one as the new
-            // level (the search-back idea of Pan and Tompkins).
-            self.dropped_in_row += 1;
-            if small && !early && self.dropped_in_row >= RELEVEL_AFTER {
-                // The step reference stays: a lower one would take pulses
-                // for steps.
+            // A level set by an artefact, or a pulse that shrank, would
+            // lock every real pulse out: small candidates of like height in
+            // a row, none of them early, set a new level (the search-back
+            // idea of Pan and Tompkins).
+            let like = self.dropped_in_row > 0
+                && a * RELEVEL_LIKE >= self.dropped_height
+                && a <= RELEVEL_LIKE * self.dropped_height;
+            if early {
+                return false;
+            }
+            self.dropped_in_row = if like { self.dropped_in_row + 1 } else { 1 };
+            self.dropped_height = a;
+            if self.dropped_in_row >= RELEVEL_AFTER {
                 self.dropped_in_row = 0;
                 self.peak_level = Some(a);
                 return true;
@@ -493,27 +602,43 @@ impl Pipeline {
             return false;
         }
         self.dropped_in_row = 0;
-        // Follow the level both ways, but let one huge artefact move it
-        // only by a bounded step.
-        self.peak_level = Some(level + 0.125 * (min_f32(a, 4.0 * level) - level));
-        self.step_level = self.peak_level;
+        // Follow a larger pulse quickly (half the way), a smaller one
+        // slowly (an eighth), so one small pulse does not open the gate to
+        // diastolic waves and a grown pulse soon sets the level.
+        let rate = if a > level { 0.5 } else { 0.125 };
+        self.peak_level = Some(level + rate * (a - level));
         true
     }
 
     /// At the end of a recording: feed the last value again for long
     /// enough to close any beat still open, and hand over the beats whose
-    /// peaks lie within the recording. A live stream never calls this.
+    /// tops lie wholly within the recording. A live stream never calls this.
     pub fn finish(&mut self, mut emit: impl FnMut(BeatEvent)) {
         let end = self.n;
         let flush = (1.5 * self.fs) as u64;
         let v = self.last_value;
+        // A peak whose top reaches the end may be an upstroke cut short.
+        let whole_before = end.saturating_sub(self.refine as u64);
+        // The held value looks like a signal that stopped; a restart it
+        // causes is not one of the recording's.
+        let restarts = self.restarts;
         for _ in 0..flush {
             if let Some(b) = self.push(v).beat {
-                if b.peak_index < end {
+                if b.peak_index < whole_before {
                     emit(b);
                 }
             }
         }
+        self.restarts = restarts;
+    }
+
+    /// The onset at detector index `onset` as an input index, moved back by
+    /// the low-pass's delay as the peak is; `None` unless it comes before
+    /// the beat's own peak (after a restart or an artefact the detector's
+    /// onset can belong to another wave).
+    fn onset_index(&self, onset: u64, peak: u64) -> Option<u64> {
+        let at = self.to_input(onset) as i64 - libm::roundf(self.lowpass_delay) as i64;
+        (at >= 0 && (at as u64) < peak).then_some(at as u64)
     }
 
     fn to_input(&self, detector_index: u64) -> u64 {
@@ -521,25 +646,80 @@ impl Pipeline {
         detector_index * k + k - 1
     }
 
-    /// Where between samples the peak at `age` lies, in detector samples
-    /// (−½ to ½, later positive), from the parabola through it and its two
-    /// neighbours: at 25–50 Hz a whole-sample peak would put up to ±20 ms of
-    /// jitter into every interval.
-    fn peak_offset(&self, age: usize) -> f32 {
-        if age == 0 || age + 1 >= self.smoothed.len() {
-            return 0.0;
+    /// Where the peak lies in the input, as an input index: the smoothed
+    /// signal's peak at detector index `peak_d` moved back by the
+    /// low-pass's group delay; then the input's own
+    /// maximum within [`PEAK_REFINE_S`] of there, and the first sample
+    /// before it within [`TOP_FRACTION`] of `height` of it. `n` is the
+    /// input index of the newest sample. Beyond
+    /// the input ring (slow events at 1 kHz) the compensated smoothed peak
+    /// stands.
+    fn input_peak(&self, peak_d: u64, height: f32, n: u64) -> u64 {
+        let guess = self.to_input(peak_d) as f32 - self.lowpass_delay;
+        // Age of the guess in input samples (the newest input is age 0).
+        let age = n as f32 - guess;
+        let held = self.input.len();
+        let newest = libm::roundf(age) as i64 - self.refine as i64;
+        let oldest = libm::roundf(age) as i64 + self.refine as i64;
+        if newest < 1 || oldest + 1 >= held as i64 {
+            return (libm::roundf(guess) as i64).max(0) as u64;
         }
-        let (older, mid, newer) = (
-            self.smoothed.at(age + 1),
-            self.smoothed.at(age),
-            self.smoothed.at(age - 1),
-        );
-        let curvature = older - 2.0 * mid + newer;
-        if curvature < 0.0 {
-            (0.5 * (older - newer) / curvature).clamp(-0.5, 0.5)
+        let (newest, oldest) = (newest as usize, oldest as usize);
+        let mut best = f32::NEG_INFINITY;
+        let mut best_age = oldest;
+        for a in (newest..=oldest).rev() {
+            let v = self.input.at(a);
+            if v > best {
+                best = v;
+                best_age = a;
+            }
+        }
+        // The top is where the input first comes within TOP_FRACTION of
+        // the pulse height of that maximum.
+        let level = best - TOP_FRACTION * max_f32(height, 0.0);
+        let mut at = best_age;
+        for a in (best_age..=oldest).rev() {
+            if self.input.at(a) >= level {
+                at = a;
+                break;
+            }
+        }
+        n - at as u64
+    }
+
+    /// The steepest point of the upstroke before the smoothed peak at
+    /// detector index `peak_d`, as an input index and a sub-sample offset
+    /// (input samples): the vertex of the parabola through the largest rise
+    /// per sample and its neighbours.
+    fn upstroke(&self, now: u64, peak_d: u64) -> (u64, f32) {
+        let age = (now - peak_d) as usize;
+        let period = self.recent_ibi.unwrap_or(800.0) * self.fd / 1000.0;
+        let back = (libm::roundf(0.35 * period) as usize).max(2);
+        let oldest = (age + back).min(self.smoothed.len().saturating_sub(3));
+        let rise = |a: usize| self.smoothed.at(a) - self.smoothed.at(a + 1);
+        let mut best = f32::NEG_INFINITY;
+        let mut best_age = age;
+        for a in age..=oldest.max(age) {
+            let r = rise(a);
+            if r > best {
+                best = r;
+                best_age = a;
+            }
+        }
+        let frac = if best_age > age && best_age < oldest {
+            let (older, newer) = (rise(best_age + 1), rise(best_age - 1));
+            let curvature = older - 2.0 * best + newer;
+            if curvature < 0.0 {
+                (0.5 * (older - newer) / curvature).clamp(-0.5, 0.5)
+            } else {
+                0.0
+            }
         } else {
             0.0
-        }
+        };
+        // The rise at age a lies between samples a and a + 1.
+        let d = self.decim as f32;
+        (self.to_input(now - best_age as u64), (frac - 0.5) * d)
     }
 
     /// Foot-to-peak height on the smoothed input: the lowest point since
@@ -564,14 +744,19 @@ impl Pipeline {
         self.smoothed.at(age) - foot
     }
 
-    fn beat(&mut self, cand: &Candidate, peak_d: u64, height: f32, now: u64, n: u64) -> BeatEvent {
-        let peak = self.to_input(peak_d);
-        let frac = self.peak_offset((now - peak_d) as usize) * self.decim as f32;
+    fn beat(
+        &mut self,
+        cand: &Candidate,
+        peak: u64,
+        (at, frac): (u64, f32),
+        height: f32,
+        n: u64,
+    ) -> BeatEvent {
         let mut flags = 0u8;
         let median = self.recent_ibi;
-        let ibi = match self.last_peak {
-            Some(p) if peak > p => {
-                Some(((peak - p) as f32 + frac - self.last_frac) * 1000.0 / self.fs)
+        let ibi = match (self.last_peak, self.last_at) {
+            (Some(p), Some(last_at)) if peak > p && at > last_at => {
+                Some(((at - last_at) as f32 + frac - self.last_frac) * 1000.0 / self.fs)
             }
             _ => None,
         };
@@ -589,7 +774,8 @@ impl Pipeline {
             self.all_intervals.push(i, peak);
             self.recent_ibi = self.all_intervals.recent_median(RECENT_INTERVALS);
         }
-        let age = (now - peak_d) as f32;
+        // The refined peak's age in detector samples.
+        let age = (n - peak) as f32 / self.decim as f32;
         let from = min_f32(age + 0.3 * period, (self.banded.len().max(2) - 2) as f32);
         let to = max_f32(age - 0.2 * period, 0.0);
         for a in (libm::floorf(to) as usize)..=(libm::ceilf(from) as usize) {
@@ -615,6 +801,7 @@ impl Pipeline {
                 0.0
             }
         };
+
         let beat_flags = BeatFlags(flags);
         // The template follows every clean pulse, even one that correlates
         // poorly, as the paper's window average does: a slowly changing pulse
@@ -642,6 +829,8 @@ impl Pipeline {
         }
         self.last_good = beat_flags.is_good();
         self.last_peak = Some(peak);
+        self.last_beat_t = self.t;
+        self.last_at = Some(at);
         self.last_frac = frac;
         let window = (self.config.options.hr_window_s * self.fs) as u64;
         let smoothed = self
@@ -650,7 +839,7 @@ impl Pipeline {
             .map(|(m, _)| 60_000.0 / m);
         BeatEvent {
             peak_index: peak,
-            onset_index: cand.onset.map(|o| self.to_input(o)),
+            onset_index: cand.onset.and_then(|o| self.onset_index(o, peak)),
             emitted_at: n,
             ibi_ms: ibi,
             hr_bpm: ibi.map(|i| 60_000.0 / i),

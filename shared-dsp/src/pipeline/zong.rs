@@ -13,8 +13,10 @@
 //! SSF maxima; refractory 250 ms; onset at 1 % of the local maximum.
 //!
 //! The systolic peak, which the paper does not locate, is taken as the
-//! band-passed signal's maximum in the [`PEAK_SEARCH_S`] after the onset; the
-//! pipeline then places it on the signal itself.
+//! band-passed signal's maximum from the onset until the pulse has turned
+//! down (at least [`PEAK_SEARCH_S`] or half an interval after the crossing,
+//! whichever is shorter, and at most the longer of the refractory period
+//! and 60 % of an interval); the pipeline then places it on the input.
 
 use super::ring::{Ring, RunningSum};
 use super::Candidate;
@@ -63,6 +65,8 @@ pub struct Zong {
     last_change: u64,
     interval: f32,
     pending: Option<u64>,
+    // Largest band-passed value since the pending crossing.
+    top: f32,
     rises: Ring<RING>,
     ssf_hist: Ring<RING>,
     filtered: Ring<RING>,
@@ -93,6 +97,7 @@ impl Zong {
             last_change: 0,
             interval: 0.8 * fs_hz,
             pending: None,
+            top: f32::NEG_INFINITY,
         }
     }
 
@@ -134,8 +139,13 @@ impl Zong {
             self.last_change = t;
         }
         if let Some(cross) = self.pending {
-            // Wait until the peak search after the crossing is complete.
-            if t - cross < self.peak_span() as u64 {
+            // Wait until the peak search after the crossing is complete
+            // and the pulse has turned down (a slow pulse's upstroke can
+            // outlast the search), but never past the longest wait.
+            let waited = t - cross;
+            self.top = max_f32(self.top, y);
+            let turned = y < self.top;
+            if waited < self.peak_span() as u64 || (!turned && waited < self.longest_wait()) {
                 return None;
             }
             self.pending = None;
@@ -145,6 +155,7 @@ impl Zong {
         let crossed = ssf > self.threshold && self.ssf_hist.at(1) <= self.threshold;
         if crossed && !refractory {
             self.pending = Some(t);
+            self.top = y;
         }
         None
     }
@@ -156,6 +167,16 @@ impl Zong {
         // never hide the next pulse's crossing.
         let cap = self.peak_search.min(self.refractory as usize);
         (libm::roundf(0.5 * self.interval) as usize).clamp(1, cap)
+    }
+
+    /// The longest wait after a crossing for the pulse to turn down: the
+    /// refractory period, or 60 % of the recent interval when longer
+    /// (the next pulse's crossing cannot come sooner), within the rings.
+    fn longest_wait(&self) -> u64 {
+        let cap = (RING / 2) as u64;
+        (libm::roundf(0.6 * self.interval) as u64)
+            .max(self.refractory)
+            .min(cap)
     }
 
     fn finish(&mut self, now: u64, cross: u64) -> Option<Candidate> {
@@ -180,8 +201,7 @@ impl Zong {
         // Systolic peak: the band-passed maximum after the onset.
         let mut best = f32::NEG_INFINITY;
         let mut best_age = age_cross;
-        let newest_peak = onset_age.saturating_sub(self.peak_span());
-        for a in newest_peak..=onset_age {
+        for a in 0..=onset_age {
             let v = self.filtered.at(a);
             if v > best {
                 best = v;
