@@ -1,0 +1,199 @@
+//! The smoothed input's recent scale, learnt from the signal alone, for
+//! telling a step or the end of an artefact from a pulse.
+//!
+//! The signal is cut into blocks of [`BLOCK_S`]; each block keeps its
+//! highest and lowest value. A *step* is a jump within a short lag larger
+//! than [`STEP_FACTOR`] times the range of the blocks before it; a
+//! *collapse* (an artefact ends, a tap or a burst of noise stops) is a last
+//! second whose range is below 1/[`COLLAPSE_FACTOR`] of the range of the
+//! two seconds before it. Both make the pipeline restart its filters from
+//! the present level. After a restart the history is forgotten, so the
+//! reference is always the signal since then: nothing learnt from one
+//! artefact can make every later pulse look like a step (a candidate-based
+//! reference could: one small first pulse made every upstroke a step).
+
+use crate::math::{max_f32, min_f32};
+
+/// Block length, seconds.
+pub const BLOCK_S: f32 = 0.25;
+/// Blocks whose range is the reference for a step (2 s).
+pub const STEP_BLOCKS: usize = 8;
+/// A jump within the step lag larger than this many ranges of the blocks
+/// before it is a step (finger placed or lifted, a knock, a light step).
+pub const STEP_FACTOR: f32 = 8.0;
+/// Newest blocks judged for a collapse (1 s).
+pub const QUIET_BLOCKS: usize = 4;
+/// A range of the newest [`QUIET_BLOCKS`] below 1/this of the range of the
+/// [`STEP_BLOCKS`] before them is a collapse.
+pub const COLLAPSE_FACTOR: f32 = 20.0;
+/// Blocks held.
+const HELD: usize = STEP_BLOCKS + QUIET_BLOCKS;
+/// Blocks needed since a restart before a step is judged (1 s).
+const STEP_AFTER: usize = 4;
+
+/// What the scale says about the newest sample.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Change {
+    /// Nothing unusual.
+    None,
+    /// A jump far beyond the recent range.
+    Step,
+    /// The recent range fell far below the range before it.
+    Collapse,
+}
+
+/// Ranges of recent blocks of the smoothed input, at the detector's rate.
+#[derive(Clone, Copy, Debug)]
+pub struct Scale {
+    block_len: u32,
+    filled: u32,
+    high: f32,
+    low: f32,
+    // Completed blocks' highest and lowest values, newest first.
+    highs: [f32; HELD],
+    lows: [f32; HELD],
+    blocks: usize,
+    // Range of the STEP_BLOCKS newest completed blocks, kept per block.
+    step_range: Option<f32>,
+}
+
+impl Scale {
+    /// A tracker at detector rate `fd_hz`.
+    pub fn new(fd_hz: f32) -> Self {
+        Self {
+            block_len: (libm::roundf(BLOCK_S * fd_hz) as u32).max(1),
+            filled: 0,
+            high: f32::NEG_INFINITY,
+            low: f32::INFINITY,
+            highs: [0.0; HELD],
+            lows: [0.0; HELD],
+            blocks: 0,
+            step_range: None,
+        }
+    }
+
+    /// Judge a jump of `jump` (the newest smoothed value minus the one a
+    /// step lag ago), then take the newest smoothed value `s`.
+    pub fn push(&mut self, s: f32, jump: f32) -> Change {
+        let step = match self.step_range {
+            Some(r) => jump.abs() > STEP_FACTOR * r,
+            None => false,
+        };
+        if step {
+            return Change::Step;
+        }
+        self.high = max_f32(self.high, s);
+        self.low = min_f32(self.low, s);
+        self.filled += 1;
+        if self.filled < self.block_len {
+            return Change::None;
+        }
+        self.close_block();
+        if self.blocks >= HELD {
+            let quiet = span(&self.highs[..QUIET_BLOCKS], &self.lows[..QUIET_BLOCKS]);
+            let before = span(&self.highs[QUIET_BLOCKS..], &self.lows[QUIET_BLOCKS..]);
+            if quiet * COLLAPSE_FACTOR < before {
+                return Change::Collapse;
+            }
+        }
+        Change::None
+    }
+
+    fn close_block(&mut self) {
+        self.highs.copy_within(0..HELD - 1, 1);
+        self.lows.copy_within(0..HELD - 1, 1);
+        self.highs[0] = self.high;
+        self.lows[0] = self.low;
+        self.blocks = (self.blocks + 1).min(HELD);
+        self.filled = 0;
+        self.high = f32::NEG_INFINITY;
+        self.low = f32::INFINITY;
+        let n = self.blocks.min(STEP_BLOCKS);
+        self.step_range =
+            (self.blocks >= STEP_AFTER).then(|| span(&self.highs[..n], &self.lows[..n]));
+    }
+
+    /// Forget the history (after a restart).
+    pub fn forget(&mut self) {
+        *self = Self {
+            block_len: self.block_len,
+            ..Self::new(1.0)
+        };
+    }
+
+    /// Range of the newest completed blocks up to [`STEP_BLOCKS`], if
+    /// enough are held to judge a step.
+    pub fn step_range(&self) -> Option<f32> {
+        self.step_range
+    }
+}
+
+/// Highest of `highs` minus lowest of `lows`.
+fn span(highs: &[f32], lows: &[f32]) -> f32 {
+    let high = highs.iter().copied().fold(f32::NEG_INFINITY, max_f32);
+    let low = lows.iter().copied().fold(f32::INFINITY, min_f32);
+    high - low
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn feed(scale: &mut Scale, values: impl Iterator<Item = f32>, lag: usize) -> Vec<Change> {
+        let mut held: [f32; 64] = [0.0; 64];
+        let mut out = Vec::new();
+        for (k, v) in values.enumerate() {
+            held[k % 64] = v;
+            let jump = if k >= lag {
+                v - held[(k - lag) % 64]
+            } else {
+                0.0
+            };
+            out.push(scale.push(v, jump));
+        }
+        out
+    }
+
+    extern crate std;
+    use std::vec::Vec;
+
+    #[test]
+    fn a_jump_of_many_ranges_is_a_step_and_a_pulse_is_not() {
+        let fd = 100.0;
+        let mut s = Scale::new(fd);
+        let pulse = (0..400).map(|k| libm::sinf(k as f32 * 0.075));
+        assert!(feed(&mut s, pulse, 10).iter().all(|c| *c == Change::None));
+        let mut s = Scale::new(fd);
+        let with_step = (0..400).map(|k| {
+            if k < 300 {
+                libm::sinf(k as f32 * 0.075)
+            } else {
+                100.0
+            }
+        });
+        assert!(feed(&mut s, with_step, 10).contains(&Change::Step));
+    }
+
+    #[test]
+    fn loud_noise_that_stops_is_a_collapse() {
+        let fd = 100.0;
+        let mut s = Scale::new(fd);
+        let v = (0..600).map(|k| {
+            if k < 300 {
+                if k % 2 == 0 {
+                    500.0
+                } else {
+                    -500.0
+                }
+            } else {
+                libm::sinf(k as f32 * 0.075)
+            }
+        });
+        let changes = feed(&mut s, v, 10);
+        let at = changes
+            .iter()
+            .position(|c| *c == Change::Collapse)
+            .expect("collapse");
+        assert!((300..=425).contains(&at), "{at}");
+    }
+}
