@@ -287,9 +287,10 @@ pub struct Pipeline {
     // height of the last of them.
     dropped_in_row: u32,
     dropped_height: f32,
-    // Detector index of the last restart, and of the last beat.
-    restarted_at: u64,
-    last_beat_t: u64,
+    // Detector index after which, without a beat or a restart since, the
+    // pipeline starts afresh; and that span (twice the silence limit).
+    lost_at: u64,
+    lost_after: u64,
     // Smallest candidate height that may count, after a step or silence
     // (0: none).
     level_floor: f32,
@@ -339,6 +340,9 @@ impl Pipeline {
         // pulse's shape for placing peaks, without ADC noise or steps.
         let lowpass = butterworth_lowpass(2, o.band_high_hz as f64, fs64)?.cascade()?;
         let lowpass_delay = butterworth2_delay_s(o.band_high_hz, DELAY_AT_HZ) * fs;
+        // Whole detector samples: `t - since > lost_after` is then the same
+        // test as against the exact span.
+        let lost_after = libm::floorf(2.0 * state::SILENCE_S * fd) as u64;
         let highpass = butterworth_highpass(2, o.band_low_hz as f64, fd as f64)?.cascade()?;
         let rails = match o.rails {
             Some((low, high)) => Rails::Known { low, high },
@@ -381,8 +385,8 @@ impl Pipeline {
             clipped_in_block: 0,
             dropped_in_row: 0,
             dropped_height: 0.0,
-            restarted_at: 0,
-            last_beat_t: 0,
+            lost_at: lost_after,
+            lost_after,
             level_floor: 0.0,
             // 1 − ln 2 / n: halves in n samples to within 0.3 % (n ≥ 100).
             floor_decay: 1.0 - core::f32::consts::LN_2 / (FLOOR_HALF_S * fd),
@@ -479,8 +483,7 @@ impl Pipeline {
         // detector needs to learn its threshold), start afresh, and again
         // each time that passes: whatever an artefact taught the filters
         // and thresholds is forgotten (the finger may also be back elsewhere).
-        let quiet_since = self.restarted_at.max(self.last_beat_t);
-        let lost = (self.t - quiet_since) as f32 > 2.0 * state::SILENCE_S * self.fd;
+        let lost = self.t > self.lost_at;
         if self.monitor.state() == SignalState::NoSignal {
             // Without pulses the floor sinks, halving every FLOOR_HALF_S: a
             // pulse much smaller than the old one is found within seconds.
@@ -530,7 +533,7 @@ impl Pipeline {
         let rest = self.highpass.settle(s);
         self.detector = Detector::new(self.config.options.detector, self.fd);
         self.epoch = self.t;
-        self.restarted_at = self.t;
+        self.lost_at = self.t + self.lost_after;
         self.peak_level = None;
         self.dropped_in_row = 0;
         self.last_peak = None;
@@ -829,7 +832,7 @@ impl Pipeline {
         }
         self.last_good = beat_flags.is_good();
         self.last_peak = Some(peak);
-        self.last_beat_t = self.t;
+        self.lost_at = self.t + self.lost_after;
         self.last_at = Some(at);
         self.last_frac = frac;
         let window = (self.config.options.hr_window_s * self.fs) as u64;

@@ -26,8 +26,11 @@ pub const QUIET_BLOCKS: usize = 4;
 /// A range of the newest [`QUIET_BLOCKS`] below 1/this of the range of the
 /// [`STEP_BLOCKS`] before them is a collapse.
 pub const COLLAPSE_FACTOR: f32 = 20.0;
-/// Blocks held.
-const HELD: usize = STEP_BLOCKS + QUIET_BLOCKS;
+/// Blocks judged.
+const JUDGED: usize = STEP_BLOCKS + QUIET_BLOCKS;
+/// Slots of the block ring: a power of two at least [`JUDGED`], so the
+/// ring's index is a mask.
+const HELD: usize = 16;
 /// Blocks needed since a restart before a step is judged (1 s).
 const STEP_AFTER: usize = 4;
 
@@ -49,12 +52,16 @@ pub struct Scale {
     filled: u32,
     high: f32,
     low: f32,
-    // Completed blocks' highest and lowest values, newest first.
+    // Completed blocks' highest and lowest values in a ring; `newest` is
+    // the slot of the newest (no shifting: this runs on every block).
     highs: [f32; HELD],
     lows: [f32; HELD],
+    newest: usize,
     blocks: usize,
-    // Range of the STEP_BLOCKS newest completed blocks, kept per block.
-    step_range: Option<f32>,
+    // STEP_FACTOR times the range of the STEP_BLOCKS newest completed
+    // blocks (infinite until enough are held), kept per block so the
+    // per-sample test is one comparison.
+    step_jump: f32,
 }
 
 impl Scale {
@@ -67,72 +74,103 @@ impl Scale {
             low: f32::INFINITY,
             highs: [0.0; HELD],
             lows: [0.0; HELD],
+            newest: 0,
             blocks: 0,
-            step_range: None,
+            step_jump: f32::INFINITY,
         }
     }
 
     /// Judge a jump of `jump` (the newest smoothed value minus the one a
     /// step lag ago), then take the newest smoothed value `s`.
+    #[inline]
     pub fn push(&mut self, s: f32, jump: f32) -> Change {
-        let step = match self.step_range {
-            Some(r) => jump.abs() > STEP_FACTOR * r,
-            None => false,
-        };
-        if step {
+        if jump.abs() > self.step_jump {
             return Change::Step;
         }
-        self.high = max_f32(self.high, s);
-        self.low = min_f32(self.low, s);
+        // The smoothed input is finite (the conditioner replaces NaN), so
+        // plain comparisons do.
+        if s > self.high {
+            self.high = s;
+        }
+        if s < self.low {
+            self.low = s;
+        }
         self.filled += 1;
         if self.filled < self.block_len {
             return Change::None;
         }
-        self.close_block();
-        if self.blocks >= HELD {
-            let quiet = span(&self.highs[..QUIET_BLOCKS], &self.lows[..QUIET_BLOCKS]);
-            let before = span(&self.highs[QUIET_BLOCKS..], &self.lows[QUIET_BLOCKS..]);
-            if quiet * COLLAPSE_FACTOR < before {
+        self.close_block()
+    }
+
+    fn close_block(&mut self) -> Change {
+        self.newest = (self.newest + 1) % HELD;
+        self.highs[self.newest] = self.high;
+        self.lows[self.newest] = self.low;
+        self.blocks = (self.blocks + 1).min(JUDGED);
+        self.filled = 0;
+        self.high = f32::NEG_INFINITY;
+        self.low = f32::INFINITY;
+        if self.blocks < STEP_AFTER {
+            return Change::None;
+        }
+        // Ranges of the newest second of blocks, of those before it (up
+        // to STEP_BLOCKS in all) and, once held, of the second before
+        // those: each block is read once.
+        let newest = self.range(0, QUIET_BLOCKS);
+        let n = self.blocks.min(STEP_BLOCKS);
+        let older = self.range(QUIET_BLOCKS, n);
+        let recent = join(newest, older);
+        self.step_jump = STEP_FACTOR * (recent.0 - recent.1);
+        if self.blocks >= JUDGED {
+            let oldest = self.range(STEP_BLOCKS, JUDGED);
+            let before = join(older, oldest);
+            if (newest.0 - newest.1) * COLLAPSE_FACTOR < before.0 - before.1 {
                 return Change::Collapse;
             }
         }
         Change::None
     }
 
-    fn close_block(&mut self) {
-        self.highs.copy_within(0..HELD - 1, 1);
-        self.lows.copy_within(0..HELD - 1, 1);
-        self.highs[0] = self.high;
-        self.lows[0] = self.low;
-        self.blocks = (self.blocks + 1).min(HELD);
-        self.filled = 0;
-        self.high = f32::NEG_INFINITY;
-        self.low = f32::INFINITY;
-        let n = self.blocks.min(STEP_BLOCKS);
-        self.step_range =
-            (self.blocks >= STEP_AFTER).then(|| span(&self.highs[..n], &self.lows[..n]));
+    /// Highest and lowest value of the completed blocks `from..to` ago
+    /// (0 = the newest); (−∞, ∞) when the span is empty.
+    fn range(&self, from: usize, to: usize) -> (f32, f32) {
+        let mut high = f32::NEG_INFINITY;
+        let mut low = f32::INFINITY;
+        for age in from..to {
+            let k = (self.newest + HELD - age) % HELD;
+            // Block extremes are finite: plain comparisons do.
+            if self.highs[k] > high {
+                high = self.highs[k];
+            }
+            if self.lows[k] < low {
+                low = self.lows[k];
+            }
+        }
+        (high, low)
     }
 
     /// Forget the history (after a restart).
     pub fn forget(&mut self) {
-        *self = Self {
-            block_len: self.block_len,
-            ..Self::new(1.0)
-        };
+        self.filled = 0;
+        self.high = f32::NEG_INFINITY;
+        self.low = f32::INFINITY;
+        self.blocks = 0;
+        self.step_jump = f32::INFINITY;
     }
 
     /// Range of the newest completed blocks up to [`STEP_BLOCKS`], if
     /// enough are held to judge a step.
     pub fn step_range(&self) -> Option<f32> {
-        self.step_range
+        (self.blocks >= STEP_AFTER).then(|| {
+            let (high, low) = self.range(0, self.blocks.min(STEP_BLOCKS));
+            high - low
+        })
     }
 }
 
-/// Highest of `highs` minus lowest of `lows`.
-fn span(highs: &[f32], lows: &[f32]) -> f32 {
-    let high = highs.iter().copied().fold(f32::NEG_INFINITY, max_f32);
-    let low = lows.iter().copied().fold(f32::INFINITY, min_f32);
-    high - low
+/// The range covering two ranges.
+fn join(a: (f32, f32), b: (f32, f32)) -> (f32, f32) {
+    (max_f32(a.0, b.0), min_f32(a.1, b.1))
 }
 
 #[cfg(test)]
