@@ -83,13 +83,18 @@ impl Conditioner {
                 if x < self.min {
                     self.min = x;
                 }
-                let at_extreme = x == self.max || x == self.min;
-                self.run = if self.seen && x == self.last && at_extreme {
+                // A run of equal values counts whether or not it sits at an
+                // extreme: a constant value that is not the maximum or the
+                // minimum cannot become one without changing, so only
+                // runs at an extreme ever reach the test below, and the
+                // extremes need comparing only then (most samples differ
+                // from the last one: one comparison).
+                self.run = if self.seen && x == self.last {
                     self.run + 1
                 } else {
                     1
                 };
-                at_extreme && self.run >= self.plateau
+                self.run >= self.plateau && (x == self.max || x == self.min)
             }
         };
         self.last = x;

@@ -40,7 +40,7 @@ mod zong;
 pub use condition::Rails;
 pub use elgendi::Elgendi;
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
-pub use ring::{Ring, RunningSum};
+pub use ring::{History, Ring, RunningSum};
 pub use zong::Zong;
 
 use crate::design::{butterworth_highpass, butterworth_lowpass};
@@ -308,7 +308,7 @@ pub struct Pipeline {
     // odd interval early on cannot lock every later beat out.
     all_intervals: Intervals,
     hrv: HrvWindow<HRV_INTERVALS>,
-    input: Ring<INPUT_RING>,
+    input: History<INPUT_RING>,
     refine: usize,
 }
 
@@ -393,7 +393,7 @@ impl Pipeline {
             restarts: 0,
             epoch: 0,
             hrv: HrvWindow::new(),
-            input: Ring::new(),
+            input: History::new(),
             refine: (libm::roundf(PEAK_REFINE_S * fs) as usize).max(1),
         })
     }
@@ -450,7 +450,7 @@ impl Pipeline {
             self.started = true;
         }
         self.last_value = c.value;
-        self.input.push(c.value);
+        self.input.put(self.n, c.value);
         let s = self.lowpass.process(c.value);
         if c.clipped {
             self.mark |= MARK_CLIPPED;
@@ -661,7 +661,7 @@ impl Pipeline {
         let guess = self.to_input(peak_d) as f32 - self.lowpass_delay;
         // Age of the guess in input samples (the newest input is age 0).
         let age = n as f32 - guess;
-        let held = self.input.len();
+        let held = (n + 1).min(INPUT_RING as u64);
         let newest = libm::roundf(age) as i64 - self.refine as i64;
         let oldest = libm::roundf(age) as i64 + self.refine as i64;
         if newest < 1 || oldest + 1 >= held as i64 {
@@ -671,7 +671,7 @@ impl Pipeline {
         let mut best = f32::NEG_INFINITY;
         let mut best_age = oldest;
         for a in (newest..=oldest).rev() {
-            let v = self.input.at(a);
+            let v = self.input.at(n - a as u64);
             if v > best {
                 best = v;
                 best_age = a;
@@ -682,7 +682,7 @@ impl Pipeline {
         let level = best - TOP_FRACTION * max_f32(height, 0.0);
         let mut at = best_age;
         for a in (best_age..=oldest).rev() {
-            if self.input.at(a) >= level {
+            if self.input.at(n - a as u64) >= level {
                 at = a;
                 break;
             }

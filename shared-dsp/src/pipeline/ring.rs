@@ -134,3 +134,43 @@ mod tests {
         assert!(s.get().abs() <= 2.0 * 1e3 * f32::EPSILON, "{}", s.get());
     }
 }
+
+/// The last `N` input samples, kept by their sample index: the caller's
+/// own running count places each value, so a push is one store (this runs
+/// on every input sample, at up to 1 kHz on the chip). `N` is a power of
+/// two.
+#[derive(Clone, Copy, Debug)]
+pub struct History<const N: usize> {
+    data: [f32; N],
+}
+
+impl<const N: usize> History<N> {
+    const MASK: usize = {
+        assert!(N.is_power_of_two(), "History's size must be a power of two");
+        N - 1
+    };
+
+    /// An empty history.
+    pub fn new() -> Self {
+        Self { data: [0.0; N] }
+    }
+
+    /// Keep `v` as the sample of index `index`.
+    #[inline]
+    pub fn put(&mut self, index: u64, v: f32) {
+        self.data[index as usize & Self::MASK] = v;
+    }
+
+    /// The sample kept for index `index`: the caller keeps `index` among
+    /// the last `N` put (older ones have been overwritten).
+    #[inline]
+    pub fn at(&self, index: u64) -> f32 {
+        self.data[index as usize & Self::MASK]
+    }
+}
+
+impl<const N: usize> Default for History<N> {
+    fn default() -> Self {
+        Self::new()
+    }
+}
