@@ -518,7 +518,7 @@ impl Pipeline {
                 // Intervals run between the smoothed peaks (sub-sample): the
                 // low-pass's delay cancels, and its peak wanders less with
                 // noise than the input's own top.
-                let fid = self.upstroke(now, peak_d);
+                let fid = self.upstroke(now, peak_d, height);
                 out.beat = Some(self.beat(&cand, peak, fid, height, n));
             }
         }
@@ -690,39 +690,35 @@ impl Pipeline {
         n - at as u64
     }
 
-    /// The steepest point of the upstroke before the smoothed peak at
-    /// detector index `peak_d`, as an input index and a sub-sample offset
-    /// (input samples): the vertex of the parabola through the largest rise
-    /// per sample and its neighbours.
-    fn upstroke(&self, now: u64, peak_d: u64) -> (u64, f32) {
+    /// Where the upstroke before the smoothed peak at detector index
+    /// `peak_d` crosses half the pulse's `height` below that peak, as an
+    /// input index and a sub-sample offset (input samples, from linear
+    /// interpolation between the two samples around the crossing). The
+    /// interval fiducial: the upstroke is steepest about there, so noise
+    /// moves the crossing least, less than it moves the peak or the point
+    /// of steepest rise, both found where the slope or the curvature is
+    /// flattest (the 50 % amplitude point, common practice for pulse
+    /// timing).
+    fn upstroke(&self, now: u64, peak_d: u64, height: f32) -> (u64, f32) {
         let age = (now - peak_d) as usize;
+        let mid = self.smoothed.at(age) - 0.5 * height;
         let period = self.recent_ibi.unwrap_or(800.0) * self.fd / 1000.0;
-        let back = (libm::roundf(0.35 * period) as usize).max(2);
-        let oldest = (age + back).min(self.smoothed.len().saturating_sub(3));
-        let rise = |a: usize| self.smoothed.at(a) - self.smoothed.at(a + 1);
-        let mut best = f32::NEG_INFINITY;
-        let mut best_age = age;
-        for a in age..=oldest.max(age) {
-            let r = rise(a);
-            if r > best {
-                best = r;
-                best_age = a;
-            }
+        let back = (libm::roundf(0.6 * period) as usize).max(1);
+        let oldest = (age + back).min(self.smoothed.len().saturating_sub(1));
+        let mut a = age;
+        while a < oldest && self.smoothed.at(a + 1) >= mid {
+            a += 1;
         }
-        let frac = if best_age > age && best_age < oldest {
-            let (older, newer) = (rise(best_age + 1), rise(best_age - 1));
-            let curvature = older - 2.0 * best + newer;
-            if curvature < 0.0 {
-                (0.5 * (older - newer) / curvature).clamp(-0.5, 0.5)
-            } else {
-                0.0
-            }
+        // Samples a + 1 (below mid) and a (at or above it), when found.
+        let (below, above) = (self.smoothed.at(a + 1), self.smoothed.at(a));
+        let frac = if a < oldest && above > below {
+            (mid - below) / (above - below)
         } else {
-            0.0
+            1.0
         };
-        // The rise at age a lies between samples a and a + 1.
+        // From sample a + 1 forward by `frac` of a detector sample.
         let d = self.decim as f32;
-        (self.to_input(now - best_age as u64), (frac - 0.5) * d)
+        (self.to_input(now.saturating_sub((a + 1) as u64)), frac * d)
     }
 
     /// Foot-to-peak height on the smoothed input: the lowest point since
