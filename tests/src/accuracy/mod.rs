@@ -165,6 +165,10 @@ pub fn run(data: &Path, mut progress: impl FnMut(&str)) -> Result<Picture, Accur
     for (set, recs) in DATASETS.iter().zip(&prepared) {
         let (mut ours, mut theirs) = (Vec::new(), Vec::new());
         for p in recs {
+            progress(&format!(
+                "{} against its references, both beat lists",
+                p.rec.name
+            ));
             let peaks = baseline.next().expect("one answer per record").refined;
             let base = baseline_replay(&peaks, p.run.fs, p.run.samples);
             ours.push(p.refs.score(&p.rec, &p.run));
