@@ -8,8 +8,11 @@
 //! generic peak finder does on the same samples. Gate callers with
 //! `need(needs::PYTHON, python().is_some())`.
 
+use plethwire::replay::Replay;
+use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, Options};
 use serde::{Deserialize, Serialize};
 
+use crate::beside::peak_rate_track;
 use crate::{python_json, repo_root};
 
 /// One record for the baseline: the exact samples the pipeline sees.
@@ -75,4 +78,71 @@ pub fn baseline_peaks(records: &[BaselineInput]) -> Vec<Vec<u64>> {
         .into_iter()
         .map(|p| p.refined)
         .collect()
+}
+
+/// The baseline's beats (`peaks`, sample indices at `fs` Hz, of a
+/// recording of `samples` samples) carried as a [`Replay`], so that every
+/// scoring function takes them exactly as it takes the pipeline's. The
+/// baseline judges no beat, so every beat is good (the first has no
+/// interval); each interval is the distance to the previous peak; the
+/// smoothed heart rate is made as the pipeline makes its own: 60000 / the
+/// median of the intervals that ended within the pipeline's default
+/// `hr_window_s` ([`peak_rate_track`]). It knows the whole record, so each
+/// beat is "emitted" at its peak: latency means nothing here.
+pub fn baseline_replay(peaks: &[u64], fs: f64, samples: u64) -> Replay {
+    let mut p = peaks.to_vec();
+    p.sort_unstable();
+    let window_s = f64::from(Options::default().hr_window_s);
+    // The track has one entry per peak after the first, in order.
+    let smoothed = std::iter::once(None).chain(
+        peak_rate_track(&p, fs, window_s)
+            .into_iter()
+            .map(|(_, bpm)| Some(bpm as f32)),
+    );
+    let beats = p
+        .iter()
+        .zip(smoothed)
+        .enumerate()
+        .map(|(k, (&peak, hr_smoothed_bpm))| {
+            let ibi_ms = (k > 0).then(|| ((peak - p[k - 1]) as f64 * 1000.0 / fs) as f32);
+            BeatEvent {
+                peak_index: peak,
+                onset_index: None,
+                emitted_at: peak,
+                ibi_ms,
+                hr_bpm: ibi_ms.map(|i| 60_000.0 / i),
+                hr_smoothed_bpm,
+                amplitude: 0.0,
+                quality: 1.0,
+                flags: BeatFlags(if k == 0 { BeatFlags::NO_INTERVAL } else { 0 }),
+            }
+        })
+        .collect();
+    Replay {
+        fs,
+        samples,
+        beats,
+        states: Vec::new(),
+        rejected: 0,
+        clipped: 0,
+        restarts: 0,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn baseline_beats_become_good_beats_with_peak_intervals() {
+        // 100 Hz: peaks 1.0 s, then 0.5 s apart (given out of order).
+        let run = baseline_replay(&[110, 10, 160], 100.0, 200);
+        assert_eq!(run.peaks(), vec![10, 110, 160]);
+        let ibi: Vec<Option<f32>> = run.beats.iter().map(|b| b.ibi_ms).collect();
+        assert_eq!(ibi, vec![None, Some(1000.0), Some(500.0)]);
+        assert!(run.beats.iter().all(|b| b.flags.is_good()));
+        // Median of 1000 and 500 ms: 750 ms, 80 bpm, reported at 1.6 s.
+        assert_eq!(run.heart_rate_track(), vec![(1.1, 60.0), (1.6, 80.0)]);
+        assert_eq!(run.hrv().nn_count, 2);
+    }
 }

@@ -29,6 +29,7 @@
 //!   `python`).
 //! * `PLETHWIRE_QEMU`: `qemu-system-arm` binary to use (default: from `PATH`).
 
+pub mod accuracy;
 pub mod baseline;
 pub mod beside;
 pub mod emulation;

@@ -14,7 +14,7 @@
 //!   windows every 2 s; PPG1.
 //!
 //! The figures are printed (run with `--nocapture`), not held to targets:
-//! `accuracy_shared_data.rs` holds the pipeline's. Asserted here is only
+//! `accuracy_targets.rs` holds the pipeline's. Asserted here is only
 //! what a correct harness gives: both sides saw every record, the
 //! baseline finds beats everywhere, its refined peaks lie in the 150 ms
 //! before its filtered ones, and on CapnoBase's clean finger PPG a plain

@@ -69,10 +69,38 @@ pub struct EcgScore {
 /// Score `pulses` (sample indices at `fs`) against the R peaks of `ecg`
 /// sampled at the same rate.
 pub fn score_pulses(ecg: &[f64], fs: f64, pulses: &[u64]) -> Result<EcgScore, EcgError> {
-    let r = r_peaks(ecg, fs)?;
-    let tol = (MATCH_WINDOW_S * fs).round() as u64;
-    let unusable = unusable_spans(ecg, &r, fs, tol);
-    Ok(score_against_r_peaks(&r, &unusable, fs, pulses))
+    Ok(EcgReference::new(ecg, fs)?.score(pulses))
+}
+
+/// An ECG made ready as a beat reference once, so that several pulse
+/// lists are scored against the very same R peaks and left-out time.
+#[derive(Debug, Clone, PartialEq)]
+pub struct EcgReference {
+    /// Sample rate of the ECG and of the pulses scored against it, Hz.
+    pub fs: f64,
+    /// R peaks ([`r_peaks`]), ascending sample indices.
+    pub r_peaks: Vec<u64>,
+    /// ECG time it cannot vouch for ([`unusable_spans`]).
+    pub unusable: Vec<(u64, u64)>,
+}
+
+impl EcgReference {
+    /// R peaks and unusable time of `ecg` sampled at `fs` Hz.
+    pub fn new(ecg: &[f64], fs: f64) -> Result<Self, EcgError> {
+        let r = r_peaks(ecg, fs)?;
+        let tol = (MATCH_WINDOW_S * fs).round() as u64;
+        Ok(Self {
+            fs,
+            unusable: unusable_spans(ecg, &r, fs, tol),
+            r_peaks: r,
+        })
+    }
+
+    /// `pulses` (sample indices at [`Self::fs`]) against these R peaks, as
+    /// [`score_against_r_peaks`].
+    pub fn score(&self, pulses: &[u64]) -> EcgScore {
+        score_against_r_peaks(&self.r_peaks, &self.unusable, self.fs, pulses)
+    }
 }
 
 /// Score `pulses` against known R peaks (`r`, ascending) at `fs` Hz,

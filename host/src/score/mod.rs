@@ -173,6 +173,7 @@ mod tests {
     }
 }
 
+pub mod record_refs;
 pub mod records;
 pub mod strap;
 pub mod timing;

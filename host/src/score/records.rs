@@ -1,11 +1,12 @@
 //! Scoring whole recordings: beats against a reference annotation file,
 //! heart rate against a reference numerics table, per record and pooled.
 
-use super::strap::{score_strap, StrapScore};
+use super::record_refs::RecordReferences;
+use super::strap::StrapScore;
 use super::timing::PeakTiming;
 use super::windows::{read_rate_windows, ReplayWindows};
-use super::{match_beats, match_pairs, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
-use crate::ecg::{score_pulses, EcgScore};
+use super::{MatchCounts, RateError};
+use crate::ecg::{EcgReference, EcgScore};
 use crate::io::read_rr_intervals;
 use crate::io::{annotation_path, read_annotations, read_numerics, read_wfdb_signal};
 use crate::replay::{load, replay, InputInfo, Recording, Replay, ReplayError, Source, Summary};
@@ -91,6 +92,49 @@ pub struct Scores {
     pub pooled_windows: Option<ReplayWindows>,
     /// Counts against the ECG's R peaks summed over the records.
     pub pooled_ecg: Option<MatchCounts>,
+}
+
+impl Scores {
+    /// `records` and their pooled totals.
+    pub fn pooled(records: Vec<RecordScore>) -> Self {
+        let mut pooled_beats: Option<MatchCounts> = None;
+        let mut pooled_heart_rate: Option<RateError> = None;
+        let mut pooled_ecg: Option<MatchCounts> = None;
+        for r in &records {
+            if let Some(e) = &r.ecg {
+                pooled_ecg
+                    .get_or_insert_with(MatchCounts::default)
+                    .add(&e.counts);
+            }
+            if let Some(b) = &r.beats {
+                pooled_beats.get_or_insert_with(MatchCounts::default).add(b);
+            }
+            if let Some(h) = &r.heart_rate {
+                pooled_heart_rate
+                    .get_or_insert_with(RateError::default)
+                    .add(h);
+            }
+        }
+        let timings: Vec<&PeakTiming> = records
+            .iter()
+            .filter_map(|r| r.peak_timing.as_ref())
+            .collect();
+        let pooled_peak_timing = (!timings.is_empty()).then(|| PeakTiming::pooled(timings));
+        let mut pooled_windows: Option<ReplayWindows> = None;
+        for w in records.iter().filter_map(|r| r.windows.as_ref()) {
+            pooled_windows
+                .get_or_insert_with(ReplayWindows::default)
+                .add(w);
+        }
+        Scores {
+            records,
+            pooled_beats,
+            pooled_heart_rate,
+            pooled_peak_timing,
+            pooled_windows,
+            pooled_ecg,
+        }
+    }
 }
 
 /// Every recording in `paths`: records and files as given, folders
@@ -215,42 +259,14 @@ pub fn reference_rate(record: &Path, refs: &References) -> Result<Option<RateSer
     ))
 }
 
-/// Score one loaded and replayed recording.
+/// Score one loaded and replayed recording (its references read and
+/// scored at once, [`RecordReferences`]).
 pub fn score_one(
     rec: &Recording,
     run: &Replay,
     refs: &References,
 ) -> Result<RecordScore, ReplayError> {
-    let reference = reference_beats(&rec.path, &refs.annotator)?;
-    let tol = (MATCH_WINDOW_S * run.fs).round() as u64;
-    let beats = reference
-        .as_ref()
-        .map(|r| match_beats(r, &run.peaks(), tol));
-    let peak_timing = reference
-        .as_ref()
-        .map(|r| PeakTiming::from_pairs(&match_pairs(r, &run.peaks(), tol), run.fs));
-    let windows =
-        reference_windows(&rec.path, &refs.window_suffix)?.map(|w| ReplayWindows::of(&w, run));
-    let heart_rate =
-        reference_rate(&rec.path, refs)?.map(|series| rate_error(&run.heart_rate_track(), &series));
-    let strap =
-        strap_intervals(&rec.path, &refs.strap_suffix)?.and_then(|rr| score_strap(run, &rr));
-    Ok(RecordScore {
-        record: rec.name.clone(),
-        beats,
-        reference_beats: reference.map(|r| r.len()),
-        heart_rate,
-        summary: run.summary(),
-        peak_timing,
-        windows,
-        signal: rec.signal.name.clone(),
-        input: rec.input.clone(),
-        strap,
-        ecg: match &refs.ecg {
-            Some(name) => Some(ecg_score(rec, run, name)?),
-            None => None,
-        },
-    })
+    Ok(RecordReferences::load(rec, refs)?.score(rec, run))
 }
 
 /// The reference window table `<record><suffix>` of the record at
@@ -269,6 +285,12 @@ pub fn reference_windows(
 /// The pulses of `run` against the R peaks of signal `name` of the WFDB
 /// record `rec` was loaded from, which must have the pulse signal's rate.
 pub fn ecg_score(rec: &Recording, run: &Replay, name: &str) -> Result<EcgScore, ReplayError> {
+    Ok(load_ecg(rec, name)?.score(&run.peaks()))
+}
+
+/// The R peaks of signal `name` of the WFDB record `rec` was loaded from,
+/// which must have the pulse signal's rate.
+pub fn load_ecg(rec: &Recording, name: &str) -> Result<EcgReference, ReplayError> {
     if rec
         .path
         .extension()
@@ -289,7 +311,7 @@ pub fn ecg_score(rec: &Recording, run: &Replay, name: &str) -> Result<EcgScore, 
             rec.signal.fs
         )));
     }
-    score_pulses(&ecg.samples, ecg.fs, &run.peaks())
+    EcgReference::new(&ecg.samples, ecg.fs)
         .map_err(|e| ReplayError(format!("{}: {e}", rec.path.display())))
 }
 
@@ -321,43 +343,7 @@ pub fn score_all(
             .map_err(|e| ReplayError(format!("{}: {e}", path.display())))?;
         records.push(score_one(&rec, &run, refs)?);
     }
-    let mut pooled_beats: Option<MatchCounts> = None;
-    let mut pooled_heart_rate: Option<RateError> = None;
-    let mut pooled_ecg: Option<MatchCounts> = None;
-    for r in &records {
-        if let Some(e) = &r.ecg {
-            pooled_ecg
-                .get_or_insert_with(MatchCounts::default)
-                .add(&e.counts);
-        }
-        if let Some(b) = &r.beats {
-            pooled_beats.get_or_insert_with(MatchCounts::default).add(b);
-        }
-        if let Some(h) = &r.heart_rate {
-            pooled_heart_rate
-                .get_or_insert_with(RateError::default)
-                .add(h);
-        }
-    }
-    let timings: Vec<&PeakTiming> = records
-        .iter()
-        .filter_map(|r| r.peak_timing.as_ref())
-        .collect();
-    let pooled_peak_timing = (!timings.is_empty()).then(|| PeakTiming::pooled(timings));
-    let mut pooled_windows: Option<ReplayWindows> = None;
-    for w in records.iter().filter_map(|r| r.windows.as_ref()) {
-        pooled_windows
-            .get_or_insert_with(ReplayWindows::default)
-            .add(w);
-    }
-    Ok(Scores {
-        records,
-        pooled_beats,
-        pooled_heart_rate,
-        pooled_peak_timing,
-        pooled_windows,
-        pooled_ecg,
-    })
+    Ok(Scores::pooled(records))
 }
 
 #[cfg(test)]

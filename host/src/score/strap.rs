@@ -99,18 +99,35 @@ fn nearest(sorted: &[f64], t: f64) -> (usize, f64) {
     best
 }
 
-fn score_at(strap: &[f64], peaks: &[f64], offset: f64) -> f64 {
-    strap
-        .iter()
-        .map(|&b| {
-            let d = nearest(peaks, b + offset).1 / ALIGN_KERNEL_MS;
-            if d < 1.0 {
-                1.0 - d * d
-            } else {
-                0.0
+/// The alignment score of every whole-millisecond offset `lo..=hi`: for
+/// each, the sum over strap beats (in order) of the kernel of the
+/// distance to the nearest peak. Only offsets within the kernel of some
+/// peak add anything, so each strap beat visits, for each peak, the few
+/// offsets that put it within [`ALIGN_KERNEL_MS`] of that peak, and adds
+/// there when that peak is the nearest (the first of equally near ones):
+/// the same sums as evaluating every offset, at a small part of the cost.
+fn scores_over(strap: &[f64], peaks: &[f64], lo: i64, hi: i64) -> Vec<f64> {
+    let mut scores = vec![0.0; (hi - lo + 1) as usize];
+    let dist = |k: Option<usize>, t: f64| {
+        k.and_then(|k| peaks.get(k))
+            .map_or(f64::INFINITY, |&p| (p - t).abs())
+    };
+    for &b in strap {
+        for (i, &p) in peaks.iter().enumerate() {
+            let first = ((p - b - ALIGN_KERNEL_MS).floor() as i64).max(lo);
+            let last = ((p - b + ALIGN_KERNEL_MS).ceil() as i64).min(hi);
+            for o in first..=last {
+                let t = b + o as f64;
+                let here = (p - t).abs();
+                let nearest = here < dist(i.checked_sub(1), t) && here <= dist(Some(i + 1), t);
+                let d = here / ALIGN_KERNEL_MS;
+                if nearest && d < 1.0 {
+                    scores[(o - lo) as usize] += 1.0 - d * d;
+                }
             }
-        })
-        .sum()
+        }
+    }
+    scores
 }
 
 /// Align strap beat times `strap` (from [`beat_times`]) to detected peak
@@ -123,9 +140,7 @@ pub fn align(strap: &[f64], peaks: &[f64], duration_ms: f64) -> Option<Alignment
     }
     let lo = (-total / 2.0).floor() as i64;
     let hi = ((duration_ms - total / 2.0).ceil() as i64).max(lo);
-    let scores: Vec<f64> = (lo..=hi)
-        .map(|o| score_at(strap, peaks, o as f64))
-        .collect();
+    let scores = scores_over(strap, peaks, lo, hi);
     let (bi, &best) = scores
         .iter()
         .enumerate()

@@ -1,0 +1,99 @@
+//! `accuracy`: the whole accuracy picture in one command (run it through
+//! `scripts/accuracy`). Every shared dataset, the pipeline and the plain
+//! scipy baseline scored by the same code, one markdown table, and a line
+//! on each target; `--write` puts the table into docs/accuracy.md.
+
+use std::io::Write;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use plethwire_checks::accuracy::{run, table};
+use plethwire_checks::{repo_root, shared_data_dir};
+
+const HELP: &str = "\
+accuracy: every shared dataset, the pipeline beside the plain baseline, one table
+
+Usage: scripts/accuracy [--write] [--data DIR]
+
+  --write     also write the table into docs/accuracy.md, between its marks
+  --data DIR  the shared recordings (default: PLETHWIRE_DATA, else ../shared/data)
+  -h, --help  this text
+
+Needs python3 with numpy and scipy (the baseline). Prints the table on
+standard output, then one line per target (met, not met yet with its floor,
+or FAILED); progress goes to standard error. Exit status: 0 done (whatever
+the targets say; tests/tests/accuracy_targets.rs asserts them), 1 the data,
+Python or the document could not be used, 2 the command line was not
+understood.";
+
+/// What the command line asks for.
+struct Args {
+    write: bool,
+    data: Option<PathBuf>,
+}
+
+fn parse(mut args: impl Iterator<Item = String>) -> Result<Option<Args>, String> {
+    let mut a = Args {
+        write: false,
+        data: None,
+    };
+    while let Some(arg) = args.next() {
+        match arg.as_str() {
+            "--write" => a.write = true,
+            "--data" => {
+                let dir = args.next().ok_or("--data needs a folder")?;
+                a.data = Some(dir.into());
+            }
+            "-h" | "--help" => return Ok(None),
+            other => return Err(format!("unexpected argument {other:?} (see --help)")),
+        }
+    }
+    Ok(Some(a))
+}
+
+fn main() -> ExitCode {
+    let args = match parse(std::env::args().skip(1)) {
+        Ok(Some(a)) => a,
+        Ok(None) => {
+            println!("{HELP}");
+            return ExitCode::SUCCESS;
+        }
+        Err(e) => {
+            eprintln!("accuracy: {e}");
+            return ExitCode::from(2);
+        }
+    };
+    let Some(data) = args.data.or_else(shared_data_dir) else {
+        eprintln!("accuracy: missing {}", plethwire_checks::needs::SHARED_DATA);
+        return ExitCode::from(1);
+    };
+    let started = std::time::Instant::now();
+    let picture = match run(&data, |what| eprintln!("scoring {what}")) {
+        Ok(p) => p,
+        Err(e) => {
+            eprintln!("accuracy: {e}");
+            return ExitCode::from(1);
+        }
+    };
+    let markdown = table::markdown(&picture);
+    let mut out = String::new();
+    out += &markdown;
+    out += "\n";
+    for (_, line) in table::target_lines(&picture) {
+        out += &line;
+        out += "\n";
+    }
+    if std::io::stdout().write_all(out.as_bytes()).is_err() {
+        return ExitCode::from(1);
+    }
+    eprintln!("scored in {:.1} s", started.elapsed().as_secs_f64());
+    if args.write {
+        let doc = repo_root().join("docs/accuracy.md");
+        if let Err(e) = table::write_into(&doc, &markdown) {
+            eprintln!("accuracy: {e}");
+            return ExitCode::from(1);
+        }
+        eprintln!("wrote the table into {}", doc.display());
+    }
+    ExitCode::SUCCESS
+}
