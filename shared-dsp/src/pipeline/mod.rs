@@ -12,7 +12,10 @@
 //! beat detector ([`Elgendi`] or [`Zong`]) → peak placed on the low-passed
 //! signal →
 //! interval, heart rate, per-beat quality ([`quality`]) → signal state
-//! ([`state`]).
+//! ([`state`]). With an accelerometer ([`Pipeline::with_motion`], samples
+//! through [`Pipeline::push_motion`]), beats that cannot be told apart from
+//! strong motion are flagged too ([`motion`]); without one nothing of this
+//! runs.
 //!
 //! ```
 //! use plethwire_dsp::pipeline::{Config, Pipeline};
@@ -30,6 +33,7 @@
 pub mod condition;
 mod elgendi;
 pub mod events;
+pub mod motion;
 pub mod quality;
 pub mod rate;
 mod ring;
@@ -40,6 +44,7 @@ mod zong;
 pub use condition::Rails;
 pub use elgendi::Elgendi;
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
+pub use motion::{MotionTracker, Verdict};
 pub use ring::{Ring, RunningSum};
 pub use zong::Zong;
 
@@ -309,6 +314,8 @@ pub struct Pipeline {
     hrv: HrvWindow<HRV_INTERVALS>,
     input: Ring<INPUT_RING>,
     refine: usize,
+    // Last: touched only once per beat, and per accelerometer sample.
+    motion: MotionTracker,
 }
 
 // Per detector-rate sample: bit 0 clipped, bit 1 replaced (not a number).
@@ -391,7 +398,32 @@ impl Pipeline {
             hrv: HrvWindow::new(),
             input: Ring::new(),
             refine: (libm::roundf(PEAK_REFINE_S * fs) as usize).max(1),
+            motion: MotionTracker::idle(),
         })
+    }
+
+    /// A pipeline for `config` that also takes an accelerometer, three axes
+    /// in g at `motion_rate_hz` (20 to 1000 Hz), through
+    /// [`Self::push_motion`], and flags beats that strong motion makes
+    /// untrustworthy ([`BeatFlags::MOTION`]). The motion never changes which
+    /// beats are found or their intervals, only their flags (and so the
+    /// smoothed heart rate, HRV and signal state, which follow good beats).
+    pub fn with_motion(config: Config, motion_rate_hz: f32) -> Result<Self, DesignError> {
+        let mut p = Self::new(config)?;
+        p.motion = MotionTracker::new(motion_rate_hz)?;
+        Ok(p)
+    }
+
+    /// Feed one accelerometer sample (x, y, z in g), at the rate given to
+    /// [`Self::with_motion`], interleaved with [`Self::push`] as the samples
+    /// arrive. Without that rate it does nothing.
+    pub fn push_motion(&mut self, a: [f32; 3]) {
+        self.motion.push(a);
+    }
+
+    /// The motion reference (idle unless made by [`Self::with_motion`]).
+    pub fn motion(&self) -> &MotionTracker {
+        &self.motion
     }
 
     /// The configuration.
@@ -802,10 +834,18 @@ impl Pipeline {
             }
         };
 
+        if self.motion.is_active() {
+            let spread = self.all_intervals.recent_spread(motion::STEADY_INTERVALS);
+            if self.motion.judge(ibi, spread).flags() {
+                flags |= BeatFlags::MOTION;
+            }
+        }
         let beat_flags = BeatFlags(flags);
         // The template follows every clean pulse, even one that correlates
         // poorly, as the paper's window average does: a slowly changing pulse
         // shape must not lock the template out.
+        // (A motion flag leaves it alone: it says nothing of the shape, and
+        // the motion must not change what the PPG alone finds.)
         let clean = flags
             & (BeatFlags::CLIPPED | BeatFlags::INPUT_REJECTED | BeatFlags::IMPLAUSIBLE_INTERVAL)
             == 0;
