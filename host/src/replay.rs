@@ -9,7 +9,7 @@ use crate::io::{
 };
 use crate::motion::{self, MotionSignals};
 use plethwire_dsp::hrv::{hrv, HrvStats};
-use plethwire_dsp::pipeline::{BeatEvent, Config, Pipeline, StateEvent};
+use plethwire_dsp::pipeline::{BeatEvent, Config, MotionPipeline, Output, Pipeline, StateEvent};
 use plethwire_dsp::pipeline::{MAX_RATE_HZ, MIN_RATE_HZ};
 use plethwire_dsp::DesignError;
 use serde::Serialize;
@@ -401,29 +401,50 @@ pub fn replay_with_motion(
     motion: Option<&MotionSignals>,
     config: Config,
 ) -> Result<Replay, DesignError> {
-    let mut p = match motion {
-        Some(m) => Pipeline::with_motion(config, m.fs as f32)?,
-        None => Pipeline::new(config)?,
-    };
     let (mut beats, mut states) = (Vec::new(), Vec::new());
-    for (n, &x) in samples.iter().enumerate() {
-        if let Some(m) = motion {
-            p.push_motion(m.at(n));
-        }
-        // The board hands the pipeline f32 samples; so does the replay.
-        let out = p.push(x as f32);
+    let mut keep = |out: Output| {
         beats.extend(out.beat);
         states.extend(out.state);
-    }
-    p.finish(|b| beats.push(b));
+    };
+    // The board hands the pipeline f32 samples; so does the replay.
+    let counts = |p: &Pipeline| (p.rejected_samples(), p.clipped_samples(), p.restarts());
+    let (rejected, clipped, restarts) = match motion {
+        Some(m) => {
+            let mut p = MotionPipeline::new(config, m.fs as f32)?;
+            for (n, &x) in samples.iter().enumerate() {
+                p.push_motion(m.at(n));
+                keep(p.push(x as f32));
+            }
+            p.finish(|b| {
+                keep(Output {
+                    beat: Some(b),
+                    state: None,
+                })
+            });
+            counts(p.pipeline())
+        }
+        None => {
+            let mut p = Pipeline::new(config)?;
+            for &x in samples {
+                keep(p.push(x as f32));
+            }
+            p.finish(|b| {
+                keep(Output {
+                    beat: Some(b),
+                    state: None,
+                })
+            });
+            counts(&p)
+        }
+    };
     Ok(Replay {
         fs: config.sample_rate_hz as f64,
         samples: samples.len() as u64,
         beats,
         states,
-        rejected: p.rejected_samples(),
-        clipped: p.clipped_samples(),
-        restarts: p.restarts(),
+        rejected,
+        clipped,
+        restarts,
     })
 }
 

@@ -12,10 +12,10 @@
 //! beat detector ([`Elgendi`] or [`Zong`]) → peak placed on the low-passed
 //! signal →
 //! interval, heart rate, per-beat quality ([`quality`]) → signal state
-//! ([`state`]). With an accelerometer ([`Pipeline::with_motion`], samples
-//! through [`Pipeline::push_motion`]), beats that cannot be told apart from
-//! strong motion are flagged too ([`motion`]); without one nothing of this
-//! runs.
+//! ([`state`]). With an accelerometer ([`MotionPipeline`]: the pipeline and
+//! a [`MotionTracker`]), beats that cannot be told apart from strong motion
+//! are flagged too ([`motion`]); [`Pipeline::push`] itself judges against
+//! [`NoMotion`], which is compiled away.
 //!
 //! ```
 //! use plethwire_dsp::pipeline::{Config, Pipeline};
@@ -39,13 +39,15 @@ pub mod rate;
 mod ring;
 pub mod scale;
 pub mod state;
+mod with_motion;
 mod zong;
 
 pub use condition::Rails;
 pub use elgendi::Elgendi;
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
-pub use motion::{MotionTracker, Verdict};
+pub use motion::{MotionReference, MotionTracker, NoMotion, Verdict};
 pub use ring::{Ring, RunningSum};
+pub use with_motion::MotionPipeline;
 pub use zong::Zong;
 
 use crate::design::{butterworth_highpass, butterworth_lowpass};
@@ -314,8 +316,6 @@ pub struct Pipeline {
     hrv: HrvWindow<HRV_INTERVALS>,
     input: Ring<INPUT_RING>,
     refine: usize,
-    // Last: touched only once per beat, and per accelerometer sample.
-    motion: MotionTracker,
 }
 
 // Per detector-rate sample: bit 0 clipped, bit 1 replaced (not a number).
@@ -398,32 +398,7 @@ impl Pipeline {
             hrv: HrvWindow::new(),
             input: Ring::new(),
             refine: (libm::roundf(PEAK_REFINE_S * fs) as usize).max(1),
-            motion: MotionTracker::idle(),
         })
-    }
-
-    /// A pipeline for `config` that also takes an accelerometer, three axes
-    /// in g at `motion_rate_hz` (20 to 1000 Hz), through
-    /// [`Self::push_motion`], and flags beats that strong motion makes
-    /// untrustworthy ([`BeatFlags::MOTION`]). The motion never changes which
-    /// beats are found or their intervals, only their flags (and so the
-    /// smoothed heart rate, HRV and signal state, which follow good beats).
-    pub fn with_motion(config: Config, motion_rate_hz: f32) -> Result<Self, DesignError> {
-        let mut p = Self::new(config)?;
-        p.motion = MotionTracker::new(motion_rate_hz)?;
-        Ok(p)
-    }
-
-    /// Feed one accelerometer sample (x, y, z in g), at the rate given to
-    /// [`Self::with_motion`], interleaved with [`Self::push`] as the samples
-    /// arrive. Without that rate it does nothing.
-    pub fn push_motion(&mut self, a: [f32; 3]) {
-        self.motion.push(a);
-    }
-
-    /// The motion reference (idle unless made by [`Self::with_motion`]).
-    pub fn motion(&self) -> &MotionTracker {
-        &self.motion
     }
 
     /// The configuration.
@@ -470,6 +445,15 @@ impl Pipeline {
 
     /// Feed one input sample. Never fails.
     pub fn push(&mut self, x: f32) -> Output {
+        self.push_with(x, &NoMotion)
+    }
+
+    /// [`Self::push`], a beat it completes judged against `motion` too
+    /// ([`BeatFlags::MOTION`]). The motion never changes which beats are
+    /// found or their intervals, only their flags (and so the smoothed heart
+    /// rate, HRV and signal state, which follow good beats).
+    #[inline(always)]
+    pub fn push_with<M: MotionReference>(&mut self, x: f32, motion: &M) -> Output {
         let c = self.conditioner.push(x);
         if !self.started {
             // Start as if this value had always been there: no transient.
@@ -548,7 +532,7 @@ impl Pipeline {
                 // low-pass's delay cancels, and its peak wanders less with
                 // noise than the input's own top.
                 let fid = self.upstroke(now, peak_d);
-                out.beat = Some(self.beat(&cand, peak, fid, height, n));
+                out.beat = Some(self.beat(&cand, peak, fid, height, n, motion));
             }
         }
         out
@@ -645,7 +629,21 @@ impl Pipeline {
     /// At the end of a recording: feed the last value again for long
     /// enough to close any beat still open, and hand over the beats whose
     /// tops lie wholly within the recording. A live stream never calls this.
-    pub fn finish(&mut self, mut emit: impl FnMut(BeatEvent)) {
+    pub fn finish(&mut self, emit: impl FnMut(BeatEvent)) {
+        self.finish_by(emit, |p, v| p.push(v));
+    }
+
+    /// [`Self::finish`], the beats it closes judged against `motion` as it
+    /// stands at the end.
+    pub fn finish_with<M: MotionReference>(&mut self, motion: &M, emit: impl FnMut(BeatEvent)) {
+        self.finish_by(emit, |p, v| p.push_with(v, motion));
+    }
+
+    fn finish_by(
+        &mut self,
+        mut emit: impl FnMut(BeatEvent),
+        mut push: impl FnMut(&mut Self, f32) -> Output,
+    ) {
         let end = self.n;
         let flush = (1.5 * self.fs) as u64;
         let v = self.last_value;
@@ -655,7 +653,7 @@ impl Pipeline {
         // causes is not one of the recording's.
         let restarts = self.restarts;
         for _ in 0..flush {
-            if let Some(b) = self.push(v).beat {
+            if let Some(b) = push(self, v).beat {
                 if b.peak_index < whole_before {
                     emit(b);
                 }
@@ -776,13 +774,14 @@ impl Pipeline {
         self.smoothed.at(age) - foot
     }
 
-    fn beat(
+    fn beat<M: MotionReference>(
         &mut self,
         cand: &Candidate,
         peak: u64,
         (at, frac): (u64, f32),
         height: f32,
         n: u64,
+        motion: &M,
     ) -> BeatEvent {
         let mut flags = 0u8;
         let median = self.recent_ibi;
@@ -834,9 +833,9 @@ impl Pipeline {
             }
         };
 
-        if self.motion.is_active() {
+        if M::JUDGES {
             let spread = self.all_intervals.recent_spread(motion::STEADY_INTERVALS);
-            if self.motion.judge(ibi, spread).flags() {
+            if motion.judge(ibi, spread).flags() {
                 flags |= BeatFlags::MOTION;
             }
         }

@@ -23,6 +23,12 @@
 //! autocorrelation of the three axes summed, at every lag up to
 //! [`MAX_PERIOD_S`] (41 lags at 25 Hz). The period is read from it only
 //! when a beat is judged. No trigonometry after construction.
+//!
+//! The pipeline judges each beat against a [`MotionReference`] it is
+//! handed: [`NoMotion`] in [`super::Pipeline::push`], which judges nothing
+//! and is compiled away (no memory, no instruction: a board without an
+//! accelerometer runs exactly what it ran before), or the
+//! [`MotionTracker`] of a [`super::MotionPipeline`].
 
 use super::ring::Ring;
 use crate::math::max_f32;
@@ -96,10 +102,32 @@ impl Verdict {
     }
 }
 
+/// What the pipeline asks of a motion reference.
+pub trait MotionReference {
+    /// Can this reference flag beats at all? (`false`: the pipeline leaves
+    /// the judgement out entirely.)
+    const JUDGES: bool;
+    /// The verdict on a beat with interval `ibi_ms` (if it has one), where
+    /// `spread` is the longest of the last [`STEADY_INTERVALS`] intervals
+    /// over the shortest (`None` when fewer are held).
+    fn judge(&self, ibi_ms: Option<f32>, spread: Option<f32>) -> Verdict;
+}
+
+/// No accelerometer: every beat stands as the PPG alone judged it.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct NoMotion;
+
+impl MotionReference for NoMotion {
+    const JUDGES: bool = false;
+
+    fn judge(&self, _: Option<f32>, _: Option<f32>) -> Verdict {
+        Verdict::Still
+    }
+}
+
 /// The accelerometer's motion: strength and period.
 #[derive(Clone, Debug)]
 pub struct MotionTracker {
-    active: bool,
     decim: u32,
     phase: u32,
     rate_hz: f32,
@@ -120,28 +148,6 @@ pub struct MotionTracker {
 }
 
 impl MotionTracker {
-    /// A tracker that was given no accelerometer: every verdict is
-    /// [`Verdict::Still`].
-    pub fn idle() -> Self {
-        Self {
-            active: false,
-            decim: 1,
-            phase: 0,
-            rate_hz: 0.0,
-            pole: 0.0,
-            gain: 0.0,
-            last_in: [0.0; 3],
-            last_out: [0.0; 3],
-            started: false,
-            block: [0.0; 3],
-            forget: 0.0,
-            min_lag: 0,
-            max_lag: 0,
-            products: [0.0; LAGS],
-            history: Ring::new(),
-        }
-    }
-
     /// A tracker for three-axis samples in g at `rate_hz` (20 to 1000 Hz).
     pub fn new(rate_hz: f32) -> Result<Self, DesignError> {
         if !(MIN_MOTION_RATE_HZ..=MAX_MOTION_RATE_HZ).contains(&rate_hz) {
@@ -154,38 +160,31 @@ impl MotionTracker {
         let pole = (1.0 - w) / (1.0 + w);
         let max_lag = (libm::ceilf(MAX_PERIOD_S * fm) as usize).min(LAGS - 1);
         Ok(Self {
-            active: true,
             decim,
+            phase: 0,
             rate_hz,
             pole,
             gain: 1.0 / (1.0 + w),
+            last_in: [0.0; 3],
+            last_out: [0.0; 3],
+            started: false,
+            block: [0.0; 3],
             forget: libm::expf(-1.0 / (AVERAGE_S * fm)),
             min_lag: (libm::floorf(MIN_PERIOD_S * fm) as usize).max(2),
             max_lag,
-            ..Self::idle()
+            products: [0.0; LAGS],
+            history: Ring::new(),
         })
     }
 
-    /// Was the tracker given an accelerometer rate?
-    pub fn is_active(&self) -> bool {
-        self.active
-    }
-
-    /// The tracker's own rate, Hz (0 when idle).
+    /// The tracker's own rate, Hz.
     pub fn track_rate_hz(&self) -> f32 {
-        if self.active {
-            self.rate_hz / self.decim as f32
-        } else {
-            0.0
-        }
+        self.rate_hz / self.decim as f32
     }
 
     /// Feed one accelerometer sample, three axes in g. A non-finite axis
-    /// holds its last value. Does nothing when idle.
+    /// holds its last value.
     pub fn push(&mut self, a: [f32; 3]) {
-        if !self.active {
-            return;
-        }
         let mut x = a;
         for (v, last) in x.iter_mut().zip(self.last_in.iter()) {
             if !v.is_finite() {
@@ -238,7 +237,7 @@ impl MotionTracker {
     /// repeats.
     pub fn period(&self) -> Option<(f32, f32)> {
         let energy = self.products[0];
-        if !self.active || self.history.len() <= self.max_lag || energy.is_nan() || energy <= 0.0 {
+        if self.history.len() <= self.max_lag || energy.is_nan() || energy <= 0.0 {
             return None;
         }
         let rho = |lag: usize| self.products[lag] / energy;
@@ -271,7 +270,7 @@ impl MotionTracker {
     pub fn judge(&self, ibi_ms: Option<f32>, spread: Option<f32>) -> Verdict {
         // A NaN strength (never, with finite input) counts as weak.
         let strong = self.strength_g() >= STRONG_G;
-        if !self.active || !strong {
+        if !strong {
             return Verdict::Still;
         }
         let Some(ibi) = ibi_ms else {
@@ -293,9 +292,11 @@ impl MotionTracker {
     }
 }
 
-impl Default for MotionTracker {
-    fn default() -> Self {
-        Self::idle()
+impl MotionReference for MotionTracker {
+    const JUDGES: bool = true;
+
+    fn judge(&self, ibi_ms: Option<f32>, spread: Option<f32>) -> Verdict {
+        MotionTracker::judge(self, ibi_ms, spread)
     }
 }
 

@@ -1,0 +1,68 @@
+//! The pipeline with an accelerometer beside it.
+
+use super::{BeatEvent, Config, MotionTracker, Output, Pipeline};
+use crate::DesignError;
+
+/// A [`Pipeline`] and a [`MotionTracker`] fed side by side: beats that
+/// strong motion makes untrustworthy carry [`super::BeatFlags::MOTION`].
+/// The motion never changes which beats are found or their intervals, only
+/// their flags (and so the smoothed heart rate, HRV and signal state, which
+/// follow good beats). A plain [`Pipeline`] holds no motion state at all.
+///
+/// ```
+/// use plethwire_dsp::pipeline::{Config, MotionPipeline};
+/// let mut p = MotionPipeline::new(Config::new(125.0), 125.0)?;
+/// for n in 0..1250 {
+///     let t = n as f32 / 125.0;
+///     p.push_motion([0.0, 0.0, 1.0]); // at rest: gravity only
+///     let out = p.push(libm::sinf(2.0 * core::f32::consts::PI * 1.2 * t));
+///     if let Some(beat) = out.beat {
+///         assert!(!beat.flags.has(plethwire_dsp::pipeline::BeatFlags::MOTION));
+///     }
+/// }
+/// # Ok::<(), plethwire_dsp::DesignError>(())
+/// ```
+#[derive(Clone, Debug)]
+pub struct MotionPipeline {
+    pipeline: Pipeline,
+    tracker: MotionTracker,
+}
+
+impl MotionPipeline {
+    /// A pipeline for `config` and a tracker for three-axis samples in g
+    /// at `motion_rate_hz` (20 to 1000 Hz).
+    pub fn new(config: Config, motion_rate_hz: f32) -> Result<Self, DesignError> {
+        Ok(Self {
+            pipeline: Pipeline::new(config)?,
+            tracker: MotionTracker::new(motion_rate_hz)?,
+        })
+    }
+
+    /// Feed one accelerometer sample (x, y, z in g), interleaved with
+    /// [`Self::push`] as the samples arrive.
+    pub fn push_motion(&mut self, a: [f32; 3]) {
+        self.tracker.push(a);
+    }
+
+    /// Feed one input sample ([`Pipeline::push`]), the beat it completes
+    /// judged against the motion.
+    pub fn push(&mut self, x: f32) -> Output {
+        self.pipeline.push_with(x, &self.tracker)
+    }
+
+    /// At the end of a recording ([`Pipeline::finish`]), judged against
+    /// the motion as it stands at the end.
+    pub fn finish(&mut self, emit: impl FnMut(BeatEvent)) {
+        self.pipeline.finish_with(&self.tracker, emit);
+    }
+
+    /// The pipeline (counters, state, HRV).
+    pub fn pipeline(&self) -> &Pipeline {
+        &self.pipeline
+    }
+
+    /// The motion tracker (strength, period).
+    pub fn tracker(&self) -> &MotionTracker {
+        &self.tracker
+    }
+}
