@@ -240,7 +240,8 @@ impl MotionTracker {
         if self.history.len() <= self.max_lag || energy.is_nan() || energy <= 0.0 {
             return None;
         }
-        let rho = |lag: usize| self.products[lag] / energy;
+        let inverse = 1.0 / energy;
+        let rho = |lag: usize| self.products[lag] * inverse;
         let mut highest = f32::NEG_INFINITY;
         for lag in self.min_lag..=self.max_lag {
             highest = max_f32(highest, rho(lag));
