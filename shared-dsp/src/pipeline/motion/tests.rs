@@ -118,3 +118,12 @@ fn a_non_finite_axis_holds_its_last_value() {
     assert!(m.strength_g().is_finite());
     assert!(m.period().is_some());
 }
+
+#[test]
+fn the_tracker_fits_in_about_a_kilobyte() {
+    // Memory is budgeted on the boards (scripts/check-budgets): 1032 bytes
+    // here, where a usize takes 8 bytes; 1016 on a 32-bit core.
+    let size = core::mem::size_of::<MotionTracker>();
+    let usizes = 4 * core::mem::size_of::<usize>();
+    assert!(size <= 1000 + usizes, "{size} bytes");
+}
