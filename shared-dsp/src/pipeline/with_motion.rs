@@ -66,3 +66,73 @@ impl MotionPipeline {
         &self.tracker
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::super::BeatFlags;
+    use super::*;
+    use std::vec::Vec;
+
+    const FS: f32 = 125.0;
+
+    /// A made-up pulse at 75 bpm (a sine with a second harmonic, so it has
+    /// a shape), 60 s, with the accelerometer `acc(t)` beside it: the beats
+    /// of the plain pipeline and of the motion pipeline.
+    fn both(acc: impl Fn(f32) -> [f32; 3]) -> (Vec<BeatEvent>, Vec<BeatEvent>) {
+        let pulse = |t: f32| {
+            let w = 2.0 * core::f32::consts::PI * 1.25 * t;
+            libm::sinf(w) + 0.3 * libm::sinf(2.0 * w + 0.5)
+        };
+        let mut plain = Pipeline::new(Config::new(FS)).unwrap();
+        let mut moved = MotionPipeline::new(Config::new(FS), FS).unwrap();
+        let (mut a, mut b) = (Vec::new(), Vec::new());
+        for n in 0..(60.0 * FS) as u32 {
+            let t = n as f32 / FS;
+            a.extend(plain.push(pulse(t)).beat);
+            moved.push_motion(acc(t));
+            b.extend(moved.push(pulse(t)).beat);
+        }
+        plain.finish(|x| a.push(x));
+        moved.finish(|x| b.push(x));
+        (a, b)
+    }
+
+    fn flagged(beats: &[BeatEvent]) -> usize {
+        beats
+            .iter()
+            .filter(|b| b.flags.has(BeatFlags::MOTION))
+            .count()
+    }
+
+    #[test]
+    fn a_swing_at_the_beat_rate_flags_the_beats_and_finds_the_same_ones() {
+        let swing = |t: f32| {
+            let w = 2.0 * core::f32::consts::PI * 1.25 * t;
+            [libm::sinf(w), 0.2, 1.0]
+        };
+        let (plain, moved) = both(swing);
+        assert!(plain.len() > 60, "{}", plain.len());
+        let peaks = |v: &[BeatEvent]| v.iter().map(|b| b.peak_index).collect::<Vec<_>>();
+        assert_eq!(peaks(&plain), peaks(&moved));
+        assert_eq!(flagged(&plain), 0);
+        // All but the first seconds, while the tracker fills.
+        assert!(
+            flagged(&moved) + 5 >= moved.len(),
+            "{} of {}",
+            flagged(&moved),
+            moved.len()
+        );
+        for (p, m) in plain.iter().zip(&moved) {
+            assert_eq!(
+                p.flags.0 & !BeatFlags::MOTION,
+                m.flags.0 & !BeatFlags::MOTION
+            );
+        }
+    }
+
+    #[test]
+    fn an_accelerometer_at_rest_changes_nothing() {
+        let (plain, moved) = both(|_| [0.0, 0.2, 1.0]);
+        assert_eq!(plain, moved);
+    }
+}
