@@ -3,6 +3,7 @@
 //! Synthetic recordings with known beats, for tests and demos: [`synth`].
 //! Choosing the channel with the clearest pulse among several: [`channel`].
 //! Reading and writing recordings (WFDB records and annotations, CSV): [`io`].
+//! An accelerometer recorded with the pulse as the motion reference: [`motion`].
 //! Listening to a board over a serial port and recording it: [`listen`].
 //! Running recordings through the firmware on the emulated board: [`emulate`].
 //! A replay as one self-contained HTML page: [`report`].
@@ -18,6 +19,7 @@ pub mod filter_report;
 pub mod frontend;
 pub mod io;
 pub mod listen;
+pub mod motion;
 pub mod replay;
 pub mod report;
 pub mod score;

@@ -7,8 +7,9 @@ use crate::io::{
     annotation_path, csv_column_names, read_csv_signal, read_csv_signals, write_annotations,
     Annotation, ColumnRef, CsvSignalOptions, LoadedSignal, Rate, Record, TimeUnit,
 };
+use crate::motion::{self, MotionSignals};
 use plethwire_dsp::hrv::{hrv, HrvStats};
-use plethwire_dsp::pipeline::{BeatEvent, Config, Pipeline, StateEvent};
+use plethwire_dsp::pipeline::{BeatEvent, Config, MotionPipeline, Output, Pipeline, StateEvent};
 use plethwire_dsp::pipeline::{MAX_RATE_HZ, MIN_RATE_HZ};
 use plethwire_dsp::DesignError;
 use serde::Serialize;
@@ -38,6 +39,9 @@ pub struct Source {
     pub time_unit: Option<String>,
     /// Which way the pulse points in the file.
     pub polarity: Polarity,
+    /// Accelerometer signals (x, y, z in g) of the same recording, as the
+    /// pipeline's motion reference ([`crate::motion`]); `None`: none.
+    pub motion: Option<[String; 3]>,
 }
 
 /// Which way a pulse points in the recorded signal.
@@ -88,6 +92,8 @@ pub struct Recording {
     pub signal: LoadedSignal,
     /// How it was got.
     pub input: InputInfo,
+    /// The accelerometer, when one was asked for.
+    pub motion: Option<MotionSignals>,
 }
 
 /// A recording that could not be loaded or replayed; one line.
@@ -168,6 +174,10 @@ fn load_as_recorded(path: &Path, source: &Source) -> Result<Recording, ReplayErr
             pick(path, signals)?
         }
     };
+    let motion = match &source.motion {
+        Some(names) => Some(motion::load_wfdb(path, &opened, names, &signal)?),
+        None => None,
+    };
     Ok(Recording {
         name: stem,
         path: record,
@@ -176,6 +186,7 @@ fn load_as_recorded(path: &Path, source: &Source) -> Result<Recording, ReplayErr
             channel,
             ..InputInfo::default()
         },
+        motion,
     })
 }
 
@@ -306,11 +317,16 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
     }
     let (signal, channel) = pick(path, read.signals)?;
     input.channel = channel;
+    let motion = match &source.motion {
+        Some(names) => Some(motion::load_csv(path, names, &options, &signal)?),
+        None => None,
+    };
     Ok(Recording {
         name,
         path: path.to_path_buf(),
         signal,
         input,
+        motion,
     })
 }
 
@@ -369,23 +385,66 @@ pub struct Replay {
 /// Feed `samples` (at `config.sample_rate_hz`) through the pipeline, one at
 /// a time as the board would, and close open beats at the end.
 pub fn replay(samples: &[f64], config: Config) -> Result<Replay, DesignError> {
-    let mut p = Pipeline::new(config)?;
+    replay_with_motion(samples, None, config)
+}
+
+/// [`replay`] of a loaded recording, with its accelerometer when it has
+/// one (at `config.sample_rate_hz`, the pulse signal's rate).
+pub fn replay_recording(rec: &Recording, config: Config) -> Result<Replay, DesignError> {
+    replay_with_motion(&rec.signal.samples, rec.motion.as_ref(), config)
+}
+
+/// [`replay`], with each sample's accelerometer sample fed just before it
+/// when `motion` is given (at the same rate).
+pub fn replay_with_motion(
+    samples: &[f64],
+    motion: Option<&MotionSignals>,
+    config: Config,
+) -> Result<Replay, DesignError> {
     let (mut beats, mut states) = (Vec::new(), Vec::new());
-    for &x in samples {
-        // The board hands the pipeline f32 samples; so does the replay.
-        let out = p.push(x as f32);
+    let mut keep = |out: Output| {
         beats.extend(out.beat);
         states.extend(out.state);
-    }
-    p.finish(|b| beats.push(b));
+    };
+    // The board hands the pipeline f32 samples; so does the replay.
+    let counts = |p: &Pipeline| (p.rejected_samples(), p.clipped_samples(), p.restarts());
+    let (rejected, clipped, restarts) = match motion {
+        Some(m) => {
+            let mut p = MotionPipeline::new(config, m.fs as f32)?;
+            for (n, &x) in samples.iter().enumerate() {
+                p.push_motion(m.at(n));
+                keep(p.push(x as f32));
+            }
+            p.finish(|b| {
+                keep(Output {
+                    beat: Some(b),
+                    state: None,
+                })
+            });
+            counts(p.pipeline())
+        }
+        None => {
+            let mut p = Pipeline::new(config)?;
+            for &x in samples {
+                keep(p.push(x as f32));
+            }
+            p.finish(|b| {
+                keep(Output {
+                    beat: Some(b),
+                    state: None,
+                })
+            });
+            counts(&p)
+        }
+    };
     Ok(Replay {
         fs: config.sample_rate_hz as f64,
         samples: samples.len() as u64,
         beats,
         states,
-        rejected: p.rejected_samples(),
-        clipped: p.clipped_samples(),
-        restarts: p.restarts(),
+        rejected,
+        clipped,
+        restarts,
     })
 }
 

@@ -19,7 +19,8 @@ fn message(i: u64, kind: u8) -> Message {
             hr_smoothed_bpm: (i > 2).then_some(72.1),
             amplitude: 0.031,
             quality: 0.97,
-            flags: BeatFlags((i % 32) as u8),
+            // Flag bits 0 to 5 (bit 5, motion, from i = 32 on).
+            flags: BeatFlags((i % 64) as u8),
         }),
         1 => Message::State(StateEvent {
             state: SignalState::Good,

@@ -85,12 +85,13 @@ fn parse_seconds(s: &str) -> Result<f64, String> {
 }
 
 /// Flag names, in bit order.
-const FLAG_NAMES: [(u8, &str); 5] = [
+const FLAG_NAMES: [(u8, &str); 6] = [
     (BeatFlags::NO_INTERVAL, "no-interval"),
     (BeatFlags::IMPLAUSIBLE_INTERVAL, "implausible"),
     (BeatFlags::CLIPPED, "clipped"),
     (BeatFlags::LOW_CORRELATION, "low-correlation"),
     (BeatFlags::INPUT_REJECTED, "replaced-input"),
+    (BeatFlags::MOTION, "motion"),
 ];
 
 fn state_name(s: SignalState) -> &'static str {

@@ -3,6 +3,7 @@
 use clap::{Args, ValueEnum};
 use plethwire_dsp::pipeline::{Config, DetectorKind};
 
+use crate::motion::parse_motion_names;
 use crate::replay::{Polarity, Source};
 
 /// Which way the pulse points, as named on the command line.
@@ -74,6 +75,17 @@ pub struct PipelineOpts {
     pub rails: Option<(f32, f32)>,
 }
 
+/// The accelerometer of the commands that replay recordings on the PC.
+#[derive(Args, Debug, Clone, PartialEq, Default)]
+pub struct MotionOpts {
+    /// Accelerometer signals X,Y,Z of the same recording (WFDB signals or
+    /// CSV columns, in g, at the pulse signal's rate) as a motion
+    /// reference: beats that strong motion makes untrustworthy are flagged
+    /// (motion flag) [default: none].
+    #[arg(long, value_name = "X,Y,Z", value_parser = parse_motion_names)]
+    pub motion: Option<[String; 3]>,
+}
+
 fn parse_rails(s: &str) -> Result<(f32, f32), String> {
     let (a, b) = s
         .split_once(':')
@@ -105,6 +117,15 @@ impl PipelineOpts {
                 PolarityName::Up => Polarity::Up,
                 PolarityName::Down => Polarity::Down,
             },
+            motion: None,
+        }
+    }
+
+    /// The sample source with the accelerometer of `motion`.
+    pub fn source_with(&self, motion: &MotionOpts) -> Source {
+        Source {
+            motion: motion.motion.clone(),
+            ..self.source()
         }
     }
 

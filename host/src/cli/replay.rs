@@ -5,11 +5,13 @@ use serde::Serialize;
 use std::io::Write;
 use std::path::PathBuf;
 
-use super::pipeline_opts::PipelineOpts;
+use plethwire_dsp::pipeline::BeatFlags;
+
+use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
 use crate::replay::{
-    beat_rows, beats_csv, load, replay, write_beat_annotations, BeatRow, InputInfo, Summary,
-    DEFAULT_ANNOTATOR,
+    beat_rows, beats_csv, load, replay_recording, write_beat_annotations, BeatRow, InputInfo,
+    Summary, DEFAULT_ANNOTATOR,
 };
 
 const EXAMPLES: &str = "\
@@ -55,6 +57,10 @@ pub struct ReplayArgs {
     /// Signal source and pipeline settings.
     #[command(flatten)]
     pub pipeline: PipelineOpts,
+
+    /// The accelerometer.
+    #[command(flatten)]
+    pub motion: MotionOpts,
 }
 
 #[derive(Serialize)]
@@ -65,7 +71,16 @@ struct ReplayReport<'a> {
     detector: String,
     input: &'a InputInfo,
     summary: &'a Summary,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    motion: Option<MotionReport<'a>>,
     written: &'a [String],
+}
+
+/// The accelerometer used, and the beats it flagged.
+#[derive(Serialize)]
+struct MotionReport<'a> {
+    signals: &'a [String; 3],
+    flagged_beats: usize,
 }
 
 /// Refuse an annotator name that cannot be a file extension.
@@ -84,9 +99,10 @@ impl ReplayArgs {
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
         check_annotator(&self.annotator)?;
-        let rec = load(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
+        let source = self.pipeline.source_with(&self.motion);
+        let rec = load(&self.record, &source).map_err(Failure::refused)?;
         let config = self.pipeline.config(rec.signal.fs);
-        let run = replay(&rec.signal.samples, config).map_err(|e| {
+        let run = replay_recording(&rec, config).map_err(|e| {
             Failure::refused(format!(
                 "{}: cannot run the pipeline: {e}",
                 self.record.display()
@@ -125,6 +141,14 @@ impl ReplayArgs {
             )?;
         }
         let summary = run.summary();
+        let motion = rec.motion.as_ref().map(|m| MotionReport {
+            signals: &m.names,
+            flagged_beats: run
+                .beats
+                .iter()
+                .filter(|b| b.flags.has(BeatFlags::MOTION))
+                .count(),
+        });
         let text = if self.json {
             let report = ReplayReport {
                 record: &rec.name,
@@ -133,6 +157,7 @@ impl ReplayArgs {
                 detector: format!("{:?}", config.options.detector).to_lowercase(),
                 input: &rec.input,
                 summary: &summary,
+                motion,
                 written: &written,
             };
             serde_json::to_string_pretty(&report).unwrap_or_default() + "\n"
@@ -144,10 +169,24 @@ impl ReplayArgs {
                 &summary,
                 &written,
             )
-            .replacen('\n', &format!("\n{}", input_lines(&rec.input)), 1)
+            .replacen(
+                '\n',
+                &format!("\n{}{}", input_lines(&rec.input), motion_line(&motion)),
+                1,
+            )
         };
         out.write_all(text.as_bytes()).map_err(Failure::output)
     }
+}
+
+fn motion_line(m: &Option<MotionReport<'_>>) -> String {
+    m.as_ref().map_or(String::new(), |m| {
+        format!(
+            "  motion      {} as the accelerometer; {} beats flagged for motion\n",
+            m.signals.join(", "),
+            m.flagged_beats
+        )
+    })
 }
 
 fn opt(v: Option<f32>, unit: &str) -> String {

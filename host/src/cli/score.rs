@@ -4,7 +4,7 @@ use clap::Args;
 use std::io::Write;
 use std::path::PathBuf;
 
-use super::pipeline_opts::PipelineOpts;
+use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
 use crate::ecg::EcgScore;
 use crate::score::records::{score_all, References, Scores, DEFAULT_STRAP_SUFFIX};
@@ -20,6 +20,7 @@ Examples:
   plethwire score ../shared/data/phonefinger
   plethwire score ../shared/data/bidmc --ecg II
   plethwire score ../shared/data/exercise --signal PPG1 --ecg ECG
+  plethwire score ../shared/data/exercise --signal PPG1 --motion ACCX,ACCY,ACCZ
 
 Each record is replayed through the pipeline. Beats are matched one to one
 within ±150 ms (ANSI/AAMI EC57 practice) against <record>.<reference>;
@@ -39,7 +40,9 @@ each R peak moved by the local pulse-arrival delay (the densest R-to-pulse
 offset over 60 s); stretches with no R peak for over 3 s, or with the
 ECG at its rails for over 0.2 s, are left out ('excl s'). 'PAT ms' is the
 median matched pulse minus R peak. Records without one of the references
-are scored on the others. Exit
+are scored on the others. With --motion, the accelerometer of the same
+record is the pipeline's motion reference (beats that cannot be told
+apart from strong motion are not good; the beats found stay the same). Exit
 status: 0 done, 1 a record could not be read, 2 the command line could not
 be understood.";
 
@@ -81,6 +84,10 @@ pub struct ScoreArgs {
     /// Signal source and pipeline settings.
     #[command(flatten)]
     pub pipeline: PipelineOpts,
+
+    /// The accelerometer.
+    #[command(flatten)]
+    pub motion: MotionOpts,
 }
 
 impl ScoreArgs {
@@ -97,7 +104,7 @@ impl ScoreArgs {
         let (bar, progress) = progress_line();
         let scores = score_all(
             &self.paths,
-            &self.pipeline.source(),
+            &self.pipeline.source_with(&self.motion),
             self.pipeline.config(100.0),
             &refs,
             progress,

@@ -119,7 +119,7 @@ pub fn state_key(s: SignalState) -> &'static str {
 }
 
 /// Each beat flag: its bit, its JSON key, its words on screen.
-pub const FLAG_NAMES: [(u8, &str, &str); 5] = [
+pub const FLAG_NAMES: [(u8, &str, &str); 6] = [
     (BeatFlags::NO_INTERVAL, "no_interval", "no interval"),
     (
         BeatFlags::IMPLAUSIBLE_INTERVAL,
@@ -137,6 +137,7 @@ pub const FLAG_NAMES: [(u8, &str, &str); 5] = [
         "input_replaced",
         "input replaced",
     ),
+    (BeatFlags::MOTION, "motion", "motion"),
 ];
 
 /// The JSON keys of the flags set in `flags`, in bit order.

@@ -142,5 +142,17 @@ mod tests {
             v["flags"],
             serde_json::json!(["clipped", "low_correlation"])
         );
+        let moved = Event::Beat(crate::listen::BeatSeen {
+            beat: BeatEvent {
+                flags: BeatFlags(BeatFlags::MOTION),
+                ..beat
+            },
+            peak: Some(3085),
+            time_s: Some(12.34),
+        });
+        let v: serde_json::Value =
+            serde_json::from_str(&line(&moved, (0.5, 30.0)).unwrap()).unwrap();
+        assert_eq!(v["good"], false);
+        assert_eq!(v["flags"], serde_json::json!(["motion"]));
     }
 }

@@ -259,6 +259,11 @@ mod tests {
             &look(false),
         );
         assert!(bad[0].ends_with("implausible interval, clipped"), "{bad:?}");
+        let moved = lines(
+            &seen(BeatFlags::MOTION | BeatFlags::LOW_CORRELATION, Some(400.0)),
+            &look(false),
+        );
+        assert!(moved[0].ends_with("low correlation, motion"), "{moved:?}");
     }
 
     #[test]

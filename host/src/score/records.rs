@@ -9,7 +9,9 @@ use super::{MatchCounts, RateError};
 use crate::ecg::{EcgReference, EcgScore};
 use crate::io::read_rr_intervals;
 use crate::io::{annotation_path, read_annotations, read_numerics, read_wfdb_signal};
-use crate::replay::{load, replay, InputInfo, Recording, Replay, ReplayError, Source, Summary};
+use crate::replay::{
+    load, replay_recording, InputInfo, Recording, Replay, ReplayError, Source, Summary,
+};
 use plethwire_dsp::pipeline::Config;
 use serde::Serialize;
 use std::path::{Path, PathBuf};
@@ -339,7 +341,7 @@ pub fn score_all(
             sample_rate_hz: rec.signal.fs as f32,
             ..config
         };
-        let run = replay(&rec.signal.samples, cfg)
+        let run = replay_recording(&rec, cfg)
             .map_err(|e| ReplayError(format!("{}: {e}", path.display())))?;
         records.push(score_one(&rec, &run, refs)?);
     }
@@ -350,6 +352,7 @@ pub fn score_all(
 mod ecg_tests {
     use super::*;
     use crate::io::{write_record, LoadedSignal, NewSignal};
+    use crate::replay::replay;
     use plethwire_dsp::pipeline::Config;
 
     #[test]
@@ -373,6 +376,7 @@ mod ecg_tests {
                 samples: samples.clone(),
             },
             input: Default::default(),
+            motion: None,
         };
         let run = replay(&samples, Config::new(100.0)).unwrap();
         let e = ecg_score(&rec, &run, "II").unwrap_err().0;

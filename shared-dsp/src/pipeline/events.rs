@@ -18,10 +18,18 @@ impl BeatFlags {
     pub const LOW_CORRELATION: u8 = 1 << 3;
     /// Non-finite input samples were replaced within the beat.
     pub const INPUT_REJECTED: u8 = 1 << 4;
+    /// The sensor moved strongly (accelerometer given) and the beat cannot
+    /// be told apart from the motion: its interval lies at the motion's
+    /// period, or the intervals before it disagree (see
+    /// [`super::motion`]).
+    pub const MOTION: u8 = 1 << 5;
 
     /// Flags that make a beat unfit for heart rate and HRV.
-    pub const BAD: u8 =
-        Self::IMPLAUSIBLE_INTERVAL | Self::CLIPPED | Self::LOW_CORRELATION | Self::INPUT_REJECTED;
+    pub const BAD: u8 = Self::IMPLAUSIBLE_INTERVAL
+        | Self::CLIPPED
+        | Self::LOW_CORRELATION
+        | Self::INPUT_REJECTED
+        | Self::MOTION;
 
     /// Is flag `bit` set?
     pub fn has(self, bit: u8) -> bool {

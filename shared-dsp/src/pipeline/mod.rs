@@ -12,7 +12,10 @@
 //! beat detector ([`Elgendi`] or [`Zong`]) → peak placed on the low-passed
 //! signal →
 //! interval, heart rate, per-beat quality ([`quality`]) → signal state
-//! ([`state`]).
+//! ([`state`]). With an accelerometer ([`MotionPipeline`]: the pipeline and
+//! a [`MotionTracker`]), beats that cannot be told apart from strong motion
+//! are flagged too ([`motion`]); [`Pipeline::push`] itself judges against
+//! [`NoMotion`], which is compiled away.
 //!
 //! ```
 //! use plethwire_dsp::pipeline::{Config, Pipeline};
@@ -30,17 +33,21 @@
 pub mod condition;
 mod elgendi;
 pub mod events;
+pub mod motion;
 pub mod quality;
 pub mod rate;
 mod ring;
 pub mod scale;
 pub mod state;
+mod with_motion;
 mod zong;
 
 pub use condition::Rails;
 pub use elgendi::Elgendi;
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
+pub use motion::{MotionReference, MotionTracker, NoMotion, Verdict};
 pub use ring::{History, Ring, RunningSum};
+pub use with_motion::MotionPipeline;
 pub use zong::Zong;
 
 use crate::design::{butterworth_highpass, butterworth_lowpass};
@@ -448,6 +455,15 @@ impl Pipeline {
 
     /// Feed one input sample. Never fails.
     pub fn push(&mut self, x: f32) -> Output {
+        self.push_with(x, &NoMotion)
+    }
+
+    /// [`Self::push`], a beat it completes judged against `motion` too
+    /// ([`BeatFlags::MOTION`]). The motion never changes which beats are
+    /// found or their intervals, only their flags (and so the smoothed heart
+    /// rate, HRV and signal state, which follow good beats).
+    #[inline(always)]
+    pub fn push_with<M: MotionReference>(&mut self, x: f32, motion: &M) -> Output {
         let c = self.conditioner.push(x);
         if !self.started {
             // Start as if this value had always been there: no transient.
@@ -521,11 +537,12 @@ impl Pipeline {
             let height = self.pulse_height(now, peak_d);
             let peak = self.input_peak(peak_d, height, n);
             if self.accept(peak, height) {
-                // Intervals run between the smoothed peaks (sub-sample): the
-                // low-pass's delay cancels, and its peak wanders less with
-                // noise than the input's own top.
+                // Intervals run between the upstrokes' 50 % crossings
+                // (sub-sample, on the smoothed input): the low-pass's delay
+                // cancels, and the crossing wanders less with noise than a
+                // top does.
                 let fid = self.upstroke(now, peak_d, height);
-                out.beat = Some(self.beat(&cand, peak, fid, height, n));
+                out.beat = Some(self.beat(&cand, peak, fid, height, n, motion));
             }
         }
         out
@@ -622,7 +639,21 @@ impl Pipeline {
     /// At the end of a recording: feed the last value again for long
     /// enough to close any beat still open, and hand over the beats whose
     /// tops lie wholly within the recording. A live stream never calls this.
-    pub fn finish(&mut self, mut emit: impl FnMut(BeatEvent)) {
+    pub fn finish(&mut self, emit: impl FnMut(BeatEvent)) {
+        self.finish_by(emit, |p, v| p.push(v));
+    }
+
+    /// [`Self::finish`], the beats it closes judged against `motion` as it
+    /// stands at the end.
+    pub fn finish_with<M: MotionReference>(&mut self, motion: &M, emit: impl FnMut(BeatEvent)) {
+        self.finish_by(emit, |p, v| p.push_with(v, motion));
+    }
+
+    fn finish_by(
+        &mut self,
+        mut emit: impl FnMut(BeatEvent),
+        mut push: impl FnMut(&mut Self, f32) -> Output,
+    ) {
         let end = self.n;
         let flush = (1.5 * self.fs) as u64;
         let v = self.last_value;
@@ -632,7 +663,7 @@ impl Pipeline {
         // causes is not one of the recording's.
         let restarts = self.restarts;
         for _ in 0..flush {
-            if let Some(b) = self.push(v).beat {
+            if let Some(b) = push(self, v).beat {
                 if b.peak_index < whole_before {
                     emit(b);
                 }
@@ -749,13 +780,14 @@ impl Pipeline {
         self.smoothed.at(age) - foot
     }
 
-    fn beat(
+    fn beat<M: MotionReference>(
         &mut self,
         cand: &Candidate,
         peak: u64,
         (at, frac): (u64, f32),
         height: f32,
         n: u64,
+        motion: &M,
     ) -> BeatEvent {
         let mut flags = 0u8;
         let median = self.recent_ibi;
@@ -807,10 +839,18 @@ impl Pipeline {
             }
         };
 
+        if M::JUDGES {
+            let spread = self.all_intervals.recent_spread(motion::STEADY_INTERVALS);
+            if motion.judge(ibi, spread).flags() {
+                flags |= BeatFlags::MOTION;
+            }
+        }
         let beat_flags = BeatFlags(flags);
         // The template follows every clean pulse, even one that correlates
         // poorly, as the paper's window average does: a slowly changing pulse
         // shape must not lock the template out.
+        // (A motion flag leaves it alone: it says nothing of the shape, and
+        // the motion must not change what the PPG alone finds.)
         let clean = flags
             & (BeatFlags::CLIPPED | BeatFlags::INPUT_REJECTED | BeatFlags::IMPLAUSIBLE_INTERVAL)
             == 0;

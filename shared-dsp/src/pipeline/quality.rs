@@ -100,6 +100,9 @@ impl Template {
     }
 
     /// Blend a trusted pulse into the template.
+    // Kept out of line as it always was: inlined, it grows the per-beat
+    // path the emulated board counts (see docs/performance.md).
+    #[inline(never)]
     pub fn learn(&mut self, pulse: &Shape) {
         let new = match self.shape {
             None => *pulse,

@@ -82,6 +82,21 @@ impl Intervals {
         self.median_since(self.at[oldest]).map(|(m, _)| m)
     }
 
+    /// The longest of the last `count` intervals over the shortest;
+    /// `None` when fewer are held (or `count` is 0).
+    pub fn recent_spread(&self, count: usize) -> Option<f32> {
+        if count == 0 || self.len < count {
+            return None;
+        }
+        let (mut low, mut high) = (f32::INFINITY, 0.0f32);
+        for k in 0..count {
+            let v = self.ibi[(self.head + HISTORY - k) % HISTORY];
+            low = crate::math::min_f32(low, v);
+            high = crate::math::max_f32(high, v);
+        }
+        (low > 0.0).then(|| high / low)
+    }
+
     /// Number held.
     pub fn len(&self) -> usize {
         self.len
@@ -128,6 +143,11 @@ mod tests {
         assert_eq!(h.median_since(0), Some((850.0, 5)));
         assert_eq!(h.median_since(250), Some((925.0, 2)));
         assert_eq!(h.recent_median(3), Some(850.0));
+        // The last three: 700, 1000, 850.
+        assert_eq!(h.recent_spread(3), Some(1000.0 / 700.0));
+        assert_eq!(h.recent_spread(1), Some(1.0));
+        assert_eq!(h.recent_spread(6), None);
+        assert_eq!(h.recent_spread(0), None);
     }
 
     #[test]

@@ -30,6 +30,9 @@ pub struct Dataset {
     pub signal: Option<&'static str>,
     /// The ECG signal of the same record the pulses are scored against.
     pub ecg: Option<&'static str>,
+    /// The accelerometer signals (x, y, z) the pipeline takes as its
+    /// motion reference, where the recording has them.
+    pub motion: Option<[&'static str; 3]>,
     /// Recordings the folder holds (the data's README).
     pub recordings: usize,
     /// How the table names it.
@@ -43,6 +46,7 @@ impl Dataset {
     pub fn source(&self) -> Source {
         Source {
             signal: self.signal.map(String::from),
+            motion: self.motion.map(|axes| axes.map(String::from)),
             ..Source::default()
         }
     }
@@ -64,6 +68,7 @@ pub const DATASETS: [Dataset; 4] = [
         folder: "capnobase",
         signal: Some("PLETH"),
         ecg: None,
+        motion: None,
         recordings: 21,
         label: "capnobase (PLETH vs expert peaks)",
         citation: "CapnoBase IEEE TBME Respiratory Rate Benchmark: W. Karlen et al., \
@@ -74,6 +79,7 @@ pub const DATASETS: [Dataset; 4] = [
         folder: "bidmc",
         signal: Some("PLETH"),
         ecg: Some("II"),
+        motion: None,
         recordings: 16,
         label: "bidmc (PLETH vs ECG lead II; monitor)",
         citation: "BIDMC PPG and Respiration Dataset v1.0.0: M. A. F. Pimentel et al., \
@@ -85,8 +91,9 @@ pub const DATASETS: [Dataset; 4] = [
         folder: "exercise",
         signal: Some("PPG1"),
         ecg: Some("ECG"),
+        motion: Some(["ACCX", "ACCY", "ACCZ"]),
         recordings: 12,
-        label: "exercise (PPG1 vs ECG windows and beats)",
+        label: "exercise (PPG1, accelerometer as motion reference, vs ECG windows and beats)",
         citation: "IEEE Signal Processing Cup 2015 training set: Z. Zhang, Z. Pi, B. Liu, \
                    IEEE Trans. Biomed. Eng. 62(2):522–531, 2015",
     },
@@ -95,6 +102,7 @@ pub const DATASETS: [Dataset; 4] = [
         folder: "phonefinger",
         signal: None,
         ecg: None,
+        motion: None,
         recordings: 11,
         label: "phonefinger (auto channel vs strap R-R)",
         citation: "A. Neshitov et al., Sensors 21(20):6798, 2021; CC0 1.0",

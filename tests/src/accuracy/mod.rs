@@ -19,7 +19,7 @@ pub mod targets;
 use std::fmt;
 use std::path::{Path, PathBuf};
 
-use plethwire::replay::{load, replay, Recording, Replay, ReplayError};
+use plethwire::replay::{load, replay_recording, Recording, Replay, ReplayError};
 use plethwire::score::record_refs::RecordReferences;
 use plethwire::score::records::{expand, Scores};
 use plethwire_dsp::pipeline::Config;
@@ -132,7 +132,7 @@ fn prepare(
         .map(|path| {
             progress(&path.display().to_string());
             let rec = load(path, &source)?;
-            let run = replay(&rec.signal.samples, Config::new(rec.signal.fs as f32))
+            let run = replay_recording(&rec, Config::new(rec.signal.fs as f32))
                 .map_err(|e| ReplayError(format!("{}: {e}", path.display())))?;
             let refs = RecordReferences::load(&rec, &refs)?;
             Ok(Prepared { rec, run, refs })

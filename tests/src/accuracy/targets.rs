@@ -119,8 +119,8 @@ pub const TARGETS: &[Target] = &[
         figure: Figure::ExerciseWindowsWithin,
         bound: Bound::AtLeast(0.90),
         source: ISSUE,
-        enforced: false,
-        floor: Some(0.65),
+        enforced: true,
+        floor: None,
     },
     Target {
         figure: Figure::StrapHrWithin,

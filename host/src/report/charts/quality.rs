@@ -18,12 +18,13 @@ const CORRELATION_HEIGHT: u32 = 270;
 const LABELS: u32 = 150;
 
 /// The flags in the order of their rows, with their names.
-pub const FLAG_ROWS: [(u8, &str); 5] = [
+pub const FLAG_ROWS: [(u8, &str); 6] = [
     (BeatFlags::NO_INTERVAL, "no interval"),
     (BeatFlags::IMPLAUSIBLE_INTERVAL, "implausible interval"),
     (BeatFlags::CLIPPED, "clipped"),
     (BeatFlags::LOW_CORRELATION, "low correlation"),
     (BeatFlags::INPUT_REJECTED, "input replaced"),
+    (BeatFlags::MOTION, "motion"),
 ];
 
 /// The colour of a signal state's span.

@@ -1,0 +1,126 @@
+//! An accelerometer recorded with the pulse, as the pipeline's motion
+//! reference (`plethwire_dsp::pipeline::motion`): three signals of the same
+//! recording, x, y and z in g, at the pulse signal's rate.
+
+use std::path::Path;
+
+use crate::io::{read_csv_signals, ColumnRef, CsvSignalOptions, LoadedSignal, Record};
+use crate::replay::ReplayError;
+
+/// The three accelerometer signals of a recording.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MotionSignals {
+    /// Their names, x, y, z, as in the file.
+    pub names: [String; 3],
+    /// Samples per second (the pulse signal's).
+    pub fs: f64,
+    /// The samples of each axis, g; NaN marks a missing sample.
+    pub axes: [Vec<f64>; 3],
+}
+
+impl MotionSignals {
+    /// Sample `n` of the three axes, as the pipeline takes them.
+    pub fn at(&self, n: usize) -> [f32; 3] {
+        [0, 1, 2].map(|a| self.axes[a].get(n).map_or(f32::NAN, |&v| v as f32))
+    }
+
+    /// Samples per axis.
+    pub fn len(&self) -> usize {
+        self.axes[0].len()
+    }
+
+    /// No samples?
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+}
+
+/// Parse `X,Y,Z`: exactly three non-empty signal names.
+pub fn parse_motion_names(s: &str) -> Result<[String; 3], String> {
+    let names: Vec<String> = s.split(',').map(|n| n.trim().to_string()).collect();
+    match <[String; 3]>::try_from(names) {
+        Ok(three) if three.iter().all(|n| !n.is_empty()) => Ok(three),
+        _ => Err(format!(
+            "'{s}' is not three accelerometer signals X,Y,Z (for example ACCX,ACCY,ACCZ)"
+        )),
+    }
+}
+
+/// The motion signals `names` of the WFDB record `record` (opened from
+/// `path`), beside the pulse signal `pulse`.
+pub fn load_wfdb(
+    path: &Path,
+    record: &Record,
+    names: &[String; 3],
+    pulse: &LoadedSignal,
+) -> Result<MotionSignals, ReplayError> {
+    let mut loaded = Vec::with_capacity(3);
+    for name in names {
+        let s = record
+            .load_signal(Some(name))
+            .map_err(|e| ReplayError(format!("--motion: {e}")))?;
+        loaded.push(s);
+    }
+    assemble(path, names, loaded, pulse)
+}
+
+/// The motion columns `names` of the CSV recording at `path`, read with
+/// the pulse's own `options` (the same time column and grid).
+pub fn load_csv(
+    path: &Path,
+    names: &[String; 3],
+    options: &CsvSignalOptions,
+    pulse: &LoadedSignal,
+) -> Result<MotionSignals, ReplayError> {
+    let columns: Vec<ColumnRef> = names.iter().cloned().map(ColumnRef::Name).collect();
+    let read = read_csv_signals(path, &columns, options)
+        .map_err(|e| ReplayError(format!("--motion: {e}")))?;
+    assemble(path, names, read.signals, pulse)
+}
+
+/// Check the three against the pulse signal: same rate, same length.
+fn assemble(
+    path: &Path,
+    names: &[String; 3],
+    loaded: Vec<LoadedSignal>,
+    pulse: &LoadedSignal,
+) -> Result<MotionSignals, ReplayError> {
+    for s in &loaded {
+        if s.fs != pulse.fs || s.samples.len() != pulse.samples.len() {
+            return Err(ReplayError(format!(
+                "{}: motion signal '{}' has {} samples at {} Hz, the pulse signal '{}' {} at {} Hz; they must be the same",
+                path.display(),
+                s.name,
+                s.samples.len(),
+                s.fs,
+                pulse.name,
+                pulse.samples.len(),
+                pulse.fs
+            )));
+        }
+    }
+    let mut axes = loaded.into_iter().map(|s| s.samples);
+    let mut next = || axes.next().unwrap_or_default();
+    Ok(MotionSignals {
+        names: names.clone(),
+        fs: pulse.fs,
+        axes: [next(), next(), next()],
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn three_names_and_nothing_else() {
+        assert_eq!(
+            parse_motion_names("ACCX, ACCY,ACCZ").unwrap(),
+            ["ACCX", "ACCY", "ACCZ"].map(String::from)
+        );
+        for bad in ["ACCX,ACCY", "ACCX,ACCY,ACCZ,ACCW", "ACCX,,ACCZ", ""] {
+            let e = parse_motion_names(bad).unwrap_err();
+            assert!(e.contains("X,Y,Z") && e.lines().count() == 1, "{e}");
+        }
+    }
+}
