@@ -101,6 +101,11 @@ impl EcgReference {
     pub fn score(&self, pulses: &[u64]) -> EcgScore {
         score_against_r_peaks(&self.r_peaks, &self.unusable, self.fs, pulses)
     }
+
+    /// The R peaks `pulses` miss, as [`missed_beats`].
+    pub fn missed(&self, pulses: &[u64]) -> Vec<MissedBeat> {
+        missed_beats(&self.r_peaks, &self.unusable, self.fs, pulses)
+    }
 }
 
 /// Score `pulses` against known R peaks (`r`, ascending) at `fs` Hz,
@@ -113,49 +118,101 @@ pub fn score_against_r_peaks(
     fs: f64,
     pulses: &[u64],
 ) -> EcgScore {
-    let mut pulses = pulses.to_vec();
-    pulses.sort_unstable();
-    let tol = (MATCH_WINDOW_S * fs).round() as u64;
-    let delays: Vec<u64> = local_delays(r, &pulses, fs)
-        .iter()
-        .map(|d| (d * fs).round() as u64)
-        .collect();
-    let kept: Vec<usize> = (0..r.len())
-        .filter(|&k| !in_spans(unusable, r[k]))
-        .collect();
-    let shifted: Vec<u64> = kept.iter().map(|&k| r[k] + delays[k]).collect();
-    let all_shifted: Vec<u64> = r.iter().zip(&delays).map(|(a, b)| a + b).collect();
-    let scored: Vec<u64> = pulses
-        .iter()
-        .copied()
-        .filter(|&p| match nearest(&all_shifted, p) {
-            Some(k) => !in_spans(unusable, p.saturating_sub(delays[k])),
-            None => false,
-        })
-        .collect();
-    let pairs = match_pairs(&shifted, &scored, tol);
+    let p = Pairing::new(r, unusable, fs, pulses);
     // Each matched reference back to its R peak: shifted is ascending.
-    let mut offsets_ms: Vec<f64> = pairs
+    let mut offsets_ms: Vec<f64> = p
+        .pairs
         .iter()
-        .filter_map(|&(s, p)| {
-            let k = kept[shifted.binary_search(&s).ok()?];
-            Some((p as f64 - r[k] as f64) * 1000.0 / fs)
+        .filter_map(|&(s, q)| {
+            let k = p.kept[p.shifted.binary_search(&s).ok()?];
+            Some((q as f64 - r[k] as f64) * 1000.0 / fs)
         })
         .collect();
     offsets_ms.sort_unstable_by(f64::total_cmp);
     let excluded_s = unusable.iter().map(|&(a, b)| (b - a) as f64 / fs).sum();
     EcgScore {
         counts: MatchCounts {
-            tp: pairs.len(),
-            fp: scored.len() - pairs.len(),
-            fn_: shifted.len() - pairs.len(),
+            tp: p.pairs.len(),
+            fp: p.scored - p.pairs.len(),
+            fn_: p.shifted.len() - p.pairs.len(),
         },
         r_peaks: r.len(),
         delay_ms: quantile(&offsets_ms, 0.5),
         delay_iqr_ms: quantile(&offsets_ms, 0.25).zip(quantile(&offsets_ms, 0.75)),
         excluded_s,
-        excluded_r_peaks: r.len() - kept.len(),
-        excluded_pulses: pulses.len() - scored.len(),
+        excluded_r_peaks: r.len() - p.kept.len(),
+        excluded_pulses: pulses.len() - p.scored,
+    }
+}
+
+/// An R peak no pulse matched.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct MissedBeat {
+    /// Which R peak (index into the R peaks given).
+    pub r: usize,
+    /// Where its pulse was due: the R peak moved by the local delay,
+    /// sample index.
+    pub due: u64,
+}
+
+/// The R peaks scored (outside `unusable`) that no pulse of `pulses`
+/// matched, as [`score_against_r_peaks`] pairs them.
+pub fn missed_beats(
+    r: &[u64],
+    unusable: &[(u64, u64)],
+    fs: f64,
+    pulses: &[u64],
+) -> Vec<MissedBeat> {
+    let p = Pairing::new(r, unusable, fs, pulses);
+    let matched: std::collections::HashSet<u64> = p.pairs.iter().map(|&(s, _)| s).collect();
+    p.kept
+        .iter()
+        .zip(&p.shifted)
+        .filter(|(_, s)| !matched.contains(s))
+        .map(|(&k, &due)| MissedBeat { r: k, due })
+        .collect()
+}
+
+/// R peaks moved by their local delays and matched to the pulses.
+struct Pairing {
+    // Indices of the R peaks outside the unusable time, and those R peaks
+    // moved by their delays (ascending).
+    kept: Vec<usize>,
+    shifted: Vec<u64>,
+    // Pulses whose R peak lies outside the unusable time.
+    scored: usize,
+    pairs: Vec<(u64, u64)>,
+}
+
+impl Pairing {
+    fn new(r: &[u64], unusable: &[(u64, u64)], fs: f64, pulses: &[u64]) -> Self {
+        let mut pulses = pulses.to_vec();
+        pulses.sort_unstable();
+        let tol = (MATCH_WINDOW_S * fs).round() as u64;
+        let delays: Vec<u64> = local_delays(r, &pulses, fs)
+            .iter()
+            .map(|d| (d * fs).round() as u64)
+            .collect();
+        let kept: Vec<usize> = (0..r.len())
+            .filter(|&k| !in_spans(unusable, r[k]))
+            .collect();
+        let shifted: Vec<u64> = kept.iter().map(|&k| r[k] + delays[k]).collect();
+        let all_shifted: Vec<u64> = r.iter().zip(&delays).map(|(a, b)| a + b).collect();
+        let scored: Vec<u64> = pulses
+            .iter()
+            .copied()
+            .filter(|&p| match nearest(&all_shifted, p) {
+                Some(k) => !in_spans(unusable, p.saturating_sub(delays[k])),
+                None => false,
+            })
+            .collect();
+        let pairs = match_pairs(&shifted, &scored, tol);
+        Self {
+            kept,
+            shifted,
+            scored: scored.len(),
+            pairs,
+        }
     }
 }
 

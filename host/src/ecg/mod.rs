@@ -10,12 +10,15 @@
 
 mod arrival;
 mod pan_tompkins;
-mod stages;
+pub mod stages;
 #[cfg(test)]
 mod test_ecg;
 mod usable;
 
-pub use arrival::{local_delays, score_against_r_peaks, score_pulses, EcgReference, EcgScore};
+pub use arrival::{
+    local_delays, missed_beats, score_against_r_peaks, score_pulses, EcgReference, EcgScore,
+    MissedBeat,
+};
 pub use pan_tompkins::r_peaks;
 pub use usable::{
     gap_spans, rail_spans, unusable_spans, MAX_R_GAP_S, RAIL_MADS, RAIL_MARGIN_S, RAIL_RUN_S,

@@ -31,8 +31,14 @@ pub fn sanitised(x: &[f64]) -> Vec<f64> {
 /// and then backward so the QRS keeps its place (as `scipy.signal.sosfiltfilt`
 /// does, without its edge padding). `fs` must be checked by the caller.
 pub fn band_passed(x: &[f64], fs: f64) -> Vec<f64> {
-    let design = butterworth_bandpass(2, BAND_HZ.0, BAND_HZ.1, fs)
-        .expect("5-15 Hz band-pass exists for every accepted rate");
+    zero_phase_band(x, fs, BAND_HZ).expect("5-15 Hz band-pass exists for every accepted rate")
+}
+
+/// Butterworth band-pass over `band` Hz (order 2 prototype), run forward
+/// and then backward, as [`band_passed`]; `None` when no such band-pass
+/// exists at `fs`.
+pub fn zero_phase_band(x: &[f64], fs: f64, band: (f64, f64)) -> Option<Vec<f64>> {
+    let design = butterworth_bandpass(2, band.0, band.1, fs).ok()?;
     let mut y = x.to_vec();
     for s in design.sections() {
         run_section(s, &mut y);
@@ -42,7 +48,7 @@ pub fn band_passed(x: &[f64], fs: f64) -> Vec<f64> {
         run_section(s, &mut y);
     }
     y.reverse();
-    y
+    Some(y)
 }
 
 /// One biquad in transposed direct form II over `y`, in place.

@@ -13,6 +13,7 @@
 
 pub mod datasets;
 pub mod figures;
+pub mod missed;
 pub mod table;
 pub mod targets;
 
@@ -25,6 +26,7 @@ use plethwire::score::records::{expand, Scores};
 use plethwire_dsp::pipeline::Config;
 
 use crate::baseline::{baseline_detections, baseline_replay, BaselineInput};
+use missed::{count_missed, MissedCounts};
 use crate::python;
 use datasets::{Dataset, DATASETS};
 use figures::{Side, SideFigures};
@@ -89,6 +91,9 @@ pub struct DatasetScores {
     pub ours: Scores,
     /// The baseline's beats, scored by the same code.
     pub baseline: Scores,
+    /// Where the dataset has an ECG: per recording, the R peaks each beat
+    /// list misses, by kind (ours, the baseline's).
+    pub missed: Vec<(String, MissedCounts, MissedCounts)>,
 }
 
 /// Every dataset scored both ways, and the figures of each side.
@@ -163,7 +168,7 @@ pub fn run(data: &Path, mut progress: impl FnMut(&str)) -> Result<Picture, Accur
     let mut baseline = baseline_detections(&inputs).into_iter();
     let mut datasets = Vec::new();
     for (set, recs) in DATASETS.iter().zip(&prepared) {
-        let (mut ours, mut theirs) = (Vec::new(), Vec::new());
+        let (mut ours, mut theirs, mut missed) = (Vec::new(), Vec::new(), Vec::new());
         for p in recs {
             progress(&format!(
                 "{} against its references, both beat lists",
@@ -173,11 +178,20 @@ pub fn run(data: &Path, mut progress: impl FnMut(&str)) -> Result<Picture, Accur
             let base = baseline_replay(&peaks, p.run.fs, p.run.samples);
             ours.push(p.refs.score(&p.rec, &p.run));
             theirs.push(p.refs.score(&p.rec, &base));
+            if let Some(ecg) = &p.refs.ecg {
+                let samples = &p.rec.signal.samples;
+                missed.push((
+                    p.rec.name.clone(),
+                    count_missed(ecg, samples, &p.run.peaks()),
+                    count_missed(ecg, samples, &base.peaks()),
+                ));
+            }
         }
         datasets.push(DatasetScores {
             dataset: *set,
             ours: Scores::pooled(ours),
             baseline: Scores::pooled(theirs),
+            missed,
         });
     }
     let side = |side: Side, pick: fn(&DatasetScores) -> &Scores| {

@@ -4,6 +4,7 @@
 
 use std::path::Path;
 
+use super::missed::{MissedCounts, PREMATURE_SHARE, VISIBLE_SHARE};
 use super::datasets::DATASETS;
 use super::figures::FIGURES;
 use super::targets::{Verdict, TARGETS};
@@ -69,6 +70,46 @@ pub fn markdown(picture: &Picture) -> String {
         t += &format!("- {}: {}\n", d.folder, d.citation);
     }
     t += &format!("\nTargets: the project's {}.\n", super::targets::ISSUE);
+    for d in &picture.datasets {
+        if !d.missed.is_empty() {
+            t += &missed_markdown(d.dataset.folder, &d.missed);
+        }
+    }
+    t
+}
+
+/// The R peaks each beat list misses in one dataset, by kind
+/// ([`super::missed`]), per recording and pooled.
+pub fn missed_markdown(folder: &str, rows: &[(String, MissedCounts, MissedCounts)]) -> String {
+    let mut t = format!(
+        "\n{folder}: R peaks without a matched pulse. *premature*: R-R before it under {:.0} % \
+         of the record's median; *no pulse*: no pulse of {:.0} % of the record's median height \
+         where it was due (0.5-8 Hz, zero phase).\n\n\
+         | record | R peaks | ours missed | premature | no pulse | premature, no pulse | \
+         baseline missed | no pulse |\n|---|---|---|---|---|---|---|---|\n",
+        100.0 * PREMATURE_SHARE,
+        100.0 * VISIBLE_SHARE
+    );
+    let (mut ours, mut base) = (MissedCounts::default(), MissedCounts::default());
+    let row = |name: &str, o: &MissedCounts, b: &MissedCounts| {
+        format!(
+            "| {name} | {} | {} | {} | {} | {} | {} | {} |\n",
+            o.scored, o.missed, o.premature, o.no_pulse, o.premature_no_pulse, b.missed, b.no_pulse
+        )
+    };
+    for (name, o, b) in rows {
+        t += &row(name, o, b);
+        ours.add(o);
+        base.add(b);
+    }
+    t += &row("pooled", &ours, &base);
+    let pct = |v: Option<f64>| v.map_or("–".into(), |v| format!("{:.2} %", 100.0 * v));
+    t += &format!(
+        "\nSe with the missed beats that show no pulse left out of the reference: \
+         ours {}, baseline {}.\n",
+        pct(ours.se_of_visible()),
+        pct(base.se_of_visible())
+    );
     t
 }
 
