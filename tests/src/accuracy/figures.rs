@@ -42,6 +42,12 @@ pub const HR_WITHIN_BPM: f64 = 3.0;
 /// RMSSD counted as agreeing with the strap's, share of the strap's (the
 /// beat-accuracy issue's figure).
 pub const RMSSD_WITHIN_SHARE: f64 = 0.25;
+/// Good intervals a recording needs for its median |IBI − RR| to be
+/// judged (our choice): with fewer, its quality figures already say that
+/// it cannot be trusted (the beat-accuracy issue asks a recording that
+/// cannot meet the figures to say so), and a median of one or two
+/// intervals says nothing.
+pub const MIN_GOOD_INTERVALS: usize = 10;
 
 /// Every figure of one beat list.
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -101,13 +107,16 @@ fn strap_figures(s: &Scores) -> StrapFigures {
             .count(),
         worst_ibi_median: worst(
             &s.records,
-            |r| r.strap.as_ref()?.intervals_good.median_abs_ms,
+            |r| {
+                let good = &r.strap.as_ref()?.intervals_good;
+                (good.count >= MIN_GOOD_INTERVALS).then_some(good.median_abs_ms)?
+            },
             true,
         ),
         with_good_intervals: straps
             .iter()
             .flatten()
-            .filter(|x| x.intervals_good.count > 0)
+            .filter(|x| x.intervals_good.count >= MIN_GOOD_INTERVALS)
             .count(),
         rmssd_within: straps
             .iter()
@@ -263,7 +272,7 @@ impl Figure {
             BidmcRateMae => "heart-rate MAE against the monitor's pulse_bpm",
             ExerciseWindowsWithin => "8 s windows within 10 bpm, good beats (coverage)",
             StrapHrWithin => "mean HR within 3 bpm of the strap's",
-            StrapIbiMedian => "median \\|IBI − RR\\| over good beats, worst recording",
+            StrapIbiMedian => "median \\|IBI − RR\\| over good beats, worst recording with 10 or more",
             StrapRmssdWithin => "RMSSD within 25 % of the strap's",
         }
     }
@@ -341,7 +350,7 @@ impl Figure {
             StrapRmssdWithin => of(f.strap.rmssd_within),
             StrapIbiMedian => match &f.strap.worst_ibi_median {
                 Some((v, record)) => format!(
-                    "{} ({record}; {} with good intervals)",
+                    "{} ({record}; {} with {MIN_GOOD_INTERVALS} or more good intervals)",
                     Unit::Ms.show(*v, 1),
                     of(f.strap.with_good_intervals)
                 ),
