@@ -87,6 +87,25 @@ pub const RELEVEL_AFTER: u32 = 2;
 /// [`FLOOR_HALF_S`]), so it cannot lock a smaller pulse out for long.
 pub const FLOOR_DIVISOR: f32 = 30.0;
 
+/// Candidates below the level floor in a row, at a steady rate and of like
+/// height, that are a pulse after all and lift the floor: noise is neither
+/// steady nor of like height, a pulse smaller than the one the floor was
+/// learnt from (or than an artefact taken for a pulse) is both.
+pub const FLOOR_RUN: usize = 3;
+
+/// A candidate below the floor counts towards such a run only when its
+/// height is at least this many times the input's mean sample-to-sample
+/// change (white noise's is about 1.1 standard deviations; a band-passed
+/// noise bump is about as high, a pulse many times higher at any rate
+/// from 25 Hz).
+pub const SMOOTH_RATIO: f32 = 3.0;
+
+/// Input time over which that change is measured, seconds.
+pub const ROUGH_S: f32 = 0.5;
+
+/// The intervals of such a run lie within this ratio of each other.
+pub const FLOOR_RUN_STEADY: f32 = 1.2;
+
 /// While there is no signal, the floor halves every this many seconds.
 pub const FLOOR_HALF_S: f32 = 4.0;
 
@@ -287,12 +306,19 @@ pub struct Pipeline {
     // height of the last of them.
     dropped_in_row: u32,
     dropped_height: f32,
+    // The last candidates below the level floor in a row (input index of
+    // the peak, height), oldest first, and how many are held.
+    under: [(u64, f32); FLOOR_RUN],
+    under_floor: usize,
     // Detector index of the last restart, and of the last beat.
     restarted_at: u64,
     last_beat_t: u64,
     // Smallest candidate height that may count, after a step or silence
     // (0: none).
     level_floor: f32,
+    // The gate's level while the signal was good (trusted pulses), since
+    // the last restart took it for the floor.
+    trusted_level: Option<f32>,
     // Factor per detector sample that halves the floor in FLOOR_HALF_S.
     floor_decay: f32,
     restarts: u64,
@@ -384,6 +410,9 @@ impl Pipeline {
             restarted_at: 0,
             last_beat_t: 0,
             level_floor: 0.0,
+            trusted_level: None,
+            under: [(0, 0.0); FLOOR_RUN],
+            under_floor: 0,
             // 1 − ln 2 / n: halves in n samples to within 0.3 % (n ≥ 100).
             floor_decay: 1.0 - core::f32::consts::LN_2 / (FLOOR_HALF_S * fd),
             restarts: 0,
@@ -447,7 +476,7 @@ impl Pipeline {
         }
         self.last_value = c.value;
         self.input.push(c.value);
-        let s = self.lowpass.process(c.value);
+        let mut s = self.lowpass.process(c.value);
         if c.clipped {
             self.mark |= MARK_CLIPPED;
             self.clipped_in_block += 1;
@@ -487,14 +516,13 @@ impl Pipeline {
             self.level_floor *= self.floor_decay;
         }
         let y = if change != Change::None || lost {
-            // After a step or a silence the sensor is likely the same and
-            // so is the pulse's size within a wide margin: candidates far
-            // below the old level (noise on a lifted finger) cannot set a
-            // new one. After a collapse the old level was an artefact's.
-            if let Some(level) = self.peak_level {
-                self.level_floor = max_f32(level / FLOOR_DIVISOR, self.level_floor);
+            if change == Change::Step {
+                // The input has jumped: the low-pass starts at the new
+                // level too, so no part of its step response, of whatever
+                // size, reaches the detector or the pulse measures.
+                s = self.lowpass.settle(c.value);
             }
-            self.restart(s)
+            self.restart(s, change)
         } else {
             self.highpass.process(s)
         };
@@ -526,7 +554,16 @@ impl Pipeline {
     /// signal again from low-passed level `s`; returns the band-passed
     /// output at rest. (The heart-rate and HRV history stay: they hold only
     /// beats already reported.)
-    fn restart(&mut self, s: f32) -> f32 {
+    fn restart(&mut self, s: f32, change: Change) -> f32 {
+        // The sensor is likely the same after a restart and so is the
+        // pulse's size within a wide margin: candidates far below the
+        // level of the last trusted pulses (noise on a lifted finger)
+        // cannot set a new one. Only trusted pulses set the floor, and
+        // only once: an artefact's level never does, and the floor then
+        // only sinks until pulses are trusted again.
+        if let Some(level) = self.trusted_level.take() {
+            self.level_floor = max_f32(level / FLOOR_DIVISOR, self.level_floor);
+        }
         let rest = self.highpass.settle(s);
         self.detector = Detector::new(self.config.options.detector, self.fd);
         self.epoch = self.t;
@@ -538,9 +575,21 @@ impl Pipeline {
         self.template.reset();
         self.all_intervals.clear();
         self.recent_ibi = None;
-        self.scale.forget();
+        if change != Change::None {
+            // The history held the step or the artefact. After a silence it
+            // is the signal's own, and forgetting it would leave the next
+            // second blind to a step.
+            self.scale.forget();
+        }
         self.restarts += 1;
         rest
+    }
+
+    /// Detector samples since the last restart at detector index `now`:
+    /// the oldest age of the rings that holds this signal, not what came
+    /// before the restart (a step, an artefact).
+    fn since_restart(&self, now: u64) -> usize {
+        (now - self.restarted_at) as usize
     }
 
     /// Times the filters restarted after a step in the input.
@@ -559,8 +608,9 @@ impl Pipeline {
             return false;
         }
         if a < self.level_floor {
-            return false;
+            return self.below_floor(peak, a);
         }
+        self.under_floor = 0;
         let Some(level) = self.peak_level else {
             self.peak_level = Some(a);
             self.dropped_in_row = 0;
@@ -608,6 +658,65 @@ impl Pipeline {
         let rate = if a > level { 0.5 } else { 0.125 };
         self.peak_level = Some(level + rate * (a - level));
         true
+    }
+
+    /// A candidate below the level floor: kept with the ones below it
+    /// before; when the last [`FLOOR_RUN`] are a steady pulse (plausible
+    /// intervals within [`FLOOR_RUN_STEADY`] of each other, heights within
+    /// [`RELEVEL_LIKE`]), the floor is lifted and the candidate taken as a
+    /// beat and as the new level.
+    fn below_floor(&mut self, peak: u64, a: f32) -> bool {
+        if a < SMOOTH_RATIO * self.roughness() {
+            // As rough as the input's sample-to-sample noise: no pulse.
+            self.under_floor = 0;
+            return false;
+        }
+        if self.under_floor == FLOOR_RUN {
+            self.under.copy_within(1.., 0);
+            self.under_floor -= 1;
+        }
+        self.under[self.under_floor] = (peak, a);
+        self.under_floor += 1;
+        if self.under_floor < FLOOR_RUN {
+            return false;
+        }
+        let (mut short, mut long) = (f32::INFINITY, 0.0f32);
+        let (mut low, mut high) = (f32::INFINITY, 0.0f32);
+        for w in self.under.windows(2) {
+            let ms = w[1].0.saturating_sub(w[0].0) as f32 * 1000.0 / self.fs;
+            short = min_f32(short, ms);
+            long = max_f32(long, ms);
+        }
+        for &(_, h) in &self.under {
+            low = min_f32(low, h);
+            high = max_f32(high, h);
+        }
+        let steady = short >= rate::MIN_IBI_MS
+            && long <= rate::MAX_IBI_MS
+            && long <= FLOOR_RUN_STEADY * short;
+        if !(steady && high <= RELEVEL_LIKE * low) {
+            return false;
+        }
+        self.level_floor = 0.0;
+        self.under_floor = 0;
+        self.peak_level = Some(a);
+        self.dropped_in_row = 0;
+        true
+    }
+
+    /// Mean absolute difference between successive input samples over the
+    /// last [`ROUGH_S`] (the input ring's newest part): white noise's
+    /// measure, which a smooth pulse of the same height far exceeds.
+    fn roughness(&self) -> f32 {
+        let n = (libm::roundf(ROUGH_S * self.fs) as usize).min(self.input.len().saturating_sub(1));
+        if n == 0 {
+            return 0.0;
+        }
+        let mut sum = 0.0;
+        for a in 0..n {
+            sum += libm::fabsf(self.input.at(a) - self.input.at(a + 1));
+        }
+        sum / n as f32
     }
 
     /// At the end of a recording: feed the last value again for long
@@ -695,7 +804,9 @@ impl Pipeline {
         let age = (now - peak_d) as usize;
         let period = self.recent_ibi.unwrap_or(800.0) * self.fd / 1000.0;
         let back = (libm::roundf(0.35 * period) as usize).max(2);
-        let oldest = (age + back).min(self.smoothed.len().saturating_sub(3));
+        let oldest = (age + back)
+            .min(self.smoothed.len().saturating_sub(3))
+            .min(self.since_restart(now).saturating_sub(1));
         let rise = |a: usize| self.smoothed.at(a) - self.smoothed.at(a + 1);
         let mut best = f32::NEG_INFINITY;
         let mut best_age = age;
@@ -736,7 +847,9 @@ impl Pipeline {
                 back = back.min(last_age - age);
             }
         }
-        let oldest = (age + back).min(self.smoothed.len().saturating_sub(1));
+        let oldest = (age + back)
+            .min(self.smoothed.len().saturating_sub(1))
+            .min(self.since_restart(now));
         let mut foot = f32::INFINITY;
         for a in age..=oldest.max(age) {
             foot = min_f32(foot, self.smoothed.at(a));
@@ -776,7 +889,11 @@ impl Pipeline {
         }
         // The refined peak's age in detector samples.
         let age = (n - peak) as f32 / self.decim as f32;
-        let from = min_f32(age + 0.3 * period, (self.banded.len().max(2) - 2) as f32);
+        let since = self.since_restart(self.t - 1) as f32;
+        let from = min_f32(
+            min_f32(age + 0.3 * period, (self.banded.len().max(2) - 2) as f32),
+            since,
+        );
         let to = max_f32(age - 0.2 * period, 0.0);
         for a in (libm::floorf(to) as usize)..=(libm::ceilf(from) as usize) {
             let m = self.marks.at(a);
@@ -820,6 +937,9 @@ impl Pipeline {
             }
         }
         self.monitor.beat(peak, beat_flags.is_good());
+        if beat_flags.is_good() && self.monitor.state() == SignalState::Good {
+            self.trusted_level = self.peak_level;
+        }
         match ibi {
             Some(i) => self.hrv.push(i, beat_flags.is_good() && self.last_good),
             // No interval (signal lost, filters restarted): a bad entry, so
@@ -862,7 +982,9 @@ impl Pipeline {
                 (libm::roundf(0.35 * m * self.fd / 1000.0) as usize).min(self.search_after)
             });
         let newest = age.saturating_sub(after);
-        let oldest = (age + self.search_before).min(self.smoothed.len().saturating_sub(1));
+        let oldest = (age + self.search_before)
+            .min(self.smoothed.len().saturating_sub(1))
+            .min(self.since_restart(now));
         let mut best_age = age.min(oldest);
         let mut best = f32::NEG_INFINITY;
         for a in newest..=oldest.max(newest) {
