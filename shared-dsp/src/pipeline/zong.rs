@@ -122,16 +122,24 @@ impl Zong {
 
         if t < self.learn {
             self.learn_sum += ssf;
-            if t + 1 == self.learn {
+            if self.last_beat.is_none() || t + 1 == self.learn {
                 // Threshold base 3 × mean SSF; the threshold proper is the
-                // usual fraction of it.
-                let mean = self.learn_sum / self.learn as f32;
+                // usual fraction of it, set from the whole learning period
+                // at its end. Until then, and until a first beat, it
+                // follows the mean so far, so a pulse is found while the
+                // detector still learns (after a restart, waiting the whole
+                // period would lose the first pulses at slow rates).
+                let mean = self.learn_sum / (t + 1) as f32;
                 self.max_avg = 3.0 * mean;
                 self.threshold = THRESHOLD_FRACTION * self.max_avg;
             }
-            return None;
+            if t < self.window as u64 {
+                // The slope sum is not yet over a whole window.
+                return None;
+            }
         }
-        if t - self.last_change.max(self.learn) > self.decay && self.pending.is_none() {
+        if t.saturating_sub(self.last_change.max(self.learn)) > self.decay && self.pending.is_none()
+        {
             // Lost, or the first threshold too high: lower the bar so the
             // detector can pick the pulse up.
             self.threshold *= 0.5;
