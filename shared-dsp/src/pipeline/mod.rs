@@ -69,6 +69,11 @@ pub const SMALL_FRACTION: f32 = 0.4;
 /// A candidate sooner than this fraction of the recent interval after the
 /// last beat…
 pub const EARLY_FRACTION: f32 = 0.6;
+/// …and sooner than this, ms, (a diastolic wave follows its systolic peak
+/// within well under a second at any heart rate, common practice; a
+/// median interval learnt while every other beat was missed must not make
+/// those beats early for ever)…
+pub const EARLY_MAX_MS: f32 = 1000.0;
 /// …is dropped when below this fraction of the running peak level.
 pub const EARLY_LEVEL_FRACTION: f32 = 0.6;
 
@@ -100,8 +105,11 @@ pub const FLOOR_RUN: usize = 3;
 /// from 25 Hz).
 pub const SMOOTH_RATIO: f32 = 3.0;
 
-/// Input time over which that change is measured, seconds.
+/// Input time over which that change is measured, seconds…
 pub const ROUGH_S: f32 = 0.5;
+/// …and at most this many samples of it (white noise needs no more; the
+/// work stays small at high rates).
+pub const ROUGH_SAMPLES: usize = 128;
 
 /// The intervals of such a run lie within this ratio of each other.
 pub const FLOOR_RUN_STEADY: f32 = 1.2;
@@ -626,12 +634,17 @@ impl Pipeline {
         }
         let median = self.recent_ibi;
         let early = match (since_ms, median) {
-            (Some(s), Some(m)) => s < EARLY_FRACTION * m,
+            (Some(s), Some(m)) => s < EARLY_FRACTION * m && s < EARLY_MAX_MS,
             _ => false,
         };
         let small = a < SMALL_FRACTION * level;
         let too_small_for_early = early && a < EARLY_LEVEL_FRACTION * level;
         if small || too_small_for_early {
+            if a < SMOOTH_RATIO * self.roughness() {
+                // Noise, not a smaller pulse: it neither counts towards a
+                // new level nor breaks a run of pulses that does.
+                return false;
+            }
             // A level set by an artefact, or a pulse that shrank, would
             // lock every real pulse out: small candidates of like height in
             // a row, none of them early, set a new level (the search-back
@@ -708,7 +721,9 @@ impl Pipeline {
     /// last [`ROUGH_S`] (the input ring's newest part): white noise's
     /// measure, which a smooth pulse of the same height far exceeds.
     fn roughness(&self) -> f32 {
-        let n = (libm::roundf(ROUGH_S * self.fs) as usize).min(self.input.len().saturating_sub(1));
+        let n = (libm::roundf(ROUGH_S * self.fs) as usize)
+            .min(ROUGH_SAMPLES)
+            .min(self.input.len().saturating_sub(1));
         if n == 0 {
             return 0.0;
         }
