@@ -140,10 +140,19 @@ impl Zong {
         }
         if t.saturating_sub(self.last_change.max(self.learn)) > self.decay && self.pending.is_none()
         {
-            // Lost, or the first threshold too high: lower the bar so the
-            // detector can pick the pulse up.
-            self.threshold *= 0.5;
-            self.max_avg *= 0.5;
+            // Lost, or the threshold learnt from an artefact: lower the bar
+            // so the detector can pick the pulse up, at once to what the
+            // recent slope sum would have taught it from the start (by
+            // halving alone, a threshold a thousand times too high would
+            // take half a minute).
+            let held = self.ssf_hist.len().min(self.learn as usize).max(1);
+            let mut sum = 0.0;
+            for a in 0..held {
+                sum += self.ssf_hist.at(a);
+            }
+            let relearnt = 3.0 * sum / held as f32;
+            self.max_avg = (0.5 * self.max_avg).min(relearnt);
+            self.threshold = THRESHOLD_FRACTION * self.max_avg;
             self.last_change = t;
         }
         if let Some(cross) = self.pending {
