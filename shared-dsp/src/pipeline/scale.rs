@@ -21,6 +21,11 @@ pub const STEP_BLOCKS: usize = 8;
 /// A jump within the step lag larger than this many ranges of the blocks
 /// before it is a step (finger placed or lifted, a knock, a light step).
 pub const STEP_FACTOR: f32 = 8.0;
+/// Until [`STEP_AFTER`] blocks since a restart are held, a step is a jump larger than
+/// this many ranges of all since the restart (at least the step lag): the
+/// range of a short stretch is a poor reference, so only a jump far beyond
+/// it counts, such as the end of a short stretch of junk.
+pub const EARLY_STEP_FACTOR: f32 = 4.0 * STEP_FACTOR;
 /// Newest blocks judged for a collapse (1 s).
 pub const QUIET_BLOCKS: usize = 4;
 /// A range of the newest [`QUIET_BLOCKS`] below 1/this of the range of the
@@ -46,6 +51,9 @@ pub enum Change {
 #[derive(Clone, Copy, Debug)]
 pub struct Scale {
     block_len: u32,
+    // Detector samples over which a jump is measured (the pipeline's
+    // `STEP_S`).
+    lag: u32,
     filled: u32,
     high: f32,
     low: f32,
@@ -53,6 +61,9 @@ pub struct Scale {
     highs: [f32; HELD],
     lows: [f32; HELD],
     blocks: usize,
+    // Blocks completed since the last restart (`blocks` may also hold the
+    // quiet second kept from before a collapse).
+    fresh: usize,
     // Range of the STEP_BLOCKS newest completed blocks, kept per block.
     step_range: Option<f32>,
 }
@@ -62,12 +73,14 @@ impl Scale {
     pub fn new(fd_hz: f32) -> Self {
         Self {
             block_len: (libm::roundf(BLOCK_S * fd_hz) as u32).max(1),
+            lag: (libm::roundf(super::STEP_S * fd_hz) as u32).max(1),
             filled: 0,
             high: f32::NEG_INFINITY,
             low: f32::INFINITY,
             highs: [0.0; HELD],
             lows: [0.0; HELD],
             blocks: 0,
+            fresh: 0,
             step_range: None,
         }
     }
@@ -77,7 +90,7 @@ impl Scale {
     pub fn push(&mut self, s: f32, jump: f32) -> Change {
         let step = match self.step_range {
             Some(r) => jump.abs() > STEP_FACTOR * r,
-            None => false,
+            None => self.early_step(jump),
         };
         if step {
             return Change::Step;
@@ -99,26 +112,56 @@ impl Scale {
         Change::None
     }
 
+    /// Until [`STEP_AFTER`] blocks are held (after a restart), a step is
+    /// judged against the range of everything since, once the jump's lag
+    /// lies wholly within it: a second
+    /// step soon after a first (into a short stretch of junk and out
+    /// again) is caught, and a pulse rising from a flat line makes at most
+    /// one restart, since its own rise is then the range.
+    fn early_step(&self, jump: f32) -> bool {
+        let seen = self.blocks as u32 * self.block_len + self.filled;
+        if seen < self.lag {
+            return false;
+        }
+        let done = self.blocks;
+        let high = self.highs[..done].iter().copied().fold(self.high, max_f32);
+        let low = self.lows[..done].iter().copied().fold(self.low, min_f32);
+        jump.abs() > EARLY_STEP_FACTOR * (high - low)
+    }
+
     fn close_block(&mut self) {
         self.highs.copy_within(0..HELD - 1, 1);
         self.lows.copy_within(0..HELD - 1, 1);
         self.highs[0] = self.high;
         self.lows[0] = self.low;
         self.blocks = (self.blocks + 1).min(HELD);
+        self.fresh += 1;
         self.filled = 0;
         self.high = f32::NEG_INFINITY;
         self.low = f32::INFINITY;
         let n = self.blocks.min(STEP_BLOCKS);
         self.step_range =
-            (self.blocks >= STEP_AFTER).then(|| span(&self.highs[..n], &self.lows[..n]));
+            (self.fresh >= STEP_AFTER).then(|| span(&self.highs[..n], &self.lows[..n]));
     }
 
     /// Forget the history (after a restart).
     pub fn forget(&mut self) {
         *self = Self {
             block_len: self.block_len,
+            lag: self.lag,
             ..Self::new(1.0)
         };
+    }
+
+    /// Forget all but the newest [`QUIET_BLOCKS`] completed blocks and the
+    /// block being filled (after a collapse: the quiet second is the
+    /// signal's own, what came before it the artefact's). Until
+    /// [`STEP_AFTER`] blocks of new signal are held, steps are judged as
+    /// right after any restart (`early_step`), against the kept second too.
+    pub fn keep_quiet(&mut self) {
+        self.blocks = self.blocks.min(QUIET_BLOCKS);
+        self.fresh = 0;
+        self.step_range = None;
     }
 
     /// Range of the newest completed blocks up to [`STEP_BLOCKS`], if
@@ -172,6 +215,32 @@ mod tests {
             }
         });
         assert!(feed(&mut s, with_step, 10).contains(&Change::Step));
+    }
+
+    #[test]
+    fn a_second_step_soon_after_a_restart_is_a_step_and_a_rising_pulse_is_not() {
+        let fd = 100.0;
+        // 0.2 s flat after a restart, then a jump far beyond that range.
+        let mut s = Scale::new(fd);
+        let v = (0..40).map(|k| if k < 20 { 1.0 } else { 50.0 });
+        assert!(feed(&mut s, v, 10).contains(&Change::Step));
+        // A pulse rising from the restart: its own rise is the range.
+        let mut s = Scale::new(fd);
+        let v = (0..60).map(|k| libm::sinf(k as f32 * 0.05));
+        assert!(feed(&mut s, v, 10).iter().all(|c| *c == Change::None));
+    }
+
+    #[test]
+    fn after_a_collapse_the_quiet_second_judges_steps_at_once() {
+        let fd = 100.0;
+        let mut s = Scale::new(fd);
+        let loud = (0..300).map(|k| if k % 2 == 0 { 500.0 } else { -500.0 });
+        let quiet = (0..200).map(|k| 0.01 * libm::sinf(k as f32 * 0.075));
+        let changes = feed(&mut s, loud.chain(quiet), 10);
+        assert!(changes.contains(&Change::Collapse));
+        s.keep_quiet();
+        // A jump of 10 right away: far beyond the quiet second's range.
+        assert_eq!(s.push(10.0, 10.0), Change::Step);
     }
 
     #[test]
