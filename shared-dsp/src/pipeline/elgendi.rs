@@ -37,6 +37,16 @@ pub const BETA: f32 = 0.02;
 /// mean of the squared signal, seconds (our choice).
 pub const OFFSET_MEAN_TAU_S: f32 = 10.0;
 
+/// Without a block of interest wide enough for a beat for this long,
+/// seconds, the running mean
+/// behind the offset starts again from the long average W2 (our choice,
+/// as Zong's detector lowers its threshold after 2.5 s): a mean learnt
+/// from an artefact far larger than the pulse would otherwise keep every
+/// block shut for tens of seconds, and from zero the offset would be too
+/// low to keep the blocks of fast pulses apart. Longer than the slowest
+/// interval (30 bpm).
+pub const IDLE_S: f32 = 2.5;
+
 const RING: usize = 256;
 
 /// Causal Elgendi detector state, at the detector's rate.
@@ -55,6 +65,10 @@ pub struct Elgendi {
     mean_alpha: f32,
     t: u64,
     block_len: usize,
+    // Samples since the last block wide enough for a beat, and the limit
+    // (IDLE_S).
+    idle: u32,
+    idle_limit: u32,
     best: f32,
     best_t: u64,
     squared: Ring<RING>,
@@ -83,6 +97,8 @@ impl Elgendi {
             mean_alpha: 1.0 / max_f32(OFFSET_MEAN_TAU_S * fs_hz, 1.0),
             t: 0,
             block_len: 0,
+            idle: 0,
+            idle_limit: (IDLE_S * fs_hz) as u32,
             best: f32::NEG_INFINITY,
             best_t: 0,
         }
@@ -123,12 +139,20 @@ impl Elgendi {
         } else if self.block_len > 0 {
             let wide_enough = self.block_len >= self.w1;
             self.block_len = 0;
+            if wide_enough {
+                self.idle = 0;
+            }
             wide_enough.then_some(Candidate {
                 peak: self.best_t,
                 onset: None,
                 amplitude: self.best,
             })
         } else {
+            self.idle += 1;
+            if self.idle > self.idle_limit {
+                self.idle = 0;
+                self.mean_sq = ma_beat;
+            }
             None
         }
     }
