@@ -122,7 +122,7 @@ impl Zong {
 
         if t < self.learn {
             self.learn_sum += ssf;
-            if self.last_beat.is_none() || t + 1 == self.learn {
+            if self.last_beat.is_none() {
                 // Threshold base 3 × mean SSF; the threshold proper is the
                 // usual fraction of it, set from the whole learning period
                 // at its end. Until then, and until a first beat, it
@@ -138,14 +138,13 @@ impl Zong {
                 return None;
             }
         }
-        if t.saturating_sub(self.last_change.max(self.learn)) > self.decay && self.pending.is_none()
-        {
+        if t - self.last_change > self.decay && self.pending.is_none() {
             // Lost, or the threshold learnt from an artefact: lower the bar
             // so the detector can pick the pulse up, at once to what the
             // recent slope sum would have taught it from the start (by
             // halving alone, a threshold a thousand times too high would
             // take half a minute).
-            let held = self.ssf_hist.len().min(self.learn as usize).max(1);
+            let held = self.ssf_hist.len().min(self.decay as usize).max(1);
             let mut sum = 0.0;
             for a in 0..held {
                 sum += self.ssf_hist.at(a);
@@ -225,7 +224,13 @@ impl Zong {
                 best_age = a;
             }
         }
-        self.max_avg += 0.25 * (ssf_max - self.max_avg);
+        if self.last_beat.is_none() {
+            // The first pulse's maximum is the best guess of recent
+            // pulses' maxima (the learnt mean is only a start).
+            self.max_avg = ssf_max;
+        } else {
+            self.max_avg += 0.25 * (ssf_max - self.max_avg);
+        }
         self.threshold = THRESHOLD_FRACTION * self.max_avg;
         if let Some(last) = self.last_beat {
             let gap = (cross - last) as f32;
