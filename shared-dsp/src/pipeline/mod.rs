@@ -327,6 +327,8 @@ pub struct Pipeline {
     // The gate's level while the signal was good (trusted pulses), since
     // the last restart took it for the floor.
     trusted_level: Option<f32>,
+    // The last beat was good and had an interval (since the last restart).
+    last_timed_good: bool,
     // Factor per detector sample that halves the floor in FLOOR_HALF_S.
     floor_decay: f32,
     restarts: u64,
@@ -419,6 +421,7 @@ impl Pipeline {
             last_beat_t: 0,
             level_floor: 0.0,
             trusted_level: None,
+            last_timed_good: false,
             under: [(0, 0.0); FLOOR_RUN],
             under_floor: 0,
             // 1 − ln 2 / n: halves in n samples to within 0.3 % (n ≥ 100).
@@ -580,14 +583,19 @@ impl Pipeline {
         self.dropped_in_row = 0;
         self.last_peak = None;
         self.last_good = false;
+        self.last_timed_good = false;
         self.template.reset();
         self.all_intervals.clear();
         self.recent_ibi = None;
-        if change != Change::None {
-            // The history held the step or the artefact. After a silence it
-            // is the signal's own, and forgetting it would leave the next
-            // second blind to a step.
-            self.scale.forget();
+        match change {
+            // The history held the step.
+            Change::Step => self.scale.forget(),
+            // The history held the artefact, but its last second is the
+            // quiet signal after it: kept as the reference, no second
+            // after the restart is blind to a step.
+            Change::Collapse => self.scale.keep_quiet(),
+            // After a silence the history is the signal's own.
+            Change::None => {}
         }
         self.restarts += 1;
         rest
@@ -681,8 +689,28 @@ impl Pipeline {
     fn below_floor(&mut self, peak: u64, a: f32) -> bool {
         if a < SMOOTH_RATIO * self.roughness() {
             // As rough as the input's sample-to-sample noise: no pulse.
-            self.under_floor = 0;
             return false;
+        }
+        if self.under_floor > 0 {
+            let last = self.under[self.under_floor - 1].0;
+            if peak.saturating_sub(last) as f32 * 1000.0 / self.fs > rate::MAX_IBI_MS {
+                // Longer than any interval since the last: no run.
+                self.under_floor = 0;
+            }
+        }
+        if self.under_floor > 0 {
+            let top = self.under[..self.under_floor]
+                .iter()
+                .fold(0.0f32, |m, &(_, h)| max_f32(m, h));
+            if a * RELEVEL_LIKE < top {
+                // A diastolic wave or a bump between pulses: it neither
+                // counts nor breaks the run.
+                return false;
+            }
+            if a > RELEVEL_LIKE * top {
+                // A larger pulse starts a run of its own.
+                self.under_floor = 0;
+            }
         }
         if self.under_floor == FLOOR_RUN {
             self.under.copy_within(1.., 0);
@@ -952,8 +980,19 @@ impl Pipeline {
             }
         }
         self.monitor.beat(peak, beat_flags.is_good());
-        if beat_flags.is_good() && self.monitor.state() == SignalState::Good {
+        // Trusted: good with an interval, after a beat good with an
+        // interval since the last restart, while the signal is good (the
+        // state outlives a restart: the first two beats after one never
+        // set the level the floor comes from).
+        let timed_good = beat_flags.is_good() && ibi.is_some();
+        let trusted = timed_good && self.last_timed_good;
+        self.last_timed_good = timed_good;
+        if trusted && self.monitor.state() == SignalState::Good {
             self.trusted_level = self.peak_level;
+            // The pulse is back and trusted: the floor, which only guards
+            // the time without one, has done its work (left in place, a
+            // pulse just around it would lose every other beat).
+            self.level_floor = 0.0;
         }
         match ibi {
             Some(i) => self.hrv.push(i, beat_flags.is_good() && self.last_good),
