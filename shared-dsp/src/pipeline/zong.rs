@@ -141,16 +141,24 @@ impl Zong {
         if t - self.last_change > self.decay && self.pending.is_none() {
             // Lost, or the threshold learnt from an artefact: lower the bar
             // so the detector can pick the pulse up, at once to what the
-            // recent slope sum would have taught it from the start (by
+            // slope sum since would have taught it from the start (by
             // halving alone, a threshold a thousand times too high would
             // take half a minute).
-            let held = self.ssf_hist.len().min(self.decay as usize).max(1);
+            // Since the last beat's own upstroke (its refractory period)
+            // only: that beat may be the artefact that set the bar.
+            let since = t.saturating_sub(self.last_change + self.refractory) as usize;
+            let held = self.ssf_hist.len().min(since).max(1);
             let mut sum = 0.0;
             for a in 0..held {
                 sum += self.ssf_hist.at(a);
             }
             let relearnt = 3.0 * sum / held as f32;
             self.max_avg = (0.5 * self.max_avg).min(relearnt);
+            if t < self.learn {
+                // Still learning: the mean so far goes on from here, not
+                // from the artefact that came first.
+                self.learn_sum = self.max_avg / 3.0 * (t + 1) as f32;
+            }
             self.threshold = THRESHOLD_FRACTION * self.max_avg;
             self.last_change = t;
         }
@@ -197,10 +205,12 @@ impl Zong {
 
     fn finish(&mut self, now: u64, cross: u64) -> Option<Candidate> {
         let age_cross = (now - cross) as usize;
-        // The pulse's SSF maximum in the search window after the crossing.
-        let newest = age_cross.saturating_sub(self.search);
+        // The pulse's SSF maximum from the crossing until the pulse turned
+        // down: a crossing early on the foot (a threshold learnt too low)
+        // still measures the whole upstroke, so the threshold comes back
+        // up instead of staying low.
         let mut ssf_max = 0.0f32;
-        for a in newest..=age_cross {
+        for a in 0..=age_cross {
             ssf_max = max_f32(ssf_max, self.ssf_hist.at(a));
         }
         // Onset: back from the crossing to where the SSF was still below
