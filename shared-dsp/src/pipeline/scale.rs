@@ -102,9 +102,16 @@ impl Scale {
             return Change::None;
         }
         self.close_block();
-        if self.blocks >= HELD {
+        // Judged as soon as a block before the quiet second is held: an
+        // artefact that began with a restart (a step into it) and ended
+        // within three seconds is a collapse too.
+        let held = self.blocks;
+        if held > QUIET_BLOCKS {
             let quiet = span(&self.highs[..QUIET_BLOCKS], &self.lows[..QUIET_BLOCKS]);
-            let before = span(&self.highs[QUIET_BLOCKS..], &self.lows[QUIET_BLOCKS..]);
+            let before = span(
+                &self.highs[QUIET_BLOCKS..held],
+                &self.lows[QUIET_BLOCKS..held],
+            );
             if quiet * COLLAPSE_FACTOR < before {
                 return Change::Collapse;
             }
@@ -241,6 +248,28 @@ mod tests {
         s.keep_quiet();
         // A jump of 10 right away: far beyond the quiet second's range.
         assert_eq!(s.push(10.0, 10.0), Change::Step);
+    }
+
+    #[test]
+    fn a_short_artefact_right_after_a_restart_ends_in_a_collapse() {
+        // Half a second of loud noise from the start (as after a step into
+        // it), then a small pulse: a collapse once its quiet second is held.
+        let fd = 100.0;
+        let mut s = Scale::new(fd);
+        let v = (0..400).map(|k| {
+            if k < 50 {
+                if k % 2 == 0 {
+                    500.0
+                } else {
+                    -500.0
+                }
+            } else {
+                libm::sinf(k as f32 * 0.075)
+            }
+        });
+        let changes = feed(&mut s, v, 10);
+        let at = changes.iter().position(|c| *c == Change::Collapse);
+        assert!(at.is_some_and(|a| (140..=200).contains(&a)), "{at:?}");
     }
 
     #[test]
