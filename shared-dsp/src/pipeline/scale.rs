@@ -6,11 +6,14 @@
 //! than [`STEP_FACTOR`] times the range of the blocks before it; a
 //! *collapse* (an artefact ends, a tap or a burst of noise stops) is a last
 //! second whose range is below 1/[`COLLAPSE_FACTOR`] of the range of the
-//! two seconds before it. Both make the pipeline restart its filters from
-//! the present level. After a restart the history is forgotten, so the
-//! reference is always the signal since then: nothing learnt from one
-//! artefact can make every later pulse look like a step (a candidate-based
-//! reference could: one small first pulse made every upstroke a step).
+//! (up to) two seconds before it. Both make the pipeline restart its
+//! filters from the present level. After a step the history is forgotten,
+//! after a collapse all but the quiet second, so the reference is always
+//! the signal since: nothing learnt from one artefact can make every later
+//! pulse look like a step (a candidate-based reference could: one small
+//! first pulse made every upstroke a step). Until a second of new blocks
+//! is held, a jump of more than [`EARLY_STEP_FACTOR`] ranges of all since
+//! the restart is a step, so no second after a restart is blind.
 
 use crate::math::{max_f32, min_f32};
 
@@ -21,7 +24,7 @@ pub const STEP_BLOCKS: usize = 8;
 /// A jump within the step lag larger than this many ranges of the blocks
 /// before it is a step (finger placed or lifted, a knock, a light step).
 pub const STEP_FACTOR: f32 = 8.0;
-/// Until [`STEP_AFTER`] blocks since a restart are held, a step is a jump larger than
+/// Until a second of blocks since a restart is held, a step is a jump larger than
 /// this many ranges of all since the restart (at least the step lag): the
 /// range of a short stretch is a poor reference, so only a jump far beyond
 /// it counts, such as the end of a short stretch of junk.
@@ -29,7 +32,7 @@ pub const EARLY_STEP_FACTOR: f32 = 4.0 * STEP_FACTOR;
 /// Newest blocks judged for a collapse (1 s).
 pub const QUIET_BLOCKS: usize = 4;
 /// A range of the newest [`QUIET_BLOCKS`] below 1/this of the range of the
-/// [`STEP_BLOCKS`] before them is a collapse.
+/// (up to [`STEP_BLOCKS`]) blocks before them is a collapse.
 pub const COLLAPSE_FACTOR: f32 = 20.0;
 /// Blocks held.
 const HELD: usize = STEP_BLOCKS + QUIET_BLOCKS;
@@ -119,7 +122,7 @@ impl Scale {
         Change::None
     }
 
-    /// Until [`STEP_AFTER`] blocks are held (after a restart), a step is
+    /// Until a second of blocks is held (after a restart), a step is
     /// judged against the range of everything since, once the jump's lag
     /// lies wholly within it: a second
     /// step soon after a first (into a short stretch of junk and out
@@ -163,7 +166,7 @@ impl Scale {
     /// Forget all but the newest [`QUIET_BLOCKS`] completed blocks and the
     /// block being filled (after a collapse: the quiet second is the
     /// signal's own, what came before it the artefact's). Until
-    /// [`STEP_AFTER`] blocks of new signal are held, steps are judged as
+    /// a second of new signal is held, steps are judged as
     /// right after any restart (`early_step`), against the kept second too.
     pub fn keep_quiet(&mut self) {
         self.blocks = self.blocks.min(QUIET_BLOCKS);
