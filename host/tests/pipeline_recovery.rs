@@ -40,9 +40,9 @@ proptest! {
             let b = beats(&c.samples, fs, det);
             let r = recovery(&c, &b);
             let f1 = r.counts.f1().unwrap_or(0.0);
+            let (within_s, min_f1) = needed(det, fs);
             prop_assert!(
-                r.found_after_s.is_some_and(|s| s <= FOUND_WITHIN_S)
-                    && f1 >= needed_f1(det, fs),
+                r.found_after_s.is_some_and(|s| s <= within_s) && f1 >= min_f1,
                 "{det:?} at {fs:.1} Hz, {bpm:.1} bpm after {:.1} s: found after {:?} s, {:?}",
                 c.train_start as f64 / fs, r.found_after_s, r.counts
             );

@@ -344,15 +344,21 @@ pub fn recovery(c: &Case, beats: &[BeatEvent]) -> Recovery {
     }
 }
 
-/// What the pipeline must reach on a recovered train: F1 ≥ 99 %, as on the
-/// clean grid of `pipeline_synthetic.rs`; Zong's slope sum is held to
-/// that grid's 85 % where it runs below 62.5 Hz (its 128 ms window is
-/// under 8 samples there).
-pub fn needed_f1(detector: DetectorKind, fs: f64) -> f64 {
-    if detector == DetectorKind::Zong && fs < 62.5 {
-        0.85
+/// Zong's slope sum is coarse below this detector rate, Hz: its 128 ms
+/// window is under 8 samples.
+pub const COARSE_ZONG_HZ: f64 = 62.5;
+
+/// What the pipeline must reach on a recovered train: found within
+/// [`FOUND_WITHIN_S`], F1 ≥ 99 %, as on the clean grid of
+/// `pipeline_synthetic.rs`. Zong's slope sum below [`COARSE_ZONG_HZ`] is
+/// held to that grid's 85 % (measured 86 % at 25 Hz and 30 bpm on a clean
+/// start) and found within 10 s: its first beats after a restart come a
+/// beat or two later there.
+pub fn needed(detector: DetectorKind, fs: f64) -> (f64, f64) {
+    if detector == DetectorKind::Zong && fs < COARSE_ZONG_HZ {
+        (10.0, 0.85)
     } else {
-        0.99
+        (FOUND_WITHIN_S, 0.99)
     }
 }
 
