@@ -321,8 +321,8 @@ pub struct Pipeline {
     // Detector index of the last restart, and of the last beat.
     restarted_at: u64,
     last_beat_t: u64,
-    // Smallest candidate height that may count, after a step or silence
-    // (0: none).
+    // Smallest candidate height that may count, set at a restart from the
+    // trusted level (0: none).
     level_floor: f32,
     // The gate's level while the signal was good (trusted pulses), since
     // the last restart took it for the floor.
