@@ -65,9 +65,9 @@ pub struct Elgendi {
     mean_alpha: f32,
     t: u64,
     block_len: usize,
-    // Samples since the last block wide enough for a beat, and the limit
-    // (IDLE_S).
-    idle: u32,
+    // Samples left until the offset's mean starts again (IDLE_S after the
+    // last block wide enough for a beat), and IDLE_S in samples.
+    idle_left: u32,
     idle_limit: u32,
     best: f32,
     best_t: u64,
@@ -97,7 +97,7 @@ impl Elgendi {
             mean_alpha: 1.0 / max_f32(OFFSET_MEAN_TAU_S * fs_hz, 1.0),
             t: 0,
             block_len: 0,
-            idle: 0,
+            idle_left: (IDLE_S * fs_hz) as u32,
             idle_limit: (IDLE_S * fs_hz) as u32,
             best: f32::NEG_INFINITY,
             best_t: 0,
@@ -140,7 +140,7 @@ impl Elgendi {
             let wide_enough = self.block_len >= self.w1;
             self.block_len = 0;
             if wide_enough {
-                self.idle = 0;
+                self.idle_left = self.idle_limit;
             }
             wide_enough.then_some(Candidate {
                 peak: self.best_t,
@@ -148,9 +148,9 @@ impl Elgendi {
                 amplitude: self.best,
             })
         } else {
-            self.idle += 1;
-            if self.idle > self.idle_limit {
-                self.idle = 0;
+            self.idle_left -= 1;
+            if self.idle_left == 0 {
+                self.idle_left = self.idle_limit;
                 self.mean_sq = ma_beat;
             }
             None

@@ -109,7 +109,7 @@ pub const SMOOTH_RATIO: f32 = 3.0;
 pub const ROUGH_S: f32 = 0.5;
 /// …and at most this many samples of it (white noise needs no more; the
 /// work stays small at high rates).
-pub const ROUGH_SAMPLES: usize = 128;
+pub const ROUGH_SAMPLES: usize = 64;
 
 /// The intervals of such a run lie within this ratio of each other.
 pub const FLOOR_RUN_STEADY: f32 = 1.2;
@@ -565,6 +565,9 @@ impl Pipeline {
     /// signal again from low-passed level `s`; returns the band-passed
     /// output at rest. (The heart-rate and HRV history stay: they hold only
     /// beats already reported.)
+    // Rare: kept out of the per-sample path's code.
+    #[cold]
+    #[inline(never)]
     fn restart(&mut self, s: f32, change: Change) -> f32 {
         // The sensor is likely the same after a restart and so is the
         // pulse's size within a wide margin: candidates far below the
@@ -648,11 +651,6 @@ impl Pipeline {
         let small = a < SMALL_FRACTION * level;
         let too_small_for_early = early && a < EARLY_LEVEL_FRACTION * level;
         if small || too_small_for_early {
-            if a < SMOOTH_RATIO * self.roughness() {
-                // Noise, not a smaller pulse: it neither counts towards a
-                // new level nor breaks a run of pulses that does.
-                return false;
-            }
             // A level set by an artefact, or a pulse that shrank, would
             // lock every real pulse out: small candidates of like height in
             // a row, none of them early, set a new level (the search-back
@@ -661,6 +659,11 @@ impl Pipeline {
                 && a * RELEVEL_LIKE >= self.dropped_height
                 && a <= RELEVEL_LIKE * self.dropped_height;
             if early {
+                return false;
+            }
+            if a < SMOOTH_RATIO * self.roughness() {
+                // Noise, not a smaller pulse: it neither counts towards a
+                // new level nor breaks a run of pulses that does.
                 return false;
             }
             self.dropped_in_row = if like { self.dropped_in_row + 1 } else { 1 };

@@ -111,10 +111,15 @@ impl Scale {
         let held = self.blocks;
         if held > QUIET_BLOCKS {
             let quiet = span(&self.highs[..QUIET_BLOCKS], &self.lows[..QUIET_BLOCKS]);
-            let before = span(
-                &self.highs[QUIET_BLOCKS..held],
-                &self.lows[QUIET_BLOCKS..held],
-            );
+            // Fixed bounds once all are held: the common case, unrolled.
+            let before = if held == HELD {
+                span(&self.highs[QUIET_BLOCKS..], &self.lows[QUIET_BLOCKS..])
+            } else {
+                span(
+                    &self.highs[QUIET_BLOCKS..held],
+                    &self.lows[QUIET_BLOCKS..held],
+                )
+            };
             if quiet * COLLAPSE_FACTOR < before {
                 return Change::Collapse;
             }
@@ -128,6 +133,10 @@ impl Scale {
     /// step soon after a first (into a short stretch of junk and out
     /// again) is caught, and a pulse rising from a flat line makes at most
     /// one restart, since its own rise is then the range.
+    // Only in the first second after a restart: kept out of the per-sample
+    // path's code.
+    #[cold]
+    #[inline(never)]
     fn early_step(&self, jump: f32) -> bool {
         let seen = self.blocks as u32 * self.block_len + self.filled;
         if seen < self.lag {
