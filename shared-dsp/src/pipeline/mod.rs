@@ -991,7 +991,16 @@ impl Pipeline {
         let trusted = timed_good && self.last_timed_good;
         self.last_timed_good = timed_good;
         if trusted && self.monitor.state() == SignalState::Good {
-            self.trusted_level = self.peak_level;
+            // A level first set or raised by half must come from smooth
+            // pulses, not band-passed noise that looked good (measured only
+            // then: it costs a pass over the input ring).
+            let raised = match (self.trusted_level, self.peak_level) {
+                (Some(t), Some(l)) => l > 1.5 * t,
+                _ => true,
+            };
+            if !raised || height >= SMOOTH_RATIO * self.roughness() {
+                self.trusted_level = self.peak_level;
+            }
             // The pulse is back and trusted: the floor, which only guards
             // the time without one, has done its work (left in place, a
             // pulse just around it would lose every other beat).
