@@ -21,7 +21,7 @@
 
 use super::ring::{Ring, RunningSum};
 use super::Candidate;
-use crate::math::max_f32;
+use crate::math::{max_f32, min_f32};
 
 /// W1, seconds (Elgendi et al. 2013).
 pub const W1_S: f32 = 0.111;
@@ -36,6 +36,22 @@ pub const BETA: f32 = 0.02;
 /// Time constant of the running mean that stands in for the paper's global
 /// mean of the squared signal, seconds (our choice).
 pub const OFFSET_MEAN_TAU_S: f32 = 10.0;
+
+/// Without a block of interest wide enough for a beat for this long,
+/// seconds, the running mean
+/// behind the offset starts again from the long average W2 (our choice,
+/// as Zong's detector lowers its threshold after 2.5 s): a mean learnt
+/// from an artefact far larger than the pulse would otherwise keep every
+/// block shut for tens of seconds, and from zero the offset would be too
+/// low to keep the blocks of fast pulses apart. Longer than the slowest
+/// interval (30 bpm).
+pub const IDLE_S: f32 = 2.5;
+
+/// Blocks of interest in a row too narrow for a beat after which the
+/// offset's mean is brought down to the long (W2) average, if above it
+/// (our choice): an offset learnt from a pulse or an artefact far larger
+/// than the present pulse keeps its blocks under W1 wide.
+pub const NARROW_RUN: u32 = 3;
 
 const RING: usize = 256;
 
@@ -55,6 +71,12 @@ pub struct Elgendi {
     mean_alpha: f32,
     t: u64,
     block_len: usize,
+    // Samples left until the offset's mean starts again (IDLE_S after the
+    // last block wide enough for a beat), and IDLE_S in samples.
+    idle_left: u32,
+    idle_limit: u32,
+    // Blocks in a row too narrow for a beat.
+    narrow_run: u32,
     best: f32,
     best_t: u64,
     squared: Ring<RING>,
@@ -83,6 +105,9 @@ impl Elgendi {
             mean_alpha: 1.0 / max_f32(OFFSET_MEAN_TAU_S * fs_hz, 1.0),
             t: 0,
             block_len: 0,
+            idle_left: (IDLE_S * fs_hz) as u32,
+            idle_limit: (IDLE_S * fs_hz) as u32,
+            narrow_run: 0,
             best: f32::NEG_INFINITY,
             best_t: 0,
         }
@@ -123,13 +148,71 @@ impl Elgendi {
         } else if self.block_len > 0 {
             let wide_enough = self.block_len >= self.w1;
             self.block_len = 0;
+            if wide_enough {
+                self.idle_left = self.idle_limit;
+                self.narrow_run = 0;
+            } else {
+                self.narrow_run += 1;
+                if self.narrow_run >= NARROW_RUN {
+                    // Pulses whose blocks the offset keeps too narrow: an
+                    // offset learnt from something larger.
+                    self.narrow_run = 0;
+                    self.mean_sq = min_f32(self.mean_sq, ma_beat);
+                }
+            }
             wide_enough.then_some(Candidate {
                 peak: self.best_t,
                 onset: None,
                 amplitude: self.best,
             })
         } else {
+            self.idle_left -= 1;
+            if self.idle_left == 0 {
+                self.idle_left = self.idle_limit;
+                self.mean_sq = ma_beat;
+            }
             None
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Candidates' times (s) of a pulse train at 62.5 Hz, 150 bpm: a
+    /// half-sine of height `big` for 20 s, then of height 1.
+    fn after_shrink(big: f32) -> [usize; 2] {
+        let fs = 62.5;
+        let mut d = Elgendi::new(fs);
+        let (mut before, mut after) = (0, 0);
+        for n in 0..(40.0 * fs) as usize {
+            let t = n as f32 / fs;
+            let phase = (t * 2.5).fract();
+            let a = if t < 20.0 { big } else { 1.0 };
+            let y = if phase < 0.4 {
+                a * libm::sinf(core::f32::consts::PI * phase / 0.4)
+            } else {
+                0.0
+            };
+            if let Some(c) = d.push(y) {
+                let at = c.peak as f32 / fs;
+                if (15.0..20.0).contains(&at) {
+                    before += 1;
+                } else if (23.0..28.0).contains(&at) {
+                    after += 1;
+                }
+            }
+        }
+        [before, after]
+    }
+
+    #[test]
+    fn a_pulse_twenty_times_smaller_is_found_within_three_seconds() {
+        // 5 s at 150 bpm: 12 or 13 beats either side of the change, once
+        // the offset learnt from the large pulse no longer shuts the blocks.
+        let [before, after] = after_shrink(20.0);
+        assert!((12..=13).contains(&before), "{before}");
+        assert!((12..=13).contains(&after), "{after}");
     }
 }

@@ -73,17 +73,22 @@ pub const DETECTOR_BASE_HZ: f32 = 62.5;
 
 /// A candidate below this fraction of the running peak level is dropped.
 /// Premature beats in ICU records reach 20-45 % of the running level and
-/// are real beats (scored against the ECG), so the gate is low; what it
-/// still keeps out is noise between pulses.
-pub const SMALL_FRACTION: f32 = 0.2;
+/// are real beats (scored against the ECG); below 30 % the synthetic
+/// grid's slow pulses' late diastolic wave gets through.
+pub const SMALL_FRACTION: f32 = 0.3;
 /// A candidate sooner than this fraction of the recent interval after the
 /// last beat…
-pub const EARLY_FRACTION: f32 = 0.7;
-/// …is dropped when below this fraction of the running peak level:
-/// diastolic waves come early (a slow pulse's up to 65 % of the interval
-/// after its peak); premature beats that early are kept when this large,
-/// and flagged by their interval. The three were tuned on every shared
-/// dataset and the synthetic grid at once.
+pub const EARLY_FRACTION: f32 = 0.6;
+/// …and sooner than this, ms, (a diastolic wave follows its systolic peak
+/// within well under a second at any heart rate, common practice; a
+/// median interval learnt while every other beat was missed must not make
+/// those beats early for ever)…
+pub const EARLY_MAX_MS: f32 = 1000.0;
+/// …is dropped when below this fraction of the running peak level
+/// (diastolic waves come early; premature beats that early are kept when
+/// this large, and flagged by their interval). The gates were tuned on
+/// every shared dataset, the synthetic grid and the recovery property at
+/// once.
 pub const EARLY_LEVEL_FRACTION: f32 = 0.35;
 
 /// Time over which a step is measured, seconds (the size that makes a
@@ -100,6 +105,28 @@ pub const RELEVEL_AFTER: u32 = 2;
 /// finger); while there is no signal the floor sinks (see
 /// [`FLOOR_HALF_S`]), so it cannot lock a smaller pulse out for long.
 pub const FLOOR_DIVISOR: f32 = 30.0;
+
+/// Candidates below the level floor in a row, at a steady rate and of like
+/// height, that are a pulse after all and lift the floor: noise is neither
+/// steady nor of like height, a pulse smaller than the one the floor was
+/// learnt from (or than an artefact taken for a pulse) is both.
+pub const FLOOR_RUN: usize = 3;
+
+/// A candidate below the floor counts towards such a run only when its
+/// height is at least this many times the input's mean sample-to-sample
+/// change (white noise's is about 1.1 standard deviations; a band-passed
+/// noise bump is about as high, a pulse many times higher at any rate
+/// from 25 Hz).
+pub const SMOOTH_RATIO: f32 = 3.0;
+
+/// Input time over which that change is measured, seconds…
+pub const ROUGH_S: f32 = 0.5;
+/// …and at most this many samples of it (white noise needs no more; the
+/// work stays small at high rates).
+pub const ROUGH_SAMPLES: usize = 64;
+
+/// The intervals of such a run lie within this ratio of each other.
+pub const FLOOR_RUN_STEADY: f32 = 1.2;
 
 /// While there is no signal, the floor halves every this many seconds.
 pub const FLOOR_HALF_S: f32 = 4.0;
@@ -305,9 +332,20 @@ pub struct Pipeline {
     // pipeline starts afresh; and that span (twice the silence limit).
     lost_at: u64,
     lost_after: u64,
-    // Smallest candidate height that may count, after a step or silence
-    // (0: none).
+    // The last candidates below the level floor in a row (input index of
+    // the peak, height), oldest first, and how many are held.
+    under: [(u64, f32); FLOOR_RUN],
+    under_floor: usize,
+    // Detector index of the last restart.
+    restarted_at: u64,
+    // Smallest candidate height that may count, set at a restart from the
+    // trusted level (0: none).
     level_floor: f32,
+    // The gate's level while the signal was good (trusted pulses), since
+    // the last restart took it for the floor.
+    trusted_level: Option<f32>,
+    // The last beat was good and had an interval (since the last restart).
+    last_timed_good: bool,
     // Factor per detector sample that halves the floor in FLOOR_HALF_S.
     floor_decay: f32,
     restarts: u64,
@@ -401,7 +439,12 @@ impl Pipeline {
             dropped_height: 0.0,
             lost_at: lost_after,
             lost_after,
+            restarted_at: 0,
             level_floor: 0.0,
+            trusted_level: None,
+            last_timed_good: false,
+            under: [(0, 0.0); FLOOR_RUN],
+            under_floor: 0,
             // 1 − ln 2 / n: halves in n samples to within 0.3 % (n ≥ 100).
             floor_decay: 1.0 - core::f32::consts::LN_2 / (FLOOR_HALF_S * fd),
             restarts: 0,
@@ -474,7 +517,7 @@ impl Pipeline {
         }
         self.last_value = c.value;
         self.input.put(self.n, c.value);
-        let s = self.lowpass.process(c.value);
+        let mut s = self.lowpass.process(c.value);
         if c.clipped {
             self.mark |= MARK_CLIPPED;
             self.clipped_in_block += 1;
@@ -513,14 +556,13 @@ impl Pipeline {
             self.level_floor *= self.floor_decay;
         }
         let y = if change != Change::None || lost {
-            // After a step or a silence the sensor is likely the same and
-            // so is the pulse's size within a wide margin: candidates far
-            // below the old level (noise on a lifted finger) cannot set a
-            // new one. After a collapse the old level was an artefact's.
-            if let Some(level) = self.peak_level {
-                self.level_floor = max_f32(level / FLOOR_DIVISOR, self.level_floor);
+            if change == Change::Step {
+                // The input has jumped: the low-pass starts at the new
+                // level too, so no part of its step response, of whatever
+                // size, reaches the detector or the pulse measures.
+                s = self.lowpass.settle(c.value);
             }
-            self.restart(s)
+            self.restart(s, change)
         } else {
             self.highpass.process(s)
         };
@@ -553,21 +595,51 @@ impl Pipeline {
     /// signal again from low-passed level `s`; returns the band-passed
     /// output at rest. (The heart-rate and HRV history stay: they hold only
     /// beats already reported.)
-    fn restart(&mut self, s: f32) -> f32 {
+    // Rare: kept out of the per-sample path's code.
+    #[cold]
+    #[inline(never)]
+    fn restart(&mut self, s: f32, change: Change) -> f32 {
+        // The sensor is likely the same after a restart and so is the
+        // pulse's size within a wide margin: candidates far below the
+        // level of the last trusted pulses (noise on a lifted finger)
+        // cannot set a new one. Only trusted pulses set the floor, and
+        // only once: an artefact's level never does, and the floor then
+        // only sinks until pulses are trusted again.
+        if let Some(level) = self.trusted_level.take() {
+            self.level_floor = max_f32(level / FLOOR_DIVISOR, self.level_floor);
+        }
         let rest = self.highpass.settle(s);
         self.detector = Detector::new(self.config.options.detector, self.fd);
         self.epoch = self.t;
+        self.restarted_at = self.t;
         self.lost_at = self.t + self.lost_after;
         self.peak_level = None;
         self.dropped_in_row = 0;
         self.last_peak = None;
         self.last_good = false;
+        self.last_timed_good = false;
         self.template.reset();
         self.all_intervals.clear();
         self.recent_ibi = None;
-        self.scale.forget();
+        match change {
+            // The history held the step.
+            Change::Step => self.scale.forget(),
+            // The history held the artefact, but its last second is the
+            // quiet signal after it: kept as the reference, no second
+            // after the restart is blind to a step.
+            Change::Collapse => self.scale.keep_quiet(),
+            // After a silence the history is the signal's own.
+            Change::None => {}
+        }
         self.restarts += 1;
         rest
+    }
+
+    /// Detector samples since the last restart at detector index `now`:
+    /// the oldest age of the rings that holds this signal, not what came
+    /// before the restart (a step, an artefact).
+    fn since_restart(&self, now: u64) -> usize {
+        (now - self.restarted_at) as usize
     }
 
     /// Times the filters restarted after a step in the input.
@@ -586,8 +658,9 @@ impl Pipeline {
             return false;
         }
         if a < self.level_floor {
-            return false;
+            return self.below_floor(peak, a);
         }
+        self.under_floor = 0;
         let Some(level) = self.peak_level else {
             self.peak_level = Some(a);
             self.dropped_in_row = 0;
@@ -603,7 +676,7 @@ impl Pipeline {
         }
         let median = self.recent_ibi;
         let early = match (since_ms, median) {
-            (Some(s), Some(m)) => s < EARLY_FRACTION * m,
+            (Some(s), Some(m)) => s < EARLY_FRACTION * m && s < EARLY_MAX_MS,
             _ => false,
         };
         let small = a < SMALL_FRACTION * level;
@@ -617,6 +690,11 @@ impl Pipeline {
                 && a * RELEVEL_LIKE >= self.dropped_height
                 && a <= RELEVEL_LIKE * self.dropped_height;
             if early {
+                return false;
+            }
+            if a < SMOOTH_RATIO * self.roughness() {
+                // Noise, not a smaller pulse: it neither counts towards a
+                // new level nor breaks a run of pulses that does.
                 return false;
             }
             self.dropped_in_row = if like { self.dropped_in_row + 1 } else { 1 };
@@ -635,6 +713,89 @@ impl Pipeline {
         let rate = if a > level { 0.5 } else { 0.125 };
         self.peak_level = Some(level + rate * (a - level));
         true
+    }
+
+    /// A candidate below the level floor: kept with the ones below it
+    /// before; when the last [`FLOOR_RUN`] are a steady pulse (plausible
+    /// intervals within [`FLOOR_RUN_STEADY`] of each other, heights within
+    /// [`RELEVEL_LIKE`]), the floor is lifted and the candidate taken as a
+    /// beat and as the new level.
+    fn below_floor(&mut self, peak: u64, a: f32) -> bool {
+        if a < SMOOTH_RATIO * self.roughness() {
+            // As rough as the input's sample-to-sample noise: no pulse.
+            return false;
+        }
+        if self.under_floor > 0 {
+            let last = self.under[self.under_floor - 1].0;
+            if peak.saturating_sub(last) as f32 * 1000.0 / self.fs > rate::MAX_IBI_MS {
+                // Longer than any interval since the last: no run.
+                self.under_floor = 0;
+            }
+        }
+        if self.under_floor > 0 {
+            let top = self.under[..self.under_floor]
+                .iter()
+                .fold(0.0f32, |m, &(_, h)| max_f32(m, h));
+            if a * RELEVEL_LIKE < top {
+                // A diastolic wave or a bump between pulses: it neither
+                // counts nor breaks the run.
+                return false;
+            }
+            if a > RELEVEL_LIKE * top {
+                // A larger pulse starts a run of its own.
+                self.under_floor = 0;
+            }
+        }
+        if self.under_floor == FLOOR_RUN {
+            self.under.copy_within(1.., 0);
+            self.under_floor -= 1;
+        }
+        self.under[self.under_floor] = (peak, a);
+        self.under_floor += 1;
+        if self.under_floor < FLOOR_RUN {
+            return false;
+        }
+        let (mut short, mut long) = (f32::INFINITY, 0.0f32);
+        let (mut low, mut high) = (f32::INFINITY, 0.0f32);
+        for w in self.under.windows(2) {
+            let ms = w[1].0.saturating_sub(w[0].0) as f32 * 1000.0 / self.fs;
+            short = min_f32(short, ms);
+            long = max_f32(long, ms);
+        }
+        for &(_, h) in &self.under {
+            low = min_f32(low, h);
+            high = max_f32(high, h);
+        }
+        let steady = short >= rate::MIN_IBI_MS
+            && long <= rate::MAX_IBI_MS
+            && long <= FLOOR_RUN_STEADY * short;
+        if !(steady && high <= RELEVEL_LIKE * low) {
+            return false;
+        }
+        self.level_floor = 0.0;
+        self.under_floor = 0;
+        self.peak_level = Some(a);
+        self.dropped_in_row = 0;
+        true
+    }
+
+    /// Mean absolute difference between successive input samples over the
+    /// last [`ROUGH_S`] (the input ring's newest part): white noise's
+    /// measure, which a smooth pulse of the same height far exceeds.
+    fn roughness(&self) -> f32 {
+        let n = (libm::roundf(ROUGH_S * self.fs) as usize)
+            .min(ROUGH_SAMPLES)
+            .min((self.n.min(INPUT_RING as u64) as usize).saturating_sub(1));
+        if n == 0 {
+            return 0.0;
+        }
+        // The newest input sample has index `self.n - 1` (pushed already).
+        let newest = self.n - 1;
+        let mut sum = 0.0;
+        for a in 0..n as u64 {
+            sum += libm::fabsf(self.input.at(newest - a) - self.input.at(newest - a - 1));
+        }
+        sum / n as f32
     }
 
     /// At the end of a recording: feed the last value again for long
@@ -742,7 +903,9 @@ impl Pipeline {
         let mid = self.smoothed.at(age) - 0.5 * height;
         let period = self.recent_ibi.unwrap_or(800.0) * self.fd / 1000.0;
         let back = (libm::roundf(0.6 * period) as usize).max(1);
-        let oldest = (age + back).min(self.smoothed.len().saturating_sub(1));
+        let oldest = (age + back)
+            .min(self.smoothed.len().saturating_sub(1))
+            .min(self.since_restart(now).saturating_sub(1));
         let mut a = age;
         while a < oldest && self.smoothed.at(a + 1) >= mid {
             a += 1;
@@ -773,7 +936,9 @@ impl Pipeline {
                 back = back.min(last_age - age);
             }
         }
-        let oldest = (age + back).min(self.smoothed.len().saturating_sub(1));
+        let oldest = (age + back)
+            .min(self.smoothed.len().saturating_sub(1))
+            .min(self.since_restart(now));
         let mut foot = f32::INFINITY;
         for a in age..=oldest.max(age) {
             foot = min_f32(foot, self.smoothed.at(a));
@@ -814,7 +979,11 @@ impl Pipeline {
         }
         // The refined peak's age in detector samples.
         let age = (n - peak) as f32 / self.decim as f32;
-        let from = min_f32(age + 0.3 * period, (self.banded.len().max(2) - 2) as f32);
+        let since = self.since_restart(self.t - 1) as f32;
+        let from = min_f32(
+            min_f32(age + 0.3 * period, (self.banded.len().max(2) - 2) as f32),
+            since,
+        );
         let to = max_f32(age - 0.2 * period, 0.0);
         for a in (libm::floorf(to) as usize)..=(libm::ceilf(from) as usize) {
             let m = self.marks.at(a);
@@ -866,6 +1035,29 @@ impl Pipeline {
             }
         }
         self.monitor.beat(peak, beat_flags.is_good());
+        // Trusted: good with an interval, after a beat good with an
+        // interval since the last restart, while the signal is good (the
+        // state outlives a restart: the first two beats after one never
+        // set the level the floor comes from).
+        let timed_good = beat_flags.is_good() && ibi.is_some();
+        let trusted = timed_good && self.last_timed_good;
+        self.last_timed_good = timed_good;
+        if trusted && self.monitor.state() == SignalState::Good {
+            // A level first set or raised by half must come from smooth
+            // pulses, not band-passed noise that looked good (measured only
+            // then: it costs a pass over the input ring).
+            let raised = match (self.trusted_level, self.peak_level) {
+                (Some(t), Some(l)) => l > 1.5 * t,
+                _ => true,
+            };
+            if !raised || height >= SMOOTH_RATIO * self.roughness() {
+                self.trusted_level = self.peak_level;
+            }
+            // The pulse is back and trusted: the floor, which only guards
+            // the time without one, has done its work (left in place, a
+            // pulse just around it would lose every other beat).
+            self.level_floor = 0.0;
+        }
         match ibi {
             Some(i) => self.hrv.push(i, beat_flags.is_good() && self.last_good),
             // No interval (signal lost, filters restarted): a bad entry, so
@@ -908,7 +1100,9 @@ impl Pipeline {
                 (libm::roundf(0.35 * m * self.fd / 1000.0) as usize).min(self.search_after)
             });
         let newest = age.saturating_sub(after);
-        let oldest = (age + self.search_before).min(self.smoothed.len().saturating_sub(1));
+        let oldest = (age + self.search_before)
+            .min(self.smoothed.len().saturating_sub(1))
+            .min(self.since_restart(now));
         let mut best_age = age.min(oldest);
         let mut best = f32::NEG_INFINITY;
         for a in newest..=oldest.max(newest) {

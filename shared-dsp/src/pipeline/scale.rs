@@ -6,11 +6,14 @@
 //! than [`STEP_FACTOR`] times the range of the blocks before it; a
 //! *collapse* (an artefact ends, a tap or a burst of noise stops) is a last
 //! second whose range is below 1/[`COLLAPSE_FACTOR`] of the range of the
-//! two seconds before it. Both make the pipeline restart its filters from
-//! the present level. After a restart the history is forgotten, so the
-//! reference is always the signal since then: nothing learnt from one
-//! artefact can make every later pulse look like a step (a candidate-based
-//! reference could: one small first pulse made every upstroke a step).
+//! (up to) two seconds before it. Both make the pipeline restart its
+//! filters from the present level. After a step the history is forgotten,
+//! after a collapse all but the quiet second, so the reference is always
+//! the signal since: nothing learnt from one artefact can make every later
+//! pulse look like a step (a candidate-based reference could: one small
+//! first pulse made every upstroke a step). Until a second of new blocks
+//! is held, a jump of more than [`EARLY_STEP_FACTOR`] ranges of all since
+//! the restart is a step, so no second after a restart is blind.
 
 use crate::math::{max_f32, min_f32};
 
@@ -21,16 +24,21 @@ pub const STEP_BLOCKS: usize = 8;
 /// A jump within the step lag larger than this many ranges of the blocks
 /// before it is a step (finger placed or lifted, a knock, a light step).
 pub const STEP_FACTOR: f32 = 8.0;
+/// Until a second of blocks since a restart is held, a step is a jump larger than
+/// this many ranges of all since the restart (at least the step lag): the
+/// range of a short stretch is a poor reference, so only a jump far beyond
+/// it counts, such as the end of a short stretch of junk.
+pub const EARLY_STEP_FACTOR: f32 = 4.0 * STEP_FACTOR;
 /// Newest blocks judged for a collapse (1 s).
 pub const QUIET_BLOCKS: usize = 4;
 /// A range of the newest [`QUIET_BLOCKS`] below 1/this of the range of the
-/// [`STEP_BLOCKS`] before them is a collapse.
+/// (up to [`STEP_BLOCKS`]) blocks before them is a collapse.
 pub const COLLAPSE_FACTOR: f32 = 20.0;
-/// Blocks judged.
+/// Blocks held.
 const JUDGED: usize = STEP_BLOCKS + QUIET_BLOCKS;
 /// Slots of the block ring: a power of two at least [`JUDGED`], so the
 /// ring's index is a mask.
-const HELD: usize = 16;
+const RING: usize = 16;
 /// Blocks needed since a restart before a step is judged (1 s).
 const STEP_AFTER: usize = 4;
 
@@ -49,18 +57,25 @@ pub enum Change {
 #[derive(Clone, Copy, Debug)]
 pub struct Scale {
     block_len: u32,
+    // Detector samples over which a jump is measured (the pipeline's
+    // `STEP_S`).
+    lag: u32,
     filled: u32,
     high: f32,
     low: f32,
-    // Completed blocks' highest and lowest values in a ring; `newest` is
-    // the slot of the newest (no shifting: this runs on every block).
-    highs: [f32; HELD],
-    lows: [f32; HELD],
+    // Completed blocks' highest and lowest values in a ring, `newest` the
+    // slot of the newest (no shifting: this runs on every block); the
+    // newest `blocks` of them are held.
+    highs: [f32; RING],
+    lows: [f32; RING],
     newest: usize,
     blocks: usize,
-    // STEP_FACTOR times the range of the STEP_BLOCKS newest completed
-    // blocks (infinite until enough are held), kept per block so the
-    // per-sample test is one comparison.
+    // Blocks completed since the last restart (`blocks` may also hold the
+    // quiet second kept from before a collapse).
+    fresh: usize,
+    // Range of the STEP_BLOCKS newest completed blocks, kept per block,
+    // and STEP_FACTOR times it (the per-sample test is one comparison).
+    step_range: Option<f32>,
     step_jump: f32,
 }
 
@@ -69,13 +84,16 @@ impl Scale {
     pub fn new(fd_hz: f32) -> Self {
         Self {
             block_len: (libm::roundf(BLOCK_S * fd_hz) as u32).max(1),
+            lag: (libm::roundf(super::STEP_S * fd_hz) as u32).max(1),
             filled: 0,
             high: f32::NEG_INFINITY,
             low: f32::INFINITY,
-            highs: [0.0; HELD],
-            lows: [0.0; HELD],
+            highs: [0.0; RING],
+            lows: [0.0; RING],
             newest: 0,
             blocks: 0,
+            fresh: 0,
+            step_range: None,
             step_jump: f32::INFINITY,
         }
     }
@@ -84,7 +102,12 @@ impl Scale {
     /// step lag ago), then take the newest smoothed value `s`.
     #[inline]
     pub fn push(&mut self, s: f32, jump: f32) -> Change {
-        if jump.abs() > self.step_jump {
+        let step = if self.step_range.is_some() {
+            jump.abs() > self.step_jump
+        } else {
+            self.early_step(jump)
+        };
+        if step {
             return Change::Step;
         }
         // The smoothed input is finite (the conditioner replaces NaN), so
@@ -102,28 +125,49 @@ impl Scale {
         self.close_block()
     }
 
+    /// Until a second of blocks is held (after a restart), a step is
+    /// judged against the range of everything since, once the jump's lag
+    /// lies wholly within it: a second
+    /// step soon after a first (into a short stretch of junk and out
+    /// again) is caught, and a pulse rising from a flat line makes at most
+    /// one restart, since its own rise is then the range.
+    // Only in the first second after a restart: kept out of the per-sample
+    // path's code.
+    #[cold]
+    #[inline(never)]
+    fn early_step(&self, jump: f32) -> bool {
+        let seen = self.blocks as u32 * self.block_len + self.filled;
+        if seen < self.lag {
+            return false;
+        }
+        let (high, low) = join(self.range(0, self.blocks), (self.high, self.low));
+        jump.abs() > EARLY_STEP_FACTOR * (high - low)
+    }
+
     fn close_block(&mut self) -> Change {
-        self.newest = (self.newest + 1) % HELD;
+        self.newest = (self.newest + 1) % RING;
         self.highs[self.newest] = self.high;
         self.lows[self.newest] = self.low;
         self.blocks = (self.blocks + 1).min(JUDGED);
+        self.fresh += 1;
         self.filled = 0;
         self.high = f32::NEG_INFINITY;
         self.low = f32::INFINITY;
-        if self.blocks < STEP_AFTER {
-            return Change::None;
-        }
-        // Ranges of the newest second of blocks, of those before it (up
-        // to STEP_BLOCKS in all) and, once held, of the second before
-        // those: each block is read once.
-        let newest = self.range(0, QUIET_BLOCKS);
-        let n = self.blocks.min(STEP_BLOCKS);
-        let older = self.range(QUIET_BLOCKS, n);
-        let recent = join(newest, older);
-        self.step_jump = STEP_FACTOR * (recent.0 - recent.1);
-        if self.blocks >= JUDGED {
-            let oldest = self.range(STEP_BLOCKS, JUDGED);
-            let before = join(older, oldest);
+        // Ranges of the newest second, of the blocks after it up to
+        // STEP_BLOCKS, and of the rest: each block is read once.
+        let held = self.blocks;
+        let newest = self.range(0, QUIET_BLOCKS.min(held));
+        let older = self.range(QUIET_BLOCKS.min(held), held.min(STEP_BLOCKS));
+        self.step_range = (self.fresh >= STEP_AFTER).then(|| {
+            let (high, low) = join(newest, older);
+            high - low
+        });
+        self.step_jump = self.step_range.map_or(f32::INFINITY, |r| STEP_FACTOR * r);
+        // Judged as soon as a block before the quiet second is held: an
+        // artefact that began with a restart (a step into it) and ended
+        // within three seconds is a collapse too.
+        if held > QUIET_BLOCKS {
+            let before = join(older, self.range(STEP_BLOCKS.min(held), held));
             if (newest.0 - newest.1) * COLLAPSE_FACTOR < before.0 - before.1 {
                 return Change::Collapse;
             }
@@ -137,7 +181,7 @@ impl Scale {
         let mut high = f32::NEG_INFINITY;
         let mut low = f32::INFINITY;
         for age in from..to {
-            let k = (self.newest + HELD - age) % HELD;
+            let k = (self.newest + RING - age) % RING;
             // Block extremes are finite: plain comparisons do.
             if self.highs[k] > high {
                 high = self.highs[k];
@@ -151,20 +195,29 @@ impl Scale {
 
     /// Forget the history (after a restart).
     pub fn forget(&mut self) {
-        self.filled = 0;
-        self.high = f32::NEG_INFINITY;
-        self.low = f32::INFINITY;
-        self.blocks = 0;
+        *self = Self {
+            block_len: self.block_len,
+            lag: self.lag,
+            ..Self::new(1.0)
+        };
+    }
+
+    /// Forget all but the newest [`QUIET_BLOCKS`] completed blocks and the
+    /// block being filled (after a collapse: the quiet second is the
+    /// signal's own, what came before it the artefact's). Until
+    /// a second of new signal is held, steps are judged as
+    /// right after any restart (`early_step`), against the kept second too.
+    pub fn keep_quiet(&mut self) {
+        self.blocks = self.blocks.min(QUIET_BLOCKS);
+        self.fresh = 0;
+        self.step_range = None;
         self.step_jump = f32::INFINITY;
     }
 
     /// Range of the newest completed blocks up to [`STEP_BLOCKS`], if
     /// enough are held to judge a step.
     pub fn step_range(&self) -> Option<f32> {
-        (self.blocks >= STEP_AFTER).then(|| {
-            let (high, low) = self.range(0, self.blocks.min(STEP_BLOCKS));
-            high - low
-        })
+        self.step_range
     }
 }
 
@@ -210,6 +263,54 @@ mod tests {
             }
         });
         assert!(feed(&mut s, with_step, 10).contains(&Change::Step));
+    }
+
+    #[test]
+    fn a_second_step_soon_after_a_restart_is_a_step_and_a_rising_pulse_is_not() {
+        let fd = 100.0;
+        // 0.2 s flat after a restart, then a jump far beyond that range.
+        let mut s = Scale::new(fd);
+        let v = (0..40).map(|k| if k < 20 { 1.0 } else { 50.0 });
+        assert!(feed(&mut s, v, 10).contains(&Change::Step));
+        // A pulse rising from the restart: its own rise is the range.
+        let mut s = Scale::new(fd);
+        let v = (0..60).map(|k| libm::sinf(k as f32 * 0.05));
+        assert!(feed(&mut s, v, 10).iter().all(|c| *c == Change::None));
+    }
+
+    #[test]
+    fn after_a_collapse_the_quiet_second_judges_steps_at_once() {
+        let fd = 100.0;
+        let mut s = Scale::new(fd);
+        let loud = (0..300).map(|k| if k % 2 == 0 { 500.0 } else { -500.0 });
+        let quiet = (0..200).map(|k| 0.01 * libm::sinf(k as f32 * 0.075));
+        let changes = feed(&mut s, loud.chain(quiet), 10);
+        assert!(changes.contains(&Change::Collapse));
+        s.keep_quiet();
+        // A jump of 10 right away: far beyond the quiet second's range.
+        assert_eq!(s.push(10.0, 10.0), Change::Step);
+    }
+
+    #[test]
+    fn a_short_artefact_right_after_a_restart_ends_in_a_collapse() {
+        // Half a second of loud noise from the start (as after a step into
+        // it), then a small pulse: a collapse once its quiet second is held.
+        let fd = 100.0;
+        let mut s = Scale::new(fd);
+        let v = (0..400).map(|k| {
+            if k < 50 {
+                if k % 2 == 0 {
+                    500.0
+                } else {
+                    -500.0
+                }
+            } else {
+                libm::sinf(k as f32 * 0.075)
+            }
+        });
+        let changes = feed(&mut s, v, 10);
+        let at = changes.iter().position(|c| *c == Change::Collapse);
+        assert!(at.is_some_and(|a| (140..=200).contains(&a)), "{at:?}");
     }
 
     #[test]

@@ -122,20 +122,44 @@ impl Zong {
 
         if t < self.learn {
             self.learn_sum += ssf;
-            if t + 1 == self.learn {
+            if self.last_beat.is_none() {
                 // Threshold base 3 × mean SSF; the threshold proper is the
-                // usual fraction of it.
-                let mean = self.learn_sum / self.learn as f32;
+                // usual fraction of it, set from the whole learning period
+                // at its end. Until then, and until a first beat, it
+                // follows the mean so far, so a pulse is found while the
+                // detector still learns (after a restart, waiting the whole
+                // period would lose the first pulses at slow rates).
+                let mean = self.learn_sum / (t + 1) as f32;
                 self.max_avg = 3.0 * mean;
                 self.threshold = THRESHOLD_FRACTION * self.max_avg;
             }
-            return None;
+            if t < self.window as u64 {
+                // The slope sum is not yet over a whole window.
+                return None;
+            }
         }
-        if t - self.last_change.max(self.learn) > self.decay && self.pending.is_none() {
-            // Lost, or the first threshold too high: lower the bar so the
-            // detector can pick the pulse up.
-            self.threshold *= 0.5;
-            self.max_avg *= 0.5;
+        if t - self.last_change > self.decay && self.pending.is_none() {
+            // Lost, or the threshold learnt from an artefact: lower the bar
+            // so the detector can pick the pulse up, at once to what the
+            // slope sum since would have taught it from the start (by
+            // halving alone, a threshold a thousand times too high would
+            // take half a minute).
+            // Since the last beat's own upstroke (its refractory period)
+            // only: that beat may be the artefact that set the bar.
+            let since = t.saturating_sub(self.last_change + self.refractory) as usize;
+            let held = self.ssf_hist.len().min(since).max(1);
+            let mut sum = 0.0;
+            for a in 0..held {
+                sum += self.ssf_hist.at(a);
+            }
+            let relearnt = 3.0 * sum / held as f32;
+            self.max_avg = (0.5 * self.max_avg).min(relearnt);
+            if t < self.learn {
+                // Still learning: the mean so far goes on from here, not
+                // from the artefact that came first.
+                self.learn_sum = self.max_avg / 3.0 * (t + 1) as f32;
+            }
+            self.threshold = THRESHOLD_FRACTION * self.max_avg;
             self.last_change = t;
         }
         if let Some(cross) = self.pending {
@@ -181,10 +205,12 @@ impl Zong {
 
     fn finish(&mut self, now: u64, cross: u64) -> Option<Candidate> {
         let age_cross = (now - cross) as usize;
-        // The pulse's SSF maximum in the search window after the crossing.
-        let newest = age_cross.saturating_sub(self.search);
+        // The pulse's SSF maximum from the crossing until the pulse turned
+        // down: a crossing early on the foot (a threshold learnt too low)
+        // still measures the whole upstroke, so the threshold comes back
+        // up instead of staying low.
         let mut ssf_max = 0.0f32;
-        for a in newest..=age_cross {
+        for a in 0..=age_cross {
             ssf_max = max_f32(ssf_max, self.ssf_hist.at(a));
         }
         // Onset: back from the crossing to where the SSF was still below
@@ -208,7 +234,13 @@ impl Zong {
                 best_age = a;
             }
         }
-        self.max_avg += 0.25 * (ssf_max - self.max_avg);
+        if self.last_beat.is_none() {
+            // The first pulse's maximum is the best guess of recent
+            // pulses' maxima (the learnt mean is only a start).
+            self.max_avg = ssf_max;
+        } else {
+            self.max_avg += 0.25 * (ssf_max - self.max_avg);
+        }
         self.threshold = THRESHOLD_FRACTION * self.max_avg;
         if let Some(last) = self.last_beat {
             let gap = (cross - last) as f32;
