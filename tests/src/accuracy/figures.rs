@@ -272,7 +272,9 @@ impl Figure {
             BidmcRateMae => "heart-rate MAE against the monitor's pulse_bpm",
             ExerciseWindowsWithin => "8 s windows within 10 bpm, good beats (coverage)",
             StrapHrWithin => "mean HR within 3 bpm of the strap's",
-            StrapIbiMedian => "median \\|IBI − RR\\| over good beats, worst recording with 10 or more",
+            StrapIbiMedian => {
+                "median \\|IBI − RR\\| over good beats, worst recording with 10 or more"
+            }
             StrapRmssdWithin => "RMSSD within 25 % of the strap's",
         }
     }

@@ -26,10 +26,10 @@ use plethwire::score::records::{expand, Scores};
 use plethwire_dsp::pipeline::Config;
 
 use crate::baseline::{baseline_detections, baseline_replay, BaselineInput};
-use missed::{count_missed, MissedCounts};
 use crate::python;
 use datasets::{Dataset, DATASETS};
 use figures::{Side, SideFigures};
+use missed::{count_missed, MissedCounts};
 
 /// Why the picture could not be made.
 #[derive(Debug)]

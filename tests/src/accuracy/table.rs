@@ -4,9 +4,9 @@
 
 use std::path::Path;
 
-use super::missed::{MissedCounts, PREMATURE_SHARE, VISIBLE_SHARE};
 use super::datasets::DATASETS;
 use super::figures::FIGURES;
+use super::missed::{MissedCounts, PREMATURE_SHARE, VISIBLE_SHARE};
 use super::targets::{Verdict, TARGETS};
 use super::{AccuracyError, Picture};
 
