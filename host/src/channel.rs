@@ -105,8 +105,10 @@ pub fn judge(signal: &LoadedSignal) -> ChannelFigure {
     }
 }
 
-/// NaN → the last good value (the first good one before any).
-fn hold_missing(x: &[f64]) -> Vec<f64> {
+/// The samples with every non-finite value replaced by the last finite
+/// one before it (the first finite one for a leading run; zeros when there
+/// is none).
+pub fn hold_missing(x: &[f64]) -> Vec<f64> {
     let mut last = x.iter().copied().find(|v| v.is_finite()).unwrap_or(0.0);
     x.iter()
         .map(|&v| {

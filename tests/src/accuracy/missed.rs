@@ -14,6 +14,7 @@
 //!   least [`VISIBLE_SHARE`] of the median of that height at the matched
 //!   beats of the same record (our choice).
 
+use plethwire::channel::hold_missing;
 use plethwire::ecg::stages::zero_phase_band;
 use plethwire::ecg::EcgReference;
 use plethwire::score::MATCH_WINDOW_S;
@@ -72,7 +73,7 @@ pub fn count_missed(ecg: &EcgReference, ppg: &[f64], pulses: &[u64]) -> MissedCo
     let missed = ecg.missed(pulses);
     let scored = ecg.score(pulses);
     let scored_r = scored.counts.tp + scored.counts.fn_;
-    let Some(band) = zero_phase_band(&finite(ppg), fs, PULSE_BAND_HZ) else {
+    let Some(band) = zero_phase_band(&hold_missing(ppg), fs, PULSE_BAND_HZ) else {
         return MissedCounts {
             scored: scored_r,
             missed: missed.len(),
@@ -130,20 +131,6 @@ fn pulse_height(band: &[f64], fs: f64, due: u64) -> f64 {
         .copied()
         .fold(f64::INFINITY, f64::min);
     band[top] - foot
-}
-
-/// Non-finite samples replaced by the last finite one (the first finite
-/// one for a leading run).
-fn finite(x: &[f64]) -> Vec<f64> {
-    let mut last = x.iter().copied().find(|v| v.is_finite()).unwrap_or(0.0);
-    x.iter()
-        .map(|&v| {
-            if v.is_finite() {
-                last = v;
-            }
-            last
-        })
-        .collect()
 }
 
 #[cfg(test)]
