@@ -227,7 +227,7 @@ fn autocorrelation_peak(x: &[f64], min_lag: usize, max_lag: usize) -> (f64, usiz
 mod tests {
     use super::*;
     use crate::io::test_support::Rng;
-    use crate::synth::{generate, HrSchedule, SynthOptions};
+    use plethwire_synth::{generate, HrSchedule, SynthOptions};
 
     fn signal(name: &str, fs: f64, samples: Vec<f64>) -> LoadedSignal {
         LoadedSignal {

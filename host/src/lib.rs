@@ -1,6 +1,6 @@
 //! plethwire host library: the `plethwire` command line ([`cli`]) and the
 //! engines behind its subcommands, usable without it ([`filter_report`]).
-//! Synthetic recordings with known beats, for tests and demos: [`synth`].
+//! Synthetic recordings with known beats come from `plethwire-synth`.
 //! Choosing the channel with the clearest pulse among several: [`channel`].
 //! Reading and writing recordings (WFDB records and annotations, CSV): [`io`].
 //! An accelerometer recorded with the pulse as the motion reference: [`motion`].
@@ -23,4 +23,3 @@ pub mod motion;
 pub mod replay;
 pub mod report;
 pub mod score;
-pub mod synth;

@@ -1,10 +1,10 @@
 //! Camera-style CSV input through the real binary: uneven frame times in
 //! ms, colour channels to choose from, a strap's R-R list to score against;
 //! and the refusals of bad times, units and R-R lists. Recordings are
-//! invented in a temp folder (a synthetic pulse, `plethwire::synth`).
+//! invented in a temp folder (a synthetic pulse, `plethwire_synth`).
 
 use plethwire::io::{write_record, NewSignal};
-use plethwire::synth::{generate, HrSchedule, SynthOptions};
+use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::fmt::Write as _;
 use std::path::Path;
 use std::process::Command;

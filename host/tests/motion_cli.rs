@@ -1,11 +1,11 @@
 //! `plethwire score` and `replay` with `--motion`, through the real binary,
 //! on records invented in a temp folder: a synthetic pulse
-//! (`plethwire::synth`) at 75 bpm and, beside it, a made-up wrist
+//! (`plethwire_synth`) at 75 bpm and, beside it, a made-up wrist
 //! accelerometer (gravity on z, an arm swing on x), never a copy of shared
 //! data.
 
 use plethwire::io::{write_record, NewSignal};
-use plethwire::synth::{generate, HrSchedule, SynthOptions};
+use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::{Path, PathBuf};
 use std::process::Command;
 

@@ -1,13 +1,13 @@
 //! No lock-out: whatever came before, a clean pulse train is found again
 //! within 5 s and then scored as on the clean grid. Scenarios of our own;
 //! the truth is the generator's beat times (Tang et al. 2020, Sci Rep
-//! 10:13883, via `plethwire::synth`); beats match within ±150 ms
+//! 10:13883, via `plethwire_synth`); beats match within ±150 ms
 //! (ANSI/AAMI EC57 practice).
 
 mod recovery;
 
-use plethwire::synth::{generate, HrSchedule, PulseTemplate, SynthOptions};
 use plethwire_dsp::pipeline::DetectorKind;
+use plethwire_synth::{generate, HrSchedule, PulseTemplate, SynthOptions};
 use proptest::prelude::*;
 use proptest::test_runner::{FileFailurePersistence, RngSeed};
 use recovery::strategy::{prefix, rate};

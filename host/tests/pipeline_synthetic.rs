@@ -1,10 +1,10 @@
 //! The beat pipeline on synthetic recordings with known beats (two-Gaussian
-//! pulse model of Tang et al. 2020, Sci Rep 10:13883, via `plethwire::synth`).
+//! pulse model of Tang et al. 2020, Sci Rep 10:13883, via `plethwire_synth`).
 //! Scenarios of our own; the truth is the generator's beat times.
 
 use plethwire::score::{match_beats, MATCH_WINDOW_S};
-use plethwire::synth::{generate, AdcRails, FingerOff, HrSchedule, SynthOptions, Synthetic};
 use plethwire_dsp::pipeline::{BeatEvent, Config, DetectorKind, Pipeline, SignalState, StateEvent};
+use plethwire_synth::{generate, AdcRails, FingerOff, HrSchedule, SynthOptions, Synthetic};
 
 struct Run {
     beats: Vec<BeatEvent>,
@@ -284,7 +284,7 @@ fn time_domain_hrv_of_the_pipeline_matches_the_generated_rhythm() {
         .beats
         .windows(2)
         .map(|w| {
-            let at = |b: &plethwire::synth::TrueBeat| b.onset_s + steepest * b.interval_ms / 1000.0;
+            let at = |b: &plethwire_synth::TrueBeat| b.onset_s + steepest * b.interval_ms / 1000.0;
             ((at(&w[1]) - at(&w[0])) * 1000.0) as f32
         })
         .collect();

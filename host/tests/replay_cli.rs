@@ -1,9 +1,9 @@
 //! `plethwire replay` and `plethwire score` on good and malformed inputs,
 //! through the real binary. Recordings here are invented in a temp folder
-//! (a synthetic pulse, `plethwire::synth`), never copies of shared data.
+//! (a synthetic pulse, `plethwire_synth`), never copies of shared data.
 
 use plethwire::io::{write_record, NewSignal};
-use plethwire::synth::{generate, HrSchedule, SynthOptions};
+use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::Path;
 use std::process::Command;
 

@@ -5,7 +5,7 @@ mod common;
 mod page_check;
 
 use common::{plethwire, stdout_of_success};
-use plethwire::synth::{generate, write_csv, HrSchedule, SynthOptions};
+use plethwire_synth::{generate, write_csv, HrSchedule, SynthOptions};
 use std::collections::BTreeMap;
 
 /// A minute of synthetic pulse at 100 Hz as `dir/session.csv`.

@@ -1,5 +1,5 @@
 //! `plethwire::report` pages for a synthetic recording of our own (known
-//! beats, via `plethwire::synth`) and for shared recordings when
+//! beats, via `plethwire_synth`) and for shared recordings when
 //! `../shared/data` is there: well-formed, self-contained, complete, and
 //! showing exactly the numbers the library computes from the pipeline's
 //! output.
@@ -11,8 +11,8 @@ use plethwire::replay::{load, replay, Replay, Source};
 use plethwire::report::{build, figures, Excerpt, Reference, ReportInput};
 use plethwire::score::records::{score_one, References};
 use plethwire::score::{match_beats, MATCH_WINDOW_S};
-use plethwire::synth::{generate, FingerOff, HrSchedule, MotionBurst, SynthOptions, Synthetic};
 use plethwire_dsp::pipeline::Config;
+use plethwire_synth::{generate, FingerOff, HrSchedule, MotionBurst, SynthOptions, Synthetic};
 use std::path::PathBuf;
 
 /// Three minutes at 125 Hz: a steady start, a climb from 64 to 96 bpm and

@@ -1,12 +1,12 @@
 //! `plethwire score --ecg` through the real binary, on a record invented
-//! in a temp folder: a synthetic pulse (`plethwire::synth`) and, beside it,
+//! in a temp folder: a synthetic pulse (`plethwire_synth`) and, beside it,
 //! an ECG-like spike train whose R peaks come 0.25 s before each true
 //! pulse peak (a made-up arrival delay), never a copy of shared data.
 
 use plethwire::io::{write_record, NewSignal};
 use plethwire::replay::replay;
-use plethwire::synth::{generate, HrSchedule, SynthOptions};
 use plethwire_dsp::pipeline::Config;
+use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::Path;
 use std::process::Command;
 

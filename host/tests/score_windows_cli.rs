@@ -1,10 +1,10 @@
 //! `plethwire score` with a reference window table beside a record, and
 //! with a malformed one, through the real binary. The record is invented
-//! (a synthetic 72 bpm pulse, `plethwire::synth`, after Tang et al. 2020,
+//! (a synthetic 72 bpm pulse, `plethwire_synth`, after Tang et al. 2020,
 //! Sci Rep 10:13883) in a temp folder, never a copy of shared data.
 
 use plethwire::io::{write_record, NewSignal};
-use plethwire::synth::{generate, HrSchedule, SynthOptions};
+use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::Path;
 use std::process::Command;
 

@@ -104,7 +104,7 @@ pub fn stream(samples: &[f64], config: Config, watch: &mut dyn FnMut(Progress<'_
 /// `plethwire replay` of the saved record finds the same beats).
 pub fn save_ride(
     dir: &Path,
-    ride: &crate::synth::Synthetic,
+    ride: &plethwire_synth::Synthetic,
 ) -> Result<(Vec<f64>, Vec<String>), String> {
     let digital: Vec<i32> = ride
         .samples
@@ -177,7 +177,7 @@ pub fn run_board(
 }
 
 /// Score `replay` against the ride's truth.
-pub fn against_truth(ride: &crate::synth::Synthetic, replay: &Replay) -> MatchCounts {
+pub fn against_truth(ride: &plethwire_synth::Synthetic, replay: &Replay) -> MatchCounts {
     let truth: Vec<u64> = ride.beats.iter().map(|b| b.peak as u64).collect();
     let tol = (MATCH_WINDOW_S * ride.sample_rate_hz).round() as u64;
     match_beats(&truth, &replay.peaks(), tol)
@@ -189,7 +189,7 @@ pub fn write_report(
     samples: &[f64],
     config: Config,
     replay: &Replay,
-    ride: &crate::synth::Synthetic,
+    ride: &plethwire_synth::Synthetic,
 ) -> Result<PathBuf, String> {
     let reference = Reference {
         beats_source: "the synthetic ride's true beats".into(),

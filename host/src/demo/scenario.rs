@@ -1,7 +1,7 @@
 //! The demo's recording: a finger-clip sensor on a rider on a bike
 //! trainer. Invented for the demo, with known beats.
 
-use crate::synth::{
+use plethwire_synth::{
     generate, FingerOff, HrSchedule, MotionBurst, SynthError, SynthOptions, Synthetic,
 };
 

@@ -18,7 +18,7 @@
 //! ```
 //! use plethwire::replay::replay;
 //! use plethwire::report::{build, ReportInput};
-//! use plethwire::synth::{generate, SynthOptions};
+//! use plethwire_synth::{generate, SynthOptions};
 //! use plethwire_dsp::pipeline::Config;
 //! let rec = generate(&SynthOptions { duration_s: 30.0, ..SynthOptions::default() }).unwrap();
 //! let samples: Vec<f64> = rec.samples.iter().map(|&x| f64::from(x)).collect();

@@ -2,14 +2,14 @@
 //! pulse train after them, and how soon and how well the pipeline finds
 //! that train again. Scenarios of our own; the truth is the generator's
 //! beat times (two-Gaussian pulses, Tang et al. 2020, Sci Rep 10:13883,
-//! via `plethwire::synth`).
+//! via `plethwire_synth`).
 #![allow(dead_code)] // each test file uses a different subset
 
 pub mod strategy;
 
 use plethwire::score::{match_pairs, MatchCounts, MATCH_WINDOW_S};
-use plethwire::synth::{generate, AdcRails, HrSchedule, SynthOptions};
 use plethwire_dsp::pipeline::{BeatEvent, Config, DetectorKind, Pipeline};
+use plethwire_synth::{generate, AdcRails, HrSchedule, SynthOptions};
 
 /// Onset-to-peak height of the clean train, signal units (the generator's
 /// default).

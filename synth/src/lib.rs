@@ -22,7 +22,7 @@
 //! through `libm`.
 //!
 //! ```
-//! use plethwire::synth::{generate, HrSchedule, SynthOptions};
+//! use plethwire_synth::{generate, HrSchedule, SynthOptions};
 //! let rec = generate(&SynthOptions {
 //!     duration_s: 300.0,
 //!     hr: HrSchedule::from_points(&[(60.0, 65.0), (120.0, 140.0), (180.0, 140.0), (240.0, 80.0)]),
@@ -32,6 +32,8 @@
 //! assert_eq!(rec.samples.len(), 30_000);
 //! assert!(rec.beats.len() > 400);
 //! ```
+
+#![deny(missing_docs)]
 
 mod csv;
 mod generate;

@@ -14,7 +14,7 @@ pub const MAX_BPM: f64 = 300.0;
 /// points, constant before the first point and after the last.
 ///
 /// ```
-/// use plethwire::synth::HrSchedule;
+/// use plethwire_synth::HrSchedule;
 /// // Rest at 65 bpm for a minute, climb to 140 bpm over the next one, hold,
 /// // then recover to 80 bpm.
 /// let hr = HrSchedule::from_points(&[(60.0, 65.0), (120.0, 140.0), (180.0, 140.0), (240.0, 80.0)]);
