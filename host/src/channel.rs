@@ -29,7 +29,7 @@ use plethwire_dsp::design::{butterworth_bandpass, butterworth_highpass, Design};
 use plethwire_dsp::filter::Biquad;
 use serde::Serialize;
 
-use crate::io::LoadedSignal;
+use plethwire_records::LoadedSignal;
 
 /// Heart band of the choice, Hz.
 pub const BAND_HZ: (f64, f64) = (0.5, 4.0);
@@ -226,7 +226,6 @@ fn autocorrelation_peak(x: &[f64], min_lag: usize, max_lag: usize) -> (f64, usiz
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::io::test_support::Rng;
     use plethwire_synth::{generate, HrSchedule, SynthOptions};
 
     fn signal(name: &str, fs: f64, samples: Vec<f64>) -> LoadedSignal {
@@ -253,9 +252,16 @@ mod tests {
         .map(|&v| f64::from(v))
         .collect::<Vec<f64>>();
         let n = pulse.len();
-        let mut rng = Rng::new(7);
+        // Uniform noise from xorshift64* (seed 7): reproducible, no dependency.
+        let mut state = 7u64;
         let noise: Vec<f64> = (0..n)
-            .map(|_| rng.below(1_000_000) as f64 / 1e6 - 0.5)
+            .map(|_| {
+                state ^= state >> 12;
+                state ^= state << 25;
+                state ^= state >> 27;
+                let bits = state.wrapping_mul(0x2545_f491_4f6c_dd1d);
+                (bits % 1_000_000) as f64 / 1e6 - 0.5
+            })
             .collect();
         // Saturated: the same pulse (scaled to 0..1) pushed against the
         // top of the range, as a red channel at full scale; only the

@@ -2,7 +2,7 @@
 //! engines behind its subcommands, usable without it ([`filter_report`]).
 //! Synthetic recordings with known beats come from `plethwire-synth`.
 //! Choosing the channel with the clearest pulse among several: [`channel`].
-//! Reading and writing recordings (WFDB records and annotations, CSV): [`io`].
+//! Reading and writing recordings (WFDB, CSV) lives in `plethwire-records`.
 //! An accelerometer recorded with the pulse as the motion reference: [`motion`].
 //! Listening to a board over a serial port and recording it: [`listen`].
 //! Running recordings through the firmware on the emulated board: [`emulate`].
@@ -17,7 +17,6 @@ pub mod ecg;
 pub mod emulate;
 pub mod filter_report;
 pub mod frontend;
-pub mod io;
 pub mod listen;
 pub mod motion;
 pub mod replay;

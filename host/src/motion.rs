@@ -4,8 +4,8 @@
 
 use std::path::Path;
 
-use crate::io::{read_csv_signals, ColumnRef, CsvSignalOptions, LoadedSignal, Record};
 use crate::replay::ReplayError;
+use plethwire_records::{read_csv_signals, ColumnRef, CsvSignalOptions, LoadedSignal, Record};
 
 /// The three accelerometer signals of a recording.
 #[derive(Debug, Clone, PartialEq)]

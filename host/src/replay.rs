@@ -2,16 +2,16 @@
 //! writing what it found.
 
 use crate::channel::{choose, ChannelChoice};
-use crate::io::resample::ResampleReport;
-use crate::io::{
-    annotation_path, csv_column_names, read_csv_signal, read_csv_signals, write_annotations,
-    Annotation, ColumnRef, CsvSignalOptions, LoadedSignal, Rate, Record, TimeUnit,
-};
 use crate::motion::{self, MotionSignals};
 use plethwire_dsp::hrv::{hrv, HrvStats};
 use plethwire_dsp::pipeline::{BeatEvent, Config, MotionPipeline, Output, Pipeline, StateEvent};
 use plethwire_dsp::pipeline::{MAX_RATE_HZ, MIN_RATE_HZ};
 use plethwire_dsp::DesignError;
+use plethwire_records::resample::ResampleReport;
+use plethwire_records::{
+    annotation_path, csv_column_names, read_csv_signal, read_csv_signals, write_annotations,
+    Annotation, ColumnRef, CsvSignalOptions, LoadedSignal, Rate, Record, TimeUnit,
+};
 use serde::Serialize;
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -108,8 +108,8 @@ impl fmt::Display for ReplayError {
 
 impl std::error::Error for ReplayError {}
 
-impl From<crate::io::Error> for ReplayError {
-    fn from(e: crate::io::Error) -> Self {
+impl From<plethwire_records::Error> for ReplayError {
+    fn from(e: plethwire_records::Error) -> Self {
         Self(e.to_string())
     }
 }
@@ -170,7 +170,7 @@ fn load_as_recorded(path: &Path, source: &Source) -> Result<Recording, ReplayErr
             let signals = names
                 .iter()
                 .map(|n| opened.load_signal(Some(n)))
-                .collect::<crate::io::Result<Vec<_>>>()?;
+                .collect::<plethwire_records::Result<Vec<_>>>()?;
             pick(path, signals)?
         }
     };

@@ -3,7 +3,7 @@
 //! and the refusals of bad times, units and R-R lists. Recordings are
 //! invented in a temp folder (a synthetic pulse, `plethwire_synth`).
 
-use plethwire::io::{write_record, NewSignal};
+use plethwire_records::{write_record, NewSignal};
 use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::fmt::Write as _;
 use std::path::Path;

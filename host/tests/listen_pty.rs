@@ -5,9 +5,9 @@
 mod listen_support;
 
 use listen_support::*;
-use plethwire::io::{read_annotations, Record, NORMAL};
 use plethwire_dsp::pipeline::{BeatFlags, SignalState};
 use plethwire_dsp::wire::Message;
+use plethwire_records::{read_annotations, Record, NORMAL};
 use serde_json::Value;
 use std::path::Path;
 

@@ -4,7 +4,7 @@
 //! accelerometer (gravity on z, an arm swing on x), never a copy of shared
 //! data.
 
-use plethwire::io::{write_record, NewSignal};
+use plethwire_records::{write_record, NewSignal};
 use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::{Path, PathBuf};
 use std::process::Command;

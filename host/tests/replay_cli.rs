@@ -2,7 +2,7 @@
 //! through the real binary. Recordings here are invented in a temp folder
 //! (a synthetic pulse, `plethwire_synth`), never copies of shared data.
 
-use plethwire::io::{write_record, NewSignal};
+use plethwire_records::{write_record, NewSignal};
 use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::Path;
 use std::process::Command;

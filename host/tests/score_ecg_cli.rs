@@ -3,9 +3,9 @@
 //! an ECG-like spike train whose R peaks come 0.25 s before each true
 //! pulse peak (a made-up arrival delay), never a copy of shared data.
 
-use plethwire::io::{write_record, NewSignal};
 use plethwire::replay::replay;
 use plethwire_dsp::pipeline::Config;
+use plethwire_records::{write_record, NewSignal};
 use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::Path;
 use std::process::Command;

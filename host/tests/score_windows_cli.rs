@@ -3,7 +3,7 @@
 //! (a synthetic 72 bpm pulse, `plethwire_synth`, after Tang et al. 2020,
 //! Sci Rep 10:13883) in a temp folder, never a copy of shared data.
 
-use plethwire::io::{write_record, NewSignal};
+use plethwire_records::{write_record, NewSignal};
 use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::Path;
 use std::process::Command;

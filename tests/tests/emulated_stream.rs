@@ -137,7 +137,7 @@ fn the_emulate_command_shows_beats_and_writes_annotations() {
     );
     assert!(text.contains("0 damaged, 0 lost"), "{text}");
     let ann = out_dir.path().join("bidmc45.pwire");
-    let read = plethwire::io::read_annotations(&ann).unwrap();
+    let read = plethwire_records::read_annotations(&ann).unwrap();
     assert_eq!(read.len(), beat_lines, "one annotation per beat shown");
 }
 

@@ -3,8 +3,8 @@
 //! documentation): every row's time, every cell's value, and which cells
 //! are missing (empty or `nan`) must agree.
 
-use plethwire::io::read_numerics;
 use plethwire_checks::{need, needs, python, python_json, shared_data_dir};
+use plethwire_records::read_numerics;
 use serde::Deserialize;
 
 const READ_WITH_CSV_MODULE: &str = r#"

@@ -37,7 +37,7 @@ fn every_phone_recording_loads_chooses_a_channel_and_aligns_its_strap() {
         assert_eq!(input.time_column.as_deref(), Some("time"), "{}", r.record);
         assert_eq!(
             input.time_unit,
-            Some(plethwire::io::TimeUnit::Ms),
+            Some(plethwire_records::TimeUnit::Ms),
             "{}",
             r.record
         );

@@ -11,9 +11,9 @@
 //! wave, common practice).
 
 use plethwire::ecg::r_peaks;
-use plethwire::io::{annotation_path, read_annotations, read_wfdb_signal};
 use plethwire::score::{match_beats, match_pairs, MATCH_WINDOW_S};
 use plethwire_checks::{need, needs, shared_data_dir};
+use plethwire_records::{annotation_path, read_annotations, read_wfdb_signal};
 
 #[test]
 fn record_100_r_peaks_match_the_annotated_beats() {

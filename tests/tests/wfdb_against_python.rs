@@ -21,11 +21,11 @@
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use plethwire::io::{
+use plethwire_checks::{need, needs, shared_data_dir};
+use plethwire_records::{
     annotation_path, code_for_symbol, read_annotations, write_annotations, write_record,
     Annotation, NewSignal, Record,
 };
-use plethwire_checks::{need, needs, shared_data_dir};
 use serde_json::{json, Value};
 
 #[path = "wfdb_against_python/reference.rs"]

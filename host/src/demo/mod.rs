@@ -9,11 +9,11 @@
 pub mod scenario;
 
 use crate::emulate::{compare, find_elf, find_qemu, EmulateError, Emulation, Link};
-use crate::io::{annotation_path, write_annotations, write_record, Annotation, NewSignal};
 use crate::replay::{Replay, Summary};
 use crate::report::{self, Reference, ReportInput};
 use crate::score::{match_beats, MatchCounts, MATCH_WINDOW_S};
 use plethwire_dsp::pipeline::{BeatEvent, Config, Pipeline, SignalState, StateEvent};
+use plethwire_records::{annotation_path, write_annotations, write_record, Annotation, NewSignal};
 use serde::Serialize;
 use std::path::{Path, PathBuf};
 use std::time::Duration;

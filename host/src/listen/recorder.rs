@@ -12,7 +12,7 @@ use std::path::{Path, PathBuf};
 use super::event::{Event, Sink};
 use super::fields::detector_name;
 use super::scale::{Scale, INVALID};
-use crate::io::{annotation_path, write_annotations, Annotation, NewSignal, RecordWriter};
+use plethwire_records::{annotation_path, write_annotations, Annotation, NewSignal, RecordWriter};
 
 /// Seconds of samples to look at before choosing a scale, when the hello
 /// gives no rails.
@@ -264,6 +264,6 @@ impl Sink for Recorder {
     }
 }
 
-fn other(e: crate::io::Error) -> io::Error {
+fn other(e: plethwire_records::Error) -> io::Error {
     io::Error::other(e.to_string())
 }

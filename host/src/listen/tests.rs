@@ -2,9 +2,9 @@
 //! port, no timing beyond short retry intervals.
 
 use super::*;
-use crate::io::{read_annotations, Record};
 use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, Options};
 use plethwire_dsp::wire::{Encoder, Hello, Message, SampleBlock, MAX_FRAME};
+use plethwire_records::{read_annotations, Record};
 use std::collections::VecDeque;
 use std::io::{self, Read};
 use std::sync::atomic::{AtomicBool, Ordering};

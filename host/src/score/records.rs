@@ -7,12 +7,12 @@ use super::timing::PeakTiming;
 use super::windows::{read_rate_windows, ReplayWindows};
 use super::{MatchCounts, RateError};
 use crate::ecg::{EcgReference, EcgScore};
-use crate::io::read_rr_intervals;
-use crate::io::{annotation_path, read_annotations, read_numerics, read_wfdb_signal};
 use crate::replay::{
     load, replay_recording, InputInfo, Recording, Replay, ReplayError, Source, Summary,
 };
 use plethwire_dsp::pipeline::Config;
+use plethwire_records::read_rr_intervals;
+use plethwire_records::{annotation_path, read_annotations, read_numerics, read_wfdb_signal};
 use serde::Serialize;
 use std::path::{Path, PathBuf};
 
@@ -351,9 +351,9 @@ pub fn score_all(
 #[cfg(test)]
 mod ecg_tests {
     use super::*;
-    use crate::io::{write_record, LoadedSignal, NewSignal};
     use crate::replay::replay;
     use plethwire_dsp::pipeline::Config;
+    use plethwire_records::{write_record, LoadedSignal, NewSignal};
 
     #[test]
     fn an_ecg_at_another_rate_or_beside_a_csv_is_refused_naming_the_file() {

@@ -17,8 +17,8 @@ use std::path::Path;
 
 use serde::Serialize;
 
-use crate::io::read_numerics;
 use crate::replay::{Replay, ReplayError};
+use plethwire_records::read_numerics;
 
 /// Intervals a window needs for a rate of its own.
 pub const MIN_INTERVALS: usize = 2;

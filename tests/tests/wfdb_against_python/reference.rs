@@ -5,8 +5,8 @@ use std::path::Path;
 use std::process::Stdio;
 use std::sync::OnceLock;
 
-use plethwire::io::{Annotation, Record};
 use plethwire_checks::{python, python_json, repo_root};
+use plethwire_records::{Annotation, Record};
 use serde::Deserialize;
 use serde_json::{json, Value};
 

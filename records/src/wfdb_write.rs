@@ -260,7 +260,7 @@ pub fn write_record(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::io::Record;
+    use crate::Record;
 
     #[test]
     fn written_record_reads_back() {

@@ -2,7 +2,7 @@
 //! PhysioNet WFDB signal file format specification (signal(5)).
 
 use super::*;
-use crate::io::test_support::Rng;
+use crate::test_support::Rng;
 
 fn fixture(files: &[(&str, &[u8])], header: &str) -> tempfile::TempDir {
     let dir = tempfile::tempdir().unwrap();

@@ -1,5 +1,5 @@
 use super::*;
-use crate::io::test_support::Rng;
+use crate::test_support::Rng;
 use std::path::PathBuf;
 
 fn write(dir: &Path, name: &str, text: &str) -> PathBuf {

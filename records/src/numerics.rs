@@ -95,7 +95,7 @@ pub fn read_numerics(path: impl AsRef<Path>) -> Result<Numerics> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::io::test_support::Rng;
+    use crate::test_support::Rng;
 
     fn write(dir: &Path, name: &str, text: &str) -> std::path::PathBuf {
         let p = dir.join(name);

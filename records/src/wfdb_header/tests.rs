@@ -3,7 +3,7 @@
 //! that text says each field or default is.
 
 use super::*;
-use crate::io::test_support::Rng;
+use crate::test_support::Rng;
 use std::path::Path;
 
 fn parse(text: &str) -> Result<Header> {

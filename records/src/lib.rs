@@ -14,6 +14,8 @@
 //! Every failure is an [`Error`] whose `Display` is one line naming the
 //! file (and line) and the problem; malformed input never panics.
 
+#![deny(missing_docs)]
+
 mod csv;
 mod error;
 mod numerics;

@@ -2,7 +2,7 @@
 //! annotation file format specification (annot(5)).
 
 use super::*;
-use crate::io::test_support::Rng;
+use crate::test_support::Rng;
 
 fn words(ws: &[u16]) -> Vec<u8> {
     ws.iter().flat_map(|w| w.to_le_bytes()).collect()

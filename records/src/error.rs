@@ -1,4 +1,4 @@
-//! The one error type of the readers and writers in [`crate::io`].
+//! The one error type of the readers and writers in this crate.
 //!
 //! Every error names the file it is about and, where it applies, the line;
 //! its `Display` is a single line such as
@@ -9,7 +9,7 @@
 use std::fmt;
 use std::path::{Path, PathBuf};
 
-/// Result of the reading and writing functions in [`crate::io`].
+/// Result of the reading and writing functions in this crate.
 pub type Result<T> = std::result::Result<T, Error>;
 
 /// What went wrong with a file: see [`ErrorKind`]; where: [`Error::path`]

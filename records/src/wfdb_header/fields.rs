@@ -3,8 +3,8 @@
 use super::{
     BaseDate, BaseTime, Header, SegmentSpec, SignalSpec, DEFAULT_FS, DEFAULT_GAIN, DEFAULT_UNITS,
 };
-use crate::io::error::{quoted, ErrorKind};
-use crate::io::wfdb_format::{FormatProblem, SignalFormat};
+use crate::error::{quoted, ErrorKind};
+use crate::wfdb_format::{FormatProblem, SignalFormat};
 
 /// A signal line's problem: bad text, or a format code we cannot use.
 pub(super) enum LineError {
