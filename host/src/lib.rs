@@ -1,5 +1,8 @@
-//! plethwire host library: the `plethwire` command line ([`cli`]) and the
-//! engines behind its subcommands, usable without it ([`filter_report`]).
+//! plethwire host library: the engines behind the `plethwire` command
+//! (crate `plethwire-cli`), usable without a command line.
+//! Filter design reports: [`filter_report`]. Replaying a recording through
+//! the pipeline: [`replay`]; scoring beats against references: [`score`],
+//! with the ECG as a beat reference: [`ecg`].
 //! Synthetic recordings with known beats come from `plethwire-synth`.
 //! Choosing the channel with the clearest pulse among several: [`channel`].
 //! Reading and writing recordings (WFDB, CSV) lives in `plethwire-records`.
@@ -11,8 +14,6 @@
 #![deny(missing_docs)]
 
 pub mod channel;
-pub mod cli;
-pub mod demo;
 pub mod ecg;
 pub mod emulate;
 pub mod filter_report;

@@ -6,7 +6,7 @@ use std::io::Write;
 use std::path::PathBuf;
 
 use super::Failure;
-use crate::frontend::{
+use plethwire::frontend::{
     human_report, parse_value, write_svg, DetectorDraft, DetectorKind, Draft, Farads,
     FrontendError, FrontendReport, Kind, LedDraft, LoadAt, Ohms, Resistors, StageDraft, CAUTIONS,
 };

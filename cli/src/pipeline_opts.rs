@@ -3,8 +3,8 @@
 use clap::{Args, ValueEnum};
 use plethwire_dsp::pipeline::{Config, DetectorKind};
 
-use crate::motion::parse_motion_names;
-use crate::replay::{Polarity, Source};
+use plethwire::motion::parse_motion_names;
+use plethwire::replay::{Polarity, Source};
 
 /// Which way the pulse points, as named on the command line.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

@@ -9,12 +9,12 @@
 //! 300 Hz and BIDMC (Pimentel et al., IEEE TBME 64(8):1914, 2017) at
 //! 125 Hz, from ../shared/data.
 
-use plethwire::cli;
 use plethwire::emulate::{EmulateError, Link};
 use plethwire_checks::emulation::{
     assert_identical, default_config, emulation, run_both, shared_record,
 };
 use plethwire_checks::{build_emulated_firmware, shared_data_dir};
+use plethwire_cli as cli;
 use plethwire_dsp::pipeline::Config;
 
 /// A whole recording over semihosting files.

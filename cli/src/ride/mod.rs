@@ -8,10 +8,10 @@
 
 pub mod scenario;
 
-use crate::emulate::{compare, find_elf, find_qemu, EmulateError, Emulation, Link};
-use crate::replay::{Replay, Summary};
-use crate::report::{self, Reference, ReportInput};
-use crate::score::{match_beats, MatchCounts, MATCH_WINDOW_S};
+use plethwire::emulate::{compare, find_elf, find_qemu, EmulateError, Emulation, Link};
+use plethwire::replay::{Replay, Summary};
+use plethwire::report::{self, Reference, ReportInput};
+use plethwire::score::{match_beats, MatchCounts, MATCH_WINDOW_S};
 use plethwire_dsp::pipeline::{BeatEvent, Config, Pipeline, SignalState, StateEvent};
 use plethwire_records::{annotation_path, write_annotations, write_record, Annotation, NewSignal};
 use serde::Serialize;

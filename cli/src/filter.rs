@@ -5,7 +5,7 @@ use std::io::Write;
 use std::path::PathBuf;
 
 use super::Failure;
-use crate::filter_report::{
+use plethwire::filter_report::{
     check_const_name, human_report, write_svg, FilterReport, FilterSpec, ReportError, Stage,
     DEFAULT_NOTCH_QUALITY, DEFAULT_ORDER,
 };

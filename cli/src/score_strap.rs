@@ -1,7 +1,7 @@
 //! The second table of `plethwire score`: recordings against a chest
-//! strap's R-R list (see [`crate::score::strap`]).
+//! strap's R-R list (see [`plethwire::score::strap`]).
 
-use crate::score::records::Scores;
+use plethwire::score::records::Scores;
 
 fn num(v: Option<f64>, decimals: usize) -> String {
     v.map_or("-".into(), |v| format!("{v:.decimals$}"))

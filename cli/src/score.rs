@@ -6,11 +6,11 @@ use std::path::PathBuf;
 
 use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
-use crate::ecg::EcgScore;
-use crate::score::records::{score_all, References, Scores, DEFAULT_STRAP_SUFFIX};
-use crate::score::timing::PeakTiming;
-use crate::score::windows::{ReplayWindows, WindowScore};
-use crate::score::{MatchCounts, RateError};
+use plethwire::ecg::EcgScore;
+use plethwire::score::records::{score_all, References, Scores, DEFAULT_STRAP_SUFFIX};
+use plethwire::score::timing::PeakTiming;
+use plethwire::score::windows::{ReplayWindows, WindowScore};
+use plethwire::score::{MatchCounts, RateError};
 
 const EXAMPLES: &str = "\
 Examples:

@@ -11,8 +11,8 @@ use plethwire_dsp::wire::{Frame, Message};
 
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
-use crate::emulate::{compare, find_elf, find_qemu, Emulation, Link, PerfReport, Session};
-use crate::replay::{load, replay, write_beat_annotations, Summary, DEFAULT_ANNOTATOR};
+use plethwire::emulate::{compare, find_elf, find_qemu, Emulation, Link, PerfReport, Session};
+use plethwire::replay::{load, replay, write_beat_annotations, Summary, DEFAULT_ANNOTATOR};
 
 const EXAMPLES: &str = "\
 Examples:
@@ -252,7 +252,7 @@ impl EmulateArgs {
 fn summary(
     session: &Session,
     s: &Summary,
-    agreement: Option<&crate::emulate::Agreement>,
+    agreement: Option<&plethwire::emulate::Agreement>,
     ann: &std::path::Path,
 ) -> String {
     let st = &session.stats;

@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
 use super::Failure;
-use crate::demo::{
+use crate::ride::{
     against_truth, run_board, save_ride, scenario, state_words, stream, write_report, BoardOutcome,
     DemoResult, Progress,
 };
@@ -244,10 +244,10 @@ impl DemoArgs {
             BoardOutcome::NotRun(why) => say(out, &format!("  emulated board not run: {why}"))?,
         }
 
-        let ann = crate::replay::write_beat_annotations(
+        let ann = plethwire::replay::write_beat_annotations(
             &self.out,
             "ride",
-            crate::replay::DEFAULT_ANNOTATOR,
+            plethwire::replay::DEFAULT_ANNOTATOR,
             &replay,
         )
         .map_err(Failure::refused)?;
@@ -255,7 +255,7 @@ impl DemoArgs {
         let report =
             write_report(&self.out, &samples, config, &replay, &ride).map_err(Failure::refused)?;
         files.push(report.display().to_string());
-        say(out, &format!("  wrote the ride as WFDB (ride.hea, ride.dat, true beats ride.truth, found beats ride.{})", crate::replay::DEFAULT_ANNOTATOR))?;
+        say(out, &format!("  wrote the ride as WFDB (ride.hea, ride.dat, true beats ride.truth, found beats ride.{})", plethwire::replay::DEFAULT_ANNOTATOR))?;
         say(
             out,
             &format!("  report: {}  (open it in a browser)", report.display()),

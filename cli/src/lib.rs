@@ -12,6 +12,7 @@ mod listen;
 mod pipeline_opts;
 mod replay;
 mod report;
+mod ride;
 mod score;
 mod score_strap;
 

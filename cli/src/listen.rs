@@ -1,5 +1,5 @@
 //! `plethwire listen`: show and record what a board sends over a serial
-//! port. The work is in [`crate::listen`]; this is options and wiring.
+//! port. The work is in [`plethwire::listen`]; this is options and wiring.
 
 use clap::Args;
 use std::io::{self, IsTerminal, Write};
@@ -9,11 +9,11 @@ use std::sync::Once;
 use std::time::{Duration, SystemTime};
 
 use super::Failure;
-use crate::listen::{
+use plethwire::listen::{
     record_name, run, session_files, Ending, Event, ListenError, NeverCause, Recorder, Screen,
     SerialConnector, Session, Settings, Setup, Sink, Summary,
 };
-use crate::replay::DEFAULT_ANNOTATOR;
+use plethwire::replay::DEFAULT_ANNOTATOR;
 
 const EXAMPLES: &str = "\
 Cautions: plethwire is not a medical device and not for diagnosis. While

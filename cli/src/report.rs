@@ -8,9 +8,9 @@ use std::path::{Path, PathBuf};
 
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
-use crate::replay::{load, replay};
-use crate::report::{self, Excerpt, Figures, Reference, ReportInput};
-use crate::score::records::References;
+use plethwire::replay::{load, replay};
+use plethwire::report::{self, Excerpt, Figures, Reference, ReportInput};
+use plethwire::score::records::References;
 
 const EXAMPLES: &str = "\
 Examples:

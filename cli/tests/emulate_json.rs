@@ -2,8 +2,8 @@
 //! board's events were identical to the host replay's (shared BIDMC
 //! record; QEMU needed).
 
-use plethwire::cli::run;
 use plethwire_checks::{build_emulated_firmware, need, needs, qemu, shared_data_dir};
+use plethwire_cli::run;
 use std::ffi::OsString;
 
 #[test]

@@ -9,7 +9,7 @@ use plethwire_dsp::pipeline::BeatFlags;
 
 use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
-use crate::replay::{
+use plethwire::replay::{
     beat_rows, beats_csv, load, replay_recording, write_beat_annotations, BeatRow, InputInfo,
     Summary, DEFAULT_ANNOTATOR,
 };

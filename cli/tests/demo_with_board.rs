@@ -2,8 +2,8 @@
 //! host and by the emulated Cortex-M4F board gives the same beats and
 //! state changes, bit for bit (the project's invariant).
 
-use plethwire::cli::run;
 use plethwire_checks::{build_emulated_firmware, need, needs, qemu};
+use plethwire_cli::run;
 use std::ffi::OsString;
 
 #[test]

@@ -2,9 +2,9 @@
 //! Python `wfdb` library's `rdann` (PhysioNet's reference reader) to the
 //! same samples and symbols, on shared recordings of both datasets.
 
-use plethwire::cli::run;
 use plethwire::replay::{load, replay, Source};
 use plethwire_checks::{need, needs, python, python_json, shared_data_dir};
+use plethwire_cli::run;
 use plethwire_dsp::pipeline::Config;
 use serde::Deserialize;
 use std::ffi::OsString;
