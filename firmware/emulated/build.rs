@@ -1,5 +1,6 @@
-//! Puts `memory.x` where the linker finds it and passes cortex-m-rt's linker
-//! script, so the crate builds with plain `cargo build` and no RUSTFLAGS.
+//! Puts this board's `memory.x` where the linker finds it: cortex-m-rt's
+//! `link.x` INCLUDEs it. The linker arguments themselves are in
+//! `.cargo/config.toml`, where cortex-m-rt's template keeps them.
 
 use std::env;
 use std::fs;
@@ -11,9 +12,4 @@ fn main() {
     println!("cargo:rustc-link-search={}", out.display());
     println!("cargo:rerun-if-changed=memory.x");
     println!("cargo:rerun-if-changed=build.rs");
-
-    // link.x (from cortex-m-rt) INCLUDEs memory.x. --nmagic keeps sections
-    // from being page-aligned, which would waste flash and confuse loaders.
-    println!("cargo:rustc-link-arg-bins=--nmagic");
-    println!("cargo:rustc-link-arg-bins=-Tlink.x");
 }

@@ -155,6 +155,7 @@ fn panic(info: &PanicInfo) -> ! {
 /// Without this a fault would spin forever and only the host's timeout
 /// would notice; report it and fail fast instead.
 #[exception]
+#[allow(unsafe_code)] // cortex-m-rt declares the handler `unsafe`
 unsafe fn HardFault(frame: &ExceptionFrame) -> ! {
     say_on_stderr(format_args!("fault {frame:?}"));
     exit(false)

@@ -66,6 +66,7 @@ fn timed_push(pipeline: &mut Pipeline, x: f32) -> Output {
 impl Counter {
     /// Start SysTick free-running on the processor clock, without
     /// interrupts, and calibrate it.
+    #[allow(unsafe_code)] // the calibration's inline `nop`s
     pub fn start(mut syst: SYST) -> Result<Self, &'static str> {
         syst.set_clock_source(SystClkSource::Core);
         syst.set_reload(RELOAD);

@@ -4,6 +4,9 @@
 //! Each call is one `bkpt 0xab` trap; QEMU (`target=native`) carries it out
 //! on the host's file system, relative to QEMU's working directory.
 
+// Every semihosting call is a trap with raw pointers into our buffers.
+#![allow(unsafe_code)]
+
 use core::fmt;
 
 use cortex_m_semihosting::{nr, syscall, syscall1};

@@ -3,6 +3,9 @@
 //! QEMU connects it to its `-serial` device (`stdio` in our runs). Nothing
 //! here uses interrupts: the board has nothing else to do while it waits.
 
+// Register access through raw pointers to the board's device memory.
+#![allow(unsafe_code)]
+
 use core::ptr::{read_volatile, write_volatile};
 
 /// UART0's registers start here.

@@ -24,7 +24,6 @@
 
 #![no_std]
 #![no_main]
-#![deny(unsafe_code)]
 
 mod clocks;
 mod link;

@@ -181,7 +181,7 @@ impl FilterSpec {
         }
         let needed: usize = parts.iter().map(Design::len).sum();
         let mut parts = parts.iter();
-        let mut chain = *parts.next().ok_or(ReportError::NothingToDesign)?;
+        let mut chain = parts.next().ok_or(ReportError::NothingToDesign)?.clone();
         for part in parts {
             chain = chain
                 .then(part)

@@ -23,6 +23,7 @@ pub use zpk::{Roots, Zpk, MAX_ROOTS};
 use crate::filter::{Biquad, Cascade, Section};
 use crate::math::{cos, sqrt, tan, PI};
 use core::fmt;
+use heapless::Vec;
 
 /// Highest Butterworth order accepted.
 pub const MAX_ORDER: usize = 8;
@@ -79,26 +80,18 @@ impl std::error::Error for DesignError {}
 
 /// A designed filter: second-order sections in double precision, in the
 /// order they are applied, with the scipy sign convention (see [`Biquad`]).
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct Design {
-    sections: [Biquad<f64>; MAX_SECTIONS],
-    len: usize,
+    sections: Vec<Biquad<f64>, MAX_SECTIONS>,
 }
 
 impl Design {
     /// A design from explicit sections (at most [`MAX_SECTIONS`]), each
     /// checked for stability.
     pub fn from_sections(sections: &[Biquad<f64>]) -> Result<Self, DesignError> {
-        if sections.len() > MAX_SECTIONS {
-            return Err(DesignError::TooManySections);
-        }
-        let mut d = Self {
-            sections: [Biquad::identity(); MAX_SECTIONS],
-            len: sections.len(),
-        };
-        d.sections[..sections.len()].copy_from_slice(sections);
-        if d.sections().iter().all(|s| s.is_stable()) {
-            Ok(d)
+        let sections = Vec::from_slice(sections).map_err(|_| DesignError::TooManySections)?;
+        if sections.iter().all(|s| s.is_stable()) {
+            Ok(Self { sections })
         } else {
             Err(DesignError::Unstable)
         }
@@ -106,28 +99,25 @@ impl Design {
 
     /// The sections, first applied first.
     pub fn sections(&self) -> &[Biquad<f64>] {
-        &self.sections[..self.len]
+        &self.sections
     }
 
     /// Number of sections.
     pub fn len(&self) -> usize {
-        self.len
+        self.sections.len()
     }
 
     /// No sections (a pass-through)?
     pub fn is_empty(&self) -> bool {
-        self.len == 0
+        self.sections.is_empty()
     }
 
     /// This design followed by `next` (e.g. a band-pass then a mains notch).
     pub fn then(&self, next: &Design) -> Result<Self, DesignError> {
-        let n = self.len + next.len;
-        if n > MAX_SECTIONS {
-            return Err(DesignError::TooManySections);
-        }
-        let mut d = *self;
-        d.sections[self.len..n].copy_from_slice(next.sections());
-        d.len = n;
+        let mut d = self.clone();
+        d.sections
+            .extend_from_slice(next.sections())
+            .map_err(|_| DesignError::TooManySections)?;
         Ok(d)
     }
 
@@ -135,14 +125,14 @@ impl Design {
     /// `N` may exceed the design's length (the spare slots are never run);
     /// each quantised section is checked for stability.
     pub fn cascade<S: Section, const N: usize>(&self) -> Result<Cascade<S, N>, DesignError> {
-        if self.len > N {
+        if self.len() > N {
             return Err(DesignError::TooManySections);
         }
         let mut sections = [S::identity(); N];
         for (dst, src) in sections.iter_mut().zip(self.sections()) {
             *dst = S::from_biquad(src)?;
         }
-        Ok(Cascade::with_active(sections, self.len))
+        Ok(Cascade::with_active(sections, self.len()))
     }
 
     fn from_zpk(zpk: &Zpk) -> Result<Self, DesignError> {

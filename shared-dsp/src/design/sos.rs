@@ -118,8 +118,8 @@ fn section(z: &[Complex], p: &[Complex]) -> Biquad<f64> {
 
 /// Convert a digital filter to sections; returns the sections and how many.
 pub fn zpk_to_sections(zpk: &Zpk) -> ([Biquad<f64>; MAX_SOS], usize) {
-    let mut z = zpk.z;
-    let mut p = zpk.p;
+    let mut z = zpk.z.clone();
+    let mut p = zpk.p.clone();
     while z.len() < p.len() {
         z.push(Complex::real(0.0));
     }

@@ -9,50 +9,41 @@
 //! pre-warping `Ω = 2·fs·tan(ω/2)`).
 
 use crate::math::{Complex, PI};
+use heapless::Vec;
 
 /// Largest number of poles (or zeros) a design holds: band-pass order 8.
 pub const MAX_ROOTS: usize = 16;
 
 /// A fixed-capacity list of complex roots.
-#[derive(Clone, Copy, Debug)]
+#[derive(Clone, Debug)]
 pub struct Roots {
-    items: [Complex; MAX_ROOTS],
-    len: usize,
+    items: Vec<Complex, MAX_ROOTS>,
 }
 
 impl Roots {
     /// No roots.
     pub const fn new() -> Self {
-        Self {
-            items: [Complex::new(0.0, 0.0); MAX_ROOTS],
-            len: 0,
-        }
+        Self { items: Vec::new() }
     }
     /// Append a root (callers never exceed the capacity: orders are checked).
     pub fn push(&mut self, z: Complex) {
-        if self.len < MAX_ROOTS {
-            self.items[self.len] = z;
-            self.len += 1;
-        }
+        let _ = self.items.push(z);
     }
     /// Remove and return the root at `i`, keeping the order of the others.
     pub fn remove(&mut self, i: usize) -> Complex {
-        let z = self.items[i];
-        self.items.copy_within(i + 1..self.len, i);
-        self.len -= 1;
-        z
+        self.items.remove(i)
     }
     /// The roots.
     pub fn as_slice(&self) -> &[Complex] {
-        &self.items[..self.len]
+        &self.items
     }
     /// Number of roots.
     pub fn len(&self) -> usize {
-        self.len
+        self.items.len()
     }
     /// No roots at all?
     pub fn is_empty(&self) -> bool {
-        self.len == 0
+        self.items.is_empty()
     }
     fn map(&self, f: impl Fn(Complex) -> Complex) -> Self {
         let mut out = Self::new();
@@ -75,7 +66,7 @@ impl Default for Roots {
 }
 
 /// A filter as zeros, poles and gain.
-#[derive(Clone, Copy, Debug)]
+#[derive(Clone, Debug)]
 pub struct Zpk {
     /// Zeros.
     pub z: Roots,
