@@ -110,9 +110,9 @@ impl Draft {
     /// Read a circuit file.
     pub fn load(path: &Path) -> Result<Self, FrontendError> {
         let shown = path.display().to_string();
-        let text = std::fs::read_to_string(path).map_err(|e| FrontendError::Unreadable {
+        let text = std::fs::read_to_string(path).map_err(|source| FrontendError::Unreadable {
             path: shown.clone(),
-            reason: e.to_string(),
+            source,
         })?;
         Self::from_toml(&text).map_err(|source| FrontendError::BadFile {
             path: shown,

@@ -75,15 +75,15 @@ pub const CAUTIONS: [&str; 4] = [
 ];
 
 /// Why there is no report.
-#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[derive(Debug, thiserror::Error)]
 pub enum FrontendError {
     /// The circuit file could not be read.
-    #[error("cannot read the circuit file {path}: {reason}")]
+    #[error("cannot read the circuit file {path}: {source}")]
     Unreadable {
         /// The file.
         path: String,
         /// The system's reason.
-        reason: String,
+        source: std::io::Error,
     },
     /// The circuit file is not a valid circuit (TOML syntax, an unknown key,
     /// a value of the wrong kind).
