@@ -3,7 +3,7 @@
 use clap::Args;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::{IsTerminal, Write};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 use super::Failure;
@@ -11,6 +11,7 @@ use crate::ride::{
     against_truth, run_board, save_ride, scenario, state_words, stream, write_report, BoardOutcome,
     DemoResult, Progress,
 };
+use plethwire::emulate::BuildError;
 use plethwire_dsp::pipeline::Config;
 
 const EXAMPLES: &str = "\
@@ -56,40 +57,15 @@ pub struct DemoArgs {
     pub json: bool,
 }
 
-fn firmware_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../firmware")
-}
-
-/// Build the emulated firmware when the Rust target for it is there.
-fn build_firmware(say: &mut dyn FnMut(&str)) -> Result<(), String> {
-    let dir = firmware_dir();
-    if !dir.join("Cargo.toml").is_file() {
-        return Err("the firmware sources are not next to this program".into());
-    }
-    let targets = std::process::Command::new("rustup")
-        .args(["target", "list", "--installed"])
-        .output()
-        .map(|o| String::from_utf8_lossy(&o.stdout).into_owned())
-        .unwrap_or_default();
-    if !targets.lines().any(|l| l.trim() == "thumbv7em-none-eabihf") {
-        return Err("the Rust target thumbv7em-none-eabihf is not installed (`rustup target add thumbv7em-none-eabihf`)".into());
-    }
+/// Build the emulated firmware, saying so first; cargo's diagnostics of a
+/// failed build go to standard error.
+fn build_firmware(say: &mut dyn FnMut(&str)) -> Result<PathBuf, BuildError> {
     say("building the emulated firmware (cd firmware && cargo build --release; quick when up to date) ...");
-    let status =
-        std::process::Command::new(std::env::var_os("CARGO").unwrap_or_else(|| "cargo".into()))
-            .args(["build", "--release", "--quiet"])
-            .current_dir(&dir)
-            .env_remove("CARGO_TARGET_DIR")
-            .env_remove("RUSTFLAGS")
-            .env_remove("CARGO_BUILD_TARGET")
-            .env_remove("CARGO_ENCODED_RUSTFLAGS")
-            .status()
-            .map_err(|e| format!("cannot run cargo: {e}"))?;
-    if status.success() {
-        Ok(())
-    } else {
-        Err(format!("cargo build failed ({status})"))
+    let built = plethwire::emulate::build_firmware();
+    if let Err(BuildError::Failed { stderr, .. }) = &built {
+        say(stderr.trim_end());
     }
+    built
 }
 
 impl DemoArgs {

@@ -232,7 +232,7 @@ impl EmulateArgs {
                 },
                 "summary": board.summary(),
                 "identical_to_host": agreement.is_ok(),
-                "difference": agreement.as_ref().err(),
+                "difference": agreement.as_ref().err().map(ToString::to_string),
                 "perf": session.perf,
                 "annotations": ann.display().to_string(),
             });

@@ -192,11 +192,11 @@ fn finite(text: &str) -> Result<f64, String> {
 }
 
 fn ohms(text: &str) -> Result<f64, String> {
-    parse_value(text, Kind::Resistance)
+    parse_value(text, Kind::Resistance).map_err(|e| e.to_string())
 }
 
 fn farads(text: &str) -> Result<f64, String> {
-    parse_value(text, Kind::Capacitance)
+    parse_value(text, Kind::Capacitance).map_err(|e| e.to_string())
 }
 
 fn rails(text: &str) -> Result<(f64, f64), String> {
@@ -237,7 +237,7 @@ fn stage(text: &str) -> Result<StageDraft, String> {
             .ok_or_else(|| format!("'{part}': expected KEY=VALUE, such as r=47k"))?;
         toml.push_str(&format!("{key} = \"{value}\"\n"));
     }
-    let draft: StageDraft = toml::from_str(&toml).map_err(|e| e.message().trim().to_owned())?;
+    let draft = StageDraft::from_toml(&toml).map_err(|e| e.to_string())?;
     draft
         .resolve()
         .map(|_| draft)
@@ -311,7 +311,11 @@ impl FrontendArgs {
             .resolve()
             .map_err(|e| match e {
                 // Incomplete or inconsistent: the file's fault if there is one.
-                FrontendError::Missing { .. } | FrontendError::Invalid { .. } if !from_file => {
+                FrontendError::Missing { .. }
+                | FrontendError::Invalid { .. }
+                | FrontendError::Stage { .. }
+                    if !from_file =>
+                {
                     Failure::usage(e)
                 }
                 other => Failure::refused(other),

@@ -140,14 +140,3 @@ fn the_emulate_command_shows_beats_and_writes_annotations() {
     let read = plethwire_records::read_annotations(&ann).unwrap();
     assert_eq!(read.len(), beat_lines, "one annotation per beat shown");
 }
-
-/// `plethwire emulate` runs the same machine as `cargo run` in firmware/
-/// (whose runner `QEMU_ARGS` is checked against): only the semihosting
-/// arguments and, for counting, `-icount` are added.
-#[test]
-fn the_host_runs_the_machine_of_the_firmware_runner() {
-    use plethwire::emulate::{MACHINE_ARGS, SEMIHOSTING};
-    let mut host: Vec<&str> = MACHINE_ARGS.to_vec();
-    host.extend(["-semihosting-config", SEMIHOSTING, "-kernel"]);
-    assert_eq!(host, plethwire_checks::QEMU_ARGS);
-}

@@ -35,14 +35,17 @@ impl MotionSignals {
     }
 }
 
+/// Text that is not three accelerometer signal names; one line.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error("'{0}' is not three accelerometer signals X,Y,Z (for example ACCX,ACCY,ACCZ)")]
+pub struct MotionNamesError(pub String);
+
 /// Parse `X,Y,Z`: exactly three non-empty signal names.
-pub fn parse_motion_names(s: &str) -> Result<[String; 3], String> {
+pub fn parse_motion_names(s: &str) -> Result<[String; 3], MotionNamesError> {
     let names: Vec<String> = s.split(',').map(|n| n.trim().to_string()).collect();
     match <[String; 3]>::try_from(names) {
         Ok(three) if three.iter().all(|n| !n.is_empty()) => Ok(three),
-        _ => Err(format!(
-            "'{s}' is not three accelerometer signals X,Y,Z (for example ACCX,ACCY,ACCZ)"
-        )),
+        _ => Err(MotionNamesError(s.to_owned())),
     }
 }
 
@@ -119,7 +122,7 @@ mod tests {
             ["ACCX", "ACCY", "ACCZ"].map(String::from)
         );
         for bad in ["ACCX,ACCY", "ACCX,ACCY,ACCZ,ACCW", "ACCX,,ACCZ", ""] {
-            let e = parse_motion_names(bad).unwrap_err();
+            let e = parse_motion_names(bad).unwrap_err().to_string();
             assert!(e.contains("X,Y,Z") && e.lines().count() == 1, "{e}");
         }
     }

@@ -39,7 +39,7 @@ pub use numerics::{read_numerics, Numerics};
 pub use rr::read_rr_intervals;
 pub use wfdb_annotation::{
     annotation_path, code_for_symbol, decode_annotations, encode_annotations, read_annotations,
-    symbol_for_code, write_annotations, Annotation, NORMAL,
+    symbol_for_code, write_annotations, Annotation, EncodeError, EncodeProblem, NORMAL,
 };
 pub use wfdb_format::{FormatProblem, SignalFormat};
 pub use wfdb_header::{

@@ -212,6 +212,42 @@ fn put(out: &mut Vec<u8>, code: u16, value: u16) {
     out.extend_from_slice(&(code << 10 | (value & 0x3FF)).to_le_bytes());
 }
 
+/// An annotation the file format cannot hold; one line.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error("annotation {index}: {problem}")]
+pub struct EncodeError {
+    /// Its place in the list.
+    pub index: usize,
+    /// What is wrong with it.
+    #[source]
+    pub problem: EncodeProblem,
+}
+
+/// What keeps one annotation out of an annotation file.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+pub enum EncodeProblem {
+    /// The code is no annotation type.
+    #[error("code {0} is not an annotation type (1..={LAST_TYPE})")]
+    NotAType(u8),
+    /// Its sample comes before the one before it (or before 0).
+    #[error(
+        "sample {sample} comes before the previous one ({previous}); \
+         annotations must be in time order from sample 0"
+    )]
+    OutOfOrder {
+        /// Its sample.
+        sample: i64,
+        /// The previous annotation's (0 for the first).
+        previous: i64,
+    },
+    /// The aux text has a character outside Latin-1.
+    #[error("aux text has a character outside Latin-1")]
+    NotLatin1,
+    /// The aux text is longer than 255 bytes.
+    #[error("aux text of {0} bytes, at most 255 fit")]
+    AuxTooLong(usize),
+}
+
 /// Encode annotations as an annotation file's bytes.
 ///
 /// Annotations must be in time order (equal times allowed), at sample 0 or
@@ -219,22 +255,19 @@ fn put(out: &mut Vec<u8>, code: u16, value: u16) {
 /// characters. Steps above 1023 samples go in SKIP words; `chan` and `num`
 /// are written only where they change, the subtype only where it is not 0,
 /// as the specification's carry-over rules allow.
-pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec<u8>, String> {
+pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec<u8>, EncodeError> {
     let mut out = Vec::with_capacity(annotations.len() * 2 + 2);
     let (mut time, mut chan, mut num) = (0i64, 0u8, 0i8);
-    for (i, a) in annotations.iter().enumerate() {
+    for (index, a) in annotations.iter().enumerate() {
+        let refuse = |problem| Err(EncodeError { index, problem });
         if a.code == 0 || a.code > LAST_TYPE {
-            return Err(format!(
-                "annotation {i}: code {} is not an annotation type (1..={LAST_TYPE})",
-                a.code
-            ));
+            return refuse(EncodeProblem::NotAType(a.code));
         }
         if a.sample < time {
-            return Err(format!(
-                "annotation {i}: sample {} comes before the previous one ({time}); \
-                 annotations must be in time order from sample 0",
-                a.sample
-            ));
+            return refuse(EncodeProblem::OutOfOrder {
+                sample: a.sample,
+                previous: time,
+            });
         }
         let mut step = a.sample - time;
         if step > MAX_STEP {
@@ -260,16 +293,15 @@ pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec
             num = a.num;
         }
         if let Some(text) = &a.aux {
-            let bytes: Vec<u8> = text
+            let Ok(bytes) = text
                 .chars()
                 .map(|c| u8::try_from(c as u32))
-                .collect::<std::result::Result<_, _>>()
-                .map_err(|_| format!("annotation {i}: aux text has a character outside Latin-1"))?;
+                .collect::<std::result::Result<Vec<u8>, _>>()
+            else {
+                return refuse(EncodeProblem::NotLatin1);
+            };
             if bytes.len() > 255 {
-                return Err(format!(
-                    "annotation {i}: aux text of {} bytes, at most 255 fit",
-                    bytes.len()
-                ));
+                return refuse(EncodeProblem::AuxTooLong(bytes.len()));
             }
             put(&mut out, AUX, bytes.len() as u16);
             out.extend_from_slice(&bytes);
@@ -287,8 +319,8 @@ pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec
 /// [`encode_annotations`] for what is accepted).
 pub fn write_annotations(path: impl AsRef<Path>, annotations: &[Annotation]) -> Result<()> {
     let path = path.as_ref();
-    let bytes =
-        encode_annotations(annotations).map_err(|m| Error::new(path, ErrorKind::Invalid(m)))?;
+    let bytes = encode_annotations(annotations)
+        .map_err(|e| Error::new(path, ErrorKind::Invalid(e.to_string())))?;
     std::fs::write(path, bytes).map_err(|e| Error::from_io(path, "write", &e))
 }
 

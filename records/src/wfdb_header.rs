@@ -147,8 +147,8 @@ impl Header {
                 ErrorKind::Syntax("no record line (only blanks and comments)".into()),
             ));
         };
-        let (mut header, n_sig) =
-            parse_record_line(record_line).map_err(|m| Error::syntax(path, record_line_no, m))?;
+        let (mut header, n_sig) = parse_record_line(record_line)
+            .map_err(|e| Error::syntax(path, record_line_no, e.to_string()))?;
         header.comments = comments;
         let body = &lines[1..];
         let wanted = header.segments.unwrap_or(n_sig);
@@ -175,11 +175,12 @@ impl Header {
         }
         for &(no, line) in body {
             if header.segments.is_some() {
-                let seg = parse_segment_line(line).map_err(|m| Error::syntax(path, no, m))?;
+                let seg =
+                    parse_segment_line(line).map_err(|e| Error::syntax(path, no, e.to_string()))?;
                 header.segment_specs.push(seg);
             } else {
                 let sig = parse_signal_line(line).map_err(|e| match e {
-                    LineError::Syntax(m) => Error::syntax(path, no, m),
+                    LineError::Syntax(e) => Error::syntax(path, no, e.to_string()),
                     LineError::Format(kind) => Error::new(path, kind).at_line(no),
                 })?;
                 header.signals.push(sig);

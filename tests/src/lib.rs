@@ -36,6 +36,7 @@ pub mod emulation;
 pub mod selfcheck;
 
 pub use baseline::{baseline_detections, baseline_peaks, BaselineInput, BaselinePeaks};
+pub use plethwire::emulate::{firmware_target_installed, FIRMWARE_TARGET};
 
 use std::ffi::{OsStr, OsString};
 use std::io::{self, Read, Write};
@@ -45,6 +46,7 @@ use std::sync::OnceLock;
 use std::thread::{self, JoinHandle};
 use std::time::{Duration, Instant};
 
+use plethwire::emulate::{self, BuildError};
 use serde::de::DeserializeOwned;
 use serde::Serialize;
 
@@ -189,170 +191,41 @@ where
     })
 }
 
-/// The QEMU arguments that run the emulated firmware, up to and including
-/// `-kernel`; the ELF path follows. Must equal the runner in
-/// `firmware/.cargo/config.toml` (a unit test checks this), so `cargo run`
-/// and the checks run the firmware in the same machine.
-pub const QEMU_ARGS: &[&str] = &[
-    "-M",
-    "mps2-an386",
-    "-cpu",
-    "cortex-m4",
-    "-display",
-    "none",
-    "-monitor",
-    "none",
-    "-serial",
-    "stdio",
-    "-semihosting-config",
-    "enable=on,target=native",
-    "-kernel",
-];
-
 /// The `qemu-system-arm` binary (`PLETHWIRE_QEMU`, else the first one on
-/// `PATH`), if it exists and answers `--version`.
+/// `PATH`), if it exists and answers `--version`
+/// ([`plethwire::emulate::find_qemu`]).
 pub fn qemu() -> Option<PathBuf> {
-    let exe = match std::env::var_os("PLETHWIRE_QEMU") {
-        Some(p) => PathBuf::from(p),
-        None => find_on_path("qemu-system-arm")?,
-    };
-    let runs = Command::new(&exe)
-        .arg("--version")
-        .stdin(Stdio::null())
-        .stdout(Stdio::null())
-        .stderr(Stdio::null())
-        .status()
-        .is_ok_and(|s| s.success());
-    runs.then_some(exe)
+    emulate::find_qemu().ok()
 }
 
-/// First file called `name` in the folders of `PATH`.
-fn find_on_path(name: &str) -> Option<PathBuf> {
-    let path = std::env::var_os("PATH")?;
-    std::env::split_paths(&path)
-        .map(|dir| dir.join(name))
-        .find(|candidate| candidate.is_file())
-}
-
-/// The target the emulated firmware is built for.
-pub const FIRMWARE_TARGET: &str = "thumbv7em-none-eabihf";
-
-/// Whether the Rust standard library for [`FIRMWARE_TARGET`] is installed in
-/// the active toolchain.
-pub fn firmware_target_installed() -> bool {
-    let Ok(out) = Command::new(rustc())
-        .args(["--print", "sysroot"])
-        .stderr(Stdio::null())
-        .output()
-    else {
-        return false;
-    };
-    let sysroot = String::from_utf8_lossy(&out.stdout);
-    Path::new(sysroot.trim())
-        .join("lib/rustlib")
-        .join(FIRMWARE_TARGET)
-        .join("lib")
-        .is_dir()
-}
-
-/// The cargo running these tests (cargo sets `CARGO` for the processes it
-/// starts), so the nested build uses the same toolchain.
-fn cargo() -> OsString {
-    std::env::var_os("CARGO").unwrap_or_else(|| "cargo".into())
-}
-
-/// The rustc next to [`cargo`], or `rustc` from `PATH`.
-fn rustc() -> OsString {
-    if let Some(rustc) = std::env::var_os("RUSTC") {
-        return rustc;
-    }
-    let sibling = Path::new(&cargo()).with_file_name("rustc");
-    if sibling.is_file() {
-        sibling.into_os_string()
-    } else {
-        "rustc".into()
-    }
-}
-
-/// Variables the outer cargo (or the user) may set that would override the
-/// firmware workspace's own `.cargo/config.toml`: target, target folder,
-/// flags meant for the host build, runners, and clippy's wrapper.
-fn overrides_firmware_config(name: &str) -> bool {
-    name.starts_with("CARGO_TARGET_")
-        || name.starts_with("CARGO_BUILD_")
-        || matches!(
-            name,
-            "RUSTFLAGS"
-                | "CARGO_ENCODED_RUSTFLAGS"
-                | "RUSTDOCFLAGS"
-                | "CARGO_ENCODED_RUSTDOCFLAGS"
-                | "RUSTC_WORKSPACE_WRAPPER"
-                | "CARGO_MANIFEST_DIR"
-                | "CARGO_MANIFEST_PATH"
-        )
-}
-
-/// Build the emulated firmware (`cargo build --release` in `firmware/`) and
-/// return the path of its ELF, normally
-/// `firmware/target/thumbv7em-none-eabihf/release/plethwire-emulated`.
+/// Build the emulated firmware ([`plethwire::emulate::build_firmware`]:
+/// `cargo build --release` in `firmware/`) and return the path of its ELF,
+/// normally `firmware/target/thumbv7em-none-eabihf/release/plethwire-emulated`.
 ///
-/// The build runs once per test process. The path is taken from cargo's
-/// JSON messages rather than assumed, so a user-level `build.target-dir`
-/// setting cannot make us run a stale binary. Panics with cargo's output if
-/// the build fails.
+/// The build runs once per test process. Panics with cargo's output if the
+/// build fails.
 pub fn build_emulated_firmware() -> PathBuf {
     static ELF: OnceLock<PathBuf> = OnceLock::new();
-    ELF.get_or_init(|| {
-        let firmware = repo_root().join("firmware");
-        let mut cmd = Command::new(cargo());
-        cmd.current_dir(&firmware).args([
-            "build",
-            "--release",
-            "--message-format=json-render-diagnostics",
-        ]);
-        for (name, _) in std::env::vars_os() {
-            if name.to_str().is_some_and(overrides_firmware_config) {
-                cmd.env_remove(&name);
-            }
+    ELF.get_or_init(|| match emulate::build_firmware() {
+        Ok(elf) => elf,
+        Err(BuildError::Failed {
+            status,
+            dir,
+            stderr,
+        }) => panic!(
+            "firmware build failed ({status}) in {}:\n{stderr}",
+            dir.display()
+        ),
+        Err(BuildError::NoExecutable { stderr }) => {
+            panic!("cargo reported no existing plethwire-emulated executable:\n{stderr}")
         }
-        let out = cmd
-            .stdin(Stdio::null())
-            .output()
-            .expect("start cargo for the firmware build");
-        let stderr = String::from_utf8_lossy(&out.stderr);
-        assert!(
-            out.status.success(),
-            "firmware build failed ({}) in {}:\n{stderr}",
-            out.status,
-            firmware.display()
-        );
-        let elf =
-            executable_from_messages(&String::from_utf8_lossy(&out.stdout), "plethwire-emulated")
-                .unwrap_or_else(|| {
-                    panic!("cargo reported no plethwire-emulated executable:\n{stderr}")
-                });
-        assert!(
-            elf.is_file(),
-            "{} was reported but does not exist",
-            elf.display()
-        );
-        elf
+        Err(e) => panic!("firmware build: {e}"),
     })
     .clone()
 }
 
-/// The `executable` of the last `compiler-artifact` message for the binary
-/// target `bin` in cargo's `--message-format=json` output.
-fn executable_from_messages(stdout: &str, bin: &str) -> Option<PathBuf> {
-    stdout
-        .lines()
-        .filter_map(|line| serde_json::from_str::<serde_json::Value>(line).ok())
-        .filter(|m| m["reason"] == "compiler-artifact" && m["target"]["name"] == bin)
-        .filter_map(|m| m["executable"].as_str().map(PathBuf::from))
-        .next_back()
-}
-
-/// Run `elf` in QEMU's mps2-an386 machine with [`QEMU_ARGS`] and return its
+/// Run `elf` in QEMU's mps2-an386 machine as the firmware's runner does
+/// ([`plethwire::emulate::runner_args`]: the self-check) and return its
 /// exit status and everything it printed on stdout.
 ///
 /// QEMU's stderr is passed on through `eprint!` (shown when the test fails).
@@ -362,7 +235,7 @@ fn executable_from_messages(stdout: &str, bin: &str) -> Option<PathBuf> {
 pub fn run_emulated(elf: &Path, timeout: Duration) -> (ExitStatus, String) {
     let exe = qemu().unwrap_or_else(|| panic!("no usable {}", needs::QEMU));
     let mut child = Command::new(&exe)
-        .args(QEMU_ARGS)
+        .args(emulate::runner_args())
         .arg(elf)
         .stdin(Stdio::null())
         .stdout(Stdio::piped())
@@ -422,7 +295,7 @@ mod tests {
     use super::*;
 
     #[test]
-    fn qemu_args_match_the_firmware_runner() {
+    fn the_board_runs_the_machine_of_the_firmware_runner() {
         let config = std::fs::read_to_string(repo_root().join("firmware/.cargo/config.toml"))
             .expect("firmware/.cargo/config.toml exists");
         let runner = config
@@ -430,7 +303,10 @@ mod tests {
             .find_map(|l| l.trim().strip_prefix("runner = \""))
             .and_then(|r| r.strip_suffix('"'))
             .expect("the firmware config sets a runner");
-        assert_eq!(runner, format!("qemu-system-arm {}", QEMU_ARGS.join(" ")));
+        assert_eq!(
+            runner,
+            format!("qemu-system-arm {}", emulate::runner_args().join(" "))
+        );
     }
 
     #[test]
@@ -439,38 +315,6 @@ mod tests {
         assert!(root.join("Cargo.toml").is_file());
         assert!(root.join("firmware/Cargo.toml").is_file());
         assert!(root.join("shared-dsp/Cargo.toml").is_file());
-    }
-
-    #[test]
-    fn executable_is_read_from_cargo_messages() {
-        let messages = concat!(
-            "{\"reason\":\"compiler-artifact\",\"target\":{\"name\":\"cortex-m\"},\"executable\":null}\n",
-            "not json at all\n",
-            "{\"reason\":\"compiler-artifact\",\"target\":{\"name\":\"plethwire-emulated\"},",
-            "\"executable\":\"/t/release/plethwire-emulated\"}\n",
-            "{\"reason\":\"build-finished\",\"success\":true}\n"
-        );
-        assert_eq!(
-            executable_from_messages(messages, "plethwire-emulated"),
-            Some(PathBuf::from("/t/release/plethwire-emulated"))
-        );
-        assert_eq!(executable_from_messages(messages, "cortex-m"), None);
-    }
-
-    #[test]
-    fn outer_cargo_settings_are_not_passed_to_the_firmware_build() {
-        for name in [
-            "CARGO_TARGET_DIR",
-            "CARGO_BUILD_TARGET",
-            "RUSTFLAGS",
-            "CARGO_ENCODED_RUSTFLAGS",
-            "CARGO_TARGET_THUMBV7EM_NONE_EABIHF_RUNNER",
-        ] {
-            assert!(overrides_firmware_config(name), "{name}");
-        }
-        for name in ["PATH", "HOME", "RUSTUP_TOOLCHAIN", "CARGO_HOME", "CI"] {
-            assert!(!overrides_firmware_config(name), "{name}");
-        }
     }
 
     #[test]

@@ -52,26 +52,94 @@ pub struct SelfCheck {
     pub samples: Vec<SampleBits>,
 }
 
+/// Why a self-check report does not parse; one line.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+pub enum SelfCheckError {
+    /// The report is empty.
+    #[error("empty report")]
+    Empty,
+    /// The first line is not [`HEADER`].
+    #[error("line 1: expected {HEADER:?}, got {0:?}")]
+    Header(String),
+    /// A line is wrong.
+    #[error("line {number}: {problem} in {text:?}")]
+    Line {
+        /// Its number, from 1.
+        number: usize,
+        /// The line.
+        text: String,
+        /// What is wrong with it.
+        #[source]
+        problem: LineProblem,
+    },
+    /// The report stops before its `end` line.
+    #[error("report has no `end` line (firmware stopped early?)")]
+    NoEnd,
+}
+
+/// What is wrong with one line of a report.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+pub enum LineProblem {
+    /// Anything after `end`.
+    #[error("text after `end`")]
+    AfterEnd,
+    /// A section after a sample.
+    #[error("section after the first sample")]
+    SectionAfterSample,
+    /// A record type the format does not have.
+    #[error("unknown record")]
+    UnknownRecord,
+    /// No index field.
+    #[error("missing index")]
+    MissingIndex,
+    /// An index that does not count up from 0.
+    #[error("index {field:?} where {expected} was due")]
+    WrongIndex {
+        /// The field as printed.
+        field: String,
+        /// The index due.
+        expected: usize,
+    },
+    /// A value field is missing.
+    #[error("missing value")]
+    MissingValue,
+    /// A value is not the right number of lowercase hex digits.
+    #[error("{field:?} is not {digits} lowercase hex digits")]
+    NotHex {
+        /// The field as printed.
+        field: String,
+        /// The digits due.
+        digits: usize,
+    },
+    /// A field after the last one.
+    #[error("unexpected extra field {0:?}")]
+    ExtraField(String),
+}
+
 /// Parse a report; the error names the offending line (1-based) and why.
-pub fn parse(text: &str) -> Result<SelfCheck, String> {
+pub fn parse(text: &str) -> Result<SelfCheck, SelfCheckError> {
     let mut lines = text.lines().enumerate().map(|(i, l)| (i + 1, l.trim_end()));
     match lines.next() {
         Some((_, HEADER)) => {}
-        Some((_, other)) => return Err(format!("line 1: expected {HEADER:?}, got {other:?}")),
-        None => return Err("empty report".into()),
+        Some((_, other)) => return Err(SelfCheckError::Header(other.to_owned())),
+        None => return Err(SelfCheckError::Empty),
     }
     let mut report = SelfCheck::default();
     let mut ended = false;
-    for (no, line) in lines {
-        let at = |why: String| format!("line {no}: {why} in {line:?}");
+    for (number, line) in lines {
+        let at = |problem: LineProblem| SelfCheckError::Line {
+            number,
+            text: line.to_owned(),
+            problem,
+        };
         if ended {
-            return Err(at("text after `end`".into()));
+            return Err(at(LineProblem::AfterEnd));
         }
         let mut fields = line.split(' ');
         match fields.next() {
             Some("section") => {
                 if !report.samples.is_empty() {
-                    return Err(at("section after the first sample".into()));
+                    return Err(at(LineProblem::SectionAfterSample));
                 }
                 expect_index(fields.next(), report.sections.len()).map_err(at)?;
                 let mut coefficients = [0u64; 5];
@@ -96,42 +164,50 @@ pub fn parse(text: &str) -> Result<SelfCheck, String> {
                 no_more(fields).map_err(at)?;
                 ended = true;
             }
-            _ => return Err(at("unknown record".into())),
+            _ => return Err(at(LineProblem::UnknownRecord)),
         }
     }
     if !ended {
-        return Err("report has no `end` line (firmware stopped early?)".into());
+        return Err(SelfCheckError::NoEnd);
     }
     Ok(report)
 }
 
 /// Check that an index field is the decimal number `expected`.
-fn expect_index(field: Option<&str>, expected: usize) -> Result<(), String> {
-    let field = field.ok_or("missing index")?;
+fn expect_index(field: Option<&str>, expected: usize) -> Result<(), LineProblem> {
+    let field = field.ok_or(LineProblem::MissingIndex)?;
     match field.parse::<usize>() {
         Ok(i) if i == expected => Ok(()),
-        _ => Err(format!("index {field:?} where {expected} was due")),
+        _ => Err(LineProblem::WrongIndex {
+            field: field.to_owned(),
+            expected,
+        }),
     }
 }
 
-/// Parse exactly `digits` lowercase hex digits.
-fn hex_field(field: Option<&str>, digits: usize) -> Result<u64, String> {
-    let field = field.ok_or("missing value")?;
+/// Parse exactly `digits` lowercase hex digits (at most 16).
+fn hex_field(field: Option<&str>, digits: usize) -> Result<u64, LineProblem> {
+    let field = field.ok_or(LineProblem::MissingValue)?;
+    let not_hex = || LineProblem::NotHex {
+        field: field.to_owned(),
+        digits,
+    };
     let well_formed = field.len() == digits
         && field
             .bytes()
             .all(|b| b.is_ascii_digit() || (b'a'..=b'f').contains(&b));
     if !well_formed {
-        return Err(format!("{field:?} is not {digits} lowercase hex digits"));
+        return Err(not_hex());
     }
-    u64::from_str_radix(field, 16).map_err(|e| e.to_string())
+    // At most 16 checked hex digits always fit in u64.
+    u64::from_str_radix(field, 16).map_err(|_| not_hex())
 }
 
 /// Reject trailing fields.
-fn no_more<'a>(mut fields: impl Iterator<Item = &'a str>) -> Result<(), String> {
+fn no_more<'a>(mut fields: impl Iterator<Item = &'a str>) -> Result<(), LineProblem> {
     match fields.next() {
         None => Ok(()),
-        Some(extra) => Err(format!("unexpected extra field {extra:?}")),
+        Some(extra) => Err(LineProblem::ExtraField(extra.to_owned())),
     }
 }
 
@@ -170,20 +246,20 @@ mod tests {
     #[test]
     fn rejects_a_truncated_report() {
         let cut = GOOD.replace("end\n", "");
-        assert!(parse(&cut).unwrap_err().contains("no `end`"));
+        assert!(parse(&cut).unwrap_err().to_string().contains("no `end`"));
     }
 
     #[test]
     fn rejects_a_wrong_header() {
         let other = GOOD.replace("v1", "v2");
-        assert!(parse(&other).unwrap_err().starts_with("line 1"));
+        assert!(parse(&other).unwrap_err().to_string().starts_with("line 1"));
         assert!(parse("").is_err());
     }
 
     #[test]
     fn rejects_skipped_or_repeated_indices() {
         let skipped = GOOD.replace("sample 1 ", "sample 2 ");
-        assert!(parse(&skipped).unwrap_err().contains("line 4"));
+        assert!(parse(&skipped).unwrap_err().to_string().contains("line 4"));
         let repeated = GOOD.replace("sample 1 ", "sample 0 ");
         assert!(parse(&repeated).is_err());
     }
@@ -209,10 +285,17 @@ mod tests {
         );
         assert!(parse(&late_section)
             .unwrap_err()
+            .to_string()
             .contains("after the first sample"));
         let trailing = format!("{GOOD}sample 2 00000000 00000000 00000000\n");
-        assert!(parse(&trailing).unwrap_err().contains("after `end`"));
+        assert!(parse(&trailing)
+            .unwrap_err()
+            .to_string()
+            .contains("after `end`"));
         let noise = GOOD.replace("end\n", "hello\nend\n");
-        assert!(parse(&noise).unwrap_err().contains("unknown record"));
+        assert_eq!(
+            parse(&noise).unwrap_err().to_string(),
+            "line 5: unknown record in \"hello\""
+        );
     }
 }

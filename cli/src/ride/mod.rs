@@ -8,7 +8,7 @@
 
 pub mod scenario;
 
-use plethwire::emulate::{compare, find_elf, find_qemu, EmulateError, Emulation, Link};
+use plethwire::emulate::{compare, find_elf, find_qemu, BuildError, EmulateError, Emulation, Link};
 use plethwire::replay::{Replay, Summary};
 use plethwire::report::{self, Reference, ReportInput};
 use plethwire::score::{match_beats, MatchCounts, MATCH_WINDOW_S};
@@ -137,7 +137,7 @@ pub fn run_board(
     samples: &[f64],
     config: Config,
     host: &Replay,
-    build: &mut dyn FnMut() -> Result<(), String>,
+    build: &mut dyn FnMut() -> Result<PathBuf, BuildError>,
 ) -> BoardOutcome {
     let qemu = match find_qemu() {
         Ok(q) => q,
@@ -149,13 +149,12 @@ pub fn run_board(
     };
     // Build first (a no-op when up to date): an ELF left from older
     // sources would disagree with this host for the wrong reason.
-    let built = build();
-    let elf = match (find_elf(None), built) {
-        (Ok(e), _) => e,
-        (Err(EmulateError::NoElf(_)), Err(why)) => {
+    let elf = match (build(), find_elf(None)) {
+        (Ok(e), _) | (Err(_), Ok(e)) => e,
+        (Err(why), Err(EmulateError::NoElf(_))) => {
             return BoardOutcome::NotRun(format!("the emulated firmware could not be built: {why}"))
         }
-        (Err(e), _) => return BoardOutcome::NotRun(e.to_string()),
+        (Err(_), Err(e)) => return BoardOutcome::NotRun(e.to_string()),
     };
     let emu = Emulation {
         qemu,
@@ -170,7 +169,7 @@ pub fn run_board(
                 beats: host.beats.len(),
                 states: host.states.len(),
             },
-            Err(d) => BoardOutcome::Disagreed(d),
+            Err(d) => BoardOutcome::Disagreed(d.to_string()),
         },
         Err(e) => BoardOutcome::NotRun(format!("the emulated board could not run: {e}")),
     }

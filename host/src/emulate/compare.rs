@@ -4,6 +4,49 @@ use plethwire_dsp::pipeline::{BeatEvent, StateEvent};
 
 use crate::replay::Replay;
 
+/// The first difference between the board's events and the host's; one line.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum Disagreement {
+    /// A beat differs in a field.
+    #[error("beat {index} (peak at sample {}) differs in {field}: board {board:?}, host {host:?}", .host.peak_index)]
+    Beat {
+        /// Its place in both lists.
+        index: usize,
+        /// The first field that differs.
+        field: &'static str,
+        /// The board's beat.
+        board: Box<BeatEvent>,
+        /// The host's beat.
+        host: Box<BeatEvent>,
+    },
+    /// The lists of beats have different lengths.
+    #[error("the board sent {board} beats, the host replay found {host}")]
+    BeatCount {
+        /// Beats from the board.
+        board: usize,
+        /// Beats from the host.
+        host: usize,
+    },
+    /// A state change differs.
+    #[error("state change {index} differs: board {board:?}, host {host:?}")]
+    State {
+        /// Its place in both lists.
+        index: usize,
+        /// The board's.
+        board: StateEvent,
+        /// The host's.
+        host: StateEvent,
+    },
+    /// The lists of state changes have different lengths.
+    #[error("the board sent {board} state changes, the host replay found {host}")]
+    StateCount {
+        /// State changes from the board.
+        board: usize,
+        /// State changes from the host.
+        host: usize,
+    },
+}
+
 /// How far two event lists agree.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Agreement {
@@ -45,33 +88,37 @@ pub fn compare(
     board_beats: &[BeatEvent],
     board_states: &[StateEvent],
     host: &Replay,
-) -> Result<Agreement, String> {
-    for (i, (b, h)) in board_beats.iter().zip(&host.beats).enumerate() {
+) -> Result<Agreement, Disagreement> {
+    for (index, (b, h)) in board_beats.iter().zip(&host.beats).enumerate() {
         if let Some(field) = beat_difference(b, h) {
-            return Err(format!(
-                "beat {i} (peak at sample {}) differs in {field}: board {b:?}, host {h:?}",
-                h.peak_index
-            ));
+            return Err(Disagreement::Beat {
+                index,
+                field,
+                board: Box::new(*b),
+                host: Box::new(*h),
+            });
         }
     }
     if board_beats.len() != host.beats.len() {
-        return Err(format!(
-            "the board sent {} beats, the host replay found {}",
-            board_beats.len(),
-            host.beats.len()
-        ));
+        return Err(Disagreement::BeatCount {
+            board: board_beats.len(),
+            host: host.beats.len(),
+        });
     }
-    for (i, (b, h)) in board_states.iter().zip(&host.states).enumerate() {
+    for (index, (b, h)) in board_states.iter().zip(&host.states).enumerate() {
         if b != h {
-            return Err(format!("state change {i} differs: board {b:?}, host {h:?}"));
+            return Err(Disagreement::State {
+                index,
+                board: *b,
+                host: *h,
+            });
         }
     }
     if board_states.len() != host.states.len() {
-        return Err(format!(
-            "the board sent {} state changes, the host replay found {}",
-            board_states.len(),
-            host.states.len()
-        ));
+        return Err(Disagreement::StateCount {
+            board: board_states.len(),
+            host: host.states.len(),
+        });
     }
     Ok(Agreement {
         beats: board_beats.len(),
@@ -142,7 +189,8 @@ mod tests {
         );
         assert!(compare(&[beat()], &[s], &host)
             .unwrap_err()
-            .contains("1 beats"));
+            .to_string()
+            .contains("the board sent 1 beats, the host replay found 2"));
         assert!(compare(&[beat(), beat()], &[], &host).is_err());
         let mut late = s;
         late.at = 31;

@@ -16,21 +16,21 @@
 //! [`compare`] then checks the board's events against
 //! [`crate::replay::replay`] bit for bit.
 
+mod board;
 mod compare;
-mod locate;
 mod perf;
 mod run;
 mod session;
 
-pub use compare::{beat_difference, compare, Agreement};
-pub use locate::{
-    find_elf, find_qemu, qemu_args, BUILD_HINT, FIRMWARE_ELF, FIRMWARE_PROGRAM, ICOUNT_ARGS,
+pub use board::{
+    build_firmware, find_elf, find_qemu, firmware_target_installed, qemu_args, runner_args,
+    BuildError, BUILD_HINT, FIRMWARE_ELF, FIRMWARE_PROGRAM, FIRMWARE_TARGET, ICOUNT_ARGS,
     MACHINE_ARGS, SEMIHOSTING,
 };
-pub use perf::{parse as parse_perf, PerfReport};
-pub use session::Session;
+pub use compare::{beat_difference, compare, Agreement, Disagreement};
+pub use perf::{parse as parse_perf, PerfError, PerfReport};
+pub use session::{Session, StreamError};
 
-use std::fmt;
 use std::path::PathBuf;
 use std::time::Duration;
 
@@ -64,41 +64,39 @@ pub struct Emulation {
 }
 
 /// Why a run failed; one line.
-#[derive(Debug)]
+#[derive(Debug, thiserror::Error)]
 pub enum EmulateError {
     /// No usable `qemu-system-arm`.
+    #[error("qemu-system-arm not found: install it (Debian/Ubuntu: `apt-get install qemu-system-arm`) or set PLETHWIRE_QEMU")]
     NoQemu,
     /// No firmware ELF at this path.
+    #[error("no emulated firmware at {}; {BUILD_HINT}, or pass --elf PATH", .0.display())]
     NoElf(PathBuf),
+    /// The file at this path is not an ELF (QEMU would load it as a raw
+    /// image and lock up).
+    #[error("{} is not an ELF file; {BUILD_HINT}", .0.display())]
+    NotElf(PathBuf),
     /// Instruction counting was asked for over the UART.
+    #[error("instruction counting works over semihosting files, not the UART")]
     CountingNeedsFiles,
     /// A host-side operation failed.
-    Io(String),
+    #[error("{what}: {source}")]
+    Io {
+        /// What was being done, e.g. `cannot write the samples feed`.
+        what: String,
+        /// The operating system's error.
+        source: std::io::Error,
+    },
     /// The board exited with a failure; its last words on standard error.
+    #[error("the emulated board failed: {0}")]
     Board(String),
     /// The run took longer than its timeout.
+    #[error("the emulated board did not finish within {} s and was stopped", .0.as_secs())]
     Timeout(Duration),
     /// The perf report is unreadable.
-    Perf(String),
+    #[error(transparent)]
+    Perf(#[from] PerfError),
 }
-
-impl fmt::Display for EmulateError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self {
-            Self::NoQemu => f.write_str(
-                "qemu-system-arm not found: install it (Debian/Ubuntu: `apt-get install qemu-system-arm`) or set PLETHWIRE_QEMU",
-            ),
-            Self::NoElf(p) => write!(f, "no emulated firmware at {}; {BUILD_HINT}, or pass --elf PATH", p.display()),
-            Self::CountingNeedsFiles => f.write_str("instruction counting works over semihosting files, not the UART"),
-            Self::Io(e) => f.write_str(e),
-            Self::Board(e) => write!(f, "the emulated board failed: {e}"),
-            Self::Timeout(t) => write!(f, "the emulated board did not finish within {} s and was stopped", t.as_secs()),
-            Self::Perf(e) => f.write_str(e),
-        }
-    }
-}
-
-impl std::error::Error for EmulateError {}
 
 impl Emulation {
     /// Feed `samples` (taken as `f32`, as [`crate::replay::replay`] does)

@@ -39,11 +39,48 @@ impl PerfReport {
     }
 }
 
+/// What is wrong with a perf report; one line.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum PerfError {
+    /// The first line is not the report's header.
+    #[error("the perf report does not start with {HEADER:?}")]
+    NoHeader,
+    /// A line is not `key value`.
+    #[error("perf report line {0:?} is not `key value`")]
+    NotKeyValue(String),
+    /// The closing `end` line is missing.
+    #[error("the perf report has no `end` (the board stopped early?)")]
+    NoEnd,
+    /// A field is missing.
+    #[error("the perf report has no {0}")]
+    Missing(String),
+    /// A count is not a whole number.
+    #[error("perf report: {key} is not a whole number")]
+    NotWhole {
+        /// The field.
+        key: String,
+        /// Why it does not parse.
+        source: std::num::ParseIntError,
+    },
+    /// The per-sample figure is not a number.
+    #[error("perf report: instructions_per_sample is not a number")]
+    NotNumber(#[source] std::num::ParseFloatError),
+    /// The empty brackets cost more than the pushes.
+    #[error("perf report: the empty brackets cost more than the pushes")]
+    EmptyCostsMore,
+    /// The instruction total is not the net ticks times instructions per tick.
+    #[error("perf report: instructions do not match the ticks")]
+    TicksMismatch,
+    /// The per-sample figure is not the total over the samples.
+    #[error("perf report: the per-sample figure does not match the total")]
+    MeanMismatch,
+}
+
 /// Parse a report; the error says what is wrong in one line.
-pub fn parse(text: &str) -> Result<PerfReport, String> {
+pub fn parse(text: &str) -> Result<PerfReport, PerfError> {
     let mut lines = text.lines();
     if lines.next() != Some(HEADER) {
-        return Err(format!("the perf report does not start with {HEADER:?}"));
+        return Err(PerfError::NoHeader);
     }
     let mut fields: Vec<(&str, &str)> = Vec::new();
     let mut ended = false;
@@ -54,23 +91,26 @@ pub fn parse(text: &str) -> Result<PerfReport, String> {
         }
         let (k, v) = line
             .split_once(' ')
-            .ok_or_else(|| format!("perf report line {line:?} is not `key value`"))?;
+            .ok_or_else(|| PerfError::NotKeyValue(line.to_owned()))?;
         fields.push((k, v));
     }
     if !ended {
-        return Err("the perf report has no `end` (the board stopped early?)".into());
+        return Err(PerfError::NoEnd);
     }
     let get = |key: &str| {
         fields
             .iter()
             .find(|(k, _)| *k == key)
             .map(|(_, v)| *v)
-            .ok_or_else(|| format!("the perf report has no {key}"))
+            .ok_or_else(|| PerfError::Missing(key.to_owned()))
     };
     let int = |key: &str| {
         get(key)?
             .parse::<u64>()
-            .map_err(|_| format!("perf report: {key} is not a whole number"))
+            .map_err(|source| PerfError::NotWhole {
+                key: key.to_owned(),
+                source,
+            })
     };
     let r = PerfReport {
         samples: int("samples")?,
@@ -82,18 +122,18 @@ pub fn parse(text: &str) -> Result<PerfReport, String> {
         instructions: int("instructions")?,
         instructions_per_sample: get("instructions_per_sample")?
             .parse::<f64>()
-            .map_err(|_| "perf report: instructions_per_sample is not a number".to_string())?,
+            .map_err(PerfError::NotNumber)?,
     };
     let net = r
         .push_ticks
         .checked_sub(r.empty_ticks)
-        .ok_or("perf report: the empty brackets cost more than the pushes")?;
+        .ok_or(PerfError::EmptyCostsMore)?;
     if net * r.instructions_per_tick != r.instructions {
-        return Err("perf report: instructions do not match the ticks".into());
+        return Err(PerfError::TicksMismatch);
     }
     let mean = r.instructions as f64 / r.samples.max(1) as f64;
     if (mean - r.instructions_per_sample).abs() > 0.006 {
-        return Err("perf report: the per-sample figure does not match the total".into());
+        return Err(PerfError::MeanMismatch);
     }
     Ok(PerfReport {
         instructions_per_sample: mean,

@@ -10,7 +10,7 @@ use std::time::{Duration, Instant};
 
 use plethwire_dsp::wire::Frame;
 
-use super::locate::qemu_args;
+use super::board::qemu_args;
 use super::perf;
 use super::session::{Collector, Session};
 use super::{EmulateError, Emulation};
@@ -24,7 +24,10 @@ const FRAMES: &str = "frames.bin";
 const PERF: &str = "perf.txt";
 
 fn io(what: &str) -> impl Fn(std::io::Error) -> EmulateError + '_ {
-    move |e| EmulateError::Io(format!("{what}: {e}"))
+    move |source| EmulateError::Io {
+        what: what.to_owned(),
+        source,
+    }
 }
 
 /// Start QEMU in `dir` with the firmware command line `args`.
@@ -44,7 +47,10 @@ fn start(
         .stdout(Stdio::piped())
         .stderr(Stdio::piped())
         .spawn()
-        .map_err(|err| EmulateError::Io(format!("cannot start {}: {err}", e.qemu.display())))?;
+        .map_err(|source| EmulateError::Io {
+            what: format!("cannot start {}", e.qemu.display()),
+            source,
+        })?;
     let stderr = drain(child.stderr.take().expect("stderr is piped"));
     Ok((child, stderr))
 }
@@ -149,7 +155,7 @@ pub(super) fn over_files(
     let perf = if e.count_instructions {
         let text = std::fs::read_to_string(dir.path().join(PERF))
             .map_err(io("cannot read the board's perf report"))?;
-        Some(perf::parse(&text).map_err(EmulateError::Perf)?)
+        Some(perf::parse(&text)?)
     } else {
         None
     };

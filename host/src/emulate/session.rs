@@ -7,6 +7,39 @@ use plethwire_dsp::wire::{DecodeStats, Decoder, Frame, FrameError, Hello, Messag
 use super::perf::PerfReport;
 use crate::replay::Replay;
 
+/// Why a session's frame stream is not whole; one line.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+pub enum StreamError {
+    /// Frames were damaged or lost; the decoder's counters.
+    #[error(
+        "the frame stream is damaged: {} damaged frames ({} CRC errors, {} bytes dropped), {} lost",
+        .0.damaged, .0.crc_errors, .0.dropped_bytes, .0.lost_frames
+    )]
+    Damaged(DecodeStats),
+    /// The first frame is not a hello.
+    #[error("the board's first frame is not a hello")]
+    NoHello,
+    /// The last frame is not a status.
+    #[error("the board's last frame is not a status (stream cut short?)")]
+    NoStatus,
+    /// A frame's sequence number is not its place in the stream.
+    #[error("frame {frame} carries sequence number {seq}")]
+    Sequence {
+        /// The frame's place.
+        frame: usize,
+        /// The number it carries.
+        seq: u16,
+    },
+    /// A frame other than a beat or a state sits inside the session.
+    #[error("frame {frame} is a {kind:?} inside the session")]
+    Misplaced {
+        /// The frame's place.
+        frame: usize,
+        /// Its message's type byte.
+        kind: u8,
+    },
+}
+
 /// One session's frames, decoded, in the order they arrived.
 #[derive(Debug, Clone)]
 pub struct Session {
@@ -109,30 +142,30 @@ impl Session {
     /// counting from 0 without a gap, a hello first, a status last, and
     /// only beats and states between them. The error names the first
     /// problem.
-    pub fn verify(&self) -> Result<(), String> {
+    pub fn verify(&self) -> Result<(), StreamError> {
         let s = &self.stats;
         if s.damaged > 0 || s.lost_frames > 0 || !self.damaged.is_empty() {
-            return Err(format!(
-                "the frame stream is damaged: {} damaged frames ({} CRC errors, {} bytes dropped), {} lost",
-                s.damaged, s.crc_errors, s.dropped_bytes, s.lost_frames
-            ));
+            return Err(StreamError::Damaged(*s));
         }
         if self.hello().is_none() {
-            return Err("the board's first frame is not a hello".into());
+            return Err(StreamError::NoHello);
         }
         if self.status().is_none() {
-            return Err("the board's last frame is not a status (stream cut short?)".into());
+            return Err(StreamError::NoStatus);
         }
         for (i, f) in self.frames.iter().enumerate() {
             if f.seq != i as u16 {
-                return Err(format!("frame {i} carries sequence number {}", f.seq));
+                return Err(StreamError::Sequence {
+                    frame: i,
+                    seq: f.seq,
+                });
             }
             let inner = i > 0 && i + 1 < self.frames.len();
             if inner && !matches!(f.message, Message::Beat(_) | Message::State(_)) {
-                return Err(format!(
-                    "frame {i} is a {:?} inside the session",
-                    f.message.kind()
-                ));
+                return Err(StreamError::Misplaced {
+                    frame: i,
+                    kind: f.message.kind(),
+                });
             }
         }
         Ok(())
@@ -232,9 +265,17 @@ mod tests {
         let good = bytes(&messages());
         let mut flipped = good.clone();
         flipped[20] ^= 0x10;
-        assert!(collect(&flipped).verify().unwrap_err().contains("damaged"));
+        assert!(collect(&flipped)
+            .verify()
+            .unwrap_err()
+            .to_string()
+            .contains("damaged"));
         let cut = &good[..good.len() - 10];
-        assert!(collect(cut).verify().unwrap_err().contains("status"));
+        assert!(collect(cut)
+            .verify()
+            .unwrap_err()
+            .to_string()
+            .contains("status"));
         let m = messages();
         let without_hello = bytes(&m[1..]);
         assert!(collect(&without_hello).verify().is_err());
@@ -248,6 +289,10 @@ mod tests {
                 gapped.extend(frame);
             }
         }
-        assert!(collect(&gapped).verify().unwrap_err().contains("lost"));
+        assert!(collect(&gapped)
+            .verify()
+            .unwrap_err()
+            .to_string()
+            .contains("lost"));
     }
 }

@@ -14,7 +14,7 @@ mod parts;
 use parts::kind_name;
 pub use parts::{
     AdcDraft, DetectorDraft, DetectorKind, LedDraft, PulseDraft, RailsDraft, Resistors, StageDraft,
-    StageKind,
+    StageError, StageKind,
 };
 
 /// ADC resolution when none is given: the 12-bit ADC of the STM32F411, the
@@ -48,39 +48,75 @@ pub struct Draft {
     pub rails: RailsDraft,
 }
 
-/// A TOML error as `line N (text): message`, on one line.
-fn toml_problem(source: &str, e: &toml::de::Error) -> (Option<usize>, String) {
-    let message = e.message().split_whitespace().collect::<Vec<_>>().join(" ");
-    let Some(span) = e.span() else {
-        return (None, message);
-    };
-    let start = span.start.min(source.len());
-    let line = source[..start].matches('\n').count() + 1;
-    let text = source.lines().nth(line - 1).unwrap_or("").trim();
-    let quoted = if !text.is_empty() && text.chars().count() <= 60 {
-        format!(" (`{text}`)")
-    } else {
-        String::new()
-    };
-    (Some(line), format!("line {line}{quoted}: {message}"))
+/// Circuit TOML that does not read as a circuit (TOML syntax, an unknown
+/// key, a value of the wrong kind); one line.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[error("{shown}")]
+pub struct CircuitTomlError {
+    /// The line of the problem in the text, when known.
+    pub line: Option<usize>,
+    /// Where and what: `line N (`text`): message`, or the message alone.
+    shown: String,
+    /// The TOML reader's error (boxed: it is large).
+    source: Box<toml::de::Error>,
+}
+
+impl CircuitTomlError {
+    /// `source` as `line N (text): message`, on one line; `text` is what
+    /// was read.
+    fn at_line(text: &str, source: toml::de::Error) -> Self {
+        let message = source
+            .message()
+            .split_whitespace()
+            .collect::<Vec<_>>()
+            .join(" ");
+        let Some(span) = source.span() else {
+            return Self {
+                line: None,
+                shown: message,
+                source: Box::new(source),
+            };
+        };
+        let start = span.start.min(text.len());
+        let line = text[..start].matches('\n').count() + 1;
+        let quoted = match text.lines().nth(line - 1).unwrap_or("").trim() {
+            t if !t.is_empty() && t.chars().count() <= 60 => format!(" (`{t}`)"),
+            _ => String::new(),
+        };
+        Self {
+            line: Some(line),
+            shown: format!("line {line}{quoted}: {message}"),
+            source: Box::new(source),
+        }
+    }
+
+    /// `source`'s message alone, for text made up from other input (the
+    /// line would mean nothing to the reader).
+    fn without_line(source: toml::de::Error) -> Self {
+        Self {
+            line: None,
+            shown: source.message().trim().to_owned(),
+            source: Box::new(source),
+        }
+    }
 }
 
 impl Draft {
     /// Read a circuit from TOML text; the error is one line.
-    pub fn from_toml(text: &str) -> Result<Self, String> {
-        toml::from_str(text).map_err(|e| toml_problem(text, &e).1)
+    pub fn from_toml(text: &str) -> Result<Self, CircuitTomlError> {
+        toml::from_str(text).map_err(|e| CircuitTomlError::at_line(text, e))
     }
 
     /// Read a circuit file.
     pub fn load(path: &Path) -> Result<Self, FrontendError> {
         let shown = path.display().to_string();
-        let text = std::fs::read_to_string(path).map_err(|e| FrontendError::Unreadable {
+        let text = std::fs::read_to_string(path).map_err(|source| FrontendError::Unreadable {
             path: shown.clone(),
-            reason: e.to_string(),
+            source,
         })?;
-        Self::from_toml(&text).map_err(|reason| FrontendError::BadFile {
+        Self::from_toml(&text).map_err(|source| FrontendError::BadFile {
             path: shown,
-            reason,
+            source,
         })
     }
 
@@ -205,8 +241,9 @@ impl Draft {
             .iter()
             .enumerate()
             .map(|(i, s)| {
-                s.resolve().map_err(|reason| {
-                    invalid(format!("stage {} ({})", i + 1, kind_name(s.kind)), reason)
+                s.resolve().map_err(|source| FrontendError::Stage {
+                    stage: format!("stage {} ({})", i + 1, kind_name(s.kind)),
+                    source,
                 })
             })
             .collect::<Result<Vec<_>, _>>()?;

@@ -47,12 +47,13 @@ pub use band::{check_band, BandCheck, Loss, ALLOWED_LOSS_DB, HEART_BAND_HZ};
 pub use budget::{AdcBudget, Swing, MIN_PULSE_CODES};
 pub use circuit::{Adc, AmpStage, Circuit, Detector, LedDrive, LoadAt, Pulse, Rails};
 pub use draft::{
-    AdcDraft, DetectorDraft, DetectorKind, Draft, LedDraft, PulseDraft, RailsDraft, Resistors,
-    StageDraft, StageKind, DEFAULT_ADC_BITS, DEFAULT_ADC_REFERENCE_V,
+    AdcDraft, CircuitTomlError, DetectorDraft, DetectorKind, Draft, LedDraft, PulseDraft,
+    RailsDraft, Resistors, StageDraft, StageError, StageKind, DEFAULT_ADC_BITS,
+    DEFAULT_ADC_REFERENCE_V,
 };
 pub use led::{parallel_ohm, LedBudget};
 pub use plot::{render_svg, write_svg, PLOT_RANGE_HZ};
-pub use quantity::{bpm, parse_value, si, sig3, Farads, Kind, Ohms};
+pub use quantity::{bpm, parse_value, si, sig3, Farads, Kind, Ohms, ValueError};
 pub use render::human_report;
 pub use report::{FrontendReport, ResponseRow, TABLE_FREQUENCIES_HZ};
 pub use sampling::{
@@ -62,7 +63,6 @@ pub use sampling::{
 pub use transfer::{Block, Chain, Factored};
 
 use crate::filter_report::ReportError;
-use std::fmt;
 
 /// Printed with every human-readable report and in the command's help.
 pub const CAUTIONS: [&str; 4] = [
@@ -75,24 +75,27 @@ pub const CAUTIONS: [&str; 4] = [
 ];
 
 /// Why there is no report.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Debug, thiserror::Error)]
 pub enum FrontendError {
     /// The circuit file could not be read.
+    #[error("cannot read the circuit file {path}: {source}")]
     Unreadable {
         /// The file.
         path: String,
         /// The system's reason.
-        reason: String,
+        source: std::io::Error,
     },
     /// The circuit file is not a valid circuit (TOML syntax, an unknown key,
     /// a value of the wrong kind).
+    #[error("circuit file {path}, {source}")]
     BadFile {
         /// The file.
         path: String,
         /// Where and what, one line.
-        reason: String,
+        source: CircuitTomlError,
     },
     /// A value that is needed was given neither in the file nor as an option.
+    #[error("missing {what}: give {key} in the circuit file or {option}")]
     Missing {
         /// What it is, in words.
         what: &'static str,
@@ -102,13 +105,23 @@ pub enum FrontendError {
         option: &'static str,
     },
     /// A value or a combination of values is not allowed.
+    #[error("{key} {reason}")]
     Invalid {
         /// The key (or stage) concerned.
         key: String,
         /// What is wrong with it.
         reason: String,
     },
+    /// A stage's keys do not fit its kind.
+    #[error("{stage} {source}")]
+    Stage {
+        /// Which stage: `stage N (kind)`.
+        stage: String,
+        /// What is wrong with it.
+        source: StageError,
+    },
     /// The LED's supply is not above its forward voltage: no current flows.
+    #[error("the LED cannot light: its supply ({supply_v} V) is not above its forward voltage ({forward_v} V)")]
     LedOff {
         /// Supply, volts.
         supply_v: f64,
@@ -116,6 +129,10 @@ pub enum FrontendError {
         forward_v: f64,
     },
     /// The sample rate leaves no room for a band-pass above the heart band.
+    #[error(
+        "a sample rate of {rate_hz} Hz leaves no room above the heart band (up to {} Hz): use at least {least_hz} Hz",
+        HEART_BAND_HZ.1
+    )]
     RateTooLow {
         /// The rate, Hz.
         rate_hz: f64,
@@ -123,8 +140,10 @@ pub enum FrontendError {
         least_hz: f64,
     },
     /// The digital band-pass could not be designed.
-    Digital(ReportError),
+    #[error("cannot design the digital band-pass: {0}")]
+    Digital(#[source] ReportError),
     /// The plot could not be drawn or written.
+    #[error("cannot write the plot to {path}: {reason}")]
     Plot {
         /// Where it was to go.
         path: String,
@@ -132,35 +151,3 @@ pub enum FrontendError {
         reason: String,
     },
 }
-
-impl fmt::Display for FrontendError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self {
-            Self::Unreadable { path, reason } => {
-                write!(f, "cannot read the circuit file {path}: {reason}")
-            }
-            Self::BadFile { path, reason } => write!(f, "circuit file {path}, {reason}"),
-            Self::Missing { what, key, option } => write!(
-                f,
-                "missing {what}: give {key} in the circuit file or {option}"
-            ),
-            Self::Invalid { key, reason } => write!(f, "{key} {reason}"),
-            Self::LedOff {
-                supply_v,
-                forward_v,
-            } => write!(
-                f,
-                "the LED cannot light: its supply ({supply_v} V) is not above its forward voltage ({forward_v} V)"
-            ),
-            Self::RateTooLow { rate_hz, least_hz } => write!(
-                f,
-                "a sample rate of {rate_hz} Hz leaves no room above the heart band (up to {} Hz): use at least {least_hz} Hz",
-                HEART_BAND_HZ.1
-            ),
-            Self::Digital(e) => write!(f, "cannot design the digital band-pass: {e}"),
-            Self::Plot { path, reason } => write!(f, "cannot write the plot to {path}: {reason}"),
-        }
-    }
-}
-
-impl std::error::Error for FrontendError {}

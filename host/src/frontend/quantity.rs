@@ -34,6 +34,14 @@ impl Kind {
         }
     }
 
+    /// More examples of how to write one, after the resistor's.
+    fn examples(self) -> &'static str {
+        match self {
+            Kind::Resistance => "",
+            Kind::Capacitance => ", 22u or 100n",
+        }
+    }
+
     fn strip_unit(self, text: &str) -> &str {
         let suffixes: &[&str] = match self {
             Kind::Resistance => &["ohms", "ohm", "Ω"],
@@ -62,18 +70,33 @@ fn prefix(c: char) -> Option<i32> {
     })
 }
 
+/// A resistance or capacitance that does not read; one line.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum ValueError {
+    /// The text is not a value of this kind.
+    #[error("'{text}' is not a {}: write e.g. 4700, 4.7k or 4k7{}", .kind.name(), .kind.examples())]
+    NotAValue {
+        /// The text as given.
+        text: String,
+        /// What it should measure.
+        kind: Kind,
+    },
+    /// The value is not a finite number above zero.
+    #[error("a {} must be above 0 {}, not {value}", .kind.name(), .kind.unit())]
+    NotPositive {
+        /// The value read.
+        value: f64,
+        /// What it measures.
+        kind: Kind,
+    },
+}
+
 /// Parse a resistance or capacitance, which must be a finite number above
 /// zero; the error says what was wrong.
-pub fn parse_value(text: &str, kind: Kind) -> Result<f64, String> {
-    let bad = || {
-        format!(
-            "'{text}' is not a {}: write e.g. 4700, 4.7k or 4k7{}",
-            kind.name(),
-            match kind {
-                Kind::Resistance => "",
-                Kind::Capacitance => ", 22u or 100n",
-            }
-        )
+pub fn parse_value(text: &str, kind: Kind) -> Result<f64, ValueError> {
+    let bad = || ValueError::NotAValue {
+        text: text.to_owned(),
+        kind,
     };
     let body = kind.strip_unit(text.trim());
     let number = match body.char_indices().find(|&(_, c)| prefix(c).is_some()) {
@@ -103,15 +126,11 @@ pub fn parse_value(text: &str, kind: Kind) -> Result<f64, String> {
 
 /// A value must be above zero: a resistor of 0 Ω divides by zero, and a
 /// negative part does not exist.
-fn check_positive(value: f64, kind: Kind) -> Result<f64, String> {
+fn check_positive(value: f64, kind: Kind) -> Result<f64, ValueError> {
     if value.is_finite() && value > 0.0 {
         Ok(value)
     } else {
-        Err(format!(
-            "a {} must be above 0 {}, not {value}",
-            kind.name(),
-            kind.unit()
-        ))
+        Err(ValueError::NotPositive { value, kind })
     }
 }
 
@@ -254,7 +273,17 @@ mod tests {
         }
         assert!(parse_value("10kΩ", Kind::Capacitance).is_err());
         let e = parse_value("-470", Kind::Resistance).unwrap_err();
-        assert_eq!(e, "a resistance must be above 0 Ω, not -470");
+        assert_eq!(e.to_string(), "a resistance must be above 0 Ω, not -470");
+        let e = parse_value("22uF", Kind::Resistance).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "'22uF' is not a resistance: write e.g. 4700, 4.7k or 4k7"
+        );
+        let e = parse_value("ten", Kind::Capacitance).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "'ten' is not a capacitance: write e.g. 4700, 4.7k or 4k7, 22u or 100n"
+        );
         assert!(parse_value("0", Kind::Capacitance).is_err());
         assert!(parse_value("inf", Kind::Resistance).is_err());
     }

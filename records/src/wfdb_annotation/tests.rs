@@ -118,13 +118,21 @@ fn symbol_table() {
 fn writer_refuses_what_the_format_cannot_hold() {
     assert!(encode_annotations(&[Annotation::new(1, 0)]).is_err());
     assert!(encode_annotations(&[Annotation::new(1, 50)]).is_err());
-    assert!(encode_annotations(&[Annotation::beat(5), Annotation::beat(4)]).is_err());
+    let e = encode_annotations(&[Annotation::beat(5), Annotation::beat(4)]).unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "annotation 1: sample 4 comes before the previous one (5); \
+         annotations must be in time order from sample 0"
+    );
     assert!(encode_annotations(&[Annotation::beat(-1)]).is_err());
     let mut a = Annotation::beat(1);
     a.aux = Some("x".repeat(256));
     assert!(encode_annotations(&[a.clone()]).is_err());
     a.aux = Some("€".into());
-    assert!(encode_annotations(&[a]).is_err());
+    assert_eq!(
+        encode_annotations(&[a]).unwrap_err().problem,
+        EncodeProblem::NotLatin1
+    );
 }
 
 #[test]

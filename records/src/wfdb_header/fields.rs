@@ -6,46 +6,83 @@ use super::{
 use crate::error::{quoted, ErrorKind};
 use crate::wfdb_format::{FormatProblem, SignalFormat};
 
+/// What is wrong with the text of a header line; one line, without the
+/// file and line number (the caller adds them).
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+pub(super) enum FieldError {
+    /// A field does not read as what it should be.
+    #[error("bad {field} {}", quoted(.text))]
+    Malformed { field: &'static str, text: String },
+    /// A frequency is not above 0.
+    #[error("bad {field} {}: must be above 0", quoted(.text))]
+    NotAboveZero { field: &'static str, text: String },
+    #[error("record line needs at least a record name and a number of signals")]
+    RecordLineTooShort,
+    #[error("record line has {0} fields, at most 6 are defined")]
+    RecordLineTooLong(usize),
+    #[error("implausible number of signals {0}")]
+    TooManySignals(usize),
+    #[error("base counter value {} lacks ')'", quoted(.0))]
+    BaseCounterUnclosed(String),
+    #[error("baseline in {} lacks ')'", quoted(.0))]
+    BaselineUnclosed(String),
+    #[error("segment line must hold a record name and a number of samples")]
+    SegmentLine,
+    #[error("empty signal line")]
+    EmptySignalLine,
+    #[error("signal line lacks the format field")]
+    NoFormat,
+    #[error("implausible samples per frame {0}")]
+    TooManySamplesPerFrame(u32),
+}
+
+/// `text` as the field `field` that it fails to be.
+fn malformed(field: &'static str, text: &str) -> FieldError {
+    FieldError::Malformed {
+        field,
+        text: text.to_owned(),
+    }
+}
+
 /// A signal line's problem: bad text, or a format code we cannot use.
 pub(super) enum LineError {
-    Syntax(String),
+    Syntax(FieldError),
     Format(ErrorKind),
 }
 
-impl From<String> for LineError {
-    fn from(m: String) -> LineError {
-        LineError::Syntax(m)
+impl From<FieldError> for LineError {
+    fn from(e: FieldError) -> LineError {
+        LineError::Syntax(e)
     }
 }
 
 /// Parse `text` as a number of type `T`, naming `field` on failure.
-fn number<T: std::str::FromStr>(text: &str, field: &str) -> std::result::Result<T, String> {
-    text.parse::<T>()
-        .map_err(|_| format!("bad {field} {}", quoted(text)))
+fn number<T: std::str::FromStr>(text: &str, field: &'static str) -> Result<T, FieldError> {
+    text.parse::<T>().map_err(|_| malformed(field, text))
 }
 
 /// A finite positive frequency.
-fn frequency(text: &str, field: &str) -> std::result::Result<f64, String> {
+fn frequency(text: &str, field: &'static str) -> Result<f64, FieldError> {
     let v: f64 = number(text, field)?;
     if v.is_finite() && v > 0.0 {
         Ok(v)
     } else {
-        Err(format!("bad {field} {}: must be above 0", quoted(text)))
+        Err(FieldError::NotAboveZero {
+            field,
+            text: text.to_owned(),
+        })
     }
 }
 
 /// The record line: `name[/segments] signals [fs[/counter[(base)]] [samples [time [date]]]]`.
 /// Also returns the number of signals the line states.
-pub(super) fn parse_record_line(line: &str) -> std::result::Result<(Header, usize), String> {
+pub(super) fn parse_record_line(line: &str) -> Result<(Header, usize), FieldError> {
     let fields: Vec<&str> = line.split_whitespace().collect();
     if fields.len() < 2 {
-        return Err("record line needs at least a record name and a number of signals".into());
+        return Err(FieldError::RecordLineTooShort);
     }
     if fields.len() > 6 {
-        return Err(format!(
-            "record line has {} fields, at most 6 are defined",
-            fields.len()
-        ));
+        return Err(FieldError::RecordLineTooLong(fields.len()));
     }
     let (name, segments) = match fields[0].split_once('/') {
         Some((name, n)) => (name, Some(number::<usize>(n, "number of segments")?)),
@@ -56,12 +93,12 @@ pub(super) fn parse_record_line(line: &str) -> std::result::Result<(Header, usiz
             .chars()
             .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-')
     {
-        return Err(format!("bad record name {}", quoted(name)));
+        return Err(malformed("record name", name));
     }
     let n_sig: usize = number(fields[1], "number of signals")?;
     // Guard the allocation against absurd counts in damaged files.
     if n_sig > 100_000 {
-        return Err(format!("implausible number of signals {n_sig}"));
+        return Err(FieldError::TooManySignals(n_sig));
     }
     let mut fs = DEFAULT_FS;
     let mut counter_freq = None;
@@ -77,7 +114,7 @@ pub(super) fn parse_record_line(line: &str) -> std::result::Result<(Header, usiz
                 Some((a, b)) => {
                     let b = b
                         .strip_suffix(')')
-                        .ok_or_else(|| format!("base counter value {} lacks ')'", quoted(b)))?;
+                        .ok_or_else(|| FieldError::BaseCounterUnclosed(b.to_owned()))?;
                     (a, Some(b))
                 }
                 None => (rest, None),
@@ -86,7 +123,7 @@ pub(super) fn parse_record_line(line: &str) -> std::result::Result<(Header, usiz
             base_counter = match base {
                 Some(b) => Some(number::<f64>(b, "base counter value")?)
                     .filter(|v| v.is_finite())
-                    .ok_or_else(|| format!("bad base counter value {}", quoted(b)))
+                    .ok_or_else(|| malformed("base counter value", b))
                     .map(Some)?,
                 None => None,
             };
@@ -116,13 +153,13 @@ pub(super) fn parse_record_line(line: &str) -> std::result::Result<(Header, usiz
 }
 
 /// `HH:MM:SS`, `MM:SS` or `SS`, seconds with an optional fraction.
-fn parse_time(text: &str) -> std::result::Result<BaseTime, String> {
-    let bad = || format!("bad base time {}", quoted(text));
+fn parse_time(text: &str) -> Result<BaseTime, FieldError> {
+    let bad = || malformed("base time", text);
     let parts: Vec<&str> = text.split(':').collect();
     if parts.len() > 3 {
         return Err(bad());
     }
-    let int = |s: &str, max: u32| -> std::result::Result<u32, String> {
+    let int = |s: &str, max: u32| -> Result<u32, FieldError> {
         if s.is_empty() || s.len() > 2 || !s.bytes().all(|b| b.is_ascii_digit()) {
             return Err(bad());
         }
@@ -161,8 +198,8 @@ fn parse_time(text: &str) -> std::result::Result<BaseTime, String> {
 }
 
 /// `DD/MM/YYYY`.
-fn parse_date(text: &str) -> std::result::Result<BaseDate, String> {
-    let bad = || format!("bad base date {}", quoted(text));
+fn parse_date(text: &str) -> Result<BaseDate, FieldError> {
+    let bad = || malformed("base date", text);
     let parts: Vec<&str> = text.split('/').collect();
     if parts.len() != 3
         || parts
@@ -181,10 +218,10 @@ fn parse_date(text: &str) -> std::result::Result<BaseDate, String> {
 }
 
 /// A segment line: `name samples`.
-pub(super) fn parse_segment_line(line: &str) -> std::result::Result<SegmentSpec, String> {
+pub(super) fn parse_segment_line(line: &str) -> Result<SegmentSpec, FieldError> {
     let fields: Vec<&str> = line.split_whitespace().collect();
     if fields.len() != 2 {
-        return Err("segment line must hold a record name and a number of samples".into());
+        return Err(FieldError::SegmentLine);
     }
     Ok(SegmentSpec {
         name: fields[0].to_string(),
@@ -204,10 +241,9 @@ fn next_field(text: &str) -> Option<(&str, &str)> {
 
 /// A signal line: `file format[xspf][:skew][+offset] [gain[(baseline)][/units]
 /// [resolution [zero [initial [checksum [blocksize [description]]]]]]]`.
-pub(super) fn parse_signal_line(line: &str) -> std::result::Result<SignalSpec, LineError> {
-    let (file_name, rest) = next_field(line).ok_or_else(|| "empty signal line".to_string())?;
-    let (format_text, mut rest) =
-        next_field(rest).ok_or_else(|| "signal line lacks the format field".to_string())?;
+pub(super) fn parse_signal_line(line: &str) -> Result<SignalSpec, LineError> {
+    let (file_name, rest) = next_field(line).ok_or(FieldError::EmptySignalLine)?;
+    let (format_text, mut rest) = next_field(rest).ok_or(FieldError::NoFormat)?;
     let (format, samples_per_frame, skew, byte_offset) = parse_format_field(format_text)?;
 
     // The numeric fields that follow are each optional, but only from the
@@ -269,7 +305,7 @@ pub(super) fn parse_signal_line(line: &str) -> std::result::Result<SignalSpec, L
 }
 
 /// `format[xspf][:skew][+offset]`, the modifiers in that order.
-fn parse_format_field(text: &str) -> std::result::Result<(SignalFormat, u32, u32, u64), LineError> {
+fn parse_format_field(text: &str) -> Result<(SignalFormat, u32, u32, u64), LineError> {
     let (rest, offset) = match text.split_once('+') {
         Some((a, b)) => (a, Some(b)),
         None => (text, None),
@@ -283,7 +319,7 @@ fn parse_format_field(text: &str) -> std::result::Result<(SignalFormat, u32, u32
         None => (rest, None),
     };
     if code_text.is_empty() || !code_text.bytes().all(|b| b.is_ascii_digit()) {
-        return Err(format!("bad signal format {}", quoted(text)).into());
+        return Err(malformed("signal format", text).into());
     }
     let code: u32 = match code_text.parse() {
         Ok(c) => c,
@@ -312,7 +348,7 @@ fn parse_format_field(text: &str) -> std::result::Result<(SignalFormat, u32, u32
         None => 1,
     };
     if spf > 1_000_000 {
-        return Err(format!("implausible samples per frame {spf}").into());
+        return Err(FieldError::TooManySamplesPerFrame(spf).into());
     }
     let skew = skew
         .map(|s| number::<u32>(s, "skew"))
@@ -333,7 +369,7 @@ struct GainField {
 }
 
 /// `gain[(baseline)][/units]`; a gain of 0 means [`DEFAULT_GAIN`].
-fn parse_gain_field(text: &str) -> std::result::Result<GainField, String> {
+fn parse_gain_field(text: &str) -> Result<GainField, FieldError> {
     let (left, units) = match text.split_once('/') {
         Some((a, u)) => (a, Some(u.to_string())),
         None => (text, None),
@@ -342,14 +378,14 @@ fn parse_gain_field(text: &str) -> std::result::Result<GainField, String> {
         Some((g, b)) => {
             let b = b
                 .strip_suffix(')')
-                .ok_or_else(|| format!("baseline in {} lacks ')'", quoted(text)))?;
+                .ok_or_else(|| FieldError::BaselineUnclosed(text.to_owned()))?;
             (g, Some(number::<i32>(b, "baseline")?))
         }
         None => (left, None),
     };
     let gain: f64 = number(gain_text, "ADC gain")?;
     if !gain.is_finite() {
-        return Err(format!("bad ADC gain {}", quoted(gain_text)));
+        return Err(malformed("ADC gain", gain_text));
     }
     let gain = if gain == 0.0 { DEFAULT_GAIN } else { gain };
     Ok(GainField {

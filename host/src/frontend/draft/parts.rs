@@ -6,7 +6,7 @@ use serde::de::{self, Deserializer, SeqAccess, Visitor};
 use serde::Deserialize;
 use std::fmt;
 
-use super::{invalid, missing};
+use super::{invalid, missing, CircuitTomlError};
 use crate::frontend::circuit::{AmpStage, Detector, LoadAt};
 use crate::frontend::quantity::{parse_value, Farads, Kind, Ohms};
 use crate::frontend::FrontendError;
@@ -219,9 +219,15 @@ impl DetectorDraft {
 }
 
 impl StageDraft {
+    /// Read one stage from TOML text (the keys of a `[[stage]]` table),
+    /// as the command line's `--stage` does; the error is one line.
+    pub fn from_toml(text: &str) -> Result<Self, CircuitTomlError> {
+        toml::from_str(text).map_err(CircuitTomlError::without_line)
+    }
+
     /// Check the keys for the kind; the error names the key, without
     /// saying which stage (the caller knows).
-    pub fn resolve(&self) -> Result<AmpStage, String> {
+    pub fn resolve(&self) -> Result<AmpStage, StageError> {
         let given = [
             ("r", self.r.is_some()),
             ("c", self.c.is_some()),
@@ -235,16 +241,16 @@ impl StageDraft {
             StageKind::Buffer => &[],
             StageKind::Inverting | StageKind::Noninverting => &["rin", "rf", "cf", "cin"],
         };
-        if let Some((key, _)) = given.iter().find(|(k, g)| *g && !takes.contains(k)) {
+        if let Some(&(key, _)) = given.iter().find(|(k, g)| *g && !takes.contains(k)) {
             let list = if takes.is_empty() {
                 "no values".to_owned()
             } else {
                 takes.join(", ")
             };
-            return Err(format!("does not take {key} (it takes {list})"));
+            return Err(StageError::DoesNotTake { key, takes: list });
         }
-        let need_r = |v: Option<Ohms>, key: &str| v.map(|o| o.0).ok_or(format!("missing {key}"));
-        let need_c = |v: Option<Farads>, key: &str| v.map(|f| f.0).ok_or(format!("missing {key}"));
+        let need_r = |v: Option<Ohms>, key| v.map(|o| o.0).ok_or(StageError::Missing(key));
+        let need_c = |v: Option<Farads>, key| v.map(|f| f.0).ok_or(StageError::Missing(key));
         Ok(match self.kind {
             StageKind::Highpass => AmpStage::HighPass {
                 r_ohm: need_r(self.r, "r")?,
@@ -269,6 +275,23 @@ impl StageDraft {
             },
         })
     }
+}
+
+/// A stage whose keys do not fit its kind; one line, without saying which
+/// stage.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+pub enum StageError {
+    /// A key the kind does not take.
+    #[error("does not take {key} (it takes {takes})")]
+    DoesNotTake {
+        /// The key given.
+        key: &'static str,
+        /// The keys the kind takes, in words.
+        takes: String,
+    },
+    /// A key the kind needs.
+    #[error("missing {0}")]
+    Missing(&'static str),
 }
 
 /// A stage kind as the file spells it.

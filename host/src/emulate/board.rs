@@ -1,9 +1,16 @@
-//! Finding QEMU and the emulated firmware, and the QEMU command line.
+//! The emulated board's one owner: finding QEMU, finding or building the
+//! emulated firmware, and the QEMU command line. The command line, the demo
+//! and the checks in `tests/` all come here.
 
+use std::ffi::OsString;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 
 use super::EmulateError;
+
+mod build;
+
+pub use build::{build_firmware, firmware_target_installed, BuildError, FIRMWARE_TARGET};
 
 /// The machine: QEMU's MPS2 AN386 board (Cortex-M4F), no display, no
 /// monitor, UART0 on standard input and output. The same as the runner in
@@ -39,6 +46,16 @@ pub const FIRMWARE_ELF: &str = "firmware/target/thumbv7em-none-eabihf/release/pl
 /// How to build the firmware, for messages.
 pub const BUILD_HINT: &str = "build it with `cd firmware && cargo build --release`";
 
+/// The arguments of the runner in `firmware/.cargo/config.toml` (what
+/// `cargo run` in `firmware/` starts), up to and including `-kernel`: the
+/// machine with semihosting on and no firmware command line, which runs
+/// the firmware's self-check. The ELF's path follows.
+pub fn runner_args() -> Vec<&'static str> {
+    let mut v = MACHINE_ARGS.to_vec();
+    v.extend(["-semihosting-config", SEMIHOSTING, "-kernel"]);
+    v
+}
+
 /// The QEMU arguments for `elf` with the firmware command line `args`
 /// (each becomes `arg=...`), with or without instruction counting.
 pub fn qemu_args(elf: &Path, args: &[&str], count_instructions: bool) -> Vec<String> {
@@ -66,11 +83,7 @@ pub fn qemu_args(elf: &Path, args: &[&str], count_instructions: bool) -> Vec<Str
 pub fn find_qemu() -> Result<PathBuf, EmulateError> {
     let exe = match std::env::var_os("PLETHWIRE_QEMU") {
         Some(p) => Some(PathBuf::from(p)),
-        None => std::env::var_os("PATH").and_then(|path| {
-            std::env::split_paths(&path)
-                .map(|dir| dir.join("qemu-system-arm"))
-                .find(|c| c.is_file())
-        }),
+        None => find_on_path("qemu-system-arm"),
     };
     let runs = |exe: &Path| {
         Command::new(exe)
@@ -85,6 +98,14 @@ pub fn find_qemu() -> Result<PathBuf, EmulateError> {
         Some(exe) if runs(&exe) => Ok(exe),
         _ => Err(EmulateError::NoQemu),
     }
+}
+
+/// The first file called `name` in the folders of `PATH`.
+fn find_on_path(name: &str) -> Option<PathBuf> {
+    let path: OsString = std::env::var_os("PATH")?;
+    std::env::split_paths(&path)
+        .map(|dir| dir.join(name))
+        .find(|candidate| candidate.is_file())
 }
 
 /// The repository roots to look in: the one this crate was built in, then
@@ -123,10 +144,7 @@ pub fn find_elf(explicit: Option<&Path>) -> Result<PathBuf, EmulateError> {
         .is_ok()
         && magic == *b"\x7fELF";
     if !is_elf {
-        return Err(EmulateError::Io(format!(
-            "{} is not an ELF file; {BUILD_HINT}",
-            found.display()
-        )));
+        return Err(EmulateError::NotElf(found));
     }
     Ok(found)
 }
@@ -145,6 +163,11 @@ mod tests {
         );
         assert_eq!(&v[v.len() - 2..], ["-kernel", "/x/fw.elf"]);
         assert!(!v.iter().any(|a| a == "-icount"));
+        // The runner's machine, with only the firmware's words added.
+        let mut runner: Vec<String> = runner_args().iter().map(|a| a.to_string()).collect();
+        runner[at + 1].push_str(",arg=plethwire-emulated,arg=stream,arg=a.bin,arg=b.bin");
+        runner.push("/x/fw.elf".into());
+        assert_eq!(v, runner);
         let counted = qemu_args(Path::new("fw"), &["perf"], true);
         let i = counted.iter().position(|a| a == "-icount").unwrap();
         assert_eq!(counted[i + 1], "shift=0");
