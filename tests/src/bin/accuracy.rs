@@ -32,7 +32,18 @@ struct Args {
     data: Option<PathBuf>,
 }
 
-fn parse(mut args: impl Iterator<Item = String>) -> Result<Option<Args>, String> {
+/// A command line the tool does not understand.
+#[derive(Debug, thiserror::Error)]
+enum ArgsError {
+    /// `--data` came last, without its folder.
+    #[error("--data needs a folder")]
+    DataWithoutFolder,
+    /// A word that is no option of this tool.
+    #[error("unexpected argument {0:?} (see --help)")]
+    Unexpected(String),
+}
+
+fn parse(mut args: impl Iterator<Item = String>) -> Result<Option<Args>, ArgsError> {
     let mut a = Args {
         write: false,
         data: None,
@@ -41,11 +52,11 @@ fn parse(mut args: impl Iterator<Item = String>) -> Result<Option<Args>, String>
         match arg.as_str() {
             "--write" => a.write = true,
             "--data" => {
-                let dir = args.next().ok_or("--data needs a folder")?;
+                let dir = args.next().ok_or(ArgsError::DataWithoutFolder)?;
                 a.data = Some(dir.into());
             }
             "-h" | "--help" => return Ok(None),
-            other => return Err(format!("unexpected argument {other:?} (see --help)")),
+            other => return Err(ArgsError::Unexpected(other.to_owned())),
         }
     }
     Ok(Some(a))
