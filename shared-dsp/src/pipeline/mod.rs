@@ -31,6 +31,7 @@
 //! ```
 
 pub mod condition;
+pub mod detector;
 mod elgendi;
 pub mod events;
 pub mod motion;
@@ -43,6 +44,7 @@ mod with_motion;
 mod zong;
 
 pub use condition::Rails;
+pub use detector::{Candidate, Detector, DetectorKind};
 pub use elgendi::Elgendi;
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
 pub use motion::{MotionReference, MotionTracker, NoMotion, Verdict};
@@ -56,6 +58,7 @@ use crate::hrv::{HrvStats, HrvWindow};
 use crate::math::{max_f32, min_f32};
 use crate::DesignError;
 use condition::Conditioner;
+use detector::AnyDetector;
 use quality::{Shape, Template};
 use rate::Intervals;
 use scale::{Change, Scale};
@@ -184,29 +187,6 @@ pub const PEAK_REFINE_S: f32 = 0.04;
 /// systolic shoulder, would otherwise put the peak at its far end.
 pub const TOP_FRACTION: f32 = 0.005;
 
-/// A detected beat before bookkeeping, at the detector's rate.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Candidate {
-    /// Detector-rate index of the systolic peak.
-    pub peak: u64,
-    /// Detector-rate index of the pulse onset, for detectors that find it.
-    pub onset: Option<u64>,
-    /// Band-passed value at the peak (the detector's own measure).
-    pub amplitude: f32,
-}
-
-/// Which published beat detector runs.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default)]
-#[cfg_attr(feature = "defmt", derive(defmt::Format))]
-pub enum DetectorKind {
-    /// Elgendi et al. 2013, two event-related moving averages (the default:
-    /// it scores best on the shared recordings, see docs/accuracy.md).
-    #[default]
-    Elgendi,
-    /// Zong et al. 2003, slope sum function; also gives the pulse onset.
-    Zong,
-}
-
 /// Settings with defaults a sensor builder rarely needs to change.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -251,31 +231,6 @@ impl Config {
         Self {
             sample_rate_hz,
             options: Options::default(),
-        }
-    }
-}
-
-// No allocation in this crate, so the detectors live inline; the size
-// difference (a few hundred bytes) does not matter next to the rings.
-#[allow(clippy::large_enum_variant)]
-#[derive(Clone, Debug)]
-enum Detector {
-    Elgendi(Elgendi),
-    Zong(Zong),
-}
-
-impl Detector {
-    fn new(kind: DetectorKind, fd: f32) -> Self {
-        match kind {
-            DetectorKind::Elgendi => Self::Elgendi(Elgendi::new(fd)),
-            DetectorKind::Zong => Self::Zong(Zong::new(fd)),
-        }
-    }
-
-    fn push(&mut self, y: f32) -> Option<Candidate> {
-        match self {
-            Self::Elgendi(d) => d.push(y),
-            Self::Zong(d) => d.push(y),
         }
     }
 }
@@ -350,7 +305,7 @@ pub struct Pipeline {
     floor_decay: f32,
     restarts: u64,
     epoch: u64,
-    detector: Detector,
+    detector: AnyDetector,
     smoothed: Ring<SHAPE_RING>,
     banded: Ring<SHAPE_RING>,
     marks: Ring<SHAPE_RING, u8>,
@@ -400,7 +355,7 @@ impl Pipeline {
             Some((low, high)) => Rails::Known { low, high },
             None => Rails::Auto,
         };
-        let detector = Detector::new(o.detector, fd);
+        let detector = AnyDetector::new(o.detector, fd);
         Ok(Self {
             config,
             fs,
@@ -572,7 +527,7 @@ impl Pipeline {
         self.mark = 0;
         let now = self.t;
         self.t += 1;
-        if let Some(mut cand) = self.detector.push(y) {
+        if let Some(mut cand) = self.detector.process(y) {
             // Detectors count from their own start; make indices global.
             cand.peak += self.epoch;
             cand.onset = cand.onset.map(|o| o + self.epoch);
@@ -609,7 +564,7 @@ impl Pipeline {
             self.level_floor = max_f32(level / FLOOR_DIVISOR, self.level_floor);
         }
         let rest = self.highpass.settle(s);
-        self.detector = Detector::new(self.config.options.detector, self.fd);
+        self.detector.reset();
         self.epoch = self.t;
         self.restarted_at = self.t;
         self.lost_at = self.t + self.lost_after;

@@ -18,8 +18,8 @@
 //! whichever is shorter, and at most the longer of the refractory period
 //! and 60 % of an interval); the pipeline then places it on the input.
 
+use super::detector::{Candidate, Detector};
 use super::ring::{Ring, RunningSum};
-use super::Candidate;
 use crate::math::max_f32;
 
 /// SSF window, seconds (Zong et al. 2003).
@@ -70,6 +70,8 @@ pub struct Zong {
     rises: Ring<RING>,
     ssf_hist: Ring<RING>,
     filtered: Ring<RING>,
+    // The rate it was built for, to start again at ([`Detector::reset`]).
+    fs_hz: f32,
 }
 
 impl Zong {
@@ -78,6 +80,7 @@ impl Zong {
     pub fn new(fs_hz: f32) -> Self {
         let n = |s: f32| (libm::roundf(s * fs_hz) as usize).max(1);
         Self {
+            fs_hz,
             window: n(WINDOW_S),
             refractory: n(REFRACTORY_S) as u64,
             search: n(SEARCH_S),
@@ -106,9 +109,11 @@ impl Zong {
     pub fn delay(&self) -> usize {
         self.peak_search
     }
+}
 
+impl Detector for Zong {
     /// Feed one band-passed sample.
-    pub fn push(&mut self, y: f32) -> Option<Candidate> {
+    fn process(&mut self, y: f32) -> Option<Candidate> {
         let rise = max_f32(y - self.last_y, 0.0);
         self.last_y = y;
         self.rises.push(rise);
@@ -184,6 +189,12 @@ impl Zong {
         None
     }
 
+    fn reset(&mut self) {
+        *self = Self::new(self.fs_hz);
+    }
+}
+
+impl Zong {
     /// How long after the onset the systolic peak is looked for: at most
     /// [`PEAK_SEARCH_S`], and never into the next pulse at fast rates.
     fn peak_span(&self) -> usize {

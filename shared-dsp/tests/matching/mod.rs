@@ -52,7 +52,11 @@ pub fn match_pairs(reference: &[u64], detected: &[u64], tolerance: u64) -> Vec<(
             start += 1;
         }
         let within = d[start..].iter().take_while(|&&dj| dj <= ri + tolerance);
-        pairs.extend(within.enumerate().map(|(k, &dj)| (dj.abs_diff(ri), i, start + k)));
+        pairs.extend(
+            within
+                .enumerate()
+                .map(|(k, &dj)| (dj.abs_diff(ri), i, start + k)),
+        );
     }
     pairs.sort_unstable();
     let (mut used_r, mut used_d) = (vec![false; r.len()], vec![false; d.len()]);
