@@ -65,18 +65,20 @@ pub struct BeatBook {
     // beat so the per-sample path never sorts.
     recent_ibi: Option<f32>,
     // Input index of the last beat's peak, and of its upstroke's crossing
-    // with its sub-sample offset (the interval fiducial), input samples.
+    // with its sub-sample offset (the interval fiducial), input samples;
+    // `last_at` is meaningful while `last_peak` is `Some` (both are set by
+    // every beat).
     last_peak: Option<u64>,
-    last_at: Option<u64>,
+    last_at: u64,
     last_frac: f32,
-    last_good: bool,
-    // The last beat was good and had an interval (since the last restart).
-    last_timed_good: bool,
     fs: f32,
     fd: f32,
     decim: u32,
-    // The smoothed heart rate's window, input samples.
-    hr_window: u64,
+    // The smoothed heart rate's window, seconds.
+    hr_window_s: f32,
+    last_good: bool,
+    // The last beat was good and had an interval (since the last restart).
+    last_timed_good: bool,
     template: Template,
     // Good intervals, for the heart rate.
     intervals: Intervals,
@@ -93,14 +95,14 @@ impl BeatBook {
         Self {
             recent_ibi: None,
             last_peak: None,
-            last_at: None,
+            last_at: 0,
             last_frac: 0.0,
             last_good: false,
             last_timed_good: false,
             fs,
             fd,
             decim,
-            hr_window: (hr_window_s * fs) as u64,
+            hr_window_s,
             template: Template::new(),
             intervals: Intervals::new(),
             all_intervals: Intervals::new(),
@@ -144,9 +146,9 @@ impl BeatBook {
     /// The interval from the last beat to the one at `at`, ms.
     fn interval(&self, at: &At) -> Option<f32> {
         let (fid, frac) = at.fiducial;
-        match (self.last_peak, self.last_at) {
-            (Some(p), Some(last_at)) if at.peak > p && fid > last_at => {
-                Some(((fid - last_at) as f32 + frac - self.last_frac) * 1000.0 / self.fs)
+        match self.last_peak {
+            Some(p) if at.peak > p && fid > self.last_at => {
+                Some(((fid - self.last_at) as f32 + frac - self.last_frac) * 1000.0 / self.fs)
             }
             _ => None,
         }
@@ -261,7 +263,7 @@ impl BeatBook {
         }
         self.last_good = good;
         self.last_peak = Some(at.peak);
-        self.last_at = Some(at.fiducial.0);
+        self.last_at = at.fiducial.0;
         self.last_frac = at.fiducial.1;
         trusted
     }
@@ -269,9 +271,10 @@ impl BeatBook {
     /// The beat's event: `judged` at `at`, of `amplitude`, with its
     /// `onset` (input index).
     pub fn event(&self, at: &At, judged: &Judged, amplitude: f32, onset: Option<u64>) -> BeatEvent {
+        let window = (self.hr_window_s * self.fs) as u64;
         let smoothed = self
             .intervals
-            .median_since(at.peak.saturating_sub(self.hr_window))
+            .median_since(at.peak.saturating_sub(window))
             .map(|(m, _)| MS_PER_MINUTE / m);
         BeatEvent {
             peak_index: at.peak,

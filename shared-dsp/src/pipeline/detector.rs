@@ -107,6 +107,7 @@ pub(crate) enum AnyDetector {
 
 impl AnyDetector {
     /// The detector of `kind` at detector rate `fd_hz`.
+    #[inline(never)]
     pub(crate) fn new(kind: DetectorKind, fd_hz: f32) -> Self {
         match kind {
             DetectorKind::Elgendi => Self::Elgendi(Elgendi::new(fd_hz)),
@@ -124,10 +125,14 @@ impl Detector for AnyDetector {
     }
 
     fn reset(&mut self) {
-        match self {
-            Self::Elgendi(d) => d.reset(),
-            Self::Zong(d) => d.reset(),
-        }
+        // Built again through `new`, whose code the first build shares
+        // (each detector's own `reset` would be a second copy of its
+        // constructor in flash).
+        let (kind, fd_hz) = match self {
+            Self::Elgendi(d) => (DetectorKind::Elgendi, d.rate_hz()),
+            Self::Zong(d) => (DetectorKind::Zong, d.rate_hz()),
+        };
+        *self = Self::new(kind, fd_hz);
     }
 }
 

@@ -116,6 +116,11 @@ impl Elgendi {
         }
     }
 
+    /// The rate it runs at, Hz.
+    pub fn rate_hz(&self) -> f32 {
+        self.fs_hz
+    }
+
     /// Samples between a peak and the earliest moment it can be reported.
     pub fn delay(&self) -> usize {
         self.delay

@@ -114,9 +114,10 @@ pub struct CandidateGate {
     // the last restart took it for the floor.
     trusted_level: Option<f32>,
     // The last candidates below the level floor in a row (input index of
-    // the peak, height), oldest first, and how many are held.
-    under: [(u64, f32); FLOOR_RUN],
+    // the peak, height), oldest first, and how many are held (the count
+    // first: no padding before the array).
     under_floor: usize,
+    under: [(u64, f32); FLOOR_RUN],
 }
 
 impl CandidateGate {
@@ -318,6 +319,8 @@ impl CandidateGate {
 /// last [`ROUGH_S`] of `input` (whose newest sample has index `n - 1`, `n`
 /// of them seen, at `fs`): white noise's measure, which a smooth pulse of
 /// the same height far exceeds.
+// Out of line: called from the gate and from bookkeeping, rarely.
+#[inline(never)]
 pub fn roughness<const N: usize>(input: &History<N>, n: u64, fs: f32) -> f32 {
     let count = (libm::roundf(ROUGH_S * fs) as usize)
         .min(ROUGH_SAMPLES)

@@ -96,7 +96,6 @@ pub struct Pipeline {
     monitor: Monitor,
     gate: CandidateGate,
     placement: PeakPlacement,
-    fs: f32,
     detector: AnyDetector,
     book: BeatBook,
     traces: Traces,
@@ -107,6 +106,8 @@ impl Pipeline {
     /// A pipeline for `config`; refuses rates outside 25 to 1000 Hz, a
     /// heart-rate window that is not a positive number of seconds, and
     /// bands the design refuses.
+    // Out of line: inlined into a board's start-up task it costs flash.
+    #[inline(never)]
     pub fn new(config: Config) -> Result<Self, PipelineError> {
         config.check()?;
         let fs = config.sample_rate_hz;
@@ -127,7 +128,6 @@ impl Pipeline {
             monitor: Monitor::new(fs),
             gate: CandidateGate::new(fs, fd),
             placement: PeakPlacement::new(fs, fd, decim, o.band_high_hz),
-            fs,
             detector: AnyDetector::new(o.detector, fd),
             book: BeatBook::new(fs, fd, decim, o.hr_window_s),
             traces: Traces::new(),
@@ -174,7 +174,7 @@ impl Pipeline {
 
     /// The detector's rate, Hz.
     pub fn detector_rate_hz(&self) -> f32 {
-        self.fs / self.conditioning.decimation() as f32
+        self.config.sample_rate_hz / self.conditioning.decimation() as f32
     }
 
     /// Times the filters restarted after a step in the input.
@@ -291,7 +291,7 @@ impl Pipeline {
             last_peak: self.book.last_peak(),
             median_ibi_ms: look.median_ibi_ms,
         };
-        let (input, seen, fs) = (&self.traces.input, self.n, self.fs);
+        let (input, seen, fs) = (&self.traces.input, self.n, self.config.sample_rate_hz);
         let rough = || gate::roughness(input, seen, fs);
         if !self.gate.accept(peak, height, recent, rough) {
             return None;
@@ -326,7 +326,7 @@ impl Pipeline {
         // the first two beats after one never set the level the floor
         // comes from).
         if trusted && self.monitor.state() == SignalState::Good {
-            let (input, seen, fs) = (&traces.input, self.n, self.fs);
+            let (input, seen, fs) = (&traces.input, self.n, self.config.sample_rate_hz);
             self.gate
                 .trusted(height, || gate::roughness(input, seen, fs));
         }
@@ -356,7 +356,7 @@ impl Pipeline {
         mut push: impl FnMut(&mut Self, f32) -> Output,
     ) {
         let end = self.n;
-        let flush = (FLUSH_S * self.fs) as u64;
+        let flush = (FLUSH_S * self.config.sample_rate_hz) as u64;
         let v = self.conditioning.last_value();
         // A peak whose top reaches the end may be an upstroke cut short.
         let whole_before = end.saturating_sub(self.placement.refine() as u64);

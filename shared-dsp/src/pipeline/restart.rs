@@ -41,11 +41,11 @@ pub struct BandRestart {
     highpass: Cascade<Delta, 1>,
     // Detector samples over which a step is measured (STEP_S).
     step_lag: usize,
+    scale: Scale,
     // Detector index after which, without a beat or a restart since, the
     // pipeline starts afresh; and that span.
     lost_at: u64,
     lost_after: u64,
-    scale: Scale,
     // Detector index of the last restart, and the detector index the
     // detector's own count starts from.
     restarted_at: u64,

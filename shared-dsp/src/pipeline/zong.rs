@@ -104,6 +104,11 @@ impl Zong {
         }
     }
 
+    /// The rate it runs at, Hz.
+    pub fn rate_hz(&self) -> f32 {
+        self.fs_hz
+    }
+
     /// Samples between a systolic peak and the earliest moment it can be
     /// reported, at most.
     pub fn delay(&self) -> usize {
