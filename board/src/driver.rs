@@ -14,9 +14,9 @@
 use embedded_hal::delay::DelayNs;
 use embedded_hal::digital::OutputPin;
 use embedded_hal::pwm::SetDutyCycle;
+use plethwire_dsp::pipeline::PipelineError;
 use plethwire_dsp::pipeline::{BeatEvent, Config, Options, Pipeline, StateEvent};
 use plethwire_dsp::wire::{Encoder, Hello, Message, Status, MAX_FRAME};
-use plethwire_dsp::DesignError;
 
 use crate::ambient::{AmbientCanceller, AmbientSample, SampleError, DEFAULT_SETTLE_NS};
 use crate::exposure::{DriveChange, Exposure, ExposureConfig};
@@ -105,7 +105,7 @@ pub enum BoardError<E> {
     /// can pace.
     Rate,
     /// The pipeline refused its configuration.
-    Design(DesignError),
+    Pipeline(PipelineError),
     /// The initial LED drive could not be set.
     Drive(E),
 }
@@ -183,8 +183,8 @@ where
             options: config.options,
         })
         .map_err(|e| match e {
-            DesignError::InvalidSampleRate => BoardError::Rate,
-            e => BoardError::Design(e),
+            PipelineError::SampleRate => BoardError::Rate,
+            e => BoardError::Pipeline(e),
         })?;
         let exposure = Exposure::new(
             &config.exposure,

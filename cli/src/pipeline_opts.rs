@@ -1,5 +1,6 @@
 //! Options shared by the commands that run the beat pipeline.
 
+use clap::builder::PossibleValue;
 use clap::{Args, ValueEnum};
 use plethwire_dsp::pipeline::{Config, DetectorKind};
 
@@ -17,21 +18,46 @@ pub enum PolarityName {
     Down,
 }
 
-/// The published detectors, as named on the command line.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum DetectorName {
-    /// Elgendi et al. 2013, two event-related moving averages (default).
-    Elgendi,
-    /// Zong et al. 2003, slope sum function (also gives the onset).
-    Zong,
+/// A published detector as named on the command line: names, help and the
+/// list come from [`DetectorKind`] (`cli_name`, `display_name`, `ALL`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct DetectorName(pub DetectorKind);
+
+/// Every detector, for clap.
+const DETECTOR_NAMES: [DetectorName; DetectorKind::ALL.len()] = {
+    let mut names = [DetectorName(DetectorKind::ALL[0]); DetectorKind::ALL.len()];
+    let mut i = 0;
+    while i < names.len() {
+        names[i] = DetectorName(DetectorKind::ALL[i]);
+        i += 1;
+    }
+    names
+};
+
+impl ValueEnum for DetectorName {
+    fn value_variants<'a>() -> &'a [Self] {
+        &DETECTOR_NAMES
+    }
+
+    fn to_possible_value(&self) -> Option<PossibleValue> {
+        let help = if self.0 == DetectorKind::default() {
+            format!("{} (default)", self.0.display_name())
+        } else {
+            self.0.display_name().to_string()
+        };
+        Some(PossibleValue::new(self.0.cli_name()).help(help))
+    }
+}
+
+impl std::fmt::Display for DetectorName {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.0.cli_name())
+    }
 }
 
 impl From<DetectorName> for DetectorKind {
     fn from(d: DetectorName) -> Self {
-        match d {
-            DetectorName::Elgendi => DetectorKind::Elgendi,
-            DetectorName::Zong => DetectorKind::Zong,
-        }
+        d.0
     }
 }
 
@@ -66,7 +92,7 @@ pub struct PipelineOpts {
     pub polarity: PolarityName,
 
     /// Beat detector.
-    #[arg(long, value_enum, default_value = "elgendi")]
+    #[arg(long, value_enum, default_value_t = DetectorName(DetectorKind::default()))]
     pub detector: DetectorName,
 
     /// ADC rails LOW:HIGH in the signal's units, when known (samples there

@@ -154,7 +154,7 @@ impl ReplayArgs {
                 record: &rec.name,
                 signal: &rec.signal.name,
                 sample_rate_hz: rec.signal.fs,
-                detector: format!("{:?}", config.options.detector).to_lowercase(),
+                detector: config.options.detector.cli_name().to_string(),
                 input: &rec.input,
                 summary: &summary,
                 motion,

@@ -94,7 +94,7 @@ fn the_board_reports_a_refused_configuration() {
     let text = err.to_string();
     assert!(matches!(err, EmulateError::Board(_)), "{text}");
     assert!(
-        text.contains("InvalidSampleRate") && !text.contains('\n'),
+        text.contains("SampleRate") && !text.contains('\n'),
         "{text}"
     );
 }

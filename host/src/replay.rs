@@ -5,8 +5,7 @@ use crate::channel::{choose, ChannelChoice};
 use crate::motion::{self, MotionSignals};
 use plethwire_dsp::hrv::{hrv, HrvStats};
 use plethwire_dsp::pipeline::{BeatEvent, Config, MotionPipeline, Output, Pipeline, StateEvent};
-use plethwire_dsp::pipeline::{MAX_RATE_HZ, MIN_RATE_HZ};
-use plethwire_dsp::DesignError;
+use plethwire_dsp::pipeline::{PipelineError, MAX_RATE_HZ, MIN_RATE_HZ};
 use plethwire_records::resample::ResampleReport;
 use plethwire_records::{
     annotation_path, csv_column_names, read_csv_signal, read_csv_signals, write_annotations,
@@ -384,13 +383,13 @@ pub struct Replay {
 
 /// Feed `samples` (at `config.sample_rate_hz`) through the pipeline, one at
 /// a time as the board would, and close open beats at the end.
-pub fn replay(samples: &[f64], config: Config) -> Result<Replay, DesignError> {
+pub fn replay(samples: &[f64], config: Config) -> Result<Replay, PipelineError> {
     replay_with_motion(samples, None, config)
 }
 
 /// [`replay`] of a loaded recording, with its accelerometer when it has
 /// one (at `config.sample_rate_hz`, the pulse signal's rate).
-pub fn replay_recording(rec: &Recording, config: Config) -> Result<Replay, DesignError> {
+pub fn replay_recording(rec: &Recording, config: Config) -> Result<Replay, PipelineError> {
     replay_with_motion(&rec.signal.samples, rec.motion.as_ref(), config)
 }
 
@@ -400,7 +399,7 @@ pub fn replay_with_motion(
     samples: &[f64],
     motion: Option<&MotionSignals>,
     config: Config,
-) -> Result<Replay, DesignError> {
+) -> Result<Replay, PipelineError> {
     let (mut beats, mut states) = (Vec::new(), Vec::new());
     let mut keep = |out: Output| {
         beats.extend(out.beat);

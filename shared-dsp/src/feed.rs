@@ -13,8 +13,7 @@
 //! assert_eq!(FeedHeader::decode(&header.encode()), Ok(header));
 //! ```
 
-use crate::pipeline::{Config, Options};
-use crate::wire::{detector_code, detector_from_code};
+use crate::pipeline::{Config, DetectorKind, Options};
 
 /// First four bytes of a feed.
 pub const FEED_MAGIC: [u8; 4] = *b"PWSF";
@@ -72,7 +71,7 @@ impl FeedHeader {
         let mut b = [0u8; FEED_HEADER_LEN];
         b[0..4].copy_from_slice(&FEED_MAGIC);
         b[4] = FEED_VERSION;
-        b[5] = detector_code(o.detector);
+        b[5] = o.detector.wire_code();
         b[6] = rails_known;
         // b[7] reserved, 0.
         let floats = [
@@ -99,7 +98,7 @@ impl FeedHeader {
         if b[4] != FEED_VERSION {
             return Err(FeedError::Version(b[4]));
         }
-        let detector = detector_from_code(b[5]).ok_or(FeedError::Detector(b[5]))?;
+        let detector = DetectorKind::from_wire_code(b[5]).ok_or(FeedError::Detector(b[5]))?;
         if b[7] != 0 {
             return Err(FeedError::Reserved(b[7]));
         }
@@ -138,7 +137,6 @@ impl FeedHeader {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::pipeline::DetectorKind;
 
     fn header() -> FeedHeader {
         let mut config = Config::new(125.0);

@@ -12,7 +12,7 @@ use core::fmt;
 use plethwire_dsp::feed::{FeedError, FeedHeader, FEED_HEADER_LEN};
 use plethwire_dsp::pipeline::{Output, Pipeline};
 use plethwire_dsp::wire::{Encoder, Hello, Message, Status, MAX_FRAME};
-use plethwire_dsp::DesignError;
+use plethwire_dsp::pipeline::PipelineError;
 
 use crate::semihost::HostError;
 
@@ -44,7 +44,7 @@ pub enum RunError {
     /// The feed's header was refused.
     Feed(FeedError),
     /// The pipeline refused the feed's configuration.
-    Pipeline(DesignError),
+    Pipeline(PipelineError),
     /// The input holds fewer bytes than its header promises.
     Truncated {
         /// Bytes the header promises, header included.

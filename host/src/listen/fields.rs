@@ -99,12 +99,9 @@ impl From<DecodeStats> for LinkFields {
     }
 }
 
-/// `elgendi` or `zong`.
+/// The detector's command-line name ([`DetectorKind::cli_name`]).
 pub fn detector_name(d: DetectorKind) -> &'static str {
-    match d {
-        DetectorKind::Elgendi => "elgendi",
-        DetectorKind::Zong => "zong",
-    }
+    d.cli_name()
 }
 
 /// A signal state as one word for JSON.

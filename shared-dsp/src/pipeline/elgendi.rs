@@ -19,8 +19,8 @@
 //! average here (time constant [`OFFSET_MEAN_TAU_S`]) so the offset follows
 //! slow changes in perfusion.
 
+use super::detector::{Candidate, Detector};
 use super::ring::{Ring, RunningSum};
-use super::Candidate;
 use crate::math::{max_f32, min_f32};
 
 /// W1, seconds (Elgendi et al. 2013).
@@ -81,6 +81,8 @@ pub struct Elgendi {
     best_t: u64,
     squared: Ring<RING>,
     filtered: Ring<RING>,
+    // The rate it was built for, to start again at ([`Detector::reset`]).
+    fs_hz: f32,
 }
 
 impl Elgendi {
@@ -93,6 +95,7 @@ impl Elgendi {
         let h2 = (libm::floorf(W2_S * fs_hz / 2.0) as usize).max(2);
         let h2 = h2.min((RING - 2) / 2);
         Self {
+            fs_hz,
             h1,
             w1: 2 * h1 + 1,
             w2: 2 * h2 + 1,
@@ -113,13 +116,20 @@ impl Elgendi {
         }
     }
 
+    /// The rate it runs at, Hz.
+    pub fn rate_hz(&self) -> f32 {
+        self.fs_hz
+    }
+
     /// Samples between a peak and the earliest moment it can be reported.
     pub fn delay(&self) -> usize {
         self.delay
     }
+}
 
+impl Detector for Elgendi {
     /// Feed one band-passed sample; returns a beat once its block closes.
-    pub fn push(&mut self, y: f32) -> Option<Candidate> {
+    fn process(&mut self, y: f32) -> Option<Candidate> {
         let clipped = max_f32(y, 0.0);
         let z = clipped * clipped;
         self.squared.push(z);
@@ -174,6 +184,10 @@ impl Elgendi {
             None
         }
     }
+
+    fn reset(&mut self) {
+        *self = Self::new(self.fs_hz);
+    }
 }
 
 #[cfg(test)]
@@ -195,7 +209,7 @@ mod tests {
             } else {
                 0.0
             };
-            if let Some(c) = d.push(y) {
+            if let Some(c) = d.process(y) {
                 let at = c.peak as f32 / fs;
                 if (15.0..20.0).contains(&at) {
                     before += 1;

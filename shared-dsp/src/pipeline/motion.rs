@@ -32,8 +32,8 @@
 //! [`MotionTracker`] of a [`super::MotionPipeline`].
 
 use super::ring::Ring;
+use super::PipelineError;
 use crate::math::max_f32;
-use crate::DesignError;
 
 /// The tracker runs at the accelerometer's rate divided by
 /// `ceil(rate / TRACK_RATE_HZ)`, so at 12.5 to 25 Hz: arm swing and steps
@@ -150,9 +150,9 @@ pub struct MotionTracker {
 
 impl MotionTracker {
     /// A tracker for three-axis samples in g at `rate_hz` (20 to 1000 Hz).
-    pub fn new(rate_hz: f32) -> Result<Self, DesignError> {
+    pub fn new(rate_hz: f32) -> Result<Self, PipelineError> {
         if !(MIN_MOTION_RATE_HZ..=MAX_MOTION_RATE_HZ).contains(&rate_hz) {
-            return Err(DesignError::InvalidSampleRate);
+            return Err(PipelineError::MotionRate);
         }
         let decim = max_f32(libm::ceilf(rate_hz / TRACK_RATE_HZ), 1.0) as u32;
         let fm = rate_hz / decim as f32;

@@ -84,7 +84,7 @@ impl Scale {
     pub fn new(fd_hz: f32) -> Self {
         Self {
             block_len: (libm::roundf(BLOCK_S * fd_hz) as u32).max(1),
-            lag: (libm::roundf(super::STEP_S * fd_hz) as u32).max(1),
+            lag: (libm::roundf(super::restart::STEP_S * fd_hz) as u32).max(1),
             filled: 0,
             high: f32::NEG_INFINITY,
             low: f32::INFINITY,

@@ -13,6 +13,9 @@ pub const CLIP_WINDOW_S: f32 = 2.0;
 /// No beat for this long (or 2.5 recent intervals, if longer) means no
 /// signal, seconds.
 pub const SILENCE_S: f32 = 3.0;
+/// …or for this many recent intervals, if longer (a slow pulse is not
+/// silence).
+pub const SILENCE_INTERVALS: f32 = 2.5;
 /// Of the last [`JUDGED_BEATS`] beats, at least this many bad ones make the
 /// signal noisy.
 pub const NOISY_BAD_BEATS: u32 = 3;
@@ -97,8 +100,9 @@ impl Monitor {
         self.clip_share += alpha * (share - self.clip_share);
         let key = median_ibi_ms.map(f32::to_bits);
         if key != self.silence_for {
-            let silence_s =
-                median_ibi_ms.map_or(SILENCE_S, |m| max_f32(2.5 * m / 1000.0, SILENCE_S));
+            let silence_s = median_ibi_ms.map_or(SILENCE_S, |m| {
+                max_f32(SILENCE_INTERVALS * m / 1000.0, SILENCE_S)
+            });
             self.silence_after = libm::floorf(silence_s * self.fs) as u64;
             self.silence_for = key;
         }

@@ -1,7 +1,7 @@
 //! The pipeline with an accelerometer beside it.
 
+use super::PipelineError;
 use super::{BeatEvent, Config, MotionTracker, Output, Pipeline};
-use crate::DesignError;
 
 /// A [`Pipeline`] and a [`MotionTracker`] fed side by side: beats that
 /// strong motion makes untrustworthy carry [`super::BeatFlags::MOTION`].
@@ -20,7 +20,7 @@ use crate::DesignError;
 ///         assert!(!beat.flags.has(plethwire_dsp::pipeline::BeatFlags::MOTION));
 ///     }
 /// }
-/// # Ok::<(), plethwire_dsp::DesignError>(())
+/// # Ok::<(), plethwire_dsp::pipeline::PipelineError>(())
 /// ```
 #[derive(Clone, Debug)]
 pub struct MotionPipeline {
@@ -31,7 +31,7 @@ pub struct MotionPipeline {
 impl MotionPipeline {
     /// A pipeline for `config` and a tracker for three-axis samples in g
     /// at `motion_rate_hz` (20 to 1000 Hz).
-    pub fn new(config: Config, motion_rate_hz: f32) -> Result<Self, DesignError> {
+    pub fn new(config: Config, motion_rate_hz: f32) -> Result<Self, PipelineError> {
         Ok(Self {
             pipeline: Pipeline::new(config)?,
             tracker: MotionTracker::new(motion_rate_hz)?,

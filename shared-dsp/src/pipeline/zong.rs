@@ -18,8 +18,8 @@
 //! whichever is shorter, and at most the longer of the refractory period
 //! and 60 % of an interval); the pipeline then places it on the input.
 
+use super::detector::{Candidate, Detector};
 use super::ring::{Ring, RunningSum};
-use super::Candidate;
 use crate::math::max_f32;
 
 /// SSF window, seconds (Zong et al. 2003).
@@ -41,6 +41,27 @@ pub const PEAK_SEARCH_S: f32 = 0.3;
 /// Without a beat for this long the threshold halves, seconds (so the
 /// detector recovers from a large artefact).
 pub const DECAY_S: f32 = 2.5;
+
+/// The threshold's base while learning is this many times the mean slope
+/// sum (Zong et al. 2003, from memory).
+pub const LEARN_MULTIPLE: f32 = 3.0;
+/// Weight of a new pulse in the running averages of SSF maxima and of the
+/// interval (our choice: about the last four pulses).
+pub const AVERAGE_WEIGHT: f32 = 0.25;
+/// When lost, the running SSF maximum is multiplied by this at least
+/// (halved, as [`DECAY_S`] says).
+pub const DECAY_FACTOR: f32 = 0.5;
+/// A gap longer than this many intervals is a missed beat, not an
+/// interval to learn (our choice).
+pub const GAP_LIMIT: f32 = 2.5;
+/// The interval assumed at the start, seconds (75 bpm).
+pub const START_INTERVAL_S: f32 = 0.8;
+/// The systolic peak is looked for at most this fraction of the interval
+/// after the crossing…
+pub const PEAK_SPAN_IBI: f32 = 0.5;
+/// …and the pulse waited for to turn down at most this fraction of it
+/// (the next pulse's crossing cannot come sooner).
+pub const LONGEST_WAIT_IBI: f32 = 0.6;
 
 const RING: usize = 256;
 
@@ -70,6 +91,8 @@ pub struct Zong {
     rises: Ring<RING>,
     ssf_hist: Ring<RING>,
     filtered: Ring<RING>,
+    // The rate it was built for, to start again at ([`Detector::reset`]).
+    fs_hz: f32,
 }
 
 impl Zong {
@@ -78,6 +101,7 @@ impl Zong {
     pub fn new(fs_hz: f32) -> Self {
         let n = |s: f32| (libm::roundf(s * fs_hz) as usize).max(1);
         Self {
+            fs_hz,
             window: n(WINDOW_S),
             refractory: n(REFRACTORY_S) as u64,
             search: n(SEARCH_S),
@@ -95,10 +119,15 @@ impl Zong {
             t: 0,
             last_beat: None,
             last_change: 0,
-            interval: 0.8 * fs_hz,
+            interval: START_INTERVAL_S * fs_hz,
             pending: None,
             top: f32::NEG_INFINITY,
         }
+    }
+
+    /// The rate it runs at, Hz.
+    pub fn rate_hz(&self) -> f32 {
+        self.fs_hz
     }
 
     /// Samples between a systolic peak and the earliest moment it can be
@@ -106,9 +135,11 @@ impl Zong {
     pub fn delay(&self) -> usize {
         self.peak_search
     }
+}
 
+impl Detector for Zong {
     /// Feed one band-passed sample.
-    pub fn push(&mut self, y: f32) -> Option<Candidate> {
+    fn process(&mut self, y: f32) -> Option<Candidate> {
         let rise = max_f32(y - self.last_y, 0.0);
         self.last_y = y;
         self.rises.push(rise);
@@ -130,7 +161,7 @@ impl Zong {
                 // detector still learns (after a restart, waiting the whole
                 // period would lose the first pulses at slow rates).
                 let mean = self.learn_sum / (t + 1) as f32;
-                self.max_avg = 3.0 * mean;
+                self.max_avg = LEARN_MULTIPLE * mean;
                 self.threshold = THRESHOLD_FRACTION * self.max_avg;
             }
             if t < self.window as u64 {
@@ -152,12 +183,12 @@ impl Zong {
             for a in 0..held {
                 sum += self.ssf_hist.at(a);
             }
-            let relearnt = 3.0 * sum / held as f32;
-            self.max_avg = (0.5 * self.max_avg).min(relearnt);
+            let relearnt = LEARN_MULTIPLE * sum / held as f32;
+            self.max_avg = (DECAY_FACTOR * self.max_avg).min(relearnt);
             if t < self.learn {
                 // Still learning: the mean so far goes on from here, not
                 // from the artefact that came first.
-                self.learn_sum = self.max_avg / 3.0 * (t + 1) as f32;
+                self.learn_sum = self.max_avg / LEARN_MULTIPLE * (t + 1) as f32;
             }
             self.threshold = THRESHOLD_FRACTION * self.max_avg;
             self.last_change = t;
@@ -184,13 +215,19 @@ impl Zong {
         None
     }
 
+    fn reset(&mut self) {
+        *self = Self::new(self.fs_hz);
+    }
+}
+
+impl Zong {
     /// How long after the onset the systolic peak is looked for: at most
     /// [`PEAK_SEARCH_S`], and never into the next pulse at fast rates.
     fn peak_span(&self) -> usize {
         // Waiting no longer than the refractory period means the wait can
         // never hide the next pulse's crossing.
         let cap = self.peak_search.min(self.refractory as usize);
-        (libm::roundf(0.5 * self.interval) as usize).clamp(1, cap)
+        (libm::roundf(PEAK_SPAN_IBI * self.interval) as usize).clamp(1, cap)
     }
 
     /// The longest wait after a crossing for the pulse to turn down: the
@@ -198,7 +235,7 @@ impl Zong {
     /// (the next pulse's crossing cannot come sooner), within the rings.
     fn longest_wait(&self) -> u64 {
         let cap = (RING / 2) as u64;
-        (libm::roundf(0.6 * self.interval) as u64)
+        (libm::roundf(LONGEST_WAIT_IBI * self.interval) as u64)
             .max(self.refractory)
             .min(cap)
     }
@@ -239,13 +276,13 @@ impl Zong {
             // pulses' maxima (the learnt mean is only a start).
             self.max_avg = ssf_max;
         } else {
-            self.max_avg += 0.25 * (ssf_max - self.max_avg);
+            self.max_avg += AVERAGE_WEIGHT * (ssf_max - self.max_avg);
         }
         self.threshold = THRESHOLD_FRACTION * self.max_avg;
         if let Some(last) = self.last_beat {
             let gap = (cross - last) as f32;
-            if gap < 2.5 * self.interval {
-                self.interval += 0.25 * (gap - self.interval);
+            if gap < GAP_LIMIT * self.interval {
+                self.interval += AVERAGE_WEIGHT * (gap - self.interval);
             }
         }
         self.last_beat = Some(cross);

@@ -66,23 +66,6 @@ impl Reader<'_> {
     }
 }
 
-/// The detector's code in hello frames and sample feeds.
-pub(crate) fn detector_code(d: DetectorKind) -> u8 {
-    match d {
-        DetectorKind::Elgendi => 0,
-        DetectorKind::Zong => 1,
-    }
-}
-
-/// The detector a code stands for, if any.
-pub(crate) fn detector_from_code(c: u8) -> Option<DetectorKind> {
-    match c {
-        0 => Some(DetectorKind::Elgendi),
-        1 => Some(DetectorKind::Zong),
-        _ => None,
-    }
-}
-
 fn state_code(s: SignalState) -> u8 {
     match s {
         SignalState::Acquiring => 0,
@@ -110,7 +93,7 @@ fn payload(message: &Message, w: &mut Writer<'_>) -> Result<(), EncodeError> {
             w.bytes(&h.firmware_version);
             w.f32(h.sample_rate_hz);
             let o = &h.options;
-            w.u8(detector_code(o.detector));
+            w.u8(o.detector.wire_code());
             w.f32(o.band_low_hz);
             w.f32(o.band_high_hz);
             w.f32(o.hr_window_s);
@@ -212,7 +195,7 @@ fn decode_payload(kind: u8, r: &mut Reader<'_>) -> Option<Message> {
         1 => {
             let firmware_version = r.take::<3>()?;
             let sample_rate_hz = r.f32()?;
-            let detector = detector_from_code(r.u8()?)?;
+            let detector = DetectorKind::from_wire_code(r.u8()?)?;
             let band_low_hz = r.f32()?;
             let band_high_hz = r.f32()?;
             let hr_window_s = r.f32()?;

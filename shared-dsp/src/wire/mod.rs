@@ -22,7 +22,6 @@ mod decoder;
 
 pub use cobs::{decode_in_place as cobs_decode, encode as cobs_encode, max_encoded_len};
 pub use codec::{decode_frame, encode_frame, Refusal};
-pub(crate) use codec::{detector_code, detector_from_code};
 pub use crc::crc32;
 pub use decoder::{DecodeStats, Decoder, FrameError};
 

@@ -4,6 +4,7 @@
 //! 10:13883, via `plethwire_synth`); beats match within ±150 ms
 //! (ANSI/AAMI EC57 practice).
 
+mod matching;
 mod recovery;
 
 use plethwire_dsp::pipeline::DetectorKind;

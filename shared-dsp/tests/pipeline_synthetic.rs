@@ -2,7 +2,9 @@
 //! pulse model of Tang et al. 2020, Sci Rep 10:13883, via `plethwire_synth`).
 //! Scenarios of our own; the truth is the generator's beat times.
 
-use plethwire::score::{match_beats, MATCH_WINDOW_S};
+mod matching;
+
+use matching::{match_beats, MATCH_WINDOW_S};
 use plethwire_dsp::pipeline::{BeatEvent, Config, DetectorKind, Pipeline, SignalState, StateEvent};
 use plethwire_synth::{generate, AdcRails, FingerOff, HrSchedule, SynthOptions, Synthetic};
 

@@ -7,7 +7,7 @@
 
 pub mod strategy;
 
-use plethwire::score::{match_pairs, MatchCounts, MATCH_WINDOW_S};
+use crate::matching::{match_beats, match_pairs, MatchCounts, MATCH_WINDOW_S};
 use plethwire_dsp::pipeline::{BeatEvent, Config, DetectorKind, Pipeline};
 use plethwire_synth::{generate, AdcRails, HrSchedule, SynthOptions};
 
@@ -300,7 +300,7 @@ pub fn whole_train(c: &Case, beats: &[BeatEvent]) -> MatchCounts {
         .map(|b| b.peak_index)
         .filter(|&p| p + tol >= c.train_start as u64)
         .collect();
-    plethwire::score::match_beats(&c.truth, &found, tol)
+    match_beats(&c.truth, &found, tol)
 }
 
 /// How the pipeline did on a case's train.

@@ -1,0 +1,203 @@
+//! The conditioning stage, at the input rate: the sample conditioned
+//! ([`super::condition`]: non-finite replaced, rails marked), the band's
+//! upper edge (a Butterworth low-pass, order 2, whose output is also the
+//! smoothed signal peaks are placed on), and the decimation to the
+//! detector's rate.
+
+use super::condition::{Conditioner, Rails};
+use super::settings::{Config, PipelineError};
+use crate::design::butterworth_lowpass;
+use crate::filter::{Cascade, Delta};
+
+/// Order of the band's low-pass (and of its high-pass): two poles at each
+/// edge, the band of [`super`]'s Butterworth design.
+pub const BAND_ORDER: usize = 2;
+
+/// Per detector-rate sample: one of its input samples was clipped.
+pub const MARK_CLIPPED: u8 = 1;
+/// Per detector-rate sample: one of its input samples was replaced (not a
+/// number).
+pub const MARK_REJECTED: u8 = 2;
+
+/// One input sample after conditioning and the low-pass.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Smoothed {
+    /// The conditioned input value.
+    pub value: f32,
+    /// The low-passed value.
+    pub smoothed: f32,
+    /// On the very first sample only: the low-pass's output at rest at
+    /// this value, for the stages after it to settle on.
+    pub first_rest: Option<f32>,
+}
+
+/// What one detector-rate sample's input samples held.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Block {
+    /// Input samples in the block marked clipped.
+    pub clipped: u32,
+    /// [`MARK_CLIPPED`] and [`MARK_REJECTED`] bits of the block.
+    pub mark: u8,
+}
+
+/// Conditioning, low-pass and decimation state.
+// `repr(C)`: the per-sample fields first and together (see `Pipeline`).
+#[derive(Clone, Debug)]
+#[repr(C)]
+pub struct Conditioning {
+    decim: u32,
+    phase: u32,
+    conditioner: Conditioner,
+    // Upper band edge at the input rate.
+    lowpass: Cascade<Delta, 1>,
+    mark: u8,
+    started: bool,
+    // Clipped input samples since the last detector-rate sample.
+    clipped_in_block: u32,
+    last_value: f32,
+}
+
+impl Conditioning {
+    /// The stage for `config` (checked already), decimating by `decim`.
+    pub fn new(config: &Config, decim: u32) -> Result<Self, PipelineError> {
+        let o = &config.options;
+        let lowpass = butterworth_lowpass(
+            BAND_ORDER,
+            o.band_high_hz as f64,
+            config.sample_rate_hz as f64,
+        )
+        .and_then(|d| d.cascade())
+        .map_err(PipelineError::BandHigh)?;
+        let rails = match o.rails {
+            Some((low, high)) => Rails::Known { low, high },
+            None => Rails::Auto,
+        };
+        Ok(Self {
+            decim,
+            phase: 0,
+            conditioner: Conditioner::new(rails, config.sample_rate_hz),
+            lowpass,
+            mark: 0,
+            started: false,
+            clipped_in_block: 0,
+            last_value: 0.0,
+        })
+    }
+
+    /// Condition and low-pass one input sample.
+    #[inline(always)]
+    pub fn push(&mut self, x: f32) -> Smoothed {
+        let c = self.conditioner.push(x);
+        let first_rest = if self.started {
+            None
+        } else {
+            // Start as if this value had always been there: no transient.
+            self.started = true;
+            Some(self.lowpass.settle(c.value))
+        };
+        self.last_value = c.value;
+        let smoothed = self.lowpass.process(c.value);
+        if c.clipped {
+            self.mark |= MARK_CLIPPED;
+            self.clipped_in_block += 1;
+        }
+        if c.rejected {
+            self.mark |= MARK_REJECTED;
+        }
+        Smoothed {
+            value: c.value,
+            smoothed,
+            first_rest,
+        }
+    }
+
+    /// After [`Self::push`]: the block, when that sample completed a
+    /// detector-rate sample (its counts start again).
+    #[inline(always)]
+    pub fn block(&mut self) -> Option<Block> {
+        self.phase += 1;
+        if self.phase < self.decim {
+            return None;
+        }
+        self.phase = 0;
+        let block = Block {
+            clipped: self.clipped_in_block,
+            mark: self.mark,
+        };
+        self.clipped_in_block = 0;
+        self.mark = 0;
+        Some(block)
+    }
+
+    /// Start the low-pass at `value` (after a step); its output at rest.
+    pub fn settle(&mut self, value: f32) -> f32 {
+        self.lowpass.settle(value)
+    }
+
+    /// Input samples per detector sample.
+    pub fn decimation(&self) -> u32 {
+        self.decim
+    }
+
+    /// The last conditioned value.
+    pub fn last_value(&self) -> f32 {
+        self.last_value
+    }
+
+    /// Non-finite input samples replaced so far.
+    pub fn rejected(&self) -> u64 {
+        self.conditioner.rejected()
+    }
+
+    /// Input samples marked clipped so far.
+    pub fn clipped(&self) -> u64 {
+        self.conditioner.clipped()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn blocks_close_every_decimation_and_carry_their_marks() {
+        let mut c = Config::new(250.0); // decimation 4
+        c.options.rails = Some((0.0, 10.0));
+        let mut stage = Conditioning::new(&c, c.decimation()).unwrap();
+        assert_eq!(stage.decimation(), 4);
+        let mut blocks = std::vec::Vec::new();
+        for (k, x) in [1.0, 10.0, f32::NAN, 2.0, 3.0, 3.0, 3.0, 3.0]
+            .into_iter()
+            .enumerate()
+        {
+            let s = stage.push(x);
+            assert_eq!(s.first_rest.is_some(), k == 0);
+            blocks.extend(stage.block());
+        }
+        let marked = Block {
+            clipped: 1,
+            mark: MARK_CLIPPED | MARK_REJECTED,
+        };
+        assert_eq!(
+            blocks,
+            [
+                marked,
+                Block {
+                    clipped: 0,
+                    mark: 0
+                }
+            ]
+        );
+        assert_eq!((stage.rejected(), stage.clipped()), (1, 1));
+    }
+
+    #[test]
+    fn a_constant_input_passes_the_low_pass_unchanged_from_the_first_sample() {
+        let c = Config::new(125.0);
+        let mut stage = Conditioning::new(&c, c.decimation()).unwrap();
+        for _ in 0..50 {
+            let s = stage.push(2.5);
+            assert!((s.smoothed - 2.5).abs() < 1e-5, "{}", s.smoothed);
+        }
+    }
+}

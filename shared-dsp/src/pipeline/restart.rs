@@ -1,0 +1,197 @@
+//! The band and step restart stage, at the detector's rate: the band's
+//! lower edge (a Butterworth high-pass, order 2), and the judgement of when
+//! the pipeline starts afresh: a step or a collapse of the smoothed input
+//! against its own recent range ([`super::scale`]), or twice the silence
+//! limit without a beat.
+
+use super::conditioning::BAND_ORDER;
+use super::ring::Ring;
+use super::scale::{Change, Scale};
+use super::settings::{Config, PipelineError};
+use super::state;
+use crate::design::butterworth_highpass;
+use crate::filter::{Cascade, Delta};
+
+/// Time over which a step is measured, seconds (the size that makes a
+/// step is in [`super::scale`]).
+pub const STEP_S: f32 = 0.1;
+
+/// Without a beat for this many silence limits ([`state::SILENCE_S`]:
+/// longer than any detector needs to learn its threshold), the pipeline
+/// starts afresh, and again each time that passes.
+pub const LOST_SILENCES: f32 = 2.0;
+
+/// Why the pipeline starts afresh.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Restart {
+    /// A step in the input: the low-pass starts at the new level too.
+    Step,
+    /// The smoothed input's range collapsed (an artefact ended).
+    Collapse,
+    /// No beat for [`LOST_SILENCES`] silence limits.
+    Lost,
+}
+
+/// High-pass, step judgement and restart bookkeeping.
+// `repr(C)`: the per-sample fields first (see `Pipeline`).
+#[derive(Clone, Debug)]
+#[repr(C)]
+pub struct BandRestart {
+    // Lower band edge at the detector's rate.
+    highpass: Cascade<Delta, 1>,
+    // Detector samples over which a step is measured (STEP_S).
+    step_lag: usize,
+    scale: Scale,
+    // Detector index after which, without a beat or a restart since, the
+    // pipeline starts afresh; and that span.
+    lost_at: u64,
+    lost_after: u64,
+    // Detector index of the last restart, and the detector index the
+    // detector's own count starts from.
+    restarted_at: u64,
+    epoch: u64,
+    restarts: u64,
+}
+
+impl BandRestart {
+    /// The stage for `config` (checked already) at detector rate `fd`.
+    pub fn new(config: &Config, fd: f32) -> Result<Self, PipelineError> {
+        let highpass =
+            butterworth_highpass(BAND_ORDER, config.options.band_low_hz as f64, fd as f64)
+                .and_then(|d| d.cascade())
+                .map_err(PipelineError::BandLow)?;
+        // Whole detector samples: `t > lost_at` is then the same test as
+        // against the exact span.
+        let lost_after = libm::floorf(LOST_SILENCES * state::SILENCE_S * fd) as u64;
+        Ok(Self {
+            highpass,
+            step_lag: (libm::roundf(STEP_S * fd) as usize).max(1),
+            lost_at: lost_after,
+            lost_after,
+            scale: Scale::new(fd),
+            restarted_at: 0,
+            epoch: 0,
+            restarts: 0,
+        })
+    }
+
+    /// Start the high-pass at rest at low-passed level `s` (the first
+    /// sample).
+    pub fn start(&mut self, s: f32) {
+        self.highpass.settle(s);
+    }
+
+    /// Judge the newest smoothed value `s` at detector index `t` against
+    /// the `smoothed` values before it: whether to start afresh.
+    #[inline(always)]
+    pub fn judge<const N: usize>(&mut self, s: f32, smoothed: &Ring<N>, t: u64) -> Option<Restart> {
+        let jump = if smoothed.len() >= self.step_lag {
+            s - smoothed.at(self.step_lag - 1)
+        } else {
+            0.0
+        };
+        let change = self.scale.push(s, jump);
+        match change {
+            Change::Step => Some(Restart::Step),
+            Change::Collapse => Some(Restart::Collapse),
+            Change::None => (t > self.lost_at).then_some(Restart::Lost),
+        }
+    }
+
+    /// The band-passed value of low-passed `s`.
+    #[inline(always)]
+    pub fn filter(&mut self, s: f32) -> f32 {
+        self.highpass.process(s)
+    }
+
+    /// Start afresh at detector index `t` from low-passed level `s`: the
+    /// high-pass at rest there (its output returned), the scale's history
+    /// as `why` leaves it, the detector's count from `t`.
+    pub fn restart(&mut self, s: f32, why: Restart, t: u64) -> f32 {
+        let rest = self.highpass.settle(s);
+        self.epoch = t;
+        self.restarted_at = t;
+        self.lost_at = t + self.lost_after;
+        match why {
+            // The history held the step.
+            Restart::Step => self.scale.forget(),
+            // The history held the artefact, but its last second is the
+            // quiet signal after it: kept as the reference, no second
+            // after the restart is blind to a step.
+            Restart::Collapse => self.scale.keep_quiet(),
+            // After a silence the history is the signal's own.
+            Restart::Lost => {}
+        }
+        self.restarts += 1;
+        rest
+    }
+
+    /// A beat was accepted; `t` is the next detector index.
+    pub fn beat(&mut self, t: u64) {
+        self.lost_at = t + self.lost_after;
+    }
+
+    /// Detector index the detector's own indices count from.
+    pub fn epoch(&self) -> u64 {
+        self.epoch
+    }
+
+    /// Detector samples since the last restart at detector index `now`:
+    /// the oldest age of the rings that holds this signal, not what came
+    /// before the restart (a step, an artefact).
+    pub fn since_restart(&self, now: u64) -> usize {
+        (now - self.restarted_at) as usize
+    }
+
+    /// Restarts so far.
+    pub fn restarts(&self) -> u64 {
+        self.restarts
+    }
+
+    /// Set the count of restarts (`finish` does not count its own).
+    pub fn set_restarts(&mut self, restarts: u64) {
+        self.restarts = restarts;
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn stage(fd: f32) -> BandRestart {
+        BandRestart::new(&Config::new(fd), fd).unwrap()
+    }
+
+    #[test]
+    fn a_jump_restarts_and_a_pulse_does_not() {
+        let fd = 62.5;
+        let mut b = stage(fd);
+        let mut ring = Ring::<256>::new();
+        let mut why = None;
+        for t in 0..400u64 {
+            let s = libm::sinf(t as f32 * 0.12) + if t >= 300 { 50.0 } else { 0.0 };
+            let j = b.judge(s, &ring, t);
+            if j.is_some() && why.is_none() {
+                why = j.map(|w| (w, t));
+            }
+            ring.push(s);
+        }
+        assert_eq!(why, Some((Restart::Step, 300)));
+    }
+
+    #[test]
+    fn silence_without_beats_restarts_and_a_beat_puts_it_off() {
+        let fd = 62.5;
+        let mut b = stage(fd);
+        let ring = Ring::<256>::new();
+        let limit = libm::floorf(LOST_SILENCES * state::SILENCE_S * fd) as u64;
+        // Flat: the scale sees nothing; only the silence counts.
+        assert_eq!(b.judge(0.0, &ring, limit), None);
+        b.beat(10);
+        assert_eq!(b.judge(0.0, &ring, limit + 1), None);
+        assert_eq!(b.judge(0.0, &ring, limit + 11), Some(Restart::Lost));
+        assert_eq!(b.restart(0.0, Restart::Lost, limit + 11), 0.0);
+        assert_eq!((b.epoch(), b.restarts()), (limit + 11, 1));
+        assert_eq!(b.since_restart(limit + 20), 9);
+    }
+}
