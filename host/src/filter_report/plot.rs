@@ -10,9 +10,8 @@ use std::path::Path;
 use super::report::{on_a_zero, FilterReport};
 use crate::plot::theme::{BOARD, DESIGN, WIDTH};
 use crate::plot::{
-    axis_range_hz, draw_band_and_marks, draw_legend, frequency_chart, legend_line, phase_near_deg,
-    range_of, rgb, svg, titled, unwrapped_phase_deg, write_svg_file, Area, Drawn, Frame, Layout,
-    PlotError, Sweep,
+    axis_range_hz, draw_legend, legend_line, phase_near_deg, range_of, rgb, sheet_panel, svg,
+    titled, unwrapped_phase_deg, write_svg_file, Area, Drawn, PlotError, Sweep,
 };
 
 /// Gains below this are drawn at it, so deep stop bands stay readable.
@@ -34,15 +33,7 @@ struct Curves<'c> {
 }
 
 fn draw_panel(area: &Area<'_>, x: (f64, f64), corners: &[f64], c: Curves<'_>) -> Drawn {
-    let frame = Frame {
-        caption: Some(c.title),
-        unit: c.unit,
-        x,
-        y: c.y,
-        layout: Layout::Sheet,
-    };
-    let mut chart = frequency_chart(area, &frame)?;
-    draw_band_and_marks(&mut chart, x, c.y, corners)?;
+    let mut chart = sheet_panel(area, c.title, c.unit, (x, c.y), corners)?;
     let design = rgb(DESIGN).stroke_width(2);
     chart
         .draw_series(LineSeries::new(c.design, design))?

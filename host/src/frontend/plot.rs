@@ -11,8 +11,8 @@ use super::quantity::sig3;
 use super::report::FrontendReport;
 use crate::plot::theme::{BAND, BOARD, DESIGN, WIDTH};
 use crate::plot::{
-    draw_band_and_marks, draw_legend, frequency_chart, legend_line, log_frequencies, range_of, rgb,
-    svg, titled, unwrapped_phase_deg, write_svg_file, Area, Drawn, Frame, Layout, PlotError,
+    draw_legend, legend_line, log_frequencies, range_of, rgb, sheet_panel, svg, titled,
+    unwrapped_phase_deg, write_svg_file, Area, Drawn, PlotError,
 };
 
 /// The plot's frequency axis, Hz.
@@ -81,15 +81,7 @@ struct PanelSpec<'s> {
 
 fn draw_panel(area: &Area<'_>, marks: &[f64], spec: PanelSpec<'_>, c: Curves) -> Drawn {
     let x = PLOT_RANGE_HZ;
-    let frame = Frame {
-        caption: Some(spec.title),
-        unit: spec.unit,
-        x,
-        y: spec.y,
-        layout: Layout::Sheet,
-    };
-    let mut chart = frequency_chart(area, &frame)?;
-    draw_band_and_marks(&mut chart, x, spec.y, marks)?;
+    let mut chart = sheet_panel(area, spec.title, spec.unit, (x, spec.y), marks)?;
     if spec.gain {
         let limit = rgb(BAND).stroke_width(1);
         chart

@@ -12,8 +12,8 @@ pub mod theme;
 
 pub use axis::{fixed, hz_label, range_of, ticks, wrap_words};
 pub use panel::{
-    draw_band_and_marks, draw_legend, draw_marks, frequency_chart, legend_line, Area, Frame,
-    Layout, LogPanelChart, HEART_BAND_HZ,
+    draw_band_and_marks, draw_legend, draw_marks, frequency_chart, legend_line, sheet_panel, Area,
+    Frame, Layout, LogPanelChart, HEART_BAND_HZ,
 };
 pub use sweep::{
     axis_range_hz, log_frequencies, phase_near_deg, unwrapped_phase_deg, Sweep, SWEEP_POINTS,

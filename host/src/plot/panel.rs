@@ -80,6 +80,28 @@ pub fn frequency_chart<'a, 'b>(
     Ok(chart)
 }
 
+/// A panel of a standalone SVG ([`Layout::Sheet`]) captioned `caption`,
+/// with the heart band shaded and `marks` drawn: what the filter and
+/// front-end plots draw their curves on.
+pub fn sheet_panel<'a, 'b>(
+    area: &'a Area<'b>,
+    caption: &str,
+    unit: &str,
+    (x, y): ((f64, f64), (f64, f64)),
+    marks: &[f64],
+) -> Result<LogPanelChart<'a, 'b>, DrawFailure> {
+    let frame = Frame {
+        caption: Some(caption),
+        unit,
+        x,
+        y,
+        layout: Layout::Sheet,
+    };
+    let mut chart = frequency_chart(area, &frame)?;
+    draw_band_and_marks(&mut chart, x, y, marks)?;
+    Ok(chart)
+}
+
 /// Shade the heart band (clipped to the x range `x`) with its legend entry,
 /// and draw a dashed line at each of `marks` inside it, over the y range
 /// `y`.
