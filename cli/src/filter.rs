@@ -6,7 +6,7 @@ use std::path::PathBuf;
 
 use super::Failure;
 use plethwire::filter_report::{
-    check_const_name, human_report, write_svg, FilterReport, FilterSpec, ReportError, Stage,
+    check_const_name, human_report, write_svg, FilterDesignError, FilterReport, FilterSpec, Stage,
     DEFAULT_NOTCH_QUALITY, DEFAULT_ORDER,
 };
 
@@ -115,7 +115,9 @@ fn parse_notch(text: &str) -> Result<(f64, f64), String> {
 }
 
 fn parse_ident(text: &str) -> Result<String, String> {
-    check_const_name(text).map(|()| text.to_owned())
+    check_const_name(text)
+        .map(|()| text.to_owned())
+        .map_err(|e| e.to_string())
 }
 
 impl FilterArgs {
@@ -157,7 +159,7 @@ impl FilterArgs {
             ));
         }
         FilterSpec::new(self.rate, self.stages()).map_err(|e| match e {
-            ReportError::NothingToDesign => Failure::usage(
+            FilterDesignError::NothingToDesign => Failure::usage(
                 "nothing to design: give at least one of --band, --low-pass, --high-pass, --notch or --dc-block",
             ),
             other => Failure::refused(other),

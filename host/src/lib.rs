@@ -20,6 +20,7 @@ pub mod filter_report;
 pub mod frontend;
 pub mod listen;
 pub mod motion;
+pub mod plot;
 pub mod replay;
 pub mod report;
 pub mod score;

@@ -9,21 +9,18 @@
 //! let spec = FilterSpec::new(100.0, vec![Stage::BandPass { low_hz: 0.5, high_hz: 8.0, order: 2 }])?;
 //! let report = FilterReport::build(&spec, None, "PULSE_FILTER", "example")?;
 //! assert_eq!(report.coefficients.sections.len(), 2);
-//! # Ok::<(), plethwire::filter_report::ReportError>(())
+//! # Ok::<(), plethwire::filter_report::FilterDesignError>(())
 //! ```
 
+mod const_block;
 mod plot;
 mod render;
 mod report;
 mod spec;
 
-pub use plot::{phase_near_deg, render_svg, unwrapped_phase_deg, write_svg, Sweep, SWEEP_POINTS};
-// Shared with `plethwire frontend`'s plot, so both look alike.
-pub(crate) use plot::{
-    draw_band_and_marks, hz_label, padded_range, wrap_words, y_labeller, BAND_COLOUR, BOARD_COLOUR,
-    DESIGN_COLOUR, HEART_BAND_HZ,
-};
-pub use render::{check_const_name, human_report, response_table, rust_const_block};
+pub use const_block::{check_const_name, rust_const_block, ConstNameError};
+pub use plot::{render_svg, write_svg};
+pub use render::{human_report, response_table};
 pub use report::{
     on_a_zero, BoardFilter, CoefficientSet, FilterReport, ResponsePoint, ResponseRow,
     SectionCoefficients, BOARD_STRUCTURE, ZERO_PROXIMITY,
@@ -34,9 +31,10 @@ use plethwire_dsp::design::MAX_SECTIONS;
 use plethwire_dsp::DesignError;
 use std::fmt;
 
-/// Why a report could not be made.
+/// Why a filter could not be designed or its report made (drawing the
+/// plot fails with a [`crate::plot::PlotError`] instead).
 #[derive(Clone, Debug, PartialEq)]
-pub enum ReportError {
+pub enum FilterDesignError {
     /// The spec holds no stage at all.
     NothingToDesign,
     /// The sample rate is not a positive finite number.
@@ -82,16 +80,9 @@ pub enum ReportError {
         /// Nyquist, Hz.
         nyquist_hz: f64,
     },
-    /// The SVG could not be drawn or written.
-    Plot {
-        /// Where it was to go.
-        path: String,
-        /// What went wrong.
-        reason: String,
-    },
 }
 
-impl fmt::Display for ReportError {
+impl fmt::Display for FilterDesignError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
             Self::NothingToDesign => f.write_str("nothing to design: no filter stage was given"),
@@ -140,9 +131,15 @@ impl fmt::Display for ReportError {
                 f,
                 "cannot evaluate the response at {frequency_hz} Hz: use 0 Hz up to Nyquist ({nyquist_hz} Hz)"
             ),
-            Self::Plot { path, reason } => write!(f, "cannot write the plot to {path}: {reason}"),
         }
     }
 }
 
-impl std::error::Error for ReportError {}
+impl std::error::Error for FilterDesignError {
+    fn source(&self) -> Option<&(dyn std::error::Error + 'static)> {
+        match self {
+            Self::Refused { reason, .. } | Self::NotStableOnBoard { reason, .. } => Some(reason),
+            _ => None,
+        }
+    }
+}

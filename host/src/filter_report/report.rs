@@ -8,8 +8,8 @@ use plethwire_dsp::response::response;
 use plethwire_dsp::Design;
 use serde::Serialize;
 
-use super::render::rust_const_block;
-use super::{FilterSpec, ReportError};
+use super::const_block::rust_const_block;
+use super::{FilterDesignError, FilterSpec};
 
 /// The structure the board runs, as named in reports: plethwire-dsp's
 /// difference form in `f32`, its default for low corners.
@@ -157,7 +157,7 @@ impl FilterReport {
         frequencies_hz: Option<&[f64]>,
         const_name: &str,
         command: &str,
-    ) -> Result<Self, ReportError> {
+    ) -> Result<Self, FilterDesignError> {
         let design = spec.design()?;
         let board_sections = board_sections(&design)?;
         let rate = spec.sample_rate_hz;
@@ -203,7 +203,7 @@ impl FilterReport {
 
 /// The realised coefficients of the board's cascade, naming the first
 /// section that rounding to `f32` would make unstable.
-fn board_sections(design: &Design) -> Result<Vec<Biquad<f64>>, ReportError> {
+fn board_sections(design: &Design) -> Result<Vec<Biquad<f64>>, FilterDesignError> {
     match design.cascade::<Delta, MAX_SECTIONS>() {
         Ok(cascade) => Ok(cascade.realised()[..design.len()].to_vec()),
         Err(reason) => {
@@ -212,14 +212,14 @@ fn board_sections(design: &Design) -> Result<Vec<Biquad<f64>>, ReportError> {
                 .iter()
                 .position(|s| Delta::from_biquad(s).is_err())
                 .unwrap_or(0);
-            Err(ReportError::NotStableOnBoard { section, reason })
+            Err(FilterDesignError::NotStableOnBoard { section, reason })
         }
     }
 }
 
-fn checked_frequencies(f: &[f64], nyquist_hz: f64) -> Result<Vec<f64>, ReportError> {
+fn checked_frequencies(f: &[f64], nyquist_hz: f64) -> Result<Vec<f64>, FilterDesignError> {
     match f.iter().find(|&&x| !(0.0..=nyquist_hz).contains(&x)) {
-        Some(&bad) => Err(ReportError::FrequencyOutOfRange {
+        Some(&bad) => Err(FilterDesignError::FrequencyOutOfRange {
             frequency_hz: bad,
             nyquist_hz,
         }),
@@ -353,7 +353,7 @@ mod tests {
         for bad in [-1.0, 50.5, f64::NAN] {
             let err = FilterReport::build(&band(100.0), Some(&[1.0, bad]), "F", "c").unwrap_err();
             assert!(
-                matches!(err, ReportError::FrequencyOutOfRange { .. }),
+                matches!(err, FilterDesignError::FrequencyOutOfRange { .. }),
                 "{err}"
             );
         }

@@ -7,7 +7,7 @@ use plethwire_dsp::design::{
 use plethwire_dsp::{Design, DesignError};
 use serde::Serialize;
 
-use super::ReportError;
+use super::FilterDesignError;
 
 /// Notch quality factor used when `--notch` gives only a centre.
 pub const DEFAULT_NOTCH_QUALITY: f64 = 30.0;
@@ -125,9 +125,9 @@ pub struct FilterSpec {
 
 impl FilterSpec {
     /// A spec with at least one stage.
-    pub fn new(sample_rate_hz: f64, stages: Vec<Stage>) -> Result<Self, ReportError> {
+    pub fn new(sample_rate_hz: f64, stages: Vec<Stage>) -> Result<Self, FilterDesignError> {
         if stages.is_empty() {
-            return Err(ReportError::NothingToDesign);
+            return Err(FilterDesignError::NothingToDesign);
         }
         Ok(Self {
             sample_rate_hz,
@@ -149,18 +149,18 @@ impl FilterSpec {
 
     /// Design every stage and chain them. The first refusal wins; a bad
     /// sample rate is reported as such rather than against a stage.
-    pub fn design(&self) -> Result<Design, ReportError> {
+    pub fn design(&self) -> Result<Design, FilterDesignError> {
         let mut parts = Vec::with_capacity(self.stages.len());
         for stage in &self.stages {
             match stage.design(self.sample_rate_hz) {
                 Ok(d) => parts.push(d),
                 Err(DesignError::InvalidSampleRate) => {
-                    return Err(ReportError::BadSampleRate {
+                    return Err(FilterDesignError::BadSampleRate {
                         sample_rate_hz: self.sample_rate_hz,
                     })
                 }
                 Err(DesignError::CornerAtOrAboveNyquist) if self.is_notch_at_nyquist(stage) => {
-                    return Err(ReportError::NotchAtNyquist {
+                    return Err(FilterDesignError::NotchAtNyquist {
                         centre_hz: self.nyquist_hz(),
                         sample_rate_hz: self.sample_rate_hz,
                         nulled_by: self
@@ -171,7 +171,7 @@ impl FilterSpec {
                     })
                 }
                 Err(reason) => {
-                    return Err(ReportError::Refused {
+                    return Err(FilterDesignError::Refused {
                         stage: stage.describe(),
                         reason,
                         sample_rate_hz: self.sample_rate_hz,
@@ -181,11 +181,14 @@ impl FilterSpec {
         }
         let needed: usize = parts.iter().map(Design::len).sum();
         let mut parts = parts.iter();
-        let mut chain = parts.next().ok_or(ReportError::NothingToDesign)?.clone();
+        let mut chain = parts
+            .next()
+            .ok_or(FilterDesignError::NothingToDesign)?
+            .clone();
         for part in parts {
             chain = chain
                 .then(part)
-                .map_err(|_| ReportError::TooManySections { needed })?;
+                .map_err(|_| FilterDesignError::TooManySections { needed })?;
         }
         Ok(chain)
     }
@@ -223,7 +226,7 @@ mod tests {
     fn no_stage_is_refused() {
         assert_eq!(
             FilterSpec::new(100.0, vec![]),
-            Err(ReportError::NothingToDesign)
+            Err(FilterDesignError::NothingToDesign)
         );
     }
 
@@ -281,7 +284,7 @@ mod tests {
             }],
         );
         match reversed.design() {
-            Err(ReportError::Refused { stage, reason, .. }) => {
+            Err(FilterDesignError::Refused { stage, reason, .. }) => {
                 assert!(stage.contains("band-pass 8-0.5 Hz"), "{stage}");
                 assert_eq!(reason, DesignError::BandEdgesReversed);
             }
@@ -290,7 +293,7 @@ mod tests {
         let negative = spec(-5.0, vec![Stage::DcBlock { corner_hz: 0.5 }]);
         assert_eq!(
             negative.design(),
-            Err(ReportError::BadSampleRate {
+            Err(FilterDesignError::BadSampleRate {
                 sample_rate_hz: -5.0
             })
         );
@@ -316,13 +319,16 @@ mod tests {
         let alone = spec(100.0, vec![notch]).design().unwrap_err();
         assert!(matches!(
             alone,
-            ReportError::NotchAtNyquist {
+            FilterDesignError::NotchAtNyquist {
                 nulled_by: None,
                 ..
             }
         ));
         let above = spec(90.0, vec![notch]).design().unwrap_err();
-        assert!(matches!(above, ReportError::Refused { .. }), "{above}");
+        assert!(
+            matches!(above, FilterDesignError::Refused { .. }),
+            "{above}"
+        );
     }
 
     #[test]
@@ -347,7 +353,7 @@ mod tests {
         );
         assert_eq!(
             s.design(),
-            Err(ReportError::TooManySections { needed: 4 + 8 + 1 })
+            Err(FilterDesignError::TooManySections { needed: 4 + 8 + 1 })
         );
     }
 }

@@ -7,7 +7,7 @@ use serde::Serialize;
 use super::quantity::{bpm, sig3};
 
 /// Heart rates of 30 to 220 beats per minute, Hz.
-pub const HEART_BAND_HZ: (f64, f64) = crate::filter_report::HEART_BAND_HZ;
+pub const HEART_BAND_HZ: (f64, f64) = crate::plot::HEART_BAND_HZ;
 
 /// Most loss allowed in the band, dB below mid-band.
 pub const ALLOWED_LOSS_DB: f64 = 3.0;

@@ -62,7 +62,7 @@ pub use sampling::{
 };
 pub use transfer::{Block, Chain, Factored};
 
-use crate::filter_report::ReportError;
+use crate::filter_report::FilterDesignError;
 
 /// Printed with every human-readable report and in the command's help.
 pub const CAUTIONS: [&str; 4] = [
@@ -141,13 +141,5 @@ pub enum FrontendError {
     },
     /// The digital band-pass could not be designed.
     #[error("cannot design the digital band-pass: {0}")]
-    Digital(#[source] ReportError),
-    /// The plot could not be drawn or written.
-    #[error("cannot write the plot to {path}: {reason}")]
-    Plot {
-        /// Where it was to go.
-        path: String,
-        /// What went wrong.
-        reason: String,
-    },
+    Digital(#[source] FilterDesignError),
 }

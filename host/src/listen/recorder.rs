@@ -91,8 +91,13 @@ pub fn session_files(dir: &Path, name: &str, annotator: &str) -> Vec<PathBuf> {
         dir.join(format!("{name}.hea")),
         dir.join(format!("{name}.dat")),
         annotation_path(&dir.join(name), annotator),
-        super::summary::summary_path(dir, name),
+        summary_path(dir, name),
     ]
+}
+
+/// Path of the summary of record `name` in `dir`.
+pub fn summary_path(dir: &Path, name: &str) -> PathBuf {
+    dir.join(format!("{name}.session.json"))
 }
 
 impl Recorder {

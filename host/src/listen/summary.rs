@@ -15,10 +15,8 @@ use super::session::{Counts, Session};
 /// Identifies the file's layout, for readers.
 pub const SUMMARY_FORMAT: &str = "plethwire-listen-session/1";
 
-/// Path of the summary of record `name` in `dir`.
-pub fn summary_path(dir: &Path, name: &str) -> PathBuf {
-    dir.join(format!("{name}.session.json"))
-}
+// The path is the recorder's to name, with the session's other files.
+pub use super::recorder::summary_path;
 
 /// What the command was told.
 #[derive(Clone, Debug, PartialEq)]

@@ -3,7 +3,7 @@
 //! empty elements, only the five XML entities), which lets the tests read
 //! the page back with a strict parser.
 
-use super::charts::{css, Rgb};
+use crate::plot::{css, fixed, Rgb};
 use std::fmt::Write as _;
 
 /// Text made safe for element content and attribute values.
@@ -22,16 +22,6 @@ pub fn escape(text: &str) -> String {
         }
     }
     s
-}
-
-/// `v` to `decimals` places, without the sign of a value that rounds to
-/// zero (-0.004 to two places is 0.00, not -0.00).
-pub fn fixed(v: f64, decimals: usize) -> String {
-    let shown = format!("{v:.decimals$}");
-    match shown.strip_prefix('-') {
-        Some(rest) if rest.chars().all(|c| c == '0' || c == '.') => rest.to_owned(),
-        _ => shown,
-    }
 }
 
 /// A number as the page shows it: `decimals` places, marked with its

@@ -36,6 +36,7 @@ mod html;
 mod page;
 mod poincare;
 mod reference;
+mod sections;
 pub mod thin;
 mod timeline;
 mod views;
@@ -48,10 +49,10 @@ pub use poincare::{nn_pairs, poincare, PoincareStats};
 pub use reference::{score, Reference, ScoreFigures};
 pub use timeline::{spans as state_spans, state_name, StateSeconds, StateSpan};
 
+use crate::plot::PlotError;
 use crate::replay::Replay;
 use plethwire_dsp::pipeline::Config;
-use std::fmt;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 /// What a report is made from.
 #[derive(Clone, Copy, Debug)]
@@ -92,12 +93,14 @@ impl<'a> ReportInput<'a> {
     }
 }
 
-/// Why a report could not be made; one line.
-#[derive(Clone, Debug, PartialEq)]
-pub enum ReportError {
+/// Why the HTML page of a replay could not be made; one line.
+#[derive(Debug, thiserror::Error)]
+pub enum PageError {
     /// The samples, configuration and replay do not belong together.
+    #[error("{0}")]
     Mismatch(String),
     /// The excerpt asked for lies outside the recording.
+    #[error("excerpt {}:{} lies outside the recording (0 to {duration_s:.1} s)", asked.start_s, asked.length_s)]
     Excerpt {
         /// What was asked for.
         asked: Excerpt,
@@ -105,35 +108,20 @@ pub enum ReportError {
         duration_s: f64,
     },
     /// The band-pass could not be designed at this rate.
-    Design(plethwire_dsp::DesignError),
+    #[error("cannot design the band-pass: {0}")]
+    Design(#[source] plethwire_dsp::DesignError),
     /// A figure could not be drawn.
-    Draw(String),
+    #[error("cannot draw a figure: {0}")]
+    Draw(#[source] PlotError),
     /// The page could not be written.
+    #[error("{}: cannot write the report: {source}", path.display())]
     Write {
         /// Where.
-        path: String,
+        path: PathBuf,
         /// Why.
-        reason: String,
+        source: std::io::Error,
     },
 }
-
-impl fmt::Display for ReportError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self {
-            Self::Mismatch(m) => f.write_str(m),
-            Self::Excerpt { asked, duration_s } => write!(
-                f,
-                "excerpt {}:{} lies outside the recording (0 to {duration_s:.1} s)",
-                asked.start_s, asked.length_s
-            ),
-            Self::Design(e) => write!(f, "cannot design the band-pass: {e}"),
-            Self::Draw(e) => write!(f, "cannot draw a figure: {e}"),
-            Self::Write { path, reason } => write!(f, "{path}: cannot write the report: {reason}"),
-        }
-    }
-}
-
-impl std::error::Error for ReportError {}
 
 /// Everything checked and decided before drawing.
 struct Prepared {
@@ -142,17 +130,17 @@ struct Prepared {
     figures: Figures,
 }
 
-fn prepare(input: &ReportInput<'_>) -> Result<Prepared, ReportError> {
+fn prepare(input: &ReportInput<'_>) -> Result<Prepared, PageError> {
     let run = input.replay;
     if input.samples.len() as u64 != run.samples {
-        return Err(ReportError::Mismatch(format!(
+        return Err(PageError::Mismatch(format!(
             "{} samples given but the replay saw {}",
             input.samples.len(),
             run.samples
         )));
     }
     if (f64::from(input.config.sample_rate_hz) - run.fs).abs() > 1e-6 * run.fs {
-        return Err(ReportError::Mismatch(format!(
+        return Err(PageError::Mismatch(format!(
             "configuration at {} Hz but the replay ran at {} Hz",
             input.config.sample_rate_hz, run.fs
         )));
@@ -161,10 +149,10 @@ fn prepare(input: &ReportInput<'_>) -> Result<Prepared, ReportError> {
     let excerpt = match input.excerpt {
         Some(asked) => asked
             .within(duration_s)
-            .ok_or(ReportError::Excerpt { asked, duration_s })?,
+            .ok_or(PageError::Excerpt { asked, duration_s })?,
         None => excerpt::choose(run),
     };
-    let band = BandPass::new(&input.config).map_err(ReportError::Design)?;
+    let band = BandPass::new(&input.config).map_err(PageError::Design)?;
     let figures = figures::compute(input, excerpt, &band);
     Ok(Prepared {
         excerpt,
@@ -174,28 +162,28 @@ fn prepare(input: &ReportInput<'_>) -> Result<Prepared, ReportError> {
 }
 
 /// The numbers the page shows, without drawing it.
-pub fn figures(input: &ReportInput<'_>) -> Result<Figures, ReportError> {
+pub fn figures(input: &ReportInput<'_>) -> Result<Figures, PageError> {
     prepare(input).map(|p| p.figures)
 }
 
 /// The page and its numbers.
-pub fn render(input: &ReportInput<'_>) -> Result<(String, Figures), ReportError> {
+pub fn render(input: &ReportInput<'_>) -> Result<(String, Figures), PageError> {
     let p = prepare(input)?;
-    let page = page::page(input, &p.figures, p.excerpt, &p.band).map_err(ReportError::Draw)?;
+    let page = page::page(input, &p.figures, p.excerpt, &p.band).map_err(PageError::Draw)?;
     Ok((page, p.figures))
 }
 
 /// The page.
-pub fn build(input: &ReportInput<'_>) -> Result<String, ReportError> {
+pub fn build(input: &ReportInput<'_>) -> Result<String, PageError> {
     render(input).map(|r| r.0)
 }
 
 /// Write the page to `path`; returns its numbers.
-pub fn write(path: &Path, input: &ReportInput<'_>) -> Result<Figures, ReportError> {
+pub fn write(path: &Path, input: &ReportInput<'_>) -> Result<Figures, PageError> {
     let (page, figures) = render(input)?;
-    std::fs::write(path, page).map_err(|e| ReportError::Write {
-        path: path.display().to_string(),
-        reason: e.to_string(),
+    std::fs::write(path, page).map_err(|source| PageError::Write {
+        path: path.to_owned(),
+        source,
     })?;
     Ok(figures)
 }

@@ -5,28 +5,12 @@ use super::band::BandPass;
 use super::excerpt::Excerpt;
 use super::figures::Figures;
 use super::html::{count, escape, fig, table, STYLE};
+use super::sections::{section, SECTIONS};
 use super::views::{
     excerpt_section, filter_section, poincare_section, quality_section, trend_sections,
 };
 use super::ReportInput;
-
-/// Sections in page order: `(id, heading)`.
-pub const SECTIONS: [(&str, &str); 8] = [
-    ("excerpt", "Signal excerpt"),
-    ("heart-rate", "Heart-rate trend"),
-    ("intervals", "Interval tachogram"),
-    ("poincare", "Poincaré plot"),
-    ("quality", "Quality timeline"),
-    ("hrv", "Heart-rate variability"),
-    ("filter", "Band-pass filter"),
-    ("score", "Score against the reference"),
-];
-
-/// A section with its heading from [`SECTIONS`].
-pub fn section(id: &str, body: &str) -> String {
-    let heading = SECTIONS.iter().find(|s| s.0 == id).map_or(id, |s| s.1);
-    format!("<section id=\"{id}\">\n<h2>{heading}</h2>\n{body}\n</section>\n")
-}
+use crate::plot::PlotError;
 
 fn card(label: &str, value: String) -> String {
     format!("<div><dt>{}</dt><dd>{value}</dd></div>", escape(label))
@@ -214,7 +198,7 @@ pub fn page(
     f: &Figures,
     e: Excerpt,
     band: &BandPass,
-) -> Result<String, String> {
+) -> Result<String, PlotError> {
     let body = [
         excerpt_section(input, f, e, band)?,
         trend_sections(input)?,

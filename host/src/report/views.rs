@@ -2,14 +2,16 @@
 //! tachogram, Poincaré plot, quality timeline, band-pass response.
 
 use super::band::BandPass;
-use super::charts::{self, SignalPlot, BANDED, FLAGGED, GOOD, GUIDE, HEART, LINE, RAW, REFERENCE};
+use super::charts::{self, SignalPlot};
 use super::excerpt::Excerpt;
 use super::figures::Figures;
 use super::html::{count, escape, fig, legend, table, Mark};
-use super::page::section;
 use super::poincare::{nn_pairs, poincare};
+use super::sections::section;
 use super::timeline::{spans, state_name, STATES};
 use super::ReportInput;
+use crate::plot::theme::{BANDED, FLAGGED, GOOD, GUIDE, HEART, LINE, RAW, REFERENCE};
+use crate::plot::{PlotError, Rgb};
 use plethwire_dsp::pipeline::quality::MIN_CORRELATION;
 
 /// The signal excerpt with the beats marked.
@@ -18,7 +20,7 @@ pub fn excerpt_section(
     f: &Figures,
     e: Excerpt,
     band: &BandPass,
-) -> Result<String, String> {
+) -> Result<String, PlotError> {
     let (_, to) = e.samples(f.sample_rate_hz, input.samples.len());
     let banded = band.run(input.samples, to);
     let reference = input.reference.and_then(|r| r.beats.as_deref());
@@ -76,7 +78,7 @@ pub fn excerpt_section(
 }
 
 /// The heart-rate trend and the interval tachogram.
-pub fn trend_sections(input: &ReportInput<'_>) -> Result<String, String> {
+pub fn trend_sections(input: &ReportInput<'_>) -> Result<String, PlotError> {
     let run = input.replay;
     let reference = input
         .reference
@@ -116,7 +118,7 @@ pub fn trend_sections(input: &ReportInput<'_>) -> Result<String, String> {
 }
 
 /// The Poincaré plot with SD1/SD2.
-pub fn poincare_section(input: &ReportInput<'_>, f: &Figures) -> Result<String, String> {
+pub fn poincare_section(input: &ReportInput<'_>, f: &Figures) -> Result<String, PlotError> {
     let pairs = nn_pairs(input.replay);
     let stats = poincare(&pairs);
     let svg = charts::poincare_svg(&pairs, &stats)?;
@@ -153,10 +155,10 @@ pub fn poincare_section(input: &ReportInput<'_>, f: &Figures) -> Result<String, 
 }
 
 /// The quality timeline and the time in each signal state.
-pub fn quality_section(input: &ReportInput<'_>, f: &Figures) -> Result<String, String> {
+pub fn quality_section(input: &ReportInput<'_>, f: &Figures) -> Result<String, PlotError> {
     let sp = spans(input.replay);
     let svg = charts::quality_svg(input.replay, &sp)?;
-    let state_marks: Vec<(Mark, charts::Rgb, &str)> = STATES
+    let state_marks: Vec<(Mark, Rgb, &str)> = STATES
         .iter()
         .map(|&s| (Mark::Block, charts::state_colour(s), state_name(s)))
         .collect();
@@ -200,7 +202,7 @@ pub fn filter_section(
     input: &ReportInput<'_>,
     f: &Figures,
     band: &BandPass,
-) -> Result<String, String> {
+) -> Result<String, PlotError> {
     let heart = match (f.hr_min_bpm, f.filter.mean_hr_hz, f.hr_max_bpm) {
         (Some(lo), Some(mean), Some(hi)) => Some((lo / 60.0, mean, hi / 60.0)),
         _ => None,

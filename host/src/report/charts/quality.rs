@@ -1,8 +1,11 @@
 //! The quality timeline: each beat's template correlation, its flags, and
 //! the signal state, on one time axis.
 
-use super::{mesh_colours, render, rgb, ticks, Area, Drawn, Rgb, FONT, WIDTH};
-use super::{FLAGGED, GOOD, GUIDE};
+use super::render;
+use crate::plot::theme::{FLAGGED, GOOD, GUIDE};
+use crate::plot::theme::{FONT, WIDTH};
+use crate::plot::PlotError;
+use crate::plot::{mesh_colours, rgb, ticks, Area, Drawn, Rgb};
 use crate::replay::Replay;
 use crate::report::thin::scatter;
 use crate::report::timeline::StateSpan;
@@ -157,7 +160,7 @@ fn rows(
 }
 
 /// The quality timeline as SVG.
-pub fn quality_svg(run: &Replay, spans: &[StateSpan]) -> Result<String, String> {
+pub fn quality_svg(run: &Replay, spans: &[StateSpan]) -> Result<String, PlotError> {
     let duration = (run.samples as f64 / run.fs).max(1e-3);
     render(
         (WIDTH, HEIGHT),

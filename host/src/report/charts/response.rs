@@ -1,9 +1,10 @@
 //! The band-pass the pipeline ran, at the record's rate: gain and group
 //! delay against frequency, with this record's heart rates shaded.
 
-use super::{mesh_colours, range_of, render, rgb, ticks, Area, Drawn, FONT, WIDTH};
-use super::{GUIDE, HEART, LINE};
-use crate::filter_report::Sweep;
+use super::render;
+use crate::plot::theme::{HEART, LINE, WIDTH};
+use crate::plot::{draw_marks, frequency_chart, range_of, rgb, Area, Drawn, Frame, Layout};
+use crate::plot::{PlotError, Sweep};
 use crate::report::band::BandPass;
 use plotters::prelude::*;
 
@@ -14,36 +15,14 @@ const GAIN_FLOOR_DB: f64 = -60.0;
 /// The record's heart rates as frequencies, Hz: lowest, mean, highest.
 pub type HeartBand = Option<(f64, f64, f64)>;
 
-fn hz_label(f: &f64) -> String {
-    let s = format!("{f:.3}");
-    s.trim_end_matches('0').trim_end_matches('.').to_owned()
-}
-
 fn panel(
     area: &Area<'_>,
     curve: Vec<(f64, f64)>,
-    x: (f64, f64),
-    y: (f64, f64),
-    unit: &str,
+    frame: Frame<'_>,
     marks: (&BandPass, HeartBand),
 ) -> Drawn {
-    let mut chart = ChartBuilder::on(area)
-        .margin(10)
-        .x_label_area_size(32)
-        .y_label_area_size(64)
-        .build_cartesian_2d((x.0..x.1).log_scale(), y.0..y.1)?;
-    let (bold, light) = mesh_colours();
-    let y_ticks = ticks(y.1 - y.0);
-    chart
-        .configure_mesh()
-        .x_desc("frequency (Hz)")
-        .y_desc(unit)
-        .x_label_formatter(&hz_label)
-        .y_label_formatter(&y_ticks)
-        .label_style(FONT)
-        .bold_line_style(bold)
-        .light_line_style(light)
-        .draw()?;
+    let (x, y) = (frame.x, frame.y);
+    let mut chart = frequency_chart(area, &frame)?;
     let (band, heart) = marks;
     if let Some((lo, mean, hi)) = heart {
         let (lo, hi) = (lo.max(x.0), hi.min(x.1));
@@ -58,21 +37,14 @@ fn panel(
             rgb(HEART).stroke_width(2),
         ))?;
     }
-    for f in [band.low_hz, band.high_hz] {
-        chart.draw_series(DashedLineSeries::new(
-            [(f, y.0), (f, y.1)],
-            4,
-            4,
-            rgb(GUIDE).stroke_width(1),
-        ))?;
-    }
+    draw_marks(&mut chart, x, y, &[band.low_hz, band.high_hz], 4)?;
     chart.draw_series(LineSeries::new(curve, rgb(LINE).stroke_width(2)))?;
     Ok(())
 }
 
 /// Gain and group delay of `band` from 0.05 Hz (or lower for slow
 /// rates) to just below Nyquist.
-pub fn response_svg(band: &BandPass, heart: HeartBand) -> Result<String, String> {
+pub fn response_svg(band: &BandPass, heart: HeartBand) -> Result<String, PlotError> {
     let sections = band.sections();
     let mut extra = vec![band.low_hz, band.high_hz];
     extra.extend(heart.map(|h| h.1));
@@ -95,23 +67,17 @@ pub fn response_svg(band: &BandPass, heart: HeartBand) -> Result<String, String>
         .filter(|p| p.1.is_finite())
         .collect();
     let delay_y = range_of(delay.iter().map(|p| p.1).chain([0.0]), 0.06, (0.0, 1.0));
+    let frame = |unit, y| Frame {
+        caption: None,
+        unit,
+        x,
+        y,
+        layout: Layout::Page,
+    };
     render((WIDTH, HEIGHT), "band-pass gain and group delay", |root| {
         let (top, bottom) = root.split_vertically(HEIGHT / 2);
-        panel(
-            &top,
-            gain,
-            x,
-            (GAIN_FLOOR_DB, 5.0),
-            "gain (dB)",
-            (band, heart),
-        )?;
-        panel(
-            &bottom,
-            delay,
-            x,
-            delay_y,
-            "group delay (ms)",
-            (band, heart),
-        )
+        let marks = (band, heart);
+        panel(&top, gain, frame("gain (dB)", (GAIN_FLOOR_DB, 5.0)), marks)?;
+        panel(&bottom, delay, frame("group delay (ms)", delay_y), marks)
     })
 }

@@ -1,8 +1,11 @@
 //! The signal excerpt: the input as recorded above, the band-passed signal
 //! below, on one time axis, with the beats marked on both.
 
-use super::{mesh_colours, range_of, render, rgb, ticks, Area, Drawn, FONT, WIDTH};
-use super::{BANDED, FLAGGED, GOOD, RAW, REFERENCE};
+use super::render;
+use crate::plot::theme::{BANDED, FLAGGED, GOOD, RAW, REFERENCE};
+use crate::plot::theme::{FONT, WIDTH};
+use crate::plot::PlotError;
+use crate::plot::{mesh_colours, range_of, rgb, ticks, Area, Drawn};
 use crate::report::excerpt::Excerpt;
 use crate::report::thin::{trace, Segment};
 use plethwire_dsp::pipeline::BeatEvent;
@@ -105,7 +108,7 @@ fn panel(area: &Area<'_>, p: &SignalPlot<'_>, what: Panel<'_>) -> Drawn {
 }
 
 /// The excerpt as SVG.
-pub fn signal_svg(p: &SignalPlot<'_>) -> Result<String, String> {
+pub fn signal_svg(p: &SignalPlot<'_>) -> Result<String, PlotError> {
     render(
         (WIDTH, HEIGHT),
         "signal excerpt with detected beats",

@@ -1,8 +1,11 @@
 //! Beat-to-beat figures over the whole recording: heart-rate trend,
 //! interval tachogram, and the Poincaré plot of successive NN intervals.
 
-use super::{mesh_colours, range_of, render, rgb, ticks, Area, Drawn, FONT, WIDTH};
-use super::{FLAGGED, GOOD, GUIDE, LINE, REFERENCE};
+use super::render;
+use crate::plot::theme::{FLAGGED, GOOD, GUIDE, LINE, REFERENCE};
+use crate::plot::theme::{FONT, WIDTH};
+use crate::plot::PlotError;
+use crate::plot::{mesh_colours, range_of, rgb, ticks, Area, DrawFailure, Drawn};
 use crate::replay::Replay;
 use crate::report::poincare::PoincareStats;
 use crate::report::thin::{line, scatter};
@@ -36,7 +39,7 @@ fn time_chart<'a, 'b>(
     duration: f64,
     y: (f64, f64),
     unit: &str,
-) -> Result<TimeChart<'a, 'b>, Box<dyn std::error::Error>> {
+) -> Result<TimeChart<'a, 'b>, DrawFailure> {
     let mut chart = ChartBuilder::on(area)
         .margin(10)
         .x_label_area_size(32)
@@ -81,7 +84,7 @@ fn thin(points: &[(f64, f64)], x: (f64, f64), y: (f64, f64)) -> Vec<(f64, f64)> 
 
 /// Instantaneous (dots) and smoothed (line) heart rate, with the
 /// reference series when given.
-pub fn heart_rate_svg(run: &Replay, reference: Option<&[(f64, f64)]>) -> Result<String, String> {
+pub fn heart_rate_svg(run: &Replay, reference: Option<&[(f64, f64)]>) -> Result<String, PlotError> {
     let duration = run.samples as f64 / run.fs;
     let inst = |good: bool| -> Vec<(f64, f64)> {
         run.beats
@@ -133,7 +136,7 @@ pub fn heart_rate_svg(run: &Replay, reference: Option<&[(f64, f64)]>) -> Result<
 
 /// Interval against time: good beats' intervals as joined dots, flagged
 /// beats' as crosses.
-pub fn tachogram_svg(run: &Replay) -> Result<String, String> {
+pub fn tachogram_svg(run: &Replay) -> Result<String, PlotError> {
     let duration = run.samples as f64 / run.fs;
     let ibi = |good: bool| -> Vec<(f64, f64)> {
         run.beats
@@ -231,7 +234,7 @@ fn draw_poincare(root: &Area<'_>, pairs: &[(f64, f64)], stats: &PoincareStats) -
 
 /// Successive NN intervals against each other, with the identity line and
 /// the SD1/SD2 ellipse.
-pub fn poincare_svg(pairs: &[(f64, f64)], stats: &PoincareStats) -> Result<String, String> {
+pub fn poincare_svg(pairs: &[(f64, f64)], stats: &PoincareStats) -> Result<String, PlotError> {
     render(
         (SQUARE, SQUARE),
         "Poincaré plot of successive NN intervals",
