@@ -175,6 +175,7 @@ mod tests {
 
 pub mod record_refs;
 pub mod records;
+pub mod references;
 pub mod strap;
 pub mod timing;
 pub mod windows;

@@ -3,16 +3,44 @@
 //! references by exactly the same code: [`RecordReferences::load`] reads
 //! them, [`RecordReferences::score`] scores one replay.
 
-use super::records::{
+use super::references::{
     load_ecg, reference_beats, reference_rate, reference_windows, strap_intervals, RateSeries,
-    RecordScore, References,
+    References,
 };
-use super::strap::score_strap;
+use super::strap::{score_strap, StrapScore};
 use super::timing::PeakTiming;
 use super::windows::{RateWindow, ReplayWindows};
-use super::{match_pairs, rate_error, MatchCounts, MATCH_WINDOW_S};
-use crate::ecg::EcgReference;
-use crate::replay::{Recording, Replay, ReplayError};
+use super::{match_pairs, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
+use crate::ecg::{EcgReference, EcgScore};
+use crate::replay::{InputInfo, Recording, Replay, ReplayError, Summary};
+use serde::Serialize;
+
+/// One recording's score.
+#[derive(Debug, Clone, Serialize)]
+pub struct RecordScore {
+    /// Record name.
+    pub record: String,
+    /// Beat comparison, when reference beats exist.
+    pub beats: Option<MatchCounts>,
+    /// Reference beats.
+    pub reference_beats: Option<usize>,
+    /// Heart-rate comparison, when a reference series exists.
+    pub heart_rate: Option<RateError>,
+    /// The replay's summary.
+    pub summary: Summary,
+    /// Offsets of our matched peaks from the reference beats.
+    pub peak_timing: Option<PeakTiming>,
+    /// Heart rate in the reference windows, when a window table exists.
+    pub windows: Option<ReplayWindows>,
+    /// The signal scored (the chosen one, when there was a choice).
+    pub signal: String,
+    /// How the samples were got (time column, resampling, channel choice).
+    pub input: InputInfo,
+    /// Against a chest strap's R-R list, when one exists.
+    pub strap: Option<StrapScore>,
+    /// Pulses against the ECG's R peaks, when an ECG signal was named.
+    pub ecg: Option<EcgScore>,
+}
 
 /// Every reference one recording has, as [`References`] names them.
 #[derive(Debug, Clone, PartialEq)]

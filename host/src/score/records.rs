@@ -2,82 +2,19 @@
 //! heart rate against a reference numerics table, per record and pooled.
 
 use super::record_refs::RecordReferences;
-use super::strap::StrapScore;
-use super::timing::PeakTiming;
-use super::windows::{read_rate_windows, ReplayWindows};
-use super::{MatchCounts, RateError};
-use crate::ecg::{EcgReference, EcgScore};
-use crate::replay::{
-    load, replay_recording, InputInfo, Recording, Replay, ReplayError, Source, Summary,
+pub use super::record_refs::RecordScore;
+pub use super::references::{
+    load_ecg, reference_beats, reference_rate, reference_windows, strap_intervals, RateSeries,
+    References, DEFAULT_STRAP_SUFFIX,
 };
+use super::timing::PeakTiming;
+use super::windows::ReplayWindows;
+use super::{MatchCounts, RateError};
+use crate::ecg::EcgScore;
+use crate::replay::{load, replay_recording, Recording, Replay, ReplayError, Source};
 use plethwire_dsp::pipeline::Config;
-use plethwire_records::read_rr_intervals;
-use plethwire_records::{annotation_path, read_annotations, read_numerics, read_wfdb_signal};
 use serde::Serialize;
 use std::path::{Path, PathBuf};
-
-/// What to compare against.
-#[derive(Debug, Clone, PartialEq)]
-pub struct References {
-    /// Annotator of the reference beats (`<record>.<annotator>`).
-    pub annotator: String,
-    /// Suffix of the reference heart-rate table (`<record><suffix>`).
-    pub rate_suffix: String,
-    /// Column of that table holding the heart rate, bpm.
-    pub rate_column: String,
-    /// Suffix of the reference window table (`<record><suffix>`,
-    /// `window_start_s,window_end_s,bpm`), used when it exists.
-    pub window_suffix: String,
-    /// Suffix of a chest strap's R-R interval list (`<record><suffix>`,
-    /// `<record>` without `.csv` for a CSV recording).
-    pub strap_suffix: String,
-    /// ECG signal of the same WFDB record to score the pulses against
-    /// ([`crate::ecg`]), if any.
-    pub ecg: Option<String>,
-}
-
-/// Suffix of the strap's R-R list unless told otherwise.
-pub const DEFAULT_STRAP_SUFFIX: &str = ".rr.txt";
-
-impl Default for References {
-    fn default() -> Self {
-        Self {
-            annotator: "peak".into(),
-            rate_suffix: "n.csv".into(),
-            rate_column: "pulse_bpm".into(),
-            window_suffix: "bpm.csv".into(),
-            strap_suffix: DEFAULT_STRAP_SUFFIX.into(),
-            ecg: None,
-        }
-    }
-}
-
-/// One recording's score.
-#[derive(Debug, Clone, Serialize)]
-pub struct RecordScore {
-    /// Record name.
-    pub record: String,
-    /// Beat comparison, when reference beats exist.
-    pub beats: Option<MatchCounts>,
-    /// Reference beats.
-    pub reference_beats: Option<usize>,
-    /// Heart-rate comparison, when a reference series exists.
-    pub heart_rate: Option<RateError>,
-    /// The replay's summary.
-    pub summary: Summary,
-    /// Offsets of our matched peaks from the reference beats.
-    pub peak_timing: Option<PeakTiming>,
-    /// Heart rate in the reference windows, when a window table exists.
-    pub windows: Option<ReplayWindows>,
-    /// The signal scored (the chosen one, when there was a choice).
-    pub signal: String,
-    /// How the samples were got (time column, resampling, channel choice).
-    pub input: InputInfo,
-    /// Against a chest strap's R-R list, when one exists.
-    pub strap: Option<StrapScore>,
-    /// Pulses against the ECG's R peaks, when an ECG signal was named.
-    pub ecg: Option<EcgScore>,
-}
 
 /// Scores of several recordings and their pooled totals.
 #[derive(Debug, Clone, Serialize)]
@@ -195,72 +132,6 @@ fn recordings_in_folder(entries: Vec<PathBuf>) -> Vec<PathBuf> {
     records.into_iter().chain(tables).collect()
 }
 
-/// The strap's R-R intervals (ms) for the recording at `path`, from
-/// `<record><suffix>`, or `None` when that file does not exist.
-pub fn strap_intervals(path: &Path, suffix: &str) -> Result<Option<Vec<f64>>, ReplayError> {
-    let record = if path
-        .extension()
-        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
-    {
-        path.with_extension("")
-    } else {
-        path.to_path_buf()
-    };
-    let file = numerics_path(&record, suffix);
-    if !file.exists() {
-        return Ok(None);
-    }
-    Ok(Some(read_rr_intervals(&file)?))
-}
-
-/// Reference beats of the record at `record` (path without
-/// extension): the beat annotations of `<record>.<annotator>` as sample
-/// indices, or `None` when that file does not exist.
-pub fn reference_beats(record: &Path, annotator: &str) -> Result<Option<Vec<u64>>, ReplayError> {
-    let ann = annotation_path(record, annotator);
-    if !ann.exists() {
-        return Ok(None);
-    }
-    Ok(Some(
-        read_annotations(&ann)?
-            .iter()
-            .filter(|a| a.is_beat())
-            .map(|a| a.sample.max(0) as u64)
-            .collect(),
-    ))
-}
-
-/// A heart-rate series: `(time_s, bpm)`, `None` for seconds without a
-/// value.
-pub type RateSeries = Vec<(f64, Option<f64>)>;
-
-/// The reference heart-rate series of the record at `record`:
-/// `(time_s, bpm)` from column `refs.rate_column` of
-/// `<record><refs.rate_suffix>`, or `None` when that table does not
-/// exist. A table without the column is an error.
-pub fn reference_rate(record: &Path, refs: &References) -> Result<Option<RateSeries>, ReplayError> {
-    let table = numerics_path(record, &refs.rate_suffix);
-    if !table.exists() {
-        return Ok(None);
-    }
-    let n = read_numerics(&table)?;
-    let column = n.column(&refs.rate_column).ok_or_else(|| {
-        ReplayError(format!(
-            "{}: no column '{}' (columns: {})",
-            table.display(),
-            refs.rate_column,
-            n.names.join(", ")
-        ))
-    })?;
-    Ok(Some(
-        n.time_s
-            .iter()
-            .copied()
-            .zip(column.iter().copied())
-            .collect(),
-    ))
-}
-
 /// Score one loaded and replayed recording (its references read and
 /// scored at once, [`RecordReferences`]).
 pub fn score_one(
@@ -271,56 +142,10 @@ pub fn score_one(
     Ok(RecordReferences::load(rec, refs)?.score(rec, run))
 }
 
-/// The reference window table `<record><suffix>` of the record at
-/// `record`, or `None` when it does not exist.
-pub fn reference_windows(
-    record: &Path,
-    suffix: &str,
-) -> Result<Option<Vec<super::windows::RateWindow>>, ReplayError> {
-    let table = numerics_path(record, suffix);
-    if !table.exists() {
-        return Ok(None);
-    }
-    read_rate_windows(&table).map(Some)
-}
-
 /// The pulses of `run` against the R peaks of signal `name` of the WFDB
 /// record `rec` was loaded from, which must have the pulse signal's rate.
 pub fn ecg_score(rec: &Recording, run: &Replay, name: &str) -> Result<EcgScore, ReplayError> {
     Ok(load_ecg(rec, name)?.score(&run.peaks()))
-}
-
-/// The R peaks of signal `name` of the WFDB record `rec` was loaded from,
-/// which must have the pulse signal's rate.
-pub fn load_ecg(rec: &Recording, name: &str) -> Result<EcgReference, ReplayError> {
-    if rec
-        .path
-        .extension()
-        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
-    {
-        return Err(ReplayError(format!(
-            "{}: --ecg needs a WFDB record, not a CSV file",
-            rec.path.display()
-        )));
-    }
-    let ecg = read_wfdb_signal(&rec.path, Some(name))?;
-    if ecg.fs != rec.signal.fs {
-        return Err(ReplayError(format!(
-            "{}: ECG signal '{name}' is at {} Hz, the pulse signal '{}' at {} Hz; they must be the same",
-            rec.path.display(),
-            ecg.fs,
-            rec.signal.name,
-            rec.signal.fs
-        )));
-    }
-    EcgReference::new(&ecg.samples, ecg.fs)
-        .map_err(|e| ReplayError(format!("{}: {e}", rec.path.display())))
-}
-
-fn numerics_path(record: &Path, suffix: &str) -> PathBuf {
-    let mut name = record.file_name().unwrap_or_default().to_os_string();
-    name.push(suffix);
-    record.with_file_name(name)
 }
 
 /// Load, replay and score every record in `paths` with `config`'s

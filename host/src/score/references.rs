@@ -1,0 +1,159 @@
+//! Reading a recording's references: which files to look for
+//! ([`References`]) and the readers of each (reference beats, heart-rate
+//! table, window table, strap R-R list, ECG R peaks).
+
+use super::windows::{read_rate_windows, RateWindow};
+use crate::ecg::EcgReference;
+use crate::replay::{Recording, ReplayError};
+use plethwire_records::{
+    annotation_path, read_annotations, read_numerics, read_rr_intervals, read_wfdb_signal,
+};
+use std::path::{Path, PathBuf};
+
+/// What to compare against.
+#[derive(Debug, Clone, PartialEq)]
+pub struct References {
+    /// Annotator of the reference beats (`<record>.<annotator>`).
+    pub annotator: String,
+    /// Suffix of the reference heart-rate table (`<record><suffix>`).
+    pub rate_suffix: String,
+    /// Column of that table holding the heart rate, bpm.
+    pub rate_column: String,
+    /// Suffix of the reference window table (`<record><suffix>`,
+    /// `window_start_s,window_end_s,bpm`), used when it exists.
+    pub window_suffix: String,
+    /// Suffix of a chest strap's R-R interval list (`<record><suffix>`,
+    /// `<record>` without `.csv` for a CSV recording).
+    pub strap_suffix: String,
+    /// ECG signal of the same WFDB record to score the pulses against
+    /// ([`crate::ecg`]), if any.
+    pub ecg: Option<String>,
+}
+
+/// Suffix of the strap's R-R list unless told otherwise.
+pub const DEFAULT_STRAP_SUFFIX: &str = ".rr.txt";
+
+impl Default for References {
+    fn default() -> Self {
+        Self {
+            annotator: "peak".into(),
+            rate_suffix: "n.csv".into(),
+            rate_column: "pulse_bpm".into(),
+            window_suffix: "bpm.csv".into(),
+            strap_suffix: DEFAULT_STRAP_SUFFIX.into(),
+            ecg: None,
+        }
+    }
+}
+
+/// The strap's R-R intervals (ms) for the recording at `path`, from
+/// `<record><suffix>`, or `None` when that file does not exist.
+pub fn strap_intervals(path: &Path, suffix: &str) -> Result<Option<Vec<f64>>, ReplayError> {
+    let record = if path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
+    {
+        path.with_extension("")
+    } else {
+        path.to_path_buf()
+    };
+    let file = numerics_path(&record, suffix);
+    if !file.exists() {
+        return Ok(None);
+    }
+    Ok(Some(read_rr_intervals(&file)?))
+}
+
+/// Reference beats of the record at `record` (path without
+/// extension): the beat annotations of `<record>.<annotator>` as sample
+/// indices, or `None` when that file does not exist.
+pub fn reference_beats(record: &Path, annotator: &str) -> Result<Option<Vec<u64>>, ReplayError> {
+    let ann = annotation_path(record, annotator);
+    if !ann.exists() {
+        return Ok(None);
+    }
+    Ok(Some(
+        read_annotations(&ann)?
+            .iter()
+            .filter(|a| a.is_beat())
+            .map(|a| a.sample.max(0) as u64)
+            .collect(),
+    ))
+}
+
+/// A heart-rate series: `(time_s, bpm)`, `None` for seconds without a
+/// value.
+pub type RateSeries = Vec<(f64, Option<f64>)>;
+
+/// The reference heart-rate series of the record at `record`:
+/// `(time_s, bpm)` from column `refs.rate_column` of
+/// `<record><refs.rate_suffix>`, or `None` when that table does not
+/// exist. A table without the column is an error.
+pub fn reference_rate(record: &Path, refs: &References) -> Result<Option<RateSeries>, ReplayError> {
+    let table = numerics_path(record, &refs.rate_suffix);
+    if !table.exists() {
+        return Ok(None);
+    }
+    let n = read_numerics(&table)?;
+    let column = n.column(&refs.rate_column).ok_or_else(|| {
+        ReplayError(format!(
+            "{}: no column '{}' (columns: {})",
+            table.display(),
+            refs.rate_column,
+            n.names.join(", ")
+        ))
+    })?;
+    Ok(Some(
+        n.time_s
+            .iter()
+            .copied()
+            .zip(column.iter().copied())
+            .collect(),
+    ))
+}
+
+/// The reference window table `<record><suffix>` of the record at
+/// `record`, or `None` when it does not exist.
+pub fn reference_windows(
+    record: &Path,
+    suffix: &str,
+) -> Result<Option<Vec<RateWindow>>, ReplayError> {
+    let table = numerics_path(record, suffix);
+    if !table.exists() {
+        return Ok(None);
+    }
+    read_rate_windows(&table).map(Some)
+}
+
+/// The R peaks of signal `name` of the WFDB record `rec` was loaded from,
+/// which must have the pulse signal's rate.
+pub fn load_ecg(rec: &Recording, name: &str) -> Result<EcgReference, ReplayError> {
+    if rec
+        .path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
+    {
+        return Err(ReplayError(format!(
+            "{}: --ecg needs a WFDB record, not a CSV file",
+            rec.path.display()
+        )));
+    }
+    let ecg = read_wfdb_signal(&rec.path, Some(name))?;
+    if ecg.fs != rec.signal.fs {
+        return Err(ReplayError(format!(
+            "{}: ECG signal '{name}' is at {} Hz, the pulse signal '{}' at {} Hz; they must be the same",
+            rec.path.display(),
+            ecg.fs,
+            rec.signal.name,
+            rec.signal.fs
+        )));
+    }
+    EcgReference::new(&ecg.samples, ecg.fs)
+        .map_err(|e| ReplayError(format!("{}: {e}", rec.path.display())))
+}
+
+pub(crate) fn numerics_path(record: &Path, suffix: &str) -> PathBuf {
+    let mut name = record.file_name().unwrap_or_default().to_os_string();
+    name.push(suffix);
+    record.with_file_name(name)
+}
