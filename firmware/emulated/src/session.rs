@@ -10,9 +10,9 @@
 use core::fmt;
 
 use plethwire_dsp::feed::{FeedError, FeedHeader, FEED_HEADER_LEN};
+use plethwire_dsp::pipeline::PipelineError;
 use plethwire_dsp::pipeline::{Output, Pipeline};
 use plethwire_dsp::wire::{Encoder, Hello, Message, Status, MAX_FRAME};
-use plethwire_dsp::pipeline::PipelineError;
 
 use crate::semihost::HostError;
 
