@@ -2,6 +2,7 @@
 //! emulated board, show its beat stream as it arrives, and check it
 //! against the host's replay.
 
+use crate::values;
 use clap::Args;
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -59,7 +60,7 @@ pub struct EmulateArgs {
     pub elf: Option<PathBuf>,
 
     /// Only the first S seconds of the recording.
-    #[arg(long, value_name = "S", value_parser = parse_seconds)]
+    #[arg(long, value_name = "S", value_parser = values::positive_seconds)]
     pub seconds: Option<f64>,
 
     /// Count the pipeline's instructions per sample on the board (QEMU
@@ -79,13 +80,6 @@ pub struct EmulateArgs {
     /// Signal source and pipeline settings.
     #[command(flatten)]
     pub pipeline: PipelineOpts,
-}
-
-fn parse_seconds(s: &str) -> Result<f64, String> {
-    match s.parse::<f64>() {
-        Ok(v) if v.is_finite() && v > 0.0 => Ok(v),
-        _ => Err(format!("'{s}' is not a positive number of seconds")),
-    }
 }
 
 /// Flag names, in bit order.
