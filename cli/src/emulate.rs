@@ -194,7 +194,7 @@ impl EmulateArgs {
             ))
         })?;
         let board = session.to_replay();
-        let dir = self.annotation_dir(&rec.path)?;
+        let dir = super::replay::beat_file_dir(self.out.as_deref(), &rec.path)?;
         let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &board)
             .map_err(Failure::refused)?;
         let agreement = compare(&board.beats, &board.states, &host);
@@ -233,22 +233,6 @@ impl EmulateArgs {
                 "semihosting files"
             }
         )
-    }
-
-    /// Where the board's beat annotations go: `--out`, else the record's folder;
-    /// created when missing.
-    fn annotation_dir(&self, record: &Path) -> Result<PathBuf, Failure> {
-        let dir = match &self.out {
-            Some(d) => d.clone(),
-            None => record
-                .parent()
-                .map(|p| p.to_path_buf())
-                .unwrap_or_else(|| PathBuf::from(".")),
-        };
-        std::fs::create_dir_all(&dir).map_err(|e| {
-            Failure::refused(format!("{}: cannot create the folder: {e}", dir.display()))
-        })?;
-        Ok(dir)
     }
 }
 
