@@ -12,6 +12,8 @@ use crate::ride::{
     DemoResult, Progress,
 };
 use plethwire::emulate::BuildError;
+use plethwire::replay::{Replay, Summary};
+use plethwire::score::MatchCounts;
 use plethwire_dsp::pipeline::Config;
 
 const EXAMPLES: &str = "\
@@ -75,7 +77,6 @@ impl DemoArgs {
             return Err(Failure::usage("--speed must be 0 or a positive number"));
         }
         let chatty = !self.json;
-        let mut lines: Vec<String> = Vec::new();
         let say = |out: &mut dyn Write, text: &str| -> Result<(), Failure> {
             if chatty {
                 writeln!(out, "{text}").map_err(Failure::output)?;
@@ -94,6 +95,7 @@ impl DemoArgs {
             .map_err(|e| Failure::refused(format!("cannot make the ride: {e}")))?;
         let (samples, mut files) = save_ride(&self.out, &ride).map_err(Failure::refused)?;
         let config = Config::new(ride.sample_rate_hz as f32);
+        let fs = ride.sample_rate_hz;
         say(
             out,
             &format!(
@@ -104,6 +106,65 @@ impl DemoArgs {
             ),
         )?;
 
+        let replay = self.stream_watched(&samples, config, fs, chatty, out)?;
+
+        let truth = against_truth(&ride, &replay);
+        let summary = replay.summary();
+        for line in found_lines(&summary, &truth) {
+            say(out, &line)?;
+        }
+
+        let board = self.board(&samples, config, &replay, chatty);
+        say(out, &board_line(&board))?;
+
+        let ann = plethwire::replay::write_beat_annotations(
+            &self.out,
+            "ride",
+            plethwire::replay::DEFAULT_ANNOTATOR,
+            &replay,
+        )
+        .map_err(Failure::refused)?;
+        files.push(ann.display().to_string());
+        let report =
+            write_report(&self.out, &samples, config, &replay, &ride).map_err(Failure::refused)?;
+        files.push(report.display().to_string());
+        say(out, &format!("  wrote the ride as WFDB (ride.hea, ride.dat, true beats ride.truth, found beats ride.{})", plethwire::replay::DEFAULT_ANNOTATOR))?;
+        say(
+            out,
+            &format!("  report: {}  (open it in a browser)", report.display()),
+        )?;
+
+        let result = DemoResult {
+            summary,
+            against_truth: truth,
+            true_beats: ride.beats.len(),
+            board: board.clone(),
+            files,
+        };
+        if self.json {
+            let text = serde_json::to_string_pretty(&result).unwrap_or_default() + "\n";
+            out.write_all(text.as_bytes()).map_err(Failure::output)?;
+        }
+        if let BoardOutcome::Disagreed(d) = board {
+            return Err(Failure::refused(format!(
+                "the emulated board disagrees with the host: {d}"
+            )));
+        }
+        Ok(())
+    }
+
+    /// Stream `samples` through the pipeline at `fs`, paced on a terminal
+    /// (at `self.speed`) so the events can be watched, with a progress bar
+    /// and a line per phase, state change and every 10 s of beats.
+    fn stream_watched(
+        &self,
+        samples: &[f64],
+        config: Config,
+        fs: f64,
+        chatty: bool,
+        out: &mut dyn Write,
+    ) -> Result<Replay, Failure> {
+        let mut lines: Vec<String> = Vec::new();
         // Stream, paced on a terminal so the events can be watched.
         let tty = std::io::stdout().is_terminal() && chatty;
         let pace = if tty && self.speed > 0.0 {
@@ -120,10 +181,9 @@ impl DemoArgs {
             ProgressStyle::with_template("  {bar:40} {percent:>3}%  {msg}")
                 .unwrap_or_else(|_| ProgressStyle::default_bar()),
         );
-        let fs = ride.sample_rate_hz;
         let start = Instant::now();
         let mut last_shown = -10.0;
-        let replay = stream(&samples, config, &mut |p| match p {
+        let replay = stream(samples, config, &mut |p| match p {
             Progress::Sample(n) => {
                 if n % 25 == 0 {
                     bar.set_position(n);
@@ -174,35 +234,19 @@ impl DemoArgs {
             }
         }
         bar.finish_and_clear();
+        Ok(replay)
+    }
 
-        let truth = against_truth(&ride, &replay);
-        let summary = replay.summary();
-        say(
-            out,
-            &format!(
-            "  found {} beats ({:.1} % good): against the true beats TP {} FP {} FN {}, F1 {:.2} %",
-            summary.beats,
-            100.0 * summary.good_share,
-            truth.tp,
-            truth.fp,
-            truth.fn_,
-            100.0 * truth.f1().unwrap_or(0.0)
-        ),
-        )?;
-        if let Some(h) = &summary.heart_rate_bpm {
-            say(
-                out,
-                &format!(
-                    "  heart rate {:.0} to {:.0} bpm (mean {:.0}); events {:.0} ms after each peak",
-                    h.min,
-                    h.max,
-                    h.mean,
-                    summary.latency_median_ms.unwrap_or(f64::NAN)
-                ),
-            )?;
-        }
-
-        let board = if self.no_board {
+    /// The emulated board's run of `samples`, compared with the host's
+    /// `replay`, unless `--no-board`.
+    fn board(
+        &self,
+        samples: &[f64],
+        config: Config,
+        replay: &Replay,
+        chatty: bool,
+    ) -> BoardOutcome {
+        if self.no_board {
             BoardOutcome::NotRun("skipped (--no-board)".into())
         } else {
             let mut note = |t: &str| {
@@ -210,49 +254,41 @@ impl DemoArgs {
                     let _ = writeln!(std::io::stderr(), "  {t}");
                 }
             };
-            run_board(&samples, config, &replay, &mut || build_firmware(&mut note))
-        };
-        match &board {
-            BoardOutcome::Agreed { beats, states } => say(out, &format!(
-                "  emulated board (QEMU, Cortex-M4F): the same {beats} beats and {states} state changes, bit for bit"
-            ))?,
-            BoardOutcome::Disagreed(d) => say(out, &format!("  emulated board DISAGREES with the host: {d}"))?,
-            BoardOutcome::NotRun(why) => say(out, &format!("  emulated board not run: {why}"))?,
+            run_board(samples, config, replay, &mut || build_firmware(&mut note))
         }
+    }
+}
 
-        let ann = plethwire::replay::write_beat_annotations(
-            &self.out,
-            "ride",
-            plethwire::replay::DEFAULT_ANNOTATOR,
-            &replay,
-        )
-        .map_err(Failure::refused)?;
-        files.push(ann.display().to_string());
-        let report =
-            write_report(&self.out, &samples, config, &replay, &ride).map_err(Failure::refused)?;
-        files.push(report.display().to_string());
-        say(out, &format!("  wrote the ride as WFDB (ride.hea, ride.dat, true beats ride.truth, found beats ride.{})", plethwire::replay::DEFAULT_ANNOTATOR))?;
-        say(
-            out,
-            &format!("  report: {}  (open it in a browser)", report.display()),
-        )?;
+/// What the demo found, against the true beats, and its heart rate.
+fn found_lines(summary: &Summary, truth: &MatchCounts) -> Vec<String> {
+    let mut lines = vec![format!(
+        "  found {} beats ({:.1} % good): against the true beats TP {} FP {} FN {}, F1 {:.2} %",
+        summary.beats,
+        100.0 * summary.good_share,
+        truth.tp,
+        truth.fp,
+        truth.fn_,
+        100.0 * truth.f1().unwrap_or(0.0)
+    )];
+    if let Some(h) = &summary.heart_rate_bpm {
+        lines.push(format!(
+            "  heart rate {:.0} to {:.0} bpm (mean {:.0}); events {:.0} ms after each peak",
+            h.min,
+            h.max,
+            h.mean,
+            summary.latency_median_ms.unwrap_or(f64::NAN)
+        ));
+    }
+    lines
+}
 
-        let result = DemoResult {
-            summary,
-            against_truth: truth,
-            true_beats: ride.beats.len(),
-            board: board.clone(),
-            files,
-        };
-        if self.json {
-            let text = serde_json::to_string_pretty(&result).unwrap_or_default() + "\n";
-            out.write_all(text.as_bytes()).map_err(Failure::output)?;
-        }
-        if let BoardOutcome::Disagreed(d) = board {
-            return Err(Failure::refused(format!(
-                "the emulated board disagrees with the host: {d}"
-            )));
-        }
-        Ok(())
+/// The line that says how the emulated board did.
+fn board_line(board: &BoardOutcome) -> String {
+    match board {
+        BoardOutcome::Agreed { beats, states } => format!(
+            "  emulated board (QEMU, Cortex-M4F): the same {beats} beats and {states} state changes, bit for bit"
+        ),
+        BoardOutcome::Disagreed(d) => format!("  emulated board DISAGREES with the host: {d}"),
+        BoardOutcome::NotRun(why) => format!("  emulated board not run: {why}"),
     }
 }

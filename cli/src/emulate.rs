@@ -2,17 +2,22 @@
 //! emulated board, show its beat stream as it arrives, and check it
 //! against the host's replay.
 
+use crate::values;
 use clap::Args;
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, SignalState, StateEvent};
 use plethwire_dsp::wire::{Frame, Message};
 
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
-use plethwire::emulate::{compare, find_elf, find_qemu, Emulation, Link, PerfReport, Session};
-use plethwire::replay::{load, replay, write_beat_annotations, Summary, DEFAULT_ANNOTATOR};
+use plethwire::emulate::{
+    compare, find_elf, find_qemu, Agreement, Disagreement, Emulation, Link, PerfReport, Session,
+};
+use plethwire::replay::{
+    load, replay, write_beat_annotations, Recording, Replay, Summary, DEFAULT_ANNOTATOR,
+};
 
 const EXAMPLES: &str = "\
 Examples:
@@ -55,7 +60,7 @@ pub struct EmulateArgs {
     pub elf: Option<PathBuf>,
 
     /// Only the first S seconds of the recording.
-    #[arg(long, value_name = "S", value_parser = parse_seconds)]
+    #[arg(long, value_name = "S", value_parser = values::positive_seconds)]
     pub seconds: Option<f64>,
 
     /// Count the pipeline's instructions per sample on the board (QEMU
@@ -75,13 +80,6 @@ pub struct EmulateArgs {
     /// Signal source and pipeline settings.
     #[command(flatten)]
     pub pipeline: PipelineOpts,
-}
-
-fn parse_seconds(s: &str) -> Result<f64, String> {
-    match s.parse::<f64>() {
-        Ok(v) if v.is_finite() && v > 0.0 => Ok(v),
-        _ => Err(format!("'{s}' is not a positive number of seconds")),
-    }
 }
 
 /// Flag names, in bit order.
@@ -163,17 +161,7 @@ impl EmulateArgs {
             count_instructions: self.count_instructions,
             timeout: None,
         };
-        let head = format!(
-            "{}: {:.1} s of {} at {fs} Hz on the emulated board ({})\n",
-            rec.name,
-            n as f64 / fs,
-            rec.signal.name,
-            if self.uart {
-                "UART"
-            } else {
-                "semihosting files"
-            }
-        );
+        let head = self.head_line(&rec, n);
         let quiet = self.quiet || self.json;
         if !self.json {
             out.write_all(head.as_bytes()).map_err(Failure::output)?;
@@ -206,37 +194,20 @@ impl EmulateArgs {
             ))
         })?;
         let board = session.to_replay();
-        let dir = match &self.out {
-            Some(d) => d.clone(),
-            None => rec
-                .path
-                .parent()
-                .map(|p| p.to_path_buf())
-                .unwrap_or_else(|| PathBuf::from(".")),
-        };
-        std::fs::create_dir_all(&dir).map_err(|e| {
-            Failure::refused(format!("{}: cannot create the folder: {e}", dir.display()))
-        })?;
+        let dir = super::replay::beat_file_dir(self.out.as_deref(), &rec.path)?;
         let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &board)
             .map_err(Failure::refused)?;
         let agreement = compare(&board.beats, &board.states, &host);
         let text = if self.json {
-            let doc = serde_json::json!({
-                "record": rec.name,
-                "link": if self.uart { "uart" } else { "files" },
-                "seconds": n as f64 / fs,
-                "frames": {
-                    "decoded": session.stats.frames,
-                    "damaged": session.stats.damaged,
-                    "lost": session.stats.lost_frames,
-                },
-                "summary": board.summary(),
-                "identical_to_host": agreement.is_ok(),
-                "difference": agreement.as_ref().err().map(ToString::to_string),
-                "perf": session.perf,
-                "annotations": ann.display().to_string(),
-            });
-            serde_json::to_string_pretty(&doc).unwrap_or_default() + "\n"
+            json_report(
+                &rec.name,
+                self.uart,
+                n as f64 / fs,
+                &session,
+                &board,
+                &agreement,
+                &ann,
+            )
         } else {
             summary(&session, &board.summary(), agreement.as_ref().ok(), &ann)
         };
@@ -246,6 +217,22 @@ impl EmulateArgs {
                 "the board's events differ from the host replay: {e}"
             ))
         })
+    }
+
+    /// The first line: which record, how long, at what rate, over which link.
+    fn head_line(&self, rec: &Recording, n: usize) -> String {
+        format!(
+            "{}: {:.1} s of {} at {} Hz on the emulated board ({})\n",
+            rec.name,
+            n as f64 / rec.signal.fs,
+            rec.signal.name,
+            rec.signal.fs,
+            if self.uart {
+                "UART"
+            } else {
+                "semihosting files"
+            }
+        )
     }
 }
 
@@ -288,4 +275,33 @@ fn perf_line(p: &PerfReport) -> String {
         p.samples,
         p.max_instructions()
     )
+}
+
+/// The run as our JSON document: record, link, frames, summary, agreement
+/// with the host, performance and the annotation file.
+fn json_report(
+    name: &str,
+    uart: bool,
+    seconds: f64,
+    session: &Session,
+    board: &Replay,
+    agreement: &Result<Agreement, Disagreement>,
+    ann: &Path,
+) -> String {
+    let doc = serde_json::json!({
+        "record": name,
+        "link": if uart { "uart" } else { "files" },
+        "seconds": seconds,
+        "frames": {
+            "decoded": session.stats.frames,
+            "damaged": session.stats.damaged,
+            "lost": session.stats.lost_frames,
+        },
+        "summary": board.summary(),
+        "identical_to_host": agreement.is_ok(),
+        "difference": agreement.as_ref().err().map(ToString::to_string),
+        "perf": session.perf,
+        "annotations": ann.display().to_string(),
+    });
+    serde_json::to_string_pretty(&doc).unwrap_or_default() + "\n"
 }

@@ -1,5 +1,6 @@
 //! `plethwire filter`: its options, their parsing, and running it.
 
+use crate::values;
 use clap::Args;
 use std::io::Write;
 use std::path::PathBuf;
@@ -25,19 +26,19 @@ plot could not be written, 2 the command line could not be understood.";
 #[command(after_help = EXAMPLES)]
 pub struct FilterArgs {
     /// Sample rate of the ADC, Hz.
-    #[arg(long, value_name = "HZ", value_parser = parse_hz, allow_negative_numbers = true)]
+    #[arg(long, value_name = "HZ", value_parser = values::hz, allow_negative_numbers = true)]
     pub rate: f64,
 
     /// Butterworth band-pass with −3 dB edges LOW and HIGH, Hz.
-    #[arg(long, value_name = "LOW:HIGH", value_parser = parse_band, allow_negative_numbers = true)]
+    #[arg(long, value_name = "LOW:HIGH", value_parser = values::band_hz, allow_negative_numbers = true)]
     pub band: Option<(f64, f64)>,
 
     /// Butterworth low-pass with its −3 dB corner at HZ.
-    #[arg(long, value_name = "HZ", value_parser = parse_hz, allow_negative_numbers = true)]
+    #[arg(long, value_name = "HZ", value_parser = values::hz, allow_negative_numbers = true)]
     pub low_pass: Option<f64>,
 
     /// Butterworth high-pass with its −3 dB corner at HZ.
-    #[arg(long, value_name = "HZ", value_parser = parse_hz, allow_negative_numbers = true)]
+    #[arg(long, value_name = "HZ", value_parser = values::hz, allow_negative_numbers = true)]
     pub high_pass: Option<f64>,
 
     /// Butterworth order (1 to 8) for --band, --low-pass and --high-pass
@@ -50,7 +51,7 @@ pub struct FilterArgs {
     pub notch: Vec<(f64, f64)>,
 
     /// First-order DC blocker with its −3 dB corner at HZ.
-    #[arg(long, value_name = "HZ", value_parser = parse_hz, allow_negative_numbers = true)]
+    #[arg(long, value_name = "HZ", value_parser = values::hz, allow_negative_numbers = true)]
     pub dc_block: Option<f64>,
 
     /// Frequencies for the response table, Hz [default: 0.1, 0.5, 1, 2,
@@ -59,7 +60,7 @@ pub struct FilterArgs {
         long,
         value_name = "F1,F2,...",
         value_delimiter = ',',
-        value_parser = parse_hz,
+        value_parser = values::hz,
         allow_negative_numbers = true
     )]
     pub at: Option<Vec<f64>>,
@@ -81,12 +82,6 @@ pub struct FilterArgs {
     pub name: String,
 }
 
-fn parse_hz(text: &str) -> Result<f64, String> {
-    text.trim()
-        .parse::<f64>()
-        .map_err(|_| "expected a number of hertz, such as 250 or 0.5".to_owned())
-}
-
 fn parse_order(text: &str) -> Result<usize, String> {
     // The DSP library decides which orders it designs; here only the form.
     text.trim()
@@ -94,22 +89,15 @@ fn parse_order(text: &str) -> Result<usize, String> {
         .map_err(|_| "expected a whole number, such as 2 or 4".to_owned())
 }
 
-fn parse_band(text: &str) -> Result<(f64, f64), String> {
-    let (low, high) = text
-        .split_once(':')
-        .ok_or_else(|| "expected LOW:HIGH in hertz, such as 0.5:8".to_owned())?;
-    Ok((parse_hz(low)?, parse_hz(high)?))
-}
-
 fn parse_notch(text: &str) -> Result<(f64, f64), String> {
     match text.split_once(':') {
-        None => Ok((parse_hz(text)?, DEFAULT_NOTCH_QUALITY)),
+        None => Ok((values::hz(text)?, DEFAULT_NOTCH_QUALITY)),
         Some((centre, q)) => {
             let quality = q
                 .trim()
                 .parse::<f64>()
                 .map_err(|_| "expected HZ or HZ:Q, such as 50 or 60:20".to_owned())?;
-            Ok((parse_hz(centre)?, quality))
+            Ok((values::hz(centre)?, quality))
         }
     }
 }

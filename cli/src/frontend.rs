@@ -1,6 +1,7 @@
 //! `plethwire frontend`: the analog front end's budget from a circuit file,
 //! options, or both.
 
+use crate::values;
 use clap::{Args, ValueEnum};
 use std::io::Write;
 use std::path::PathBuf;
@@ -58,11 +59,11 @@ pub struct FrontendArgs {
     pub name: Option<String>,
 
     /// LED supply voltage, V.
-    #[arg(long, value_name = "V", value_parser = positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "V", value_parser = values::positive, allow_negative_numbers = true)]
     pub supply: Option<f64>,
 
     /// LED forward voltage at its working current, V.
-    #[arg(long, value_name = "V", value_parser = positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "V", value_parser = values::positive, allow_negative_numbers = true)]
     pub led_vf: Option<f64>,
 
     /// LED series resistor; several, comma-separated, are in parallel.
@@ -80,7 +81,7 @@ pub struct FrontendArgs {
     pub led_parallel: Option<u32>,
 
     /// The LED's rated continuous current, mA; a higher current warns.
-    #[arg(long, value_name = "MA", value_parser = positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "MA", value_parser = values::positive, allow_negative_numbers = true)]
     pub led_rated_ma: Option<f64>,
 
     /// Detector: a photodiode into a transimpedance amplifier with this
@@ -113,27 +114,27 @@ pub struct FrontendArgs {
     pub adc_bits: Option<u32>,
 
     /// ADC reference voltage (input range 0 to this), V [default: 3.3].
-    #[arg(long, value_name = "V", value_parser = positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "V", value_parser = values::positive, allow_negative_numbers = true)]
     pub adc_ref: Option<f64>,
 
     /// DC level of the signal at the ADC input, V [default: half the reference].
-    #[arg(long, value_name = "V", value_parser = finite, allow_negative_numbers = true)]
+    #[arg(long, value_name = "V", value_parser = values::number, allow_negative_numbers = true)]
     pub bias: Option<f64>,
 
     /// Sample rate to use, Hz [default: the recommended one].
-    #[arg(long, value_name = "HZ", value_parser = positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "HZ", value_parser = values::positive, allow_negative_numbers = true)]
     pub rate: Option<f64>,
 
     /// Amplifier supply rails, V [default: 0 to the LED supply].
-    #[arg(long, value_name = "LOW:HIGH", value_parser = rails, allow_negative_numbers = true)]
+    #[arg(long, value_name = "LOW:HIGH", value_parser = values::rails_v, allow_negative_numbers = true)]
     pub rails: Option<(f64, f64)>,
 
     /// Photocurrent change of one pulse, µA peak to peak.
-    #[arg(long, value_name = "UA", value_parser = positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "UA", value_parser = values::positive, allow_negative_numbers = true)]
     pub pulse_ua: Option<f64>,
 
     /// Steady photocurrent, µA (shifts the output where the chain passes DC).
-    #[arg(long, value_name = "UA", value_parser = non_negative, allow_negative_numbers = true)]
+    #[arg(long, value_name = "UA", value_parser = values::non_negative, allow_negative_numbers = true)]
     pub dc_ua: Option<f64>,
 
     /// Where to write the SVG Bode plot.
@@ -162,55 +163,12 @@ fn after_help() -> String {
     format!("{EXAMPLES}{}", CAUTIONS.join("\n  - "))
 }
 
-fn number(text: &str) -> Result<f64, String> {
-    match text.trim().parse::<f64>() {
-        Ok(v) if v.is_finite() => Ok(v),
-        _ => Err("expected a number, such as 5 or 1.7".to_owned()),
-    }
-}
-
-fn positive(text: &str) -> Result<f64, String> {
-    let v = number(text)?;
-    if v > 0.0 {
-        Ok(v)
-    } else {
-        Err(format!("must be above 0, not {v}"))
-    }
-}
-
-fn non_negative(text: &str) -> Result<f64, String> {
-    let v = number(text)?;
-    if v >= 0.0 {
-        Ok(v)
-    } else {
-        Err(format!("must be 0 or more, not {v}"))
-    }
-}
-
-fn finite(text: &str) -> Result<f64, String> {
-    number(text)
-}
-
 fn ohms(text: &str) -> Result<f64, String> {
     parse_value(text, Kind::Resistance).map_err(|e| e.to_string())
 }
 
 fn farads(text: &str) -> Result<f64, String> {
     parse_value(text, Kind::Capacitance).map_err(|e| e.to_string())
-}
-
-fn rails(text: &str) -> Result<(f64, f64), String> {
-    let (low, high) = text
-        .split_once(':')
-        .ok_or_else(|| "expected LOW:HIGH in volts, such as 0:3.3".to_owned())?;
-    let (low, high) = (number(low)?, number(high)?);
-    if low < high {
-        Ok((low, high))
-    } else {
-        Err(format!(
-            "the low rail ({low} V) must be below the high one ({high} V)"
-        ))
-    }
 }
 
 /// `KIND[,KEY=VALUE...]`, read through the circuit file's own rules by
@@ -358,13 +316,5 @@ mod tests {
         assert!(e.contains("unknown variant `bandpass`"), "{e}");
         assert!(stage("lowpass,r=\"1k\"").is_err());
         assert!(stage("lowpass,r").is_err());
-    }
-
-    #[test]
-    fn rails_must_be_ordered() {
-        assert_eq!(rails("0:3.3"), Ok((0.0, 3.3)));
-        assert_eq!(rails("-2.5:2.5"), Ok((-2.5, 2.5)));
-        assert!(rails("3.3:0").is_err());
-        assert!(rails("3.3").is_err());
     }
 }

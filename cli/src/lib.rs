@@ -15,6 +15,7 @@ mod report;
 mod ride;
 mod score;
 mod score_strap;
+mod values;
 
 pub use demo::DemoArgs;
 pub use emulate::EmulateArgs;

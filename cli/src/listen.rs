@@ -1,6 +1,7 @@
 //! `plethwire listen`: show and record what a board sends over a serial
 //! port. The work is in [`plethwire::listen`]; this is options and wiring.
 
+use crate::values;
 use clap::Args;
 use std::io::{self, IsTerminal, Write};
 use std::path::PathBuf;
@@ -56,7 +57,7 @@ pub struct ListenArgs {
     pub name: Option<String>,
 
     /// End the session after this many seconds.
-    #[arg(long, value_name = "S", value_parser = parse_positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "S", value_parser = values::positive_exact, allow_negative_numbers = true)]
     pub seconds: Option<f64>,
 
     /// How long to keep trying the port, at the start and after it goes away.
@@ -65,7 +66,7 @@ pub struct ListenArgs {
     pub wait: f64,
 
     /// Sample rate (Hz) to record at when the board's hello was missed.
-    #[arg(long, value_name = "HZ", value_parser = parse_positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "HZ", value_parser = values::positive_exact, allow_negative_numbers = true)]
     pub rate: Option<f64>,
 
     /// Print JSON Lines (one object per event) instead of text.
@@ -77,13 +78,6 @@ fn parse_name(s: &str) -> Result<String, String> {
     let ok = !s.is_empty() && s.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
     ok.then(|| s.to_string())
         .ok_or_else(|| "a record name holds only letters, digits and '_'".into())
-}
-
-fn parse_positive(s: &str) -> Result<f64, String> {
-    match s.parse::<f64>() {
-        Ok(v) if v.is_finite() && v > 0.0 => Ok(v),
-        _ => Err("expected a number above 0".into()),
-    }
 }
 
 fn parse_wait(s: &str) -> Result<f64, String> {

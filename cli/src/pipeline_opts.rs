@@ -1,5 +1,6 @@
 //! Options shared by the commands that run the beat pipeline.
 
+use crate::values;
 use clap::builder::PossibleValue;
 use clap::{Args, ValueEnum};
 use plethwire_dsp::pipeline::{Config, DetectorKind};
@@ -97,7 +98,7 @@ pub struct PipelineOpts {
 
     /// ADC rails LOW:HIGH in the signal's units, when known (samples there
     /// count as clipped) [default: found from flat tops at the extremes].
-    #[arg(long, value_name = "LOW:HIGH", value_parser = parse_rails, allow_negative_numbers = true)]
+    #[arg(long, value_name = "LOW:HIGH", value_parser = values::signal_rails, allow_negative_numbers = true)]
     pub rails: Option<(f32, f32)>,
 }
 
@@ -110,24 +111,6 @@ pub struct MotionOpts {
     /// (motion flag) [default: none].
     #[arg(long, value_name = "X,Y,Z", value_parser = parse_motion_names)]
     pub motion: Option<[String; 3]>,
-}
-
-fn parse_rails(s: &str) -> Result<(f32, f32), String> {
-    let (a, b) = s
-        .split_once(':')
-        .ok_or_else(|| format!("'{s}' is not LOW:HIGH"))?;
-    let low: f32 = a
-        .trim()
-        .parse()
-        .map_err(|_| format!("'{a}' is not a number"))?;
-    let high: f32 = b
-        .trim()
-        .parse()
-        .map_err(|_| format!("'{b}' is not a number"))?;
-    if !(low.is_finite() && high.is_finite() && low < high) {
-        return Err(format!("rails '{s}' must be two numbers, low below high"));
-    }
-    Ok((low, high))
 }
 
 impl PipelineOpts {

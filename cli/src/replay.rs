@@ -3,7 +3,7 @@
 use clap::Args;
 use serde::Serialize;
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use plethwire_dsp::pipeline::BeatFlags;
 
@@ -108,17 +108,7 @@ impl ReplayArgs {
                 self.record.display()
             ))
         })?;
-        let dir = match &self.out {
-            Some(d) => d.clone(),
-            None => rec
-                .path
-                .parent()
-                .map(|p| p.to_path_buf())
-                .unwrap_or_else(|| PathBuf::from(".")),
-        };
-        std::fs::create_dir_all(&dir).map_err(|e| {
-            Failure::refused(format!("{}: cannot create the folder: {e}", dir.display()))
-        })?;
+        let dir = beat_file_dir(self.out.as_deref(), &rec.path)?;
         let mut written = Vec::new();
         let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &run)
             .map_err(Failure::refused)?;
@@ -274,4 +264,20 @@ fn human(name: &str, signal: &str, fs: f64, s: &Summary, written: &[String]) -> 
         t += &format!("  wrote       {w}\n");
     }
     t
+}
+
+/// Where the beat files of `record` go: `out`, else the record's folder;
+/// created when missing.
+pub(crate) fn beat_file_dir(out: Option<&Path>, record: &Path) -> Result<PathBuf, Failure> {
+    let dir = match out {
+        Some(d) => d.to_path_buf(),
+        None => record
+            .parent()
+            .map(|p| p.to_path_buf())
+            .unwrap_or_else(|| PathBuf::from(".")),
+    };
+    std::fs::create_dir_all(&dir).map_err(|e| {
+        Failure::refused(format!("{}: cannot create the folder: {e}", dir.display()))
+    })?;
+    Ok(dir)
 }

@@ -21,8 +21,13 @@
 
 use std::path::Path;
 
-use super::error::{Error, ErrorKind, Result};
-use super::resample::{median_rate, ResampleReport, Resampler, DEFAULT_MAX_GAP_S};
+mod table;
+mod time_base;
+
+pub(crate) use table::{parse_cell, Table};
+
+use super::error::{Error, ErrorKind, Result, UnknownTimeUnit};
+use super::resample::{ResampleReport, DEFAULT_MAX_GAP_S};
 use super::LoadedSignal;
 use serde::Serialize;
 
@@ -62,16 +67,13 @@ impl TimeUnit {
         }
     }
 
-    /// Parse `s`, `ms` or `us`; anything else is a one-line message.
-    pub fn parse(text: &str) -> std::result::Result<TimeUnit, String> {
+    /// Parse `s`, `ms` or `us`.
+    pub fn parse(text: &str) -> std::result::Result<TimeUnit, UnknownTimeUnit> {
         match text {
             "s" => Ok(TimeUnit::S),
             "ms" => Ok(TimeUnit::Ms),
             "us" => Ok(TimeUnit::Us),
-            other => Err(format!(
-                "unknown time unit {} (use s, ms or us)",
-                super::error::quoted(other)
-            )),
+            other => Err(UnknownTimeUnit(other.to_string())),
         }
     }
 }
@@ -186,166 +188,6 @@ pub struct CsvSignals {
     pub time: Option<TimeBase>,
 }
 
-/// The rows of a CSV file, split into cells.
-pub(super) struct Table {
-    /// Header cells, when the file has a header.
-    pub names: Option<Vec<String>>,
-    /// (1-based line number, cells) of each data row; blank lines are skipped.
-    pub rows: Vec<(usize, Vec<String>)>,
-}
-
-impl Table {
-    /// Read `path`; with `header`, its first non-blank line names the columns.
-    pub(super) fn read(path: &Path, header: bool) -> Result<Table> {
-        let bytes = std::fs::read(path).map_err(|e| Error::from_io(path, "read", &e))?;
-        let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes);
-        if bytes.iter().all(|b| b.is_ascii_whitespace()) {
-            return Err(Error::new(path, ErrorKind::Empty));
-        }
-        let mut names = None;
-        let mut rows = Vec::new();
-        for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
-            let no = i + 1;
-            let text =
-                std::str::from_utf8(raw).map_err(|_| Error::syntax(path, no, "not UTF-8 text"))?;
-            let text = text.strip_suffix('\r').unwrap_or(text);
-            if text.trim().is_empty() {
-                continue;
-            }
-            let cells = split_line(text).map_err(|m| Error::syntax(path, no, m))?;
-            if header && names.is_none() {
-                names = Some(cells);
-                continue;
-            }
-            let width = match &names {
-                Some(n) => Some(n.len()),
-                None => rows.first().map(|(_, r): &(usize, Vec<String>)| r.len()),
-            };
-            if let Some(w) = width {
-                if cells.len() != w {
-                    return Err(Error::syntax(
-                        path,
-                        no,
-                        format!("{} fields, expected {w}", cells.len()),
-                    ));
-                }
-            }
-            rows.push((no, cells));
-        }
-        Ok(Table { names, rows })
-    }
-
-    /// Position of `column`, or an error listing the columns there are.
-    pub(super) fn find(&self, path: &Path, column: &ColumnRef) -> Result<usize> {
-        let width = self
-            .names
-            .as_ref()
-            .map(Vec::len)
-            .or_else(|| self.rows.first().map(|(_, r)| r.len()))
-            .unwrap_or(0);
-        let found = match column {
-            ColumnRef::Index(i) => Some(*i).filter(|&i| i < width),
-            ColumnRef::Name(n) => self
-                .names
-                .as_ref()
-                .and_then(|names| names.iter().position(|c| c == n)),
-        };
-        found.ok_or_else(|| {
-            Error::new(
-                path,
-                ErrorKind::NoSuchSignal {
-                    wanted: match column {
-                        ColumnRef::Name(n) => n.clone(),
-                        ColumnRef::Index(i) => format!("#{i}"),
-                    },
-                    available: (0..width).map(|i| self.name(i)).collect(),
-                },
-            )
-        })
-    }
-
-    /// Header text of column `i`, or `#i` without a header.
-    pub(super) fn name(&self, i: usize) -> String {
-        self.names
-            .as_ref()
-            .and_then(|n| n.get(i).cloned())
-            .unwrap_or_else(|| format!("#{i}"))
-    }
-}
-
-/// Split one line into cells.
-fn split_line(line: &str) -> std::result::Result<Vec<String>, String> {
-    let mut cells = Vec::new();
-    let mut chars = line.chars().peekable();
-    loop {
-        while chars.peek().is_some_and(|c| *c == ' ' || *c == '\t') {
-            chars.next();
-        }
-        let mut cell = String::new();
-        if chars.peek() == Some(&'"') {
-            chars.next();
-            loop {
-                match chars.next() {
-                    Some('"') if chars.peek() == Some(&'"') => {
-                        chars.next();
-                        cell.push('"');
-                    }
-                    Some('"') => break,
-                    Some(c) => cell.push(c),
-                    None => {
-                        return Err(format!(
-                            "field {} opens a quote it never closes",
-                            cells.len() + 1
-                        ))
-                    }
-                }
-            }
-            while chars.peek().is_some_and(|c| *c == ' ' || *c == '\t') {
-                chars.next();
-            }
-            match chars.next() {
-                None => {
-                    cells.push(cell);
-                    return Ok(cells);
-                }
-                Some(',') => cells.push(cell),
-                Some(c) => {
-                    return Err(format!(
-                        "field {}: {c:?} after the closing quote",
-                        cells.len() + 1
-                    ))
-                }
-            }
-        } else {
-            loop {
-                match chars.next() {
-                    None => {
-                        cells.push(cell.trim_end().to_string());
-                        return Ok(cells);
-                    }
-                    Some(',') => break,
-                    Some(c) => cell.push(c),
-                }
-            }
-            cells.push(cell.trim_end().to_string());
-        }
-    }
-}
-
-/// A cell's number: `Ok(None)` for an empty cell, NaN for `nan`.
-pub(super) fn parse_cell(text: &str) -> std::result::Result<Option<f64>, ()> {
-    if text.is_empty() {
-        return Ok(None);
-    }
-    if text.eq_ignore_ascii_case("nan") {
-        return Ok(Some(f64::NAN));
-    }
-    match text.parse::<f64>() {
-        Ok(v) if v.is_finite() => Ok(Some(v)),
-        _ => Err(()),
-    }
-}
-
 /// Read one column of the CSV file at `path` as a signal.
 pub fn read_csv_signal(path: impl AsRef<Path>, options: &CsvSignalOptions) -> Result<CsvSignal> {
     let mut read = read_csv_signals(path, std::slice::from_ref(&options.column), options)?;
@@ -415,70 +257,11 @@ pub fn read_csv_signals(
             (time, Some(*fs))
         }
     };
-    let tc = table.find(path, time_col)?;
-    let mut times = Vec::with_capacity(table.rows.len());
-    for (no, cells) in &table.rows {
-        match parse_cell(&cells[tc]) {
-            Ok(Some(t)) if t.is_finite() => times.push((*no, t * options.time_unit.seconds())),
-            _ => return Err(not_number(path, &table, *no, tc, &cells[tc])),
-        }
-    }
-    let in_column = |(line, m): (Option<usize>, String)| {
-        let e = Error::new(
-            path,
-            ErrorKind::Invalid(format!("column {:?}: {m}", table.name(tc))),
-        );
-        match line {
-            Some(l) => e.at_line(l),
-            None => e,
-        }
-    };
-    let fit = time_fit(&times).map_err(in_column)?;
-    let uniform = fit.max_deviation <= options.tolerance;
-    if uniform && grid.is_none() {
-        let base = TimeBase {
-            unit: options.time_unit,
-            resampled: None,
-            ..fit
-        };
-        return Ok(CsvSignals {
-            signals: named(&table, &cols, values, base.fs),
-            time: Some(base),
-        });
-    }
-    let seconds: Vec<f64> = times.iter().map(|&(_, t)| t).collect();
-    let fs = grid.unwrap_or_else(|| median_rate(&seconds));
-    let span = seconds[seconds.len() - 1] - seconds[0];
-    if span * fs > MAX_GRID_SAMPLES {
-        return Err(Error::new(
-            path,
-            ErrorKind::Invalid(format!(
-                "a grid at {fs:.6} Hz over {span} s would hold more than {MAX_GRID_SAMPLES} samples"
-            )),
-        ));
-    }
-    let resampler = Resampler {
-        fs,
-        max_gap_s: options.max_gap_s,
-    };
-    let slices: Vec<&[f64]> = values.iter().map(Vec::as_slice).collect();
-    let (values, mut report) = resampler.run(&seconds, &slices);
-    if grid.is_none() {
-        report.grid_rate_from = "median frame rate";
-    }
-    Ok(CsvSignals {
-        signals: named(&table, &cols, values, fs),
-        time: Some(TimeBase {
-            fs,
-            unit: options.time_unit,
-            resampled: Some(report),
-            ..fit
-        }),
-    })
+    time_base::on_time_base(path, &table, &cols, values, time_col, grid, options)
 }
 
 /// The error for a cell of a number column that is not a number.
-fn not_number(path: &Path, table: &Table, no: usize, col: usize, text: &str) -> Error {
+pub(super) fn not_number(path: &Path, table: &Table, no: usize, col: usize, text: &str) -> Error {
     Error::new(
         path,
         ErrorKind::NotANumber {
@@ -512,7 +295,12 @@ fn read_values(path: &Path, table: &Table, col: usize, empty_as_nan: bool) -> Re
 }
 
 /// Columns `cols` with their `values` as signals at `fs`.
-fn named(table: &Table, cols: &[usize], values: Vec<Vec<f64>>, fs: f64) -> Vec<LoadedSignal> {
+pub(super) fn named(
+    table: &Table,
+    cols: &[usize],
+    values: Vec<Vec<f64>>,
+    fs: f64,
+) -> Vec<LoadedSignal> {
     cols.iter()
         .zip(values)
         .map(|(&c, samples)| LoadedSignal {
@@ -522,58 +310,6 @@ fn named(table: &Table, cols: &[usize], values: Vec<Vec<f64>>, fs: f64) -> Vec<L
             samples,
         })
         .collect()
-}
-
-/// Fit a uniform grid to `times` ((line, seconds) pairs) by least
-/// squares; refuse times that do not increase.
-fn time_fit(times: &[(usize, f64)]) -> std::result::Result<TimeBase, (Option<usize>, String)> {
-    if times.len() < 2 {
-        return Err((
-            None,
-            "at least two rows are needed to measure the sample rate".into(),
-        ));
-    }
-    for w in times.windows(2) {
-        if w[1].1 <= w[0].1 {
-            let what = if w[1].1 == w[0].1 {
-                "repeats"
-            } else {
-                "goes back"
-            };
-            return Err((
-                Some(w[1].0),
-                format!(
-                    "time {} s {what} (row before: {} s); times must increase",
-                    w[1].1, w[0].1
-                ),
-            ));
-        }
-    }
-    // Least squares rather than first-to-last: rounding of the two end
-    // times would otherwise bias the rate.
-    let n = times.len() as f64;
-    let k_mean = (n - 1.0) / 2.0;
-    let t_mean = times.iter().map(|&(_, t)| t).sum::<f64>() / n;
-    let (mut skt, mut skk) = (0.0, 0.0);
-    for (k, &(_, t)) in times.iter().enumerate() {
-        let dk = k as f64 - k_mean;
-        skt += dk * (t - t_mean);
-        skk += dk * dk;
-    }
-    let period = skt / skk;
-    let grid_start = t_mean - period * k_mean;
-    let worst = times
-        .iter()
-        .enumerate()
-        .map(|(k, &(_, t))| ((t - (grid_start + k as f64 * period)) / period).abs())
-        .fold(0.0f64, f64::max);
-    Ok(TimeBase {
-        fs: 1.0 / period,
-        start_s: times[0].1,
-        max_deviation: worst,
-        unit: TimeUnit::S,
-        resampled: None,
-    })
 }
 
 #[cfg(test)]

@@ -190,6 +190,18 @@ impl fmt::Display for Error {
 
 impl std::error::Error for Error {}
 
+/// A time unit other than `s`, `ms` or `us`; holds the text given.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct UnknownTimeUnit(pub String);
+
+impl fmt::Display for UnknownTimeUnit {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "unknown time unit {} (use s, ms or us)", quoted(&self.0))
+    }
+}
+
+impl std::error::Error for UnknownTimeUnit {}
+
 #[cfg(test)]
 mod tests {
     use super::*;

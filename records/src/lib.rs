@@ -34,7 +34,7 @@ pub use csv::{
     csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignal, CsvSignalOptions,
     CsvSignals, Rate, TimeBase, TimeUnit,
 };
-pub use error::{Error, ErrorKind, Result};
+pub use error::{Error, ErrorKind, Result, UnknownTimeUnit};
 pub use numerics::{read_numerics, Numerics};
 pub use rr::read_rr_intervals;
 pub use wfdb_annotation::{

@@ -12,6 +12,10 @@ use super::wfdb_format::{undo_differences, SignalFormat};
 use super::wfdb_header::{Header, SignalSpec};
 use super::{LoadedSignal, DEFAULT_SIGNAL};
 
+mod group;
+
+use group::{check_length, Group};
+
 /// An opened WFDB record. Opening reads the header and checks that every
 /// signal file exists and is long enough; samples are read on request.
 #[derive(Debug, Clone)]
@@ -21,26 +25,6 @@ pub struct Record {
     header: Header,
     frames: u64,
     groups: Vec<Group>,
-}
-
-/// The signals stored in one file.
-#[derive(Debug, Clone)]
-struct Group {
-    path: PathBuf,
-    format: SignalFormat,
-    byte_offset: u64,
-    /// Header indices of the signals, in file order.
-    signals: Vec<usize>,
-}
-
-impl Group {
-    /// Samples in one frame of this file.
-    fn frame_samples(&self, header: &Header) -> u64 {
-        self.signals
-            .iter()
-            .map(|&s| header.signals[s].samples_per_frame as u64)
-            .sum()
-    }
 }
 
 /// `dir/name` for `dir/name`, `dir/name.hea` or `dir/name.`: the header
@@ -72,51 +56,7 @@ impl Record {
         if header.segments.is_some() {
             return unsupported("multi-segment records are not supported");
         }
-        let mut groups: Vec<Group> = Vec::new();
-        for (i, spec) in header.signals.iter().enumerate() {
-            if spec.file_name == "~" {
-                return unsupported("null signals (file name \"~\") are not supported");
-            }
-            match groups.last_mut() {
-                Some(g) if header.signals[g.signals[0]].file_name == spec.file_name => {
-                    if g.format != spec.format {
-                        return Err(Error::new(
-                            &header_path,
-                            ErrorKind::Syntax(format!(
-                                "signals {} and {i} share {} but have formats {} and {}",
-                                g.signals[0],
-                                spec.file_name,
-                                g.format.code(),
-                                spec.format.code()
-                            )),
-                        ));
-                    }
-                    g.signals.push(i);
-                }
-                _ => {
-                    if groups
-                        .iter()
-                        .any(|g| header.signals[g.signals[0]].file_name == spec.file_name)
-                    {
-                        return Err(Error::new(
-                            &header_path,
-                            ErrorKind::Syntax(format!(
-                                "signals of {} are not on consecutive lines",
-                                spec.file_name
-                            )),
-                        ));
-                    }
-                    groups.push(Group {
-                        path: dir.join(&spec.file_name),
-                        format: spec.format,
-                        // One offset per file: the first signal line's, as
-                        // the WFDB library uses.
-                        byte_offset: spec.byte_offset,
-                        signals: vec![i],
-                    });
-                }
-            }
-        }
+        let groups = Group::of_header(&header, &header_path, &dir)?;
         let mut frames = header.samples;
         for g in &groups {
             let size = std::fs::metadata(&g.path)
@@ -385,26 +325,6 @@ fn apply_skew(samples: &mut Vec<i32>, spec: &SignalSpec, path: &Path) -> Result<
     samples.drain(..shift);
     samples.extend(std::iter::repeat_n(fill, shift));
     Ok(())
-}
-
-/// Error unless a file of `size` bytes holds `frames` frames of `per_frame` samples.
-fn check_length(g: &Group, size: u64, frames: u64, per_frame: u64) -> Result<()> {
-    let needed = frames
-        .checked_mul(per_frame)
-        .map(|n| g.format.bytes_for(n))
-        .and_then(|b| b.checked_add(g.byte_offset));
-    match needed {
-        Some(expected) if expected <= size && expected <= usize::MAX as u64 => Ok(()),
-        _ => Err(Error::new(
-            &g.path,
-            ErrorKind::TruncatedSignal {
-                expected_bytes: needed.unwrap_or(u64::MAX),
-                found_bytes: size,
-                samples: frames,
-                signals: g.signals.len(),
-            },
-        )),
-    }
 }
 
 /// The 16-bit checksum of a signal, as header(5) defines it: the sum of

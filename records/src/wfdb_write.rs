@@ -69,32 +69,7 @@ impl RecordWriter {
         if !(fs.is_finite() && fs > 0.0) {
             return Err(invalid(format!("sampling frequency {fs} must be above 0")));
         }
-        for (i, s) in signals.iter().enumerate() {
-            if !(s.adc_gain.is_finite() && s.adc_gain != 0.0) {
-                return Err(invalid(format!(
-                    "signal {i}: gain {} must be finite and not 0",
-                    s.adc_gain
-                )));
-            }
-            if s.units.is_empty() || s.units.chars().any(char::is_whitespace) {
-                return Err(invalid(format!(
-                    "signal {i}: units {:?} must be one word",
-                    s.units
-                )));
-            }
-            if s.name.contains(['\n', '\r']) || s.name.trim() != s.name {
-                return Err(invalid(format!(
-                    "signal {i}: name {:?} must be one line without leading or trailing blanks",
-                    s.name
-                )));
-            }
-            if !(1..=16).contains(&s.adc_resolution) {
-                return Err(invalid(format!(
-                    "signal {i}: resolution {} bits does not fit format 16",
-                    s.adc_resolution
-                )));
-            }
-        }
+        check_signals(&header_path, signals)?;
         let dat_name = format!("{name}.dat");
         let dat_path = dir.join(&dat_name);
         let file = File::create(&dat_path).map_err(|e| Error::from_io(&dat_path, "write", &e))?;
@@ -255,6 +230,39 @@ pub fn write_record(
         writer.push_frame(&frame)?;
     }
     writer.finish()
+}
+
+/// Check that every signal can be written as format 16 with a one-line
+/// header entry; the message names the first that cannot.
+fn check_signals(header_path: &Path, signals: &[NewSignal]) -> Result<()> {
+    let invalid = |m: String| Error::new(header_path, ErrorKind::Invalid(m));
+    for (i, s) in signals.iter().enumerate() {
+        if !(s.adc_gain.is_finite() && s.adc_gain != 0.0) {
+            return Err(invalid(format!(
+                "signal {i}: gain {} must be finite and not 0",
+                s.adc_gain
+            )));
+        }
+        if s.units.is_empty() || s.units.chars().any(char::is_whitespace) {
+            return Err(invalid(format!(
+                "signal {i}: units {:?} must be one word",
+                s.units
+            )));
+        }
+        if s.name.contains(['\n', '\r']) || s.name.trim() != s.name {
+            return Err(invalid(format!(
+                "signal {i}: name {:?} must be one line without leading or trailing blanks",
+                s.name
+            )));
+        }
+        if !(1..=16).contains(&s.adc_resolution) {
+            return Err(invalid(format!(
+                "signal {i}: resolution {} bits does not fit format 16",
+                s.adc_resolution
+            )));
+        }
+    }
+    Ok(())
 }
 
 #[cfg(test)]

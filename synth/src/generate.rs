@@ -189,6 +189,37 @@ fn overlaps(a: &Range<usize>, b: &Range<usize>) -> bool {
     a.start < b.end && b.start < a.end
 }
 
+/// Add `opts`' motion bursts and finger-off gaps to `x` (at `fs`); returns
+/// the sample ranges of each.
+fn add_artefacts(
+    opts: &SynthOptions,
+    x: &mut [f64],
+    fs: f64,
+) -> (Vec<Range<usize>>, Vec<Range<usize>>) {
+    let n = x.len();
+    let mut motion_rng = Rng::stream(opts.seed, STREAM_MOTION);
+    let mut motion = Vec::new();
+    for m in &opts.motion {
+        let r = sample_range(m.start_s, m.duration_s, fs, n);
+        let d = motion_burst(&mut motion_rng, r.clone(), fs, m.amplitude);
+        for (v, d) in x[r.clone()].iter_mut().zip(d) {
+            *v += d;
+        }
+        motion.push(r);
+    }
+
+    let mut off_rng = Rng::stream(opts.seed, STREAM_FINGER_OFF);
+    let mut finger_off = Vec::new();
+    for g in &opts.finger_off {
+        let r = sample_range(g.start_s, g.duration_s, fs, n);
+        for v in &mut x[r.clone()] {
+            *v = opts.finger_off_level + opts.finger_off_noise_sd * off_rng.normal();
+        }
+        finger_off.push(r);
+    }
+    (motion, finger_off)
+}
+
 /// Generate a synthetic recording from `opts` (checked first).
 pub fn generate(opts: &SynthOptions) -> Result<Synthetic, SynthError> {
     opts.validate()?;
@@ -213,26 +244,7 @@ pub fn generate(opts: &SynthOptions) -> Result<Synthetic, SynthError> {
         })
         .collect();
 
-    let mut motion_rng = Rng::stream(opts.seed, STREAM_MOTION);
-    let mut motion = Vec::new();
-    for m in &opts.motion {
-        let r = sample_range(m.start_s, m.duration_s, fs, n);
-        let d = motion_burst(&mut motion_rng, r.clone(), fs, m.amplitude);
-        for (v, d) in x[r.clone()].iter_mut().zip(d) {
-            *v += d;
-        }
-        motion.push(r);
-    }
-
-    let mut off_rng = Rng::stream(opts.seed, STREAM_FINGER_OFF);
-    let mut finger_off = Vec::new();
-    for g in &opts.finger_off {
-        let r = sample_range(g.start_s, g.duration_s, fs, n);
-        for v in &mut x[r.clone()] {
-            *v = opts.finger_off_level + opts.finger_off_noise_sd * off_rng.normal();
-        }
-        finger_off.push(r);
-    }
+    let (motion, finger_off) = add_artefacts(opts, &mut x, fs);
 
     let mut clipped_mask = vec![false; n];
     if let Some(rails) = opts.rails {

@@ -87,10 +87,39 @@ fn table(rows: &[ResponseRow]) -> String {
 /// Everything for a person to read, cautions last.
 pub fn human_report(r: &FrontendReport) -> String {
     let mut s = String::new();
-    let c = &r.circuit;
     let _ = writeln!(s, "plethwire frontend: {}\n", r.title);
 
-    let l = &c.led;
+    led_section(&mut s, r);
+    chain_section(&mut s, r);
+    adc_section(&mut s, r);
+    sampling_section(&mut s, r);
+    for (title, list) in [("Warnings", &r.warnings), ("Notes", &r.notes)] {
+        if !list.is_empty() {
+            let _ = writeln!(s, "\n{title}");
+            for w in list {
+                let _ = writeln!(s, "  - {w}");
+            }
+        }
+    }
+    let _ = writeln!(
+        s,
+        "\n{}",
+        r.plot
+            .as_ref()
+            .map_or("No plot written.".to_owned(), |p| format!(
+                "Plot written to {p}"
+            ))
+    );
+    let _ = writeln!(s, "\nCautions");
+    for line in &r.cautions {
+        let _ = writeln!(s, "  - {line}");
+    }
+    s
+}
+
+/// The LED drive: supply, resistors, current and heat.
+fn led_section(s: &mut String, r: &FrontendReport) {
+    let l = &r.circuit.led;
     let first = l.resistors_ohm[0];
     let resistors = match l.resistors_ohm.len() {
         1 => format!("resistor {}", si(first, "Ω")),
@@ -126,7 +155,10 @@ pub fn human_report(r: &FrontendReport) -> String {
         si(r.led.resistors_mw * 1e-3, "W"),
         si(r.led.hottest_resistor_mw * 1e-3, "W")
     );
+}
 
+/// The amplifier chain, its transfer function, response and heart band.
+fn chain_section(s: &mut String, r: &FrontendReport) {
     let _ = writeln!(s, "Chain, photocurrent in to ADC input out");
     for (i, b) in r.chain.blocks.iter().enumerate() {
         let gain = if i == 0 {
@@ -175,7 +207,11 @@ pub fn human_report(r: &FrontendReport) -> String {
         "  with the digital band-pass: {}\n",
         r.heart_band_with_digital.verdict
     );
+}
 
+/// The signal at the ADC: range, step and the pulse's swing.
+fn adc_section(s: &mut String, r: &FrontendReport) {
+    let c = &r.circuit;
     let a = &c.adc;
     let _ = writeln!(s, "Signal at the ADC");
     let _ = writeln!(
@@ -212,7 +248,10 @@ pub fn human_report(r: &FrontendReport) -> String {
             }
         );
     }
+}
 
+/// The sample rate and the digital band-pass.
+fn sampling_section(s: &mut String, r: &FrontendReport) {
     let p = &r.sampling;
     let _ = writeln!(s, "\nSampling and digital filter");
     let _ = writeln!(s, "  rule: {}", p.rule);
@@ -231,27 +270,4 @@ pub fn human_report(r: &FrontendReport) -> String {
         d.sections.len()
     );
     let _ = writeln!(s, "  design it for the board: {}", d.command);
-
-    for (title, list) in [("Warnings", &r.warnings), ("Notes", &r.notes)] {
-        if !list.is_empty() {
-            let _ = writeln!(s, "\n{title}");
-            for w in list {
-                let _ = writeln!(s, "  - {w}");
-            }
-        }
-    }
-    let _ = writeln!(
-        s,
-        "\n{}",
-        r.plot
-            .as_ref()
-            .map_or("No plot written.".to_owned(), |p| format!(
-                "Plot written to {p}"
-            ))
-    );
-    let _ = writeln!(s, "\nCautions");
-    for line in &r.cautions {
-        let _ = writeln!(s, "  - {line}");
-    }
-    s
 }

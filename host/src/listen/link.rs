@@ -119,44 +119,9 @@ pub fn run<C: Connector>(
     let mut lost_at: Option<Instant> = None;
     let mut buf = [0u8; 512];
     loop {
-        let since = lost_at.unwrap_or(start);
-        // After a loss, wait before the first attempt: a vanishing device
-        // node is best left a moment.
-        let mut next_try = if lost_at.is_some() {
-            since + settings.retry_every
-        } else {
-            since
-        };
-        let mut link = loop {
-            if let Some(end) = ending() {
-                return match lost_at {
-                    Some(_) => Ok(end),
-                    None => Err(ListenError::NeverOpened {
-                        waited: start.elapsed(),
-                        cause: NeverCause::Ended(end),
-                    }),
-                };
-            }
-            if Instant::now() < next_try {
-                std::thread::sleep(TICK.min(next_try - Instant::now()));
-                continue;
-            }
-            match connector.open() {
-                Ok(link) => break link,
-                Err(e) if lost_at.is_none() && e.kind() != io::ErrorKind::NotFound => {
-                    return Err(ListenError::Refused(e));
-                }
-                Err(e) if since.elapsed() >= settings.give_up_after => {
-                    return match lost_at {
-                        Some(_) => Ok(Ending::PortGone),
-                        None => Err(ListenError::NeverOpened {
-                            waited: since.elapsed(),
-                            cause: NeverCause::GaveUp(e),
-                        }),
-                    };
-                }
-                Err(_) => next_try += settings.retry_every,
-            }
+        let mut link = match open_link(connector, settings, start, lost_at, &ending)? {
+            Ok(link) => link,
+            Err(end) => return Ok(end),
         };
         session.opened(Instant::now());
         let again_after = lost_at.map(|t| t.elapsed());
@@ -187,5 +152,56 @@ pub fn run<C: Connector>(
             reason,
         })
         .map_err(ListenError::Sink)?;
+    }
+}
+
+/// Open the link: at the start, or again after it was lost at `lost_at`,
+/// trying every `settings.retry_every`. `Ok(Err(ending))` when the session
+/// ends first (stopped, out of time, the port gone for good).
+fn open_link<C: Connector>(
+    connector: &mut C,
+    settings: &Settings,
+    start: Instant,
+    lost_at: Option<Instant>,
+    ending: &dyn Fn() -> Option<Ending>,
+) -> Result<Result<C::Link, Ending>, ListenError> {
+    let since = lost_at.unwrap_or(start);
+    // After a loss, wait before the first attempt: a vanishing device
+    // node is best left a moment.
+    let mut next_try = if lost_at.is_some() {
+        since + settings.retry_every
+    } else {
+        since
+    };
+    loop {
+        if let Some(end) = ending() {
+            return match lost_at {
+                Some(_) => Ok(Err(end)),
+                None => Err(ListenError::NeverOpened {
+                    waited: start.elapsed(),
+                    cause: NeverCause::Ended(end),
+                }),
+            };
+        }
+        if Instant::now() < next_try {
+            std::thread::sleep(TICK.min(next_try - Instant::now()));
+            continue;
+        }
+        match connector.open() {
+            Ok(link) => return Ok(Ok(link)),
+            Err(e) if lost_at.is_none() && e.kind() != io::ErrorKind::NotFound => {
+                return Err(ListenError::Refused(e));
+            }
+            Err(e) if since.elapsed() >= settings.give_up_after => {
+                return match lost_at {
+                    Some(_) => Ok(Err(Ending::PortGone)),
+                    None => Err(ListenError::NeverOpened {
+                        waited: since.elapsed(),
+                        cause: NeverCause::GaveUp(e),
+                    }),
+                };
+            }
+            Err(_) => next_try += settings.retry_every,
+        }
     }
 }

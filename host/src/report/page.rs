@@ -16,7 +16,8 @@ fn card(label: &str, value: String) -> String {
     format!("<div><dt>{}</dt><dd>{value}</dd></div>", escape(label))
 }
 
-fn header(input: &ReportInput<'_>, f: &Figures) -> String {
+/// The summary cards of the page's header, one per headline figure.
+fn summary_cards(f: &Figures) -> Vec<String> {
     let hr = match f.hr_mean_bpm {
         Some(_) => format!(
             "{} <small>bpm</small>",
@@ -87,6 +88,11 @@ fn header(input: &ReportInput<'_>, f: &Figures) -> String {
             ));
         }
     }
+    cards
+}
+
+fn header(input: &ReportInput<'_>, f: &Figures) -> String {
+    let cards = summary_cards(f);
     let units = input
         .units
         .map(|u| format!(" ({})", escape(u)))

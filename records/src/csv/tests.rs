@@ -117,6 +117,7 @@ fn milliseconds_and_a_given_grid_rate() {
     assert!((t.resampled.unwrap().longest_gap_s - 0.04).abs() < 1e-12);
     assert!(TimeUnit::parse("min")
         .unwrap_err()
+        .to_string()
         .contains("unknown time unit"));
 }
 

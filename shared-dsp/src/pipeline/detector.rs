@@ -4,10 +4,10 @@
 //! A detector takes one band-passed sample at the detector's rate and now
 //! and then returns a [`Candidate`] (in the manner of quartiq idsp's
 //! `Process`: a small trait, state inside, no allocation). Each detector is
-//! a module of its own ([`super::elgendi`], [`super::zong`]) citing its
+//! a module of its own (`elgendi.rs`, `zong.rs`) citing its
 //! paper. [`DetectorKind`] names them: its wire code, command-line name and
 //! display name are exhaustive matches here, so a new variant is refused by
-//! the compiler until each is given, and [`AnyDetector::new`] until it is
+//! the compiler until each is given, and `AnyDetector::new` until it is
 //! built.
 
 use super::{Elgendi, Zong};

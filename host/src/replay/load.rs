@@ -1,0 +1,367 @@
+//! Loading a recording: a WFDB record or a CSV file, its signal, time
+//! column, polarity and accelerometer.
+
+use crate::channel::{choose, ChannelChoice};
+use crate::motion::{self, MotionSignals};
+use plethwire_dsp::pipeline::{MAX_RATE_HZ, MIN_RATE_HZ};
+use plethwire_records::resample::ResampleReport;
+use plethwire_records::{
+    csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignalOptions, LoadedSignal,
+    Rate, Record, TimeUnit,
+};
+use serde::Serialize;
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+/// Where a recording's samples come from.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Source {
+    /// Which signal: one name (WFDB signal, default `PLETH`, or CSV value
+    /// column); a comma-separated list to choose among ([`crate::channel`]);
+    /// `auto` to choose among all (a CSV's columns but the time column, a
+    /// record's signals). For a CSV file `None` means `auto`.
+    pub signal: Option<String>,
+    /// CSV: the sample rate, Hz; with a time column, the rate of the
+    /// uniform grid the rows are resampled onto.
+    pub rate: Option<f64>,
+    /// CSV: a column of times to take the rate from. Without it (and
+    /// without `rate`) a column named `time`, `time_s`, `time_ms` or
+    /// `time_us` (any case) is taken.
+    pub time_column: Option<String>,
+    /// CSV: the time column's unit, `s`, `ms` or `us` (default: seconds for
+    /// a time column named on the command line; see [`load`]).
+    pub time_unit: Option<String>,
+    /// Which way the pulse points in the file.
+    pub polarity: Polarity,
+    /// Accelerometer signals (x, y, z in g) of the same recording, as the
+    /// pipeline's motion reference ([`crate::motion`]); `None`: none.
+    pub motion: Option<[String; 3]>,
+}
+
+/// Which way a pulse points in the recorded signal.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Polarity {
+    /// Up for WFDB signals and CSV columns in general; down for CSV columns
+    /// named `R`, `G`, `B`, `red`, `green` or `blue` (any case): a camera's
+    /// brightness, which falls as blood fills the finger with each beat.
+    #[default]
+    Auto,
+    /// Systolic peaks are maxima (a pulse oximeter's plethysmogram).
+    Up,
+    /// Systolic peaks are minima (light through or off the finger): the
+    /// signal is negated before the pipeline.
+    Down,
+}
+
+/// Camera colour channel names, whose pulse points down.
+const COLOUR_CHANNELS: [&str; 6] = ["r", "g", "b", "red", "green", "blue"];
+
+/// How the samples were got from the file, for summaries.
+#[derive(Debug, Clone, Default, PartialEq, Serialize)]
+pub struct InputInfo {
+    /// The CSV time column used, if any.
+    pub time_column: Option<String>,
+    /// Its unit.
+    pub time_unit: Option<TimeUnit>,
+    /// Where the unit came from: `"given"`, `"default"`, `"column name"` or
+    /// `"guessed from the frame steps"`.
+    pub time_unit_from: Option<&'static str>,
+    /// What resampling did, when the times were uneven or a grid rate given.
+    pub resampled: Option<ResampleReport>,
+    /// The channel choice, when there were several candidates.
+    pub channel: Option<ChannelChoice>,
+    /// Whether the signal was negated (its pulse pointed down).
+    pub inverted: bool,
+}
+
+/// A loaded recording.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Recording {
+    /// Record name (file stem).
+    pub name: String,
+    /// The record's path without extension (WFDB) or the CSV file.
+    pub path: PathBuf,
+    /// The signal.
+    pub signal: LoadedSignal,
+    /// How it was got.
+    pub input: InputInfo,
+    /// The accelerometer, when one was asked for.
+    pub motion: Option<MotionSignals>,
+}
+
+/// A recording that could not be loaded or replayed; one line.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReplayError(pub String);
+
+impl fmt::Display for ReplayError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+impl std::error::Error for ReplayError {}
+
+impl From<plethwire_records::Error> for ReplayError {
+    fn from(e: plethwire_records::Error) -> Self {
+        Self(e.to_string())
+    }
+}
+
+fn is_csv(path: &Path) -> bool {
+    path.extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
+}
+
+/// Load `path`: a WFDB record (`dir/name` or `dir/name.hea`) or a CSV file.
+///
+/// A CSV file needs a rate or a time column. A time column named by the
+/// caller is in seconds unless `time_unit` says otherwise. When the caller
+/// names neither, a column named `time`, `time_s`, `time_ms` or `time_us`
+/// (any case) is the time column; its unit is `time_unit`, else the one in
+/// its name, else (plain `time`) the one of s, ms and us that puts the
+/// median frame rate within the pipeline's 25–1000 Hz (the three ranges
+/// do not overlap, so at most one does). The grid rate must lie in that
+/// range too.
+pub fn load(path: &Path, source: &Source) -> Result<Recording, ReplayError> {
+    let mut rec = load_as_recorded(path, source)?;
+    let down = match source.polarity {
+        Polarity::Up => false,
+        Polarity::Down => true,
+        Polarity::Auto => {
+            is_csv(path)
+                && COLOUR_CHANNELS
+                    .iter()
+                    .any(|c| rec.signal.name.eq_ignore_ascii_case(c))
+        }
+    };
+    if down {
+        rec.signal.samples.iter_mut().for_each(|x| *x = -*x);
+        rec.input.inverted = true;
+    }
+    Ok(rec)
+}
+
+/// [`load`] without the polarity.
+fn load_as_recorded(path: &Path, source: &Source) -> Result<Recording, ReplayError> {
+    let stem = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    if is_csv(path) {
+        return load_csv(path, stem, source);
+    }
+    let record = if path.extension().is_some_and(|e| e == "hea") {
+        path.with_extension("")
+    } else {
+        path.to_path_buf()
+    };
+    let opened = Record::open(&record)?;
+    let (signal, channel) = match wanted_signals(source.signal.as_deref()) {
+        Wanted::One(name) => (opened.load_signal(name)?, None),
+        Wanted::Among(names) => {
+            let names = names.unwrap_or_else(|| opened.signal_names());
+            let signals = names
+                .iter()
+                .map(|n| opened.load_signal(Some(n)))
+                .collect::<plethwire_records::Result<Vec<_>>>()?;
+            pick(path, signals)?
+        }
+    };
+    let motion = match &source.motion {
+        Some(names) => Some(motion::load_wfdb(path, &opened, names, &signal)?),
+        None => None,
+    };
+    Ok(Recording {
+        name: stem,
+        path: record,
+        signal,
+        input: InputInfo {
+            channel,
+            ..InputInfo::default()
+        },
+        motion,
+    })
+}
+
+/// The signals asked for.
+enum Wanted<'a> {
+    /// One by name (`None`: the reader's default).
+    One(Option<&'a str>),
+    /// A choice among these (`None`: all there are).
+    Among(Option<Vec<String>>),
+}
+
+fn wanted_signals(spec: Option<&str>) -> Wanted<'_> {
+    match spec {
+        None => Wanted::One(None),
+        Some(s) if s.trim().eq_ignore_ascii_case("auto") => Wanted::Among(None),
+        Some(s) if s.contains(',') => Wanted::Among(Some(
+            s.split(',')
+                .map(|n| n.trim().to_string())
+                .filter(|n| !n.is_empty())
+                .collect(),
+        )),
+        Some(s) => Wanted::One(Some(s)),
+    }
+}
+
+/// The chosen signal among `signals` and the choice.
+fn pick(
+    path: &Path,
+    mut signals: Vec<LoadedSignal>,
+) -> Result<(LoadedSignal, Option<ChannelChoice>), ReplayError> {
+    if signals.len() == 1 {
+        return Ok((signals.remove(0), None));
+    }
+    let (i, choice) = choose(&signals)
+        .ok_or_else(|| ReplayError(format!("{}: no signals to choose from", path.display())))?;
+    Ok((signals.swap_remove(i), Some(choice)))
+}
+
+/// Names of a time column found without being asked for, and their units.
+/// A time column's name, its unit (`None`: to be guessed) and where the
+/// unit came from.
+type TimedColumn = (String, Option<TimeUnit>, &'static str);
+
+const TIME_COLUMN_NAMES: [(&str, Option<TimeUnit>); 4] = [
+    ("time", None),
+    ("time_s", Some(TimeUnit::S)),
+    ("time_ms", Some(TimeUnit::Ms)),
+    ("time_us", Some(TimeUnit::Us)),
+];
+
+fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, ReplayError> {
+    let fail = |m: String| ReplayError(format!("{}: {m}", path.display()));
+    let given_unit = source
+        .time_unit
+        .as_deref()
+        .map(TimeUnit::parse)
+        .transpose()
+        .map_err(|e| fail(e.to_string()))?;
+    let names = csv_column_names(path)?;
+    let time = time_column(source, &names, given_unit).map_err(fail)?;
+    let values: Vec<String> = match wanted_signals(source.signal.as_deref()) {
+        Wanted::One(Some(n)) => vec![n.to_string()],
+        Wanted::Among(Some(list)) => list,
+        Wanted::One(None) | Wanted::Among(None) => names
+            .iter()
+            .filter(|n| time.as_ref().is_none_or(|(t, _, _)| *n != t))
+            .cloned()
+            .collect(),
+    };
+    if values.is_empty() {
+        return Err(fail("no value column besides the time column".into()));
+    }
+    let columns: Vec<ColumnRef> = values.iter().cloned().map(ColumnRef::Name).collect();
+    let mut options = CsvSignalOptions::with_rate(columns[0].clone(), source.rate.unwrap_or(1.0));
+    let mut input = InputInfo::default();
+    if let Some((column, unit, unit_from)) = &time {
+        let unit = match unit {
+            Some(u) => *u,
+            None => guess_unit(path, column)?,
+        };
+        let time_ref = ColumnRef::Name(column.clone());
+        options.rate = match source.rate {
+            Some(fs) => Rate::Resample { time: time_ref, fs },
+            None => Rate::FromTime(time_ref),
+        };
+        options.time_unit = unit;
+        input.time_column = Some(column.clone());
+        input.time_unit = Some(unit);
+        input.time_unit_from = Some(unit_from);
+    }
+    let read = read_csv_signals(path, &columns, &options)?;
+    input.resampled = read.time.and_then(|t| t.resampled);
+    let fs = read.signals[0].fs;
+    if !(f64::from(MIN_RATE_HZ)..=f64::from(MAX_RATE_HZ)).contains(&fs) {
+        let hint = if time.is_some() {
+            " (check --time-unit, or give the grid rate with --rate)"
+        } else {
+            ""
+        };
+        return Err(fail(format!(
+            "sample rate {fs:.4} Hz is outside the pipeline's {MIN_RATE_HZ}-{MAX_RATE_HZ} Hz{hint}"
+        )));
+    }
+    let (signal, channel) = pick(path, read.signals)?;
+    input.channel = channel;
+    let motion = match &source.motion {
+        Some(names) => Some(motion::load_csv(path, names, &options, &signal)?),
+        None => None,
+    };
+    Ok(Recording {
+        name,
+        path: path.to_path_buf(),
+        signal,
+        input,
+        motion,
+    })
+}
+
+/// A CSV file's time column, its unit (`None`: to be guessed) and where the
+/// unit came from; `None` when the rate is given and no time column named.
+fn time_column(
+    source: &Source,
+    names: &[String],
+    given_unit: Option<TimeUnit>,
+) -> Result<Option<TimedColumn>, String> {
+    Ok(match (&source.time_column, source.rate) {
+        (Some(t), _) => Some((t.clone(), Some(given_unit.unwrap_or_default()), {
+            if given_unit.is_some() {
+                "given"
+            } else {
+                "default"
+            }
+        })),
+        (None, Some(_)) => None,
+        (None, None) => {
+            let found = names.iter().find_map(|n| {
+                TIME_COLUMN_NAMES
+                    .iter()
+                    .find(|(t, _)| n.eq_ignore_ascii_case(t))
+                    .map(|(_, unit)| (n.clone(), *unit))
+            });
+            let (column, unit) = found.ok_or_else(|| {
+                "a CSV recording needs --rate HZ or --time-column NAME (no column named time, time_s, time_ms or time_us)".to_string()
+            })?;
+            Some(match (given_unit, unit) {
+                (Some(u), _) => (column, Some(u), "given"),
+                (None, Some(u)) => (column, Some(u), "column name"),
+                (None, None) => (column, None, "guessed from the frame steps"),
+            })
+        }
+    })
+}
+
+/// The unit of s, ms and us that puts the median step of `column` within
+/// the pipeline's rates.
+fn guess_unit(path: &Path, column: &str) -> Result<TimeUnit, ReplayError> {
+    let raw = read_csv_signal(
+        path,
+        &CsvSignalOptions::with_rate(ColumnRef::Name(column.to_string()), 1.0),
+    )?;
+    let mut steps: Vec<f64> = raw
+        .signal
+        .samples
+        .windows(2)
+        .map(|w| w[1] - w[0])
+        .filter(|d| *d > 0.0)
+        .collect();
+    steps.sort_by(f64::total_cmp);
+    let step = steps.get(steps.len() / 2).copied();
+    [TimeUnit::S, TimeUnit::Ms, TimeUnit::Us]
+        .into_iter()
+        .find(|u| {
+            step.is_some_and(|d| {
+                let hz = 1.0 / (d * u.seconds());
+                (f64::from(MIN_RATE_HZ)..=f64::from(MAX_RATE_HZ)).contains(&hz)
+            })
+        })
+        .ok_or_else(|| {
+            ReplayError(format!(
+                "{}: column {column:?}: no time unit (s, ms, us) puts its median step within {MIN_RATE_HZ}-{MAX_RATE_HZ} Hz; give --time-unit and --rate",
+                path.display()
+            ))
+        })
+}
