@@ -2,7 +2,8 @@
 //! (crate `plethwire-cli`), usable without a command line.
 //! Filter design reports: [`filter_report`]. Replaying a recording through
 //! the pipeline: [`replay`]; scoring beats against references: [`score`],
-//! with the ECG as a beat reference: [`ecg`].
+//! with the ECG as a beat reference: [`ecg`]; both match beats as
+//! [`matching`] does.
 //! Synthetic recordings with known beats come from `plethwire-synth`.
 //! Choosing the channel with the clearest pulse among several: [`channel`].
 //! Reading and writing recordings (WFDB, CSV) lives in `plethwire-records`.
@@ -19,6 +20,7 @@ pub mod emulate;
 pub mod filter_report;
 pub mod frontend;
 pub mod listen;
+pub mod matching;
 pub mod motion;
 pub mod plot;
 pub mod replay;

@@ -4,7 +4,6 @@
 
 use std::path::Path;
 
-use crate::replay::ReplayError;
 use plethwire_records::{read_csv_signals, ColumnRef, CsvSignalOptions, LoadedSignal, Record};
 
 /// The three accelerometer signals of a recording.
@@ -40,6 +39,32 @@ impl MotionSignals {
 #[error("'{0}' is not three accelerometer signals X,Y,Z (for example ACCX,ACCY,ACCZ)")]
 pub struct MotionNamesError(pub String);
 
+/// Motion signals that could not be read, or that do not fit the pulse.
+#[derive(Debug, thiserror::Error)]
+pub enum MotionLoadError {
+    /// The record or CSV file would not give the named signals.
+    #[error("--motion: {0}")]
+    Read(#[source] plethwire_records::Error),
+    /// A motion signal's rate or length differs from the pulse signal's.
+    #[error("{}: motion signal '{motion}' has {motion_len} samples at {motion_fs} Hz, the pulse signal '{pulse}' {pulse_len} at {pulse_fs} Hz; they must be the same", path.display())]
+    Mismatch {
+        /// The recording.
+        path: std::path::PathBuf,
+        /// The motion signal that differs.
+        motion: String,
+        /// Its length, samples.
+        motion_len: usize,
+        /// Its rate, Hz.
+        motion_fs: f64,
+        /// The pulse signal.
+        pulse: String,
+        /// Its length, samples.
+        pulse_len: usize,
+        /// Its rate, Hz.
+        pulse_fs: f64,
+    },
+}
+
 /// Parse `X,Y,Z`: exactly three non-empty signal names.
 pub fn parse_motion_names(s: &str) -> Result<[String; 3], MotionNamesError> {
     let names: Vec<String> = s.split(',').map(|n| n.trim().to_string()).collect();
@@ -56,12 +81,12 @@ pub fn load_wfdb(
     record: &Record,
     names: &[String; 3],
     pulse: &LoadedSignal,
-) -> Result<MotionSignals, ReplayError> {
+) -> Result<MotionSignals, MotionLoadError> {
     let mut loaded = Vec::with_capacity(3);
     for name in names {
         let s = record
             .load_signal(Some(name))
-            .map_err(|e| ReplayError(format!("--motion: {e}")))?;
+            .map_err(MotionLoadError::Read)?;
         loaded.push(s);
     }
     assemble(path, names, loaded, pulse)
@@ -74,10 +99,9 @@ pub fn load_csv(
     names: &[String; 3],
     options: &CsvSignalOptions,
     pulse: &LoadedSignal,
-) -> Result<MotionSignals, ReplayError> {
+) -> Result<MotionSignals, MotionLoadError> {
     let columns: Vec<ColumnRef> = names.iter().cloned().map(ColumnRef::Name).collect();
-    let read = read_csv_signals(path, &columns, options)
-        .map_err(|e| ReplayError(format!("--motion: {e}")))?;
+    let read = read_csv_signals(path, &columns, options).map_err(MotionLoadError::Read)?;
     assemble(path, names, read.signals, pulse)
 }
 
@@ -87,19 +111,18 @@ fn assemble(
     names: &[String; 3],
     loaded: Vec<LoadedSignal>,
     pulse: &LoadedSignal,
-) -> Result<MotionSignals, ReplayError> {
+) -> Result<MotionSignals, MotionLoadError> {
     for s in &loaded {
         if s.fs != pulse.fs || s.samples.len() != pulse.samples.len() {
-            return Err(ReplayError(format!(
-                "{}: motion signal '{}' has {} samples at {} Hz, the pulse signal '{}' {} at {} Hz; they must be the same",
-                path.display(),
-                s.name,
-                s.samples.len(),
-                s.fs,
-                pulse.name,
-                pulse.samples.len(),
-                pulse.fs
-            )));
+            return Err(MotionLoadError::Mismatch {
+                path: path.to_path_buf(),
+                motion: s.name.clone(),
+                motion_len: s.samples.len(),
+                motion_fs: s.fs,
+                pulse: pulse.name.clone(),
+                pulse_len: pulse.samples.len(),
+                pulse_fs: pulse.fs,
+            });
         }
     }
     let mut axes = loaded.into_iter().map(|s| s.samples);

@@ -218,14 +218,6 @@ fn cyclic_groups(edges: &BTreeSet<(String, String)>) -> Vec<String> {
     groups.into_iter().collect()
 }
 
-/// Loops known today outside the plot and report work, each to be taken
-/// out of this list by the change that breaks it (the test fails when a
-/// listed loop is gone, so the list cannot go stale).
-const KNOWN: [&str; 2] = [
-    "host: (root): ecg <-> score",
-    "host: (root): motion <-> replay",
-];
-
 #[test]
 fn no_sibling_modules_depend_on_each_other() {
     let workspace = Path::new(env!("CARGO_MANIFEST_DIR")).parent().unwrap();
@@ -242,14 +234,7 @@ fn no_sibling_modules_depend_on_each_other() {
             }
         }
     }
-    let known: BTreeSet<String> = KNOWN.iter().map(|s| s.to_string()).collect();
-    let new: Vec<&String> = cycles.difference(&known).collect();
-    let gone: Vec<&String> = known.difference(&cycles).collect();
-    assert!(new.is_empty(), "sibling import cycles: {new:#?}");
-    assert!(
-        gone.is_empty(),
-        "broken at last, drop from KNOWN: {gone:#?}"
-    );
+    assert!(cycles.is_empty(), "sibling import cycles: {cycles:#?}");
 }
 
 #[test]

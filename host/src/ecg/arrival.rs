@@ -11,11 +11,11 @@
 //! the offsets and missed ones push the next beat's pulse a whole interval
 //! later, so neither moves the mode, while both pull a median. Each R peak
 //! is then moved by its delay and the pulses are matched one to one within
-//! ±150 ms (ANSI/AAMI EC57 practice, [`crate::score::match_pairs`]).
+//! ±150 ms (ANSI/AAMI EC57 practice, [`crate::matching::match_pairs`]).
 
 use super::usable::{in_spans, unusable_spans};
 use super::{r_peaks, EcgError};
-use crate::score::{match_pairs, MatchCounts, MATCH_WINDOW_S};
+use crate::matching::{match_pairs, MatchCounts, MATCH_WINDOW_S};
 use serde::Serialize;
 
 /// Offsets after an R peak a pulse may arrive at, seconds. The pulse

@@ -102,6 +102,12 @@ impl fmt::Display for ReplayError {
 
 impl std::error::Error for ReplayError {}
 
+impl From<motion::MotionLoadError> for ReplayError {
+    fn from(e: motion::MotionLoadError) -> Self {
+        ReplayError(e.to_string())
+    }
+}
+
 impl From<plethwire_records::Error> for ReplayError {
     fn from(e: plethwire_records::Error) -> Self {
         Self(e.to_string())
