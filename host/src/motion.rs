@@ -40,7 +40,7 @@ impl MotionSignals {
 pub struct MotionNamesError(pub String);
 
 /// Motion signals that could not be read, or that do not fit the pulse.
-#[derive(Debug, thiserror::Error)]
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum MotionLoadError {
     /// The record or CSV file would not give the named signals.
     #[error("--motion: {0}")]

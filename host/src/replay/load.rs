@@ -10,7 +10,6 @@ use plethwire_records::{
     Rate, Record, TimeUnit,
 };
 use serde::Serialize;
-use std::fmt;
 use std::path::{Path, PathBuf};
 
 /// Where a recording's samples come from.
@@ -90,28 +89,18 @@ pub struct Recording {
     pub motion: Option<MotionSignals>,
 }
 
-/// A recording that could not be loaded or replayed; one line.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ReplayError(pub String);
-
-impl fmt::Display for ReplayError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(&self.0)
-    }
-}
-
-impl std::error::Error for ReplayError {}
-
-impl From<motion::MotionLoadError> for ReplayError {
-    fn from(e: motion::MotionLoadError) -> Self {
-        ReplayError(e.to_string())
-    }
-}
-
-impl From<plethwire_records::Error> for ReplayError {
-    fn from(e: plethwire_records::Error) -> Self {
-        Self(e.to_string())
-    }
+/// A recording that could not be loaded, replayed or scored; one line.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum ReplayError {
+    /// A recording or reference file that would not read.
+    #[error(transparent)]
+    Records(#[from] plethwire_records::Error),
+    /// The accelerometer asked for would not load or does not fit.
+    #[error(transparent)]
+    Motion(#[from] motion::MotionLoadError),
+    /// A recording refused for what it holds (the message names the file).
+    #[error("{0}")]
+    Refused(String),
 }
 
 fn is_csv(path: &Path) -> bool {
@@ -220,8 +209,9 @@ fn pick(
     if signals.len() == 1 {
         return Ok((signals.remove(0), None));
     }
-    let (i, choice) = choose(&signals)
-        .ok_or_else(|| ReplayError(format!("{}: no signals to choose from", path.display())))?;
+    let (i, choice) = choose(&signals).ok_or_else(|| {
+        ReplayError::Refused(format!("{}: no signals to choose from", path.display()))
+    })?;
     Ok((signals.swap_remove(i), Some(choice)))
 }
 
@@ -238,7 +228,7 @@ const TIME_COLUMN_NAMES: [(&str, Option<TimeUnit>); 4] = [
 ];
 
 fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, ReplayError> {
-    let fail = |m: String| ReplayError(format!("{}: {m}", path.display()));
+    let fail = |m: String| ReplayError::Refused(format!("{}: {m}", path.display()));
     let given_unit = source
         .time_unit
         .as_deref()
@@ -365,7 +355,7 @@ fn guess_unit(path: &Path, column: &str) -> Result<TimeUnit, ReplayError> {
             })
         })
         .ok_or_else(|| {
-            ReplayError(format!(
+            ReplayError::Refused(format!(
                 "{}: column {column:?}: no time unit (s, ms, us) puts its median step within {MIN_RATE_HZ}-{MAX_RATE_HZ} Hz; give --time-unit and --rate",
                 path.display()
             ))

@@ -84,12 +84,12 @@ pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
     for p in paths {
         if p.is_dir() {
             let entries = std::fs::read_dir(p).map_err(|e| {
-                ReplayError(format!("{}: cannot list the folder: {e}", p.display()))
+                ReplayError::Refused(format!("{}: cannot list the folder: {e}", p.display()))
             })?;
             let mut found =
                 recordings_in_folder(entries.filter_map(|e| e.ok().map(|e| e.path())).collect());
             if found.is_empty() {
-                return Err(ReplayError(format!(
+                return Err(ReplayError::Refused(format!(
                     "{}: no WFDB records (.hea) or CSV files in this folder",
                     p.display()
                 )));
@@ -167,7 +167,7 @@ pub fn score_all(
             ..config
         };
         let run = replay_recording(&rec, cfg)
-            .map_err(|e| ReplayError(format!("{}: {e}", path.display())))?;
+            .map_err(|e| ReplayError::Refused(format!("{}: {e}", path.display())))?;
         records.push(score_one(&rec, &run, refs)?);
     }
     Ok(Scores::pooled(records))
@@ -204,7 +204,7 @@ mod ecg_tests {
             motion: None,
         };
         let run = replay(&samples, Config::new(100.0)).unwrap();
-        let e = ecg_score(&rec, &run, "II").unwrap_err().0;
+        let e = ecg_score(&rec, &run, "II").unwrap_err().to_string();
         assert!(
             e.contains("r") && e.contains("125 Hz") && e.contains("100 Hz"),
             "{e}"
@@ -214,7 +214,7 @@ mod ecg_tests {
             path: dir.path().join("r.csv"),
             ..rec
         };
-        let e = ecg_score(&csv, &run, "II").unwrap_err().0;
+        let e = ecg_score(&csv, &run, "II").unwrap_err().to_string();
         assert!(e.contains("r.csv") && e.contains("WFDB"), "{e}");
     }
 }

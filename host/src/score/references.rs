@@ -96,7 +96,7 @@ pub fn reference_rate(record: &Path, refs: &References) -> Result<Option<RateSer
     }
     let n = read_numerics(&table)?;
     let column = n.column(&refs.rate_column).ok_or_else(|| {
-        ReplayError(format!(
+        ReplayError::Refused(format!(
             "{}: no column '{}' (columns: {})",
             table.display(),
             refs.rate_column,
@@ -133,14 +133,14 @@ pub fn load_ecg(rec: &Recording, name: &str) -> Result<EcgReference, ReplayError
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
     {
-        return Err(ReplayError(format!(
+        return Err(ReplayError::Refused(format!(
             "{}: --ecg needs a WFDB record, not a CSV file",
             rec.path.display()
         )));
     }
     let ecg = read_wfdb_signal(&rec.path, Some(name))?;
     if ecg.fs != rec.signal.fs {
-        return Err(ReplayError(format!(
+        return Err(ReplayError::Refused(format!(
             "{}: ECG signal '{name}' is at {} Hz, the pulse signal '{}' at {} Hz; they must be the same",
             rec.path.display(),
             ecg.fs,
@@ -149,7 +149,7 @@ pub fn load_ecg(rec: &Recording, name: &str) -> Result<EcgReference, ReplayError
         )));
     }
     EcgReference::new(&ecg.samples, ecg.fs)
-        .map_err(|e| ReplayError(format!("{}: {e}", rec.path.display())))
+        .map_err(|e| ReplayError::Refused(format!("{}: {e}", rec.path.display())))
 }
 
 pub(crate) fn numerics_path(record: &Path, suffix: &str) -> PathBuf {

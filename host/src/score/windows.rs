@@ -43,7 +43,7 @@ pub struct RateWindow {
 /// starts. A malformed table is a one-line error naming the file.
 pub fn read_rate_windows(path: &Path) -> Result<Vec<RateWindow>, ReplayError> {
     let n = read_numerics(path)?;
-    let bad = |what: String| ReplayError(format!("{}: {what}", path.display()));
+    let bad = |what: String| ReplayError::Refused(format!("{}: {what}", path.display()));
     if n.time_name != "window_start_s" {
         return Err(bad(format!(
             "first column is '{}', expected window_start_s",

@@ -138,7 +138,7 @@ fn prepare(
             progress(&path.display().to_string());
             let rec = load(path, &source)?;
             let run = replay_recording(&rec, Config::new(rec.signal.fs as f32))
-                .map_err(|e| ReplayError(format!("{}: {e}", path.display())))?;
+                .map_err(|e| ReplayError::Refused(format!("{}: {e}", path.display())))?;
             let refs = RecordReferences::load(&rec, &refs)?;
             Ok(Prepared { rec, run, refs })
         })
