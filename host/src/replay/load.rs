@@ -236,7 +236,7 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
         .transpose()
         .map_err(|e| fail(e.to_string()))?;
     let names = csv_column_names(path)?;
-    let time = time_column(source, &names, given_unit).map_err(fail)?;
+    let time = time_column(source, &names, given_unit).map_err(|e| fail(e.to_string()))?;
     let values: Vec<String> = match wanted_signals(source.signal.as_deref()) {
         Wanted::One(Some(n)) => vec![n.to_string()],
         Wanted::Among(Some(list)) => list,
@@ -295,13 +295,18 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
     })
 }
 
+/// A CSV recording with neither a rate nor a time column.
+#[derive(Debug, thiserror::Error)]
+#[error("a CSV recording needs --rate HZ or --time-column NAME (no column named time, time_s, time_ms or time_us)")]
+struct NoTimeColumn;
+
 /// A CSV file's time column, its unit (`None`: to be guessed) and where the
 /// unit came from; `None` when the rate is given and no time column named.
 fn time_column(
     source: &Source,
     names: &[String],
     given_unit: Option<TimeUnit>,
-) -> Result<Option<TimedColumn>, String> {
+) -> Result<Option<TimedColumn>, NoTimeColumn> {
     Ok(match (&source.time_column, source.rate) {
         (Some(t), _) => Some((t.clone(), Some(given_unit.unwrap_or_default()), {
             if given_unit.is_some() {
@@ -318,9 +323,7 @@ fn time_column(
                     .find(|(t, _)| n.eq_ignore_ascii_case(t))
                     .map(|(_, unit)| (n.clone(), *unit))
             });
-            let (column, unit) = found.ok_or_else(|| {
-                "a CSV recording needs --rate HZ or --time-column NAME (no column named time, time_s, time_ms or time_us)".to_string()
-            })?;
+            let (column, unit) = found.ok_or(NoTimeColumn)?;
             Some(match (given_unit, unit) {
                 (Some(u), _) => (column, Some(u), "given"),
                 (None, Some(u)) => (column, Some(u), "column name"),
