@@ -39,7 +39,14 @@ pub struct SampleRateError {
 
 impl fmt::Display for SampleRateError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "{RateRange}, not {} Hz", self.rate_hz)
+        let a = self.rate_hz.abs();
+        // A measured rate far out (a time column in the wrong unit) reads
+        // better in exponent form than as hundreds of digits.
+        if a.is_finite() && a != 0.0 && !(1e-3..1e9).contains(&a) {
+            write!(f, "{RateRange}, not {:e} Hz", self.rate_hz)
+        } else {
+            write!(f, "{RateRange}, not {} Hz", self.rate_hz)
+        }
     }
 }
 
@@ -214,6 +221,10 @@ mod tests {
         assert_eq!(
             SampleRateError { rate_hz: 2000.0 }.to_string(),
             "the sample rate must be between 25 and 1000 Hz, not 2000 Hz"
+        );
+        assert_eq!(
+            SampleRateError { rate_hz: 1e308 }.to_string(),
+            "the sample rate must be between 25 and 1000 Hz, not 1e308 Hz"
         );
         // The pipeline's refusal is the same words.
         let e = Pipeline::new(Config::new(2000.0)).err().unwrap();
