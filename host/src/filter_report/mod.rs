@@ -26,7 +26,8 @@ pub use report::{
     SectionCoefficients, BOARD_STRUCTURE, ZERO_PROXIMITY,
 };
 pub use spec::{
-    FilterSpec, Stage, DEFAULT_NOTCH_QUALITY, DEFAULT_ORDER, MAX_DESIGN_RATE_HZ, USEFUL_FREQUENCIES_HZ,
+    FilterSpec, Stage, DEFAULT_NOTCH_QUALITY, DEFAULT_ORDER, MAX_DESIGN_RATE_HZ,
+    USEFUL_FREQUENCIES_HZ,
 };
 
 use plethwire_dsp::design::MAX_SECTIONS;

@@ -212,7 +212,9 @@ impl FilterReport {
 fn rate_warning(rate_hz: f64) -> Option<String> {
     plethwire_dsp::pipeline::check_sample_rate(rate_hz)
         .err()
-        .map(|e| format!("{e} for the beat pipeline; this filter is designed anyway, for other uses"))
+        .map(|e| {
+            format!("{e} for the beat pipeline; this filter is designed anyway, for other uses")
+        })
 }
 
 fn board_sections(design: &Design) -> Result<Vec<Biquad<f64>>, FilterDesignError> {

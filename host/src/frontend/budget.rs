@@ -67,7 +67,12 @@ pub struct Swing {
 impl Swing {
     /// The swing of the circuit's pulse at the ADC input, the chain's
     /// last node `adc_in`, if the circuit gives a pulse.
-    pub fn of(circuit: &Circuit, chain: &Chain, adc: &AdcBudget, adc_in: &NodeLevel) -> Option<Self> {
+    pub fn of(
+        circuit: &Circuit,
+        chain: &Chain,
+        adc: &AdcBudget,
+        adc_in: &NodeLevel,
+    ) -> Option<Self> {
         let pulse_ua = circuit.pulse.change_ua?;
         let swing_vpp = chain.midband_v_per_ua().abs() * pulse_ua;
         let dc_shift_v = circuit
@@ -124,7 +129,6 @@ impl Swing {
         }
         out
     }
-
 }
 
 /// Notes on the DC level: blocked, unknown where it matters, or assumed.
@@ -221,7 +225,8 @@ mod tests {
         let f = s.findings(&c);
         assert_eq!((f[0].level, f[0].node.as_str()), (Level::Error, node::ADC));
         assert!(
-            f[0].message.starts_with("clipping: the output swings from -0.7 V to 4 V"),
+            f[0].message
+                .starts_with("clipping: the output swings from -0.7 V to 4 V"),
             "{f:?}"
         );
         assert!(f[0].message.contains("wider than the range"), "{f:?}");
@@ -260,6 +265,8 @@ mod tests {
         assert!((s.codes - 5.833).abs() < 1e-3);
         let f = s.findings(&c);
         assert_eq!(f[0].level, Level::Warning);
-        assert!(f[0].message.starts_with("the pulse spans only 5.83 ADC codes"));
+        assert!(f[0]
+            .message
+            .starts_with("the pulse spans only 5.83 ADC codes"));
     }
 }

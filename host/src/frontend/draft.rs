@@ -16,11 +16,11 @@ mod parts;
 mod supplies;
 
 use parts::kind_name;
-use supplies::ordered_rails;
 pub use parts::{
     AdcDraft, DetectorDraft, DetectorKind, LedDraft, PulseDraft, RailsDraft, RailsPair, Resistors,
     StageDraft, StageError, StageKind,
 };
+use supplies::ordered_rails;
 
 /// ADC resolution when none is given: the 12-bit ADC of the STM32F411, the
 /// board plethwire's firmware targets.
@@ -174,10 +174,12 @@ pub(super) fn invalid(key: impl Into<String>, reason: impl Into<String>) -> Fron
 
 /// `v` within `bounds`, or which key is wrong.
 fn bounded(v: f64, key: &str, bounds: Bounds) -> Result<f64, FrontendError> {
-    bounds.check(v).map_err(|source| FrontendError::OutOfBounds {
-        key: key.to_owned(),
-        source,
-    })
+    bounds
+        .check(v)
+        .map_err(|source| FrontendError::OutOfBounds {
+            key: key.to_owned(),
+            source,
+        })
 }
 
 impl Draft {
@@ -320,7 +322,11 @@ impl Draft {
     }
 
     fn resolve_rails(&self, supply_v: f64) -> Result<Rails, FrontendError> {
-        let low_v = bounded(self.rails.low_v.unwrap_or(0.0), "rails.low_v", limits::LEVEL_V)?;
+        let low_v = bounded(
+            self.rails.low_v.unwrap_or(0.0),
+            "rails.low_v",
+            limits::LEVEL_V,
+        )?;
         let high_v = bounded(
             self.rails.high_v.unwrap_or(supply_v),
             "rails.high_v",

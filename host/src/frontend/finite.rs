@@ -16,7 +16,10 @@ fn numbers(r: &FrontendReport) -> Vec<(String, f64)> {
         ("transfer function's k".into(), r.chain.transfer.k),
         ("ADC step in photocurrent".into(), r.adc.lsb_ua),
         ("ADC range in photocurrent".into(), r.adc.full_scale_ua),
-        ("detector's photocurrent range".into(), r.input_range.most_ua),
+        (
+            "detector's photocurrent range".into(),
+            r.input_range.most_ua,
+        ),
         ("recommended sample rate".into(), r.sampling.recommended_hz),
     ];
     let roots = r.chain.transfer.poles_rad_s.iter();

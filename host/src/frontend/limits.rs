@@ -32,7 +32,11 @@ pub struct OutOfBounds {
 
 impl Bounds {
     fn floor_text(&self) -> String {
-        let word = if self.above_least { "above" } else { "at least" };
+        let word = if self.above_least {
+            "above"
+        } else {
+            "at least"
+        };
         format!("{word} {} {}", self.least, self.unit)
     }
 
@@ -123,12 +127,18 @@ mod tests {
     fn bounds_refuse_nonsense_with_one_message() {
         assert_eq!(SUPPLY_V.check(5.0), Ok(5.0));
         let e = SUPPLY_V.check(1e308).unwrap_err();
-        assert_eq!(e.to_string(), "must be above 0 V and at most 100 V, not 1e308");
+        assert_eq!(
+            e.to_string(),
+            "must be above 0 V and at most 100 V, not 1e308"
+        );
         assert!(SUPPLY_V.check(0.0).is_err());
         assert!(SUPPLY_V.check(f64::NAN).is_err());
         assert_eq!(LEVEL_V.check(-100.0), Ok(-100.0));
         let e = LEVEL_V.check(-101.0).unwrap_err();
-        assert_eq!(e.to_string(), "must be at least -100 V and at most 100 V, not -101");
+        assert_eq!(
+            e.to_string(),
+            "must be at least -100 V and at most 100 V, not -101"
+        );
         assert!(ADC_REFERENCE_V.check(1e-320).is_err());
         assert_eq!(DC_UA.check(0.0), Ok(0.0));
         assert!(PULSE_UA.check(0.0).is_err());

@@ -58,8 +58,8 @@ pub use draft::{
     DEFAULT_ADC_REFERENCE_V,
 };
 pub use findings::{node, stage_node, Finding, Level};
-pub use nodes::{InputRange, NodeLevel};
 pub use led::{parallel_ohm, LedBudget};
+pub use nodes::{InputRange, NodeLevel};
 pub use plot::{render_svg, write_svg, PLOT_RANGE_HZ};
 pub use quantity::{bpm, parse_value, plain, si, sig3, Farads, Kind, Ohms, ValueError};
 pub use render::human_report;

@@ -7,7 +7,9 @@
 //! around the chain's bias (`adc.bias_v`), so a stage that passes DC with
 //! gain g puts `bias + g·(input − bias)` out, and one that blocks DC puts
 //! out the bias. The pulse swings each node by its mid-band gain from the
-//! photocurrent in, the most any frequency gets, centred on the DC level.
+//! photocurrent in, the most any frequency gets, centred on the steady
+//! level; a node spans that swing and its dark level (the board reads the
+//! detector with the LED off as well as on).
 
 use serde::Serialize;
 
@@ -112,7 +114,9 @@ pub fn levels(circuit: &Circuit, chain: &Chain) -> Vec<NodeLevel> {
         };
         let swing_vpp = circuit.pulse.change_ua.map(|p| (gain * p * 1e-6).abs());
         let half = swing_vpp.unwrap_or(0.0) / 2.0;
-        let (low_v, high_v) = (steady.min(dark) - half, steady.max(dark) + half);
+        // The board samples with the LED off too, so the dark level is
+        // reached as well; the pulse rides only on the steady level.
+        let (low_v, high_v) = ((steady - half).min(dark), (steady + half).max(dark));
         out.push(NodeLevel {
             node: if i == 0 {
                 node::DETECTOR.to_owned()
@@ -166,10 +170,119 @@ pub fn findings(circuit: &Circuit, levels: &[NodeLevel], range: &InputRange) -> 
             ),
         ));
     }
-    out.push(Finding::new(
-        Level::Note,
-        node::DETECTOR,
-        range.describe(&circuit.detector),
-    ));
+    // The error at the detector already gives its range.
+    if !levels.first().is_some_and(|n| n.saturates) {
+        out.push(Finding::new(
+            Level::Note,
+            node::DETECTOR,
+            range.describe(&circuit.detector),
+        ));
+    }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::frontend::circuit::AmpStage;
+    use crate::frontend::test_circuit::circuit;
+
+    /// A 1 MΩ TIA with its reference at 1.65 V on rails of 0 V to 3.3 V.
+    fn tia_1m(dc_ua: f64) -> Circuit {
+        let mut c = circuit(1.0, 0.02);
+        c.detector = Detector::Photodiode {
+            feedback_ohm: 1e6,
+            feedback_f: None,
+        };
+        c.stages = vec![AmpStage::HighPass {
+            r_ohm: 100e3,
+            c_f: 4.7e-6,
+        }];
+        c.supplies.detector = Rails {
+            low_v: 0.0,
+            high_v: 3.3,
+        };
+        c.supplies.stages = vec![None];
+        c.pulse.dc_ua = Some(dc_ua);
+        c
+    }
+
+    #[test]
+    fn the_tia_output_is_checked_against_its_own_rails() {
+        // 2 µA into 1 MΩ below a 1.65 V reference: −0.35 V, under the
+        // 0 V rail (Ohm's law), although the ADC sees only the AC part.
+        let c = tia_1m(2.0);
+        let chain = Chain::of(&c);
+        let nodes = levels(&c, &chain);
+        let tia = &nodes[0];
+        assert!((tia.dark_v - 1.65).abs() < 1e-12);
+        assert!((tia.steady_v + 0.35).abs() < 1e-12);
+        assert!((tia.swing_vpp.unwrap() - 0.02).abs() < 1e-12);
+        assert!((tia.low_v + 0.36).abs() < 1e-12 && (tia.high_v - 1.65).abs() < 1e-12);
+        assert!(tia.saturates);
+        // After the AC coupling: at the bias, passive, not saturating.
+        assert_eq!(nodes[1].rails, None);
+        assert!((nodes[1].steady_v - 1.65).abs() < 1e-12 && !nodes[1].saturates);
+
+        let range = InputRange::of(&c);
+        assert!((range.most_ua - 1.65).abs() < 1e-12);
+        assert_eq!(range.rail_v, 0.0);
+        assert!((range.given_ua.unwrap() - 2.01).abs() < 1e-12);
+        let f = findings(&c, &nodes, &range);
+        assert_eq!(
+            (f[0].level, f[0].node.as_str()),
+            (Level::Error, node::DETECTOR)
+        );
+        assert!(
+            f[0].message.starts_with("saturates: detector output (photodiode into a transimpedance amplifier, Rf 1 MΩ) would go from -0.36 V to 1.65 V, beyond its rails 0 V to 3.3 V"),
+            "{}",
+            f[0].message
+        );
+        assert!(
+            f[0].message.contains("takes 0 to 1.65 µA"),
+            "{}",
+            f[0].message
+        );
+        assert_eq!(f.len(), 1, "{f:?}");
+        // 1 µA leaves room: 0.65 V ± 10 mV.
+        let c = tia_1m(1.0);
+        let nodes = levels(&c, &Chain::of(&c));
+        assert!(!nodes[0].saturates);
+        assert!(findings(&c, &nodes, &InputRange::of(&c))
+            .iter()
+            .all(|f| f.level != Level::Error));
+    }
+
+    #[test]
+    fn each_gain_stage_is_checked_against_its_rails() {
+        // −10 kΩ, buffer, −47: with a 2 µA steady current the TIA sits at
+        // 1.65 − 0.02 = 1.63 V, the buffer the same, and the inverting
+        // stage at 1.65 + 47 × 0.02 = 2.59 V: all inside 0 V to 5 V.
+        let mut c = circuit(47.0, 0.1);
+        c.pulse.dc_ua = Some(2.0);
+        let nodes = levels(&c, &Chain::of(&c));
+        assert!((nodes[0].steady_v - 1.63).abs() < 1e-12);
+        assert!((nodes[1].steady_v - 1.63).abs() < 1e-12);
+        assert!((nodes[2].steady_v - 2.59).abs() < 1e-12);
+        assert!(nodes.iter().all(|n| !n.saturates));
+        // The same stage on rails of 0 V to 2.5 V saturates; the others not.
+        c.supplies.stages[1] = Some(Rails {
+            low_v: 0.0,
+            high_v: 2.5,
+        });
+        let nodes = levels(&c, &Chain::of(&c));
+        let saturated: Vec<&str> = nodes
+            .iter()
+            .filter(|n| n.saturates)
+            .map(|n| n.node.as_str())
+            .collect();
+        assert_eq!(saturated, ["stage 2 output"]);
+        let f = findings(&c, &nodes, &InputRange::of(&c));
+        assert_eq!(f[0].node, "stage 2 output");
+        assert!(
+            f[0].message.contains("lower the gain before it"),
+            "{}",
+            f[0].message
+        );
+    }
 }

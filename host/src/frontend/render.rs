@@ -220,7 +220,7 @@ fn adc_section(s: &mut String, r: &FrontendReport) {
     let _ = writeln!(s, "Signal at the ADC");
     let _ = writeln!(
         s,
-        "  ADC {} bits, 0 V to {} V, bias {} V; rails {} V to {} V",
+        "  ADC {} bits, 0 V to {} V, bias {} V; board rails {} V to {} V",
         a.bits,
         sig3(a.reference_v),
         sig3(a.bias_v),
@@ -251,8 +251,9 @@ fn adc_section(s: &mut String, r: &FrontendReport) {
                 "inside the ADC range"
             },
             match saturated {
-                0 => "; every stage within its rails".to_owned(),
-                n => format!("; {n} stage(s) SATURATE (see Errors)"),
+                0 => "; every node within its rails".to_owned(),
+                1 => "; 1 node SATURATES (see Errors)".to_owned(),
+                n => format!("; {n} nodes SATURATE (see Errors)"),
             }
         );
     }
@@ -266,9 +267,11 @@ fn levels_section(s: &mut String, r: &FrontendReport) {
         "Levels, node by node (dark: no photocurrent; steady: with the steady photocurrent)"
     );
     for n in &r.nodes {
-        let rails = n.rails.map_or("passive, no rails of its own".to_owned(), |x| {
-            format!("rails {} V to {} V", sig3(x.low_v), sig3(x.high_v))
-        });
+        let rails = n
+            .rails
+            .map_or("passive, no rails of its own".to_owned(), |x| {
+                format!("rails {} V to {} V", sig3(x.low_v), sig3(x.high_v))
+            });
         let swing = n
             .swing_vpp
             .map_or(String::new(), |v| format!(", pulse {} p-p", si(v, "V")));

@@ -113,7 +113,10 @@ impl FrontendReport {
         );
         let chain_warning = |m: String| Finding::new(Level::Warning, node::CHAIN, m);
         if !heart_band.passes {
-            findings.push(chain_warning(format!("the analog chain {}", heart_band.verdict)));
+            findings.push(chain_warning(format!(
+                "the analog chain {}",
+                heart_band.verdict
+            )));
         }
         if !heart_band_with_digital.passes {
             findings.push(chain_warning(format!(

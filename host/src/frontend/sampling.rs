@@ -238,10 +238,14 @@ mod tests {
         assert_eq!(advice.used_hz, 1000.0);
         let f = advice.findings();
         assert_eq!(f.len(), 1, "{f:?}");
-        assert!(f[0].message.contains("above the 1000 Hz the pipeline takes"));
+        assert!(f[0]
+            .message
+            .contains("above the 1000 Hz the pipeline takes"));
         // A rate given below the rule warns.
         let advice = RateAdvice::of(&Chain::of(&c), Some(500.0));
-        assert!(advice.findings()[1].message.starts_with("the sample rate 500 Hz is below"));
+        assert!(advice.findings()[1]
+            .message
+            .starts_with("the sample rate 500 Hz is below"));
     }
 
     #[test]

@@ -272,7 +272,12 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
     let fs = read.signals[0].fs;
     // The pipeline's range, checked here rather than in the records crate:
     // its CSV reader also serves motion and reference columns at other rates.
-    if let Err(e) = check_sample_rate(fs) {
+    if let Err(mut e) = check_sample_rate(fs) {
+        // A measured rate to 4 decimals, unless that would round it into the range.
+        let shown = (fs * 1e4).round() / 1e4;
+        if check_sample_rate(shown).is_err() {
+            e.rate_hz = shown;
+        }
         let hint = if time.is_some() {
             " (measured from the time column: check --time-unit, or give the grid rate with --rate)"
         } else {

@@ -215,8 +215,20 @@ mod tests {
         for ok in [25.0, 62.5, 1000.0] {
             assert_eq!(check_sample_rate(ok), Ok(ok));
         }
-        for bad in [5.0, 24.999, 1000.001, 2000.0, 0.0, -25.0, f64::NAN, f64::INFINITY] {
-            assert_eq!(check_sample_rate(bad), Err(SampleRateError { rate_hz: bad }));
+        for bad in [
+            5.0,
+            24.999,
+            1000.001,
+            2000.0,
+            0.0,
+            -25.0,
+            f64::NAN,
+            f64::INFINITY,
+        ] {
+            assert_eq!(
+                check_sample_rate(bad),
+                Err(SampleRateError { rate_hz: bad })
+            );
         }
         assert_eq!(
             SampleRateError { rate_hz: 2000.0 }.to_string(),
@@ -228,7 +240,10 @@ mod tests {
         );
         // The pipeline's refusal is the same words.
         let e = Pipeline::new(Config::new(2000.0)).err().unwrap();
-        assert_eq!(e.to_string(), "the sample rate must be between 25 and 1000 Hz");
+        assert_eq!(
+            e.to_string(),
+            "the sample rate must be between 25 and 1000 Hz"
+        );
         assert!(Pipeline::new(Config::new(f32::NAN)).is_err());
     }
 

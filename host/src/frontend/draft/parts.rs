@@ -69,7 +69,9 @@ impl<'de> Deserialize<'de> for RailsPair {
                 let number = |t: &str| t.trim().parse::<f64>().ok();
                 v.split_once(':')
                     .and_then(|(a, b)| Some(RailsPair(number(a)?, number(b)?)))
-                    .ok_or_else(|| E::custom(format!("'{v}' is not LOW:HIGH in volts, such as 0:3.3")))
+                    .ok_or_else(|| {
+                        E::custom(format!("'{v}' is not LOW:HIGH in volts, such as 0:3.3"))
+                    })
             }
             fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<RailsPair, A::Error> {
                 let low: Option<f64> = seq.next_element()?;

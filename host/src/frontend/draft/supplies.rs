@@ -58,7 +58,7 @@ impl Draft {
                     let v = bounded(v, "detector.reference_v", limits::LEVEL_V)?;
                     if !(detector_rails.low_v..=detector_rails.high_v).contains(&v) {
                         return Err(invalid(
-                            "detector.reference_v",
+                            "detector.reference_v (--tia-ref)",
                             format!(
                                 "({v} V) must lie within the detector's rails, {} V to {} V",
                                 detector_rails.low_v, detector_rails.high_v

@@ -202,7 +202,10 @@ fn values_out_of_range_are_refused() {
 #[test]
 fn each_amplifier_has_its_own_rails_or_the_boards() {
     let text = WHOLE
-        .replace("feedback = \"10k\"", "feedback = \"10k\"\nreference_v = 0.5\nrails = [0, 3.3]")
+        .replace(
+            "feedback = \"10k\"",
+            "feedback = \"10k\"\nreference_v = 0.5\nrails = [0, 3.3]",
+        )
         .replace("kind = \"buffer\"", "kind = \"buffer\"\nrails = \"-5:5\"");
     let c = resolve(&text).unwrap();
     let s = &c.supplies;
@@ -216,14 +219,20 @@ fn each_amplifier_has_its_own_rails_or_the_boards() {
     assert_eq!((inverting.low_v, inverting.high_v), (0.0, 5.0));
     // Without a reference, a TIA's is the bias.
     let c = resolve(WHOLE).unwrap();
-    assert_eq!((c.supplies.reference_v, c.supplies.reference_assumed), (1.5, true));
+    assert_eq!(
+        (c.supplies.reference_v, c.supplies.reference_assumed),
+        (1.5, true)
+    );
 
     let outside = WHOLE.replace("feedback = \"10k\"", "feedback = \"10k\"\nreference_v = 7");
     assert_eq!(
         resolve(&outside).unwrap_err().to_string(),
-        "detector.reference_v (7 V) must lie within the detector's rails, 0 V to 5 V"
+        "detector.reference_v (--tia-ref) (7 V) must lie within the detector's rails, 0 V to 5 V"
     );
-    let passive = WHOLE.replace("kind = \"buffer\"", "kind = \"lowpass\"\nr = \"1k\"\nc = \"1u\"\nrails = [0, 5]");
+    let passive = WHOLE.replace(
+        "kind = \"buffer\"",
+        "kind = \"lowpass\"\nr = \"1k\"\nc = \"1u\"\nrails = [0, 5]",
+    );
     let e = resolve(&passive).unwrap_err().to_string();
     assert_eq!(e, "stage 1 (lowpass) does not take rails (it takes r, c)");
     let reversed = WHOLE.replace("kind = \"buffer\"", "kind = \"buffer\"\nrails = [5, 0]");
@@ -231,7 +240,10 @@ fn each_amplifier_has_its_own_rails_or_the_boards() {
     assert_eq!(e, "stage 1 rails low (5 V) must be below high (0 V)");
     let huge = WHOLE.replace("kind = \"buffer\"", "kind = \"buffer\"\nrails = [0, 1e308]");
     let e = resolve(&huge).unwrap_err().to_string();
-    assert!(e.starts_with("stage 1 rails must be at least -100 V and at most 100 V"), "{e}");
+    assert!(
+        e.starts_with("stage 1 rails must be at least -100 V and at most 100 V"),
+        "{e}"
+    );
 }
 
 #[test]
