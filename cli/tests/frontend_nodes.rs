@@ -15,6 +15,11 @@ const EXAMPLE: &str = concat!(
     "/../examples/frontend-fingerclip.toml"
 );
 
+/// An LED of 5 V − 1.7 V over 470 Ω and a 10 kΩ TIA.
+const DRIVE: [&str; 8] = [
+    "--supply", "5", "--led-vf", "1.7", "--led-r", "470", "--tia", "10k",
+];
+
 fn run_json(dir: &Path, args: &[&str]) -> Value {
     let mut all = vec!["frontend"];
     all.extend(args);
@@ -133,20 +138,8 @@ fn each_gain_stage_has_its_rails_and_is_checked_against_them() {
     let dir = tempfile::tempdir().unwrap();
     // 10 kΩ TIA at the 1.65 V bias, 2 µA steady: 1.63 V; a gain of −47
     // puts the next stage at 1.65 + 47 × 0.02 = 2.59 V (AC-free chain).
-    let base = [
-        "--supply",
-        "5",
-        "--led-vf",
-        "1.7",
-        "--led-r",
-        "470",
-        "--tia",
-        "10k",
-        "--dc-ua",
-        "2",
-        "--pulse-ua",
-        "0.01",
-    ];
+    let mut base = DRIVE.to_vec();
+    base.extend(["--dc-ua", "2", "--pulse-ua", "0.01"]);
     let mut args = base.to_vec();
     args.extend(["--stage", "inverting,rin=1k,rf=47k"]);
     let r = run_json(dir.path(), &args);
@@ -177,23 +170,14 @@ fn the_rate_advice_stays_within_the_pipeline_range() {
     let dir = tempfile::tempdir().unwrap();
     // Cf 3.6 nF across 22 kΩ: a pole at 2 kHz and no low-pass; the rule's
     // 10 × 2 kHz is held at the pipeline's 1000 Hz.
-    let r = run_json(
-        dir.path(),
-        &[
-            "--supply",
-            "5",
-            "--led-vf",
-            "1.7",
-            "--led-r",
-            "470",
-            "--tia",
-            "10k",
-            "--stage",
-            "noninverting,rin=1k,rf=22k,cf=3.6n",
-            "--pulse-ua",
-            "1",
-        ],
-    );
+    let mut args = DRIVE.to_vec();
+    args.extend([
+        "--stage",
+        "noninverting,rin=1k,rf=22k,cf=3.6n",
+        "--pulse-ua",
+        "1",
+    ]);
+    let r = run_json(dir.path(), &args);
     assert_eq!(r["sampling"]["recommended_hz"], 1000.0);
     assert_eq!(r["sampling"]["used_hz"], 1000.0);
     assert!(findings(&r).iter().any(|(l, n, m)| l == "warning"
@@ -220,40 +204,46 @@ fn refused(args: &[&str], code: i32, needle: &str) {
 
 #[test]
 fn nonsense_values_are_refused_naming_the_option() {
-    refused(
-        &[EXAMPLE, "--supply", "1e308"],
-        2,
-        "'--supply <V>': must be above 0 V and at most 100 V, not 1e308",
-    );
-    refused(
-        &[EXAMPLE, "--stage", "noninverting,rin=1k,rf=1e-320"],
-        2,
-        "a resistance must be between 1 mΩ and 1 TΩ, not 1e-320 Ω",
-    );
-    refused(
-        &[EXAMPLE, "--tia", "0"],
-        2,
-        "'--tia <RF>': a resistance must be above 0 Ω",
-    );
-    refused(&[EXAMPLE, "--led-r", "-5"], 2, "'--led-r <OHMS[,OHMS...]>'");
-    refused(&[EXAMPLE, "--adc-ref", "1e-320"], 2, "'--adc-ref <V>'");
-    refused(
-        &[EXAMPLE, "--led-parallel", "4000000000"],
-        2,
-        "'--led-parallel <N>'",
-    );
-    refused(&[EXAMPLE, "--rails", "0:1e308"], 2, "'--rails <LOW:HIGH>'");
-    refused(&[EXAMPLE, "--pulse-ua", "1e300"], 2, "'--pulse-ua <UA>'");
-    refused(
-        &[EXAMPLE, "--tia-ref", "9"],
-        1,
-        "detector.reference_v (--tia-ref) (9 V) must lie within the detector's rails",
-    );
-    refused(
-        &[EXAMPLE, "--rate", "2000"],
-        2,
-        "'--rate <HZ>': the sample rate must be between 25 and 1000 Hz, not 2000 Hz",
-    );
+    let cases: [(&str, &str, i32, &str); 10] = [
+        (
+            "--supply",
+            "1e308",
+            2,
+            "'--supply <V>': must be above 0 V and at most 100 V, not 1e308",
+        ),
+        (
+            "--stage",
+            "noninverting,rin=1k,rf=1e-320",
+            2,
+            "a resistance must be between 1 mΩ and 1 TΩ, not 1e-320 Ω",
+        ),
+        (
+            "--tia",
+            "0",
+            2,
+            "'--tia <RF>': a resistance must be above 0 Ω",
+        ),
+        ("--led-r", "-5", 2, "'--led-r <OHMS[,OHMS...]>'"),
+        ("--adc-ref", "1e-320", 2, "'--adc-ref <V>'"),
+        ("--led-parallel", "4000000000", 2, "'--led-parallel <N>'"),
+        ("--rails", "0:1e308", 2, "'--rails <LOW:HIGH>'"),
+        ("--pulse-ua", "1e300", 2, "'--pulse-ua <UA>'"),
+        (
+            "--tia-ref",
+            "9",
+            1,
+            "detector.reference_v (--tia-ref) (9 V) must lie within the detector's rails",
+        ),
+        (
+            "--rate",
+            "2000",
+            2,
+            "'--rate <HZ>': the sample rate must be between 25 and 1000 Hz, not 2000 Hz",
+        ),
+    ];
+    for (option, value, code, needle) in cases {
+        refused(&[EXAMPLE, option, value], code, needle);
+    }
     // The same values in a file name their key.
     let dir = tempfile::tempdir().unwrap();
     let example = std::fs::read_to_string(EXAMPLE).unwrap();
