@@ -36,7 +36,6 @@ mod budget;
 mod circuit;
 mod draft;
 mod findings;
-mod finite;
 mod led;
 pub mod limits;
 mod nodes;

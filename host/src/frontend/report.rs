@@ -14,6 +14,8 @@ use super::sampling::{DigitalFilter, RateAdvice};
 use super::transfer::Chain;
 use super::{FrontendError, CAUTIONS};
 
+mod finite;
+
 /// Frequencies of the response table, Hz, before the chain's own corners
 /// are added: 0.05 to 50 Hz, the heart band's edges among them.
 pub const TABLE_FREQUENCIES_HZ: [f64; 11] =
@@ -162,7 +164,7 @@ impl FrontendReport {
             cautions: CAUTIONS.to_vec(),
             plot: None,
         };
-        super::finite::check(&report)?;
+        finite::check(&report)?;
         Ok(report)
     }
 

@@ -1,10 +1,10 @@
 //! The last guard: every number the report works out is finite. The
-//! bounds on the inputs ([`super::limits`], [`super::Kind::range`]) keep
+//! bounds on the inputs ([`crate::frontend::limits`], [`crate::frontend::Kind::range`]) keep
 //! them so; this names the first that is not, should a combination slip
 //! through, rather than print `inf`.
 
-use super::report::FrontendReport;
-use super::FrontendError;
+use super::FrontendReport;
+use crate::frontend::FrontendError;
 
 /// The report's computed numbers with their names.
 fn numbers(r: &FrontendReport) -> Vec<(String, f64)> {
