@@ -285,4 +285,30 @@ mod tests {
             f[0].message
         );
     }
+
+    #[test]
+    fn a_phototransistor_starts_from_the_rail_its_load_returns_to() {
+        // 10 kΩ at the emitter: 0 V dark, 100 µA gives 1 V; it takes
+        // (5 V − 0 V) / 10 kΩ = 500 µA before reaching the 5 V rail.
+        let mut c = circuit(1.0, 1.0);
+        c.detector = Detector::Phototransistor {
+            load_ohm: 10e3,
+            load_at: crate::frontend::LoadAt::Emitter,
+            load_f: None,
+        };
+        c.supplies.reference_v = 0.0;
+        c.stages.clear();
+        c.supplies.stages.clear();
+        c.pulse.dc_ua = Some(100.0);
+        let nodes = levels(&c, &Chain::of(&c));
+        assert!((nodes[0].dark_v).abs() < 1e-12 && (nodes[0].steady_v - 1.0).abs() < 1e-12);
+        assert!(!nodes[0].saturates);
+        let range = InputRange::of(&c);
+        assert!((range.most_ua - 500.0).abs() < 1e-9 && range.rail_v == 5.0);
+        assert!(range
+            .describe(&c.detector)
+            .starts_with("the phototransistor's load takes 0 to 500 µA"));
+        c.pulse.dc_ua = Some(600.0);
+        assert!(levels(&c, &Chain::of(&c))[0].saturates);
+    }
 }

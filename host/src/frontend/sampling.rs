@@ -85,6 +85,11 @@ impl RateAdvice {
             ),
             None => format!("the chain has no corner; at least {MIN_RATE_HZ} Hz"),
         };
+        let rule = if minimum_hz > MAX_RATE_HZ {
+            format!("{rule}; held at the pipeline's highest, {MAX_RATE_HZ} Hz")
+        } else {
+            rule
+        };
         Self {
             highest_corner_hz,
             minimum_hz,
@@ -236,6 +241,9 @@ mod tests {
         assert!((advice.minimum_hz - 20e3).abs() < 1e-6);
         assert_eq!(advice.recommended_hz, 1000.0);
         assert_eq!(advice.used_hz, 1000.0);
+        assert!(advice
+            .rule
+            .ends_with("held at the pipeline's highest, 1000 Hz"));
         let f = advice.findings();
         assert_eq!(f.len(), 1, "{f:?}");
         assert!(f[0]
