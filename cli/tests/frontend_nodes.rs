@@ -232,7 +232,7 @@ fn nonsense_values_are_refused_naming_the_option() {
             "--tia-ref",
             "9",
             1,
-            "detector.reference_v (--tia-ref) (9 V) must lie within the detector's rails",
+            "detector.reference_v (--tia-ref) must lie within the detector's rails, 0 V to 3.3 V, not 9 V",
         ),
         (
             "--rate",

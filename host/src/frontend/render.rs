@@ -266,7 +266,12 @@ fn levels_section(s: &mut String, r: &FrontendReport) {
         s,
         "Levels, node by node (dark: no photocurrent; steady: with the steady photocurrent)"
     );
-    for n in &r.nodes {
+    for (i, n) in r.nodes.iter().enumerate() {
+        let adc = if i + 1 == r.nodes.len() {
+            " (the ADC input)"
+        } else {
+            ""
+        };
         let rails = n
             .rails
             .map_or("passive, no rails of its own".to_owned(), |x| {
@@ -277,7 +282,7 @@ fn levels_section(s: &mut String, r: &FrontendReport) {
             .map_or(String::new(), |v| format!(", pulse {} p-p", si(v, "V")));
         let _ = writeln!(
             s,
-            "  {}: dark {} V, steady {} V{swing}; {} V to {} V; {rails}{}",
+            "  {}{adc}: dark {} V, steady {} V{swing}; {} V to {} V; {rails}{}",
             n.node,
             sig3(n.dark_v),
             sig3(n.steady_v),

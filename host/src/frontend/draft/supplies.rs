@@ -60,7 +60,7 @@ impl Draft {
                         return Err(invalid(
                             "detector.reference_v (--tia-ref)",
                             format!(
-                                "({v} V) must lie within the detector's rails, {} V to {} V",
+                                "must lie within the detector's rails, {} V to {} V, not {v} V",
                                 detector_rails.low_v, detector_rails.high_v
                             ),
                         ));

@@ -227,7 +227,7 @@ fn each_amplifier_has_its_own_rails_or_the_boards() {
     let outside = WHOLE.replace("feedback = \"10k\"", "feedback = \"10k\"\nreference_v = 7");
     assert_eq!(
         resolve(&outside).unwrap_err().to_string(),
-        "detector.reference_v (--tia-ref) (7 V) must lie within the detector's rails, 0 V to 5 V"
+        "detector.reference_v (--tia-ref) must lie within the detector's rails, 0 V to 5 V, not 7 V"
     );
     let passive = WHOLE.replace(
         "kind = \"buffer\"",
