@@ -225,8 +225,17 @@ impl Record {
     /// Check every signal that has a checksum in the header against its
     /// samples (sum of all samples modulo 2^16, header(5)). Headers write it
     /// signed or unsigned; both are accepted.
+    ///
+    /// The sums are over the samples as the file stores them: a skewed
+    /// signal is summed before it is shifted into line, as the writer
+    /// summed it.
     pub fn verify_checksums(&self) -> Result<()> {
-        let all = self.read_all_digital()?;
+        let mut all = vec![Vec::new(); self.n_signals()];
+        for g in &self.groups {
+            for (&s, samples) in g.signals.iter().zip(self.read_group_stored(g)?) {
+                all[s] = samples;
+            }
+        }
         for (i, (spec, samples)) in self.header.signals.iter().zip(&all).enumerate() {
             let Some(stated) = spec.checksum else {
                 continue;
@@ -262,8 +271,22 @@ impl Record {
         ))
     }
 
-    /// Read one signal file and split it into its signals' samples.
+    /// Read one signal file and split it into its signals' samples, each
+    /// skewed signal shifted into line.
     fn read_group(&self, g: &Group) -> Result<Vec<Vec<i32>>> {
+        let mut out = self.read_group_stored(g)?;
+        for (k, &s) in g.signals.iter().enumerate() {
+            let spec = &self.header.signals[s];
+            if spec.skew > 0 {
+                apply_skew(&mut out[k], spec, &g.path)?;
+            }
+        }
+        Ok(out)
+    }
+
+    /// Read one signal file and split it into its signals' samples as
+    /// stored (skew not applied).
+    fn read_group_stored(&self, g: &Group) -> Result<Vec<Vec<i32>>> {
         let bytes = std::fs::read(&g.path).map_err(|e| Error::from_io(&g.path, "read", &e))?;
         let per_frame = g.frame_samples(&self.header);
         // Checked again: the file may have changed since the record was opened.
@@ -293,12 +316,6 @@ impl Record {
             for (k, &n) in slots.iter().enumerate() {
                 out[k].extend_from_slice(&frame[at..at + n]);
                 at += n;
-            }
-        }
-        for (k, &s) in g.signals.iter().enumerate() {
-            let spec = &self.header.signals[s];
-            if spec.skew > 0 {
-                apply_skew(&mut out[k], spec, &g.path)?;
             }
         }
         Ok(out)
