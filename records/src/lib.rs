@@ -2,8 +2,8 @@
 //! (PhysioNet's open format) and CSV files, in pure Rust.
 //!
 //! * [`Record`] opens `dir/name` (or `dir/name.hea`) and reads its signals
-//!   as stored integers or physical values; [`RecordWriter`] writes one in
-//!   format 16.
+//!   as stored integers or physical values (multi-segment records joined
+//!   into one); [`RecordWriter`] writes one in format 16.
 //! * [`read_annotations`] / [`write_annotations`] handle WFDB annotation
 //!   files (MIT format), e.g. reference beat positions;
 //!   [`AnnotationFile`] keeps a file's time-resolution note.
@@ -25,6 +25,7 @@ mod rr;
 mod wfdb_annotation;
 mod wfdb_format;
 mod wfdb_header;
+mod wfdb_segments;
 mod wfdb_signal;
 mod wfdb_write;
 

@@ -10,6 +10,7 @@ use std::path::{Path, PathBuf};
 use super::error::{Error, ErrorKind, Result};
 use super::wfdb_format::{undo_differences, SignalFormat};
 use super::wfdb_header::{Header, SignalSpec};
+use super::wfdb_segments::Segments;
 use super::{LoadedSignal, DEFAULT_SIGNAL};
 
 mod group;
@@ -25,6 +26,8 @@ pub struct Record {
     header: Header,
     frames: u64,
     groups: Vec<Group>,
+    /// The segments of a multi-segment record (`groups` is then empty).
+    segments: Option<Box<Segments>>,
 }
 
 /// `dir/name` for `dir/name`, `dir/name.hea` or `dir/name.`: the header
@@ -50,11 +53,13 @@ impl Record {
         Record::from_header(header, header_path, dir)
     }
 
-    /// Build a record from an already parsed header whose signal files lie in `dir`.
+    /// Build a record from an already parsed header whose signal files lie
+    /// in `dir`. A multi-segment header opens its segments, which are then
+    /// read as one record; its signals are those of its layout header or
+    /// (fixed layout) its first segment.
     pub fn from_header(header: Header, header_path: PathBuf, dir: PathBuf) -> Result<Record> {
-        let unsupported = |m: &str| Err(Error::new(&header_path, ErrorKind::Unsupported(m.into())));
         if header.segments.is_some() {
-            return unsupported("multi-segment records are not supported");
+            return Segments::open(header, header_path, dir);
         }
         let groups = Group::of_header(&header, &header_path, &dir)?;
         let mut frames = header.samples;
@@ -78,7 +83,27 @@ impl Record {
             header,
             frames: frames.unwrap_or(0),
             groups,
+            segments: None,
         })
+    }
+
+    /// A multi-segment record of `frames` frames, `header.signals` holding
+    /// the whole record's signals.
+    pub(crate) fn joined(
+        header: Header,
+        header_path: PathBuf,
+        dir: PathBuf,
+        frames: u64,
+        segments: Segments,
+    ) -> Record {
+        Record {
+            header_path,
+            dir,
+            header,
+            frames,
+            groups: Vec::new(),
+            segments: Some(Box::new(segments)),
+        }
     }
 
     /// The parsed header.
@@ -164,6 +189,10 @@ impl Record {
     /// Stored (digital) samples of signal `index`: `len() × samples per
     /// frame` values. Invalid samples keep their stored sentinel value.
     pub fn read_digital(&self, index: usize) -> Result<Vec<i32>> {
+        if let Some(segments) = &self.segments {
+            self.locate_signal(index)?;
+            return segments.read_digital(self, index);
+        }
         let (g, pos) = self.locate(index)?;
         let mut all = self.read_group(&self.groups[g])?;
         Ok(all.swap_remove(pos))
@@ -171,6 +200,11 @@ impl Record {
 
     /// Stored samples of every signal, each file read once.
     pub fn read_all_digital(&self) -> Result<Vec<Vec<i32>>> {
+        if self.segments.is_some() {
+            return (0..self.n_signals())
+                .map(|i| self.read_digital(i))
+                .collect();
+        }
         let mut out = vec![Vec::new(); self.n_signals()];
         for g in &self.groups {
             for (&s, samples) in g.signals.iter().zip(self.read_group(g)?) {
@@ -185,6 +219,10 @@ impl Record {
     /// same arithmetic and NaN rule as Python wfdb's `rdrecord` physical
     /// output.
     pub fn read_physical(&self, index: usize) -> Result<Vec<f64>> {
+        if let Some(segments) = &self.segments {
+            self.locate_signal(index)?;
+            return segments.read_physical(self, index);
+        }
         let digital = self.read_digital(index)?;
         Ok(self.to_physical(index, &digital))
     }
@@ -230,6 +268,9 @@ impl Record {
     /// signal is summed before it is shifted into line, as the writer
     /// summed it.
     pub fn verify_checksums(&self) -> Result<()> {
+        if let Some(segments) = &self.segments {
+            return segments.verify_checksums();
+        }
         let mut all = vec![Vec::new(); self.n_signals()];
         for g in &self.groups {
             for (&s, samples) in g.signals.iter().zip(self.read_group_stored(g)?) {
@@ -262,13 +303,26 @@ impl Record {
                 return Ok((g, pos));
             }
         }
-        Err(Error::new(
+        Err(self.no_signal(index))
+    }
+
+    /// Refuse a signal `index` the record does not have.
+    fn locate_signal(&self, index: usize) -> Result<()> {
+        if index < self.n_signals() {
+            Ok(())
+        } else {
+            Err(self.no_signal(index))
+        }
+    }
+
+    fn no_signal(&self, index: usize) -> Error {
+        Error::new(
             &self.header_path,
             ErrorKind::Invalid(format!(
                 "no signal {index}: the record has {}",
                 self.n_signals()
             )),
-        ))
+        )
     }
 
     /// Read one signal file and split it into its signals' samples, each
