@@ -128,7 +128,7 @@ impl Segments {
 
     /// Stored samples of signal `index` of the whole record.
     pub(crate) fn read_digital(&self, rec: &Record, index: usize) -> Result<Vec<i32>> {
-        let spec = &rec.signals()[index];
+        let spec = self.signal(rec, index)?;
         let spf = spec.samples_per_frame as usize;
         let mut out = Vec::with_capacity(rec.len() * spf);
         for part in &self.parts {
@@ -175,7 +175,7 @@ impl Segments {
     /// Physical values of signal `index` of the whole record, each segment
     /// converted with its own gain and baseline; NaN where it is missing.
     pub(crate) fn read_physical(&self, rec: &Record, index: usize) -> Result<Vec<f64>> {
-        let spf = rec.signals()[index].samples_per_frame as usize;
+        let spf = self.signal(rec, index)?.samples_per_frame as usize;
         let mut out = Vec::with_capacity(rec.len() * spf);
         for part in &self.parts {
             let n = part.frames as usize * spf;
@@ -193,6 +193,14 @@ impl Segments {
             seg.verify_checksums()?;
         }
         Ok(())
+    }
+
+    /// Signal `index` of `rec`, or the error that it has none such.
+    fn signal<'a>(&self, rec: &'a Record, index: usize) -> Result<&'a SignalSpec> {
+        rec.signals().get(index).ok_or_else(|| {
+            let n = rec.n_signals();
+            self.refuse(rec, format!("no signal {index}: the record has {n}"))
+        })
     }
 
     fn refuse(&self, rec: &Record, message: String) -> Error {

@@ -87,22 +87,23 @@ impl Record {
         })
     }
 
-    /// A multi-segment record of `frames` frames, `header.signals` holding
-    /// the whole record's signals.
+    /// A multi-segment record (`header.signals`: the whole record's).
     pub(crate) fn joined(
         header: Header,
-        header_path: PathBuf,
+        path: PathBuf,
         dir: PathBuf,
         frames: u64,
         segments: Segments,
     ) -> Record {
+        let segments = Some(Box::new(segments));
+        let (header_path, groups) = (path, Vec::new());
         Record {
             header_path,
             dir,
             header,
             frames,
-            groups: Vec::new(),
-            segments: Some(Box::new(segments)),
+            groups,
+            segments,
         }
     }
 
@@ -190,7 +191,6 @@ impl Record {
     /// frame` values. Invalid samples keep their stored sentinel value.
     pub fn read_digital(&self, index: usize) -> Result<Vec<i32>> {
         if let Some(segments) = &self.segments {
-            self.locate_signal(index)?;
             return segments.read_digital(self, index);
         }
         let (g, pos) = self.locate(index)?;
@@ -220,7 +220,6 @@ impl Record {
     /// output.
     pub fn read_physical(&self, index: usize) -> Result<Vec<f64>> {
         if let Some(segments) = &self.segments {
-            self.locate_signal(index)?;
             return segments.read_physical(self, index);
         }
         let digital = self.read_digital(index)?;
@@ -303,26 +302,13 @@ impl Record {
                 return Ok((g, pos));
             }
         }
-        Err(self.no_signal(index))
-    }
-
-    /// Refuse a signal `index` the record does not have.
-    fn locate_signal(&self, index: usize) -> Result<()> {
-        if index < self.n_signals() {
-            Ok(())
-        } else {
-            Err(self.no_signal(index))
-        }
-    }
-
-    fn no_signal(&self, index: usize) -> Error {
-        Error::new(
+        Err(Error::new(
             &self.header_path,
             ErrorKind::Invalid(format!(
                 "no signal {index}: the record has {}",
                 self.n_signals()
             )),
-        )
+        ))
     }
 
     /// Read one signal file and split it into its signals' samples, each
