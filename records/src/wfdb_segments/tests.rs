@@ -54,6 +54,8 @@ fn fixed_layout_joins_segments_and_gaps() {
     let e = rec.verify_checksums().unwrap_err();
     assert!(e.to_string().contains("the header says -6"), "{e}");
     assert_eq!(rec.load_signal(Some("B")).unwrap().samples.len(), 7);
+    // The master header's text keeps its segment lines only.
+    assert_eq!(rec.header().to_text(), "m/3 2 100 7\ns1 3\n~ 2\ns2 2\n");
     assert!(rec.read_digital(2).is_err());
 }
 
