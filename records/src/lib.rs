@@ -25,7 +25,6 @@ mod rr;
 mod wfdb_annotation;
 mod wfdb_format;
 mod wfdb_header;
-mod wfdb_segments;
 mod wfdb_signal;
 mod wfdb_write;
 

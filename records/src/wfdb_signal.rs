@@ -10,12 +10,13 @@ use std::path::{Path, PathBuf};
 use super::error::{Error, ErrorKind, Result};
 use super::wfdb_format::{undo_differences, SignalFormat};
 use super::wfdb_header::{Header, SignalSpec};
-use super::wfdb_segments::Segments;
 use super::{LoadedSignal, DEFAULT_SIGNAL};
 
 mod group;
+mod segments;
 
 use group::{check_length, Group};
+use segments::Segments;
 
 /// An opened WFDB record. Opening reads the header and checks that every
 /// signal file exists and is long enough; samples are read on request.
@@ -85,26 +86,6 @@ impl Record {
             groups,
             segments: None,
         })
-    }
-
-    /// A multi-segment record (`header.signals`: the whole record's).
-    pub(crate) fn joined(
-        header: Header,
-        path: PathBuf,
-        dir: PathBuf,
-        frames: u64,
-        segments: Segments,
-    ) -> Record {
-        let segments = Some(Box::new(segments));
-        let (header_path, groups) = (path, Vec::new());
-        Record {
-            header_path,
-            dir,
-            header,
-            frames,
-            groups,
-            segments,
-        }
     }
 
     /// The parsed header.

@@ -19,9 +19,9 @@
 
 use std::path::{Path, PathBuf};
 
-use super::error::{Error, ErrorKind, Result};
-use super::wfdb_header::{Header, SignalSpec};
-use super::wfdb_signal::Record;
+use super::Record;
+use crate::error::{Error, ErrorKind, Result};
+use crate::wfdb_header::{Header, SignalSpec};
 
 /// The segments of a multi-segment record, in order.
 #[derive(Debug, Clone)]
@@ -117,13 +117,14 @@ impl Segments {
             )));
         }
         header.signals = signals;
-        Ok(Record::joined(
-            header,
+        Ok(Record {
             header_path,
             dir,
+            header,
             frames,
-            Segments { parts },
-        ))
+            groups: Vec::new(),
+            segments: Some(Box::new(Segments { parts })),
+        })
     }
 
     /// Stored samples of signal `index` of the whole record.
