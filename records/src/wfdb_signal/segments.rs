@@ -308,8 +308,9 @@ fn null_formats_readable(text: &str) -> String {
 }
 
 /// Where each of the record's `signals` lies in segment `seg`: by position
-/// (fixed layout, which must match in number and name) or by name
-/// (variable layout). Samples per frame must agree.
+/// in a fixed layout (the same number of signals; names are not compared,
+/// nor does Python wfdb compare them), by name in a variable one. Samples
+/// per frame must agree.
 fn map_signals(
     seg: &Record,
     signals: &[SignalSpec],
