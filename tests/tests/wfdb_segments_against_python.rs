@@ -27,7 +27,7 @@ use serde_json::{json, Value};
 
 #[path = "wfdb_against_python/reference.rs"]
 mod reference;
-use reference::{have_wfdb, read_le, reference, PyAnnotations};
+use reference::{have_wfdb, read_le, reference, wrann_task, PyAnnotations};
 
 fn le16(values: &[i16]) -> Vec<u8> {
     values.iter().flat_map(|v| v.to_le_bytes()).collect()
@@ -122,13 +122,7 @@ fn time_resolution_notes_cross_between_us_and_rdann_and_wrann() {
         annotations: ticks.clone(),
     };
     write_annotation_file(annotation_path(&rec, "ours"), &ours).unwrap();
-    let task = json!({
-        "op": "write_ann", "dir": tmp.path().display().to_string(), "record": "tr", "ext": "py",
-        "sample": ticks.iter().map(|a| a.sample).collect::<Vec<_>>(),
-        "symbol": vec!["N"; ticks.len()], "subtype": vec![0; ticks.len()],
-        "chan": vec![0; ticks.len()], "num": vec![0; ticks.len()],
-        "aux_note": vec![""; ticks.len()], "fs": 1000,
-    });
+    let task = wrann_task(tmp.path(), "tr", "py", &ticks, Some(1000.0));
     let answers = reference(vec![read_ann(&rec, "ours"), task, read_ann(&rec, "py")]);
     // Python wfdb rdann: our note gives fs 1000 and the times as written.
     let fs: PyAnnFs = serde_json::from_value(answers[0].clone()).unwrap();
@@ -235,13 +229,8 @@ fn code_0_and_note_entries_round_trip_and_rdann_reads_around_them() {
     anns.push(Annotation::new(80_000, 0));
     write_annotations(annotation_path(&rec, "ours"), &anns).unwrap();
     let notes: Vec<&Annotation> = anns.iter().filter(|a| a.code == 22).collect();
-    let task = json!({
-        "op": "write_ann", "dir": tmp.path().display().to_string(), "record": "c0", "ext": "py",
-        "sample": notes.iter().map(|a| a.sample).collect::<Vec<_>>(),
-        "symbol": vec!["\""; notes.len()], "subtype": vec![0; notes.len()],
-        "chan": vec![0; notes.len()], "num": vec![0; notes.len()],
-        "aux_note": notes.iter().map(|a| a.aux.clone().unwrap()).collect::<Vec<_>>(),
-    });
+    let owned: Vec<Annotation> = notes.iter().map(|&a| a.clone()).collect();
+    let task = wrann_task(tmp.path(), "c0", "py", &owned, None);
     let answers = reference(vec![read_ann(&rec, "ours"), task]);
     // Python wfdb rdann drops code 0 and keeps the NOTEs with their text.
     let py: PyAnnotations = serde_json::from_value(answers[0].clone()).unwrap();
@@ -254,7 +243,6 @@ fn code_0_and_note_entries_round_trip_and_rdann_reads_around_them() {
     assert_eq!(encode_annotations(&back).unwrap(), bytes);
     // wrann's NOTEs, read by us and written back byte for byte.
     let theirs = read_annotation_file(annotation_path(&rec, "py")).unwrap();
-    let owned: Vec<Annotation> = notes.into_iter().cloned().collect();
     assert_eq!(theirs.annotations, owned);
     let their_bytes = std::fs::read(annotation_path(&rec, "py")).unwrap();
     assert_eq!(
