@@ -1,5 +1,6 @@
 //! The WFDB a user meets beyond single records, checked against the
-//! Python wfdb package (4.x, the version the script reports), driven by
+//! Python wfdb package (4.x; written against 4.3.1, and the script reports
+//! the version it ran), driven by
 //! `tests/python/wfdb_reference.py`:
 //!
 //! * skewed signals: header checksums are over the samples as stored,
