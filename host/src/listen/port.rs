@@ -83,7 +83,7 @@ fn not_a_port(path: &Path) -> Option<&'static str> {
     } else if kind.is_file() {
         "an ordinary file"
     } else {
-        "not a device"
+        "neither a file nor a device"
     })
 }
 
@@ -93,24 +93,26 @@ fn not_a_serial_port(what: &str) -> io::Error {
     io::Error::new(
         io::ErrorKind::InvalidInput,
         format!(
-            "it is {what}, not a serial port; check that --port names the board's \
+            "it is not a serial port but {what}; check that --port names the board's \
              port (on Linux /dev/ttyACM0 or /dev/ttyUSB0, the names in /dev/serial/by-id \
              stay the same across replugging; on macOS /dev/cu.usbmodem...)"
         ),
     )
 }
 
-/// Whether `e` is the system's "not a terminal" (ENOTTY, 25 on Linux and
-/// macOS): a device, but no serial port.
+/// Whether `e` is the system's "not a terminal" (ENOTTY): a device, but
+/// no serial port. serialport passes it on as an unknown error with the
+/// text of its `nix` crate, or of the C library.
 fn is_not_a_terminal(e: &serialport::Error) -> bool {
-    cfg!(unix) && e.description == io::Error::from_raw_os_error(25).to_string()
+    matches!(e.kind, serialport::ErrorKind::Unknown)
+        && ["Not a typewriter", "Inappropriate ioctl for device"].contains(&e.description.as_str())
 }
 
 /// Keep "not there" apart from "there but unusable": only the first is
 /// worth waiting for at the start.
 fn to_io(e: serialport::Error) -> io::Error {
     if is_not_a_terminal(&e) {
-        return not_a_serial_port("a device that is not a terminal");
+        return not_a_serial_port("another kind of device");
     }
     use serialport::ErrorKind as K;
     let kind = match e.kind {
