@@ -193,6 +193,10 @@ impl Recorder {
         for (start, block) in std::mem::take(&mut self.pending) {
             self.write_block(start, &block)?;
         }
+        // A header as soon as there are samples: the record reads from now on.
+        if let Some(open) = self.open.as_mut().filter(|o| o.writer.frames() > 0) {
+            open.writer.checkpoint().map_err(other)?;
+        }
         Ok(())
     }
 
