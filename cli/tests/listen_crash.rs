@@ -145,7 +145,10 @@ fn check(dir: &Path, cut: &Cut) {
     assert!(got.symbols.iter().all(|s| s == "N"), "{:?}", got.symbols);
     if let Some(b) = cut.confirmed {
         let last = 16 * b + 15;
-        assert!(n > last, "block {b} was shown a second before the kill, the record has {n}");
+        assert!(
+            n > last,
+            "block {b} was shown a second before the kill, the record has {n}"
+        );
         let due = cut.peaks_sent.iter().filter(|&&p| p + 40 <= last).count();
         assert!(got.peaks.len() >= due, "{} beats of {due}", got.peaks.len());
     }
@@ -153,7 +156,10 @@ fn check(dir: &Path, cut: &Cut) {
     let rec = Record::open(&record).unwrap();
     rec.verify_checksums().unwrap();
     assert_eq!(rec.len() as u64, n);
-    assert_eq!(read_annotations(dir.join("cut.pwire")).unwrap().len(), got.peaks.len());
+    assert_eq!(
+        read_annotations(dir.join("cut.pwire")).unwrap().len(),
+        got.peaks.len()
+    );
     // The summary, as of its last writing, says the session was cut off.
     let summary: Value =
         serde_json::from_str(&std::fs::read_to_string(dir.join("cut.session.json")).unwrap())
@@ -174,7 +180,10 @@ fn a_listener_killed_at_any_moment_loses_at_most_the_last_second() {
         let dir = tempfile::tempdir().unwrap();
         let cut = stream_and_kill(dir.path(), blocks);
         if blocks >= 37 {
-            assert!(cut.confirmed.is_some(), "nothing shown a second before the kill");
+            assert!(
+                cut.confirmed.is_some(),
+                "nothing shown a second before the kill"
+            );
         }
         check(dir.path(), &cut);
     }

@@ -193,7 +193,9 @@ impl RecordWriter {
             spec.initial_value = self.first.as_ref().map_or(0, |f| f[i] as i32);
         }
         let path = self.dir.join(format!("{}.hea", self.header.record_name));
-        let tmp = self.dir.join(format!("{}.hea.part", self.header.record_name));
+        let tmp = self
+            .dir
+            .join(format!("{}.hea.part", self.header.record_name));
         std::fs::write(&tmp, self.header.to_text())
             .and_then(|()| std::fs::rename(&tmp, &path))
             .map_err(|e| Error::from_io(&path, "write", &e))?;

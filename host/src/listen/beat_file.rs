@@ -144,7 +144,10 @@ mod tests {
         assert_eq!(samples(&path), [40, 100, 5100]);
         // The appended bytes are the same as one whole file's.
         let all = [40, 100, 5100].map(Annotation::beat);
-        assert_eq!(std::fs::read(&path).unwrap(), encode_annotations(&all).unwrap());
+        assert_eq!(
+            std::fs::read(&path).unwrap(),
+            encode_annotations(&all).unwrap()
+        );
         // Earlier than the last beat written: the file is rewritten.
         f.push(70);
         f.flush().unwrap();

@@ -52,6 +52,8 @@ mod timeline;
 
 #[cfg(test)]
 mod tests;
+#[cfg(test)]
+mod tests_jumps;
 
 pub use beat_file::BeatFile;
 pub use capture::Capture;

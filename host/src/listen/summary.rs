@@ -7,10 +7,10 @@ use std::path::{Path, PathBuf};
 use std::time::{Duration, SystemTime};
 
 use super::clock::utc_text;
+use super::event::{Counts, Progress};
 use super::fields::{HelloFields, LinkFields, StatusFields};
 use super::recorder::{SampleCounts, Written};
 use super::scale::Scale;
-use super::event::{Counts, Progress};
 
 /// `ended_by` of a summary written while the session runs.
 pub const RUNNING: &str = "running";

@@ -36,9 +36,9 @@ fn span(message: &Message, t: &Timeline) -> Option<(u64, u64)> {
     match message {
         Message::Beat(b) => {
             let late = b.emitted_at.checked_sub(b.peak_index)?;
-            let onset_ok = b.onset_index.is_none_or(|o| {
-                o <= b.peak_index && b.emitted_at - o <= look_back
-            });
+            let onset_ok = b
+                .onset_index
+                .is_none_or(|o| o <= b.peak_index && b.emitted_at - o <= look_back);
             (late <= look_back && onset_ok).then_some((b.emitted_at, b.emitted_at))
         }
         Message::State(c) => Some((c.at, c.at)),
@@ -63,7 +63,12 @@ impl Session {
     }
 
     /// Place an indexed frame, hold it, or refuse it (see the module).
-    pub(super) fn indexed(&mut self, frame: Frame, t: Instant, sink: &mut dyn Sink) -> io::Result<()> {
+    pub(super) fn indexed(
+        &mut self,
+        frame: Frame,
+        t: Instant,
+        sink: &mut dyn Sink,
+    ) -> io::Result<()> {
         self.settle_rate();
         let Some((anchor, now)) = span(&frame.message, &self.timeline) else {
             return self.refuse(sink);
