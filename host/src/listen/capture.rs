@@ -70,3 +70,82 @@ impl Sink for Capture {
         Ok(())
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::listen::Session;
+    use plethwire_dsp::pipeline::Options;
+    use plethwire_dsp::wire::{Encoder, Hello, Message, SampleBlock, MAX_FRAME};
+    use plethwire_records::{read_annotations, Record};
+    use std::time::{Duration, SystemTime};
+
+    fn frames(enc: &mut Encoder, messages: &[Message]) -> Vec<u8> {
+        let mut buf = [0u8; MAX_FRAME];
+        messages
+            .iter()
+            .flat_map(|m| enc.encode(m, &mut buf).unwrap().to_vec())
+            .collect()
+    }
+
+    fn block(first: u64) -> Message {
+        Message::Samples(SampleBlock {
+            first_index: first,
+            count: 16,
+            raw: [2000.0; 16],
+            filtered: [0.0; 16],
+        })
+    }
+
+    fn summary(dir: &Path) -> serde_json::Value {
+        serde_json::from_str(&std::fs::read_to_string(dir.join("c.session.json")).unwrap()).unwrap()
+    }
+
+    #[test]
+    fn ticks_bring_every_file_up_to_date_twice_a_second() {
+        let dir = tempfile::tempdir().unwrap();
+        let setup = Setup {
+            record: "c".into(),
+            port: "test".into(),
+            baud: 115_200,
+            started: SystemTime::now(),
+        };
+        let mut capture = Capture::new(Recorder::new(dir.path(), "c", "pwire"), setup, dir.path());
+        let mut session = Session::new(None);
+        let hello = Message::Hello(Hello {
+            firmware_version: [1, 0, 0],
+            sample_rate_hz: 100.0,
+            options: Options {
+                rails: Some((0.0, 4095.0)),
+                ..Options::default()
+            },
+        });
+        let mut enc = Encoder::new();
+        let t0 = Instant::now();
+        let at = |ms| t0 + Duration::from_millis(ms);
+        session
+            .feed(&frames(&mut enc, &[hello, block(0)]), t0, &mut capture)
+            .unwrap();
+        capture.tick(t0, &session.progress()).unwrap();
+        let header = dir.path().join("c");
+        assert_eq!(Record::open(&header).unwrap().len(), 16);
+        assert!(read_annotations(dir.path().join("c.pwire"))
+            .unwrap()
+            .is_empty());
+        assert_eq!(summary(dir.path())["ended_by"], RUNNING);
+        assert_eq!(summary(dir.path())["record_samples"], 16);
+        // Not yet due at 0.4 s; due at 0.5 s.
+        session
+            .feed(&frames(&mut enc, &[block(16)]), at(400), &mut capture)
+            .unwrap();
+        capture.tick(at(400), &session.progress()).unwrap();
+        assert_eq!(Record::open(&header).unwrap().len(), 16);
+        capture.tick(at(500), &session.progress()).unwrap();
+        assert_eq!(Record::open(&header).unwrap().len(), 32);
+        assert_eq!(summary(dir.path())["record_samples"], 32);
+        let (written, end) = capture.finish(&session.progress(), "stopped").unwrap();
+        assert_eq!(written.record_samples, 32);
+        assert_eq!(end.ended_by, "stopped");
+        assert_eq!(summary(dir.path())["ended_by"], "stopped");
+    }
+}
