@@ -214,6 +214,9 @@ fn a_gap_the_clock_explains_is_filled_and_a_longer_one_is_not() {
     let stream = bytes(&mut enc, &[block(705_000), block(705_016)]);
     let events = feed(&mut session, &mut rec, &stream, much_later);
     assert_eq!(restarts(&events), [5048]);
+    assert!(events.iter().any(
+        |e| matches!(e, Event::Notice(n) if n.contains("jumped 7000 s ahead, more than the 3600 s"))
+    ));
     let w = rec.finish().unwrap();
     assert_eq!(w.samples.missing, 5000 - 16);
     assert_eq!(w.record_samples, 5048 + 32);

@@ -115,6 +115,12 @@ impl Timeline {
         self.long_slack
     }
 
+    /// The board's latest sample number placed, if any since the last
+    /// new run.
+    pub fn latest(&self) -> Option<u64> {
+        self.max_now
+    }
+
     /// Whether a hello or a reopen came since the last placed frame.
     pub fn fresh(&self) -> bool {
         self.fresh

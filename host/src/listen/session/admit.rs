@@ -17,7 +17,7 @@ use std::time::{Duration, Instant, SystemTime};
 
 use super::Session;
 use crate::listen::event::{Event, Sink};
-use crate::listen::timeline::Timeline;
+use crate::listen::timeline::{Timeline, MAX_GAP_S};
 
 /// A frame that did not fit, waiting for the next one.
 #[derive(Clone, Copy, Debug)]
@@ -112,12 +112,24 @@ impl Session {
         t: Instant,
         sink: &mut dyn Sink,
     ) -> io::Result<()> {
+        let ahead = self
+            .timeline
+            .latest()
+            .and_then(|max| anchor.checked_sub(max));
         let sample = self.timeline.new_run(anchor, now);
         // Nothing placed before: a board joined late, not a restart.
-        if sample > 0 {
-            self.counts.restarts += 1;
-            sink.event(&Event::Restart { sample })?;
+        if sample == 0 {
+            return self.placed(frame, t, sink);
         }
+        self.counts.restarts += 1;
+        let jump_s = ahead.zip(self.rate).map(|(n, rate)| n as f64 / rate);
+        if let Some(s) = jump_s.filter(|&s| s > MAX_GAP_S) {
+            sink.event(&Event::Notice(format!(
+                "the board's sample numbers jumped {s:.0} s ahead, more than the {MAX_GAP_S:.0} s \
+                 a record fills with invalid samples: the record goes on after its end"
+            )))?;
+        }
+        sink.event(&Event::Restart { sample })?;
         self.placed(frame, t, sink)
     }
 
