@@ -32,8 +32,8 @@ samples, when the board sends them) and NAME.session.json (summary). All
 are brought up to date twice a second, so a recording cut off (the program
 killed, the laptop shut) keeps all but its last second; they are finished
 on Ctrl-C, when --seconds are up, or when the port is gone for longer than
---wait. Unplugging is survived: the same path is
-tried every 0.5 s and the recording goes on.
+--wait. Unplugging is survived: the same path is tried every 0.5 s and the
+recording goes on.
 Exit status: 0 recorded, 1 the port never opened or the files could not be
 written, 2 the command line could not be understood.";
 
