@@ -9,7 +9,7 @@
 //! held until the next frame: if that one goes on from it, the board's
 //! numbering really changed (a restart whose hello was lost) and both are
 //! placed; if not, the held frame is refused. Refused frames are counted
-//! as damaged.
+//! as damaged. (A frame still held when the session ends is neither.)
 
 use plethwire_dsp::wire::{Frame, Message, SAMPLES_PER_BLOCK};
 use std::io;
