@@ -14,6 +14,7 @@ use crate::ride::{
 use plethwire::emulate::BuildError;
 use plethwire::replay::{Replay, Summary};
 use plethwire::score::MatchCounts;
+use plethwire::vocabulary::{verdict_words, MEDIAN_HR};
 use plethwire_dsp::pipeline::Config;
 
 const EXAMPLES: &str = "\
@@ -199,12 +200,12 @@ impl DemoArgs {
             Progress::State(s) => lines.push(format!(
                 "  {:>6.1} s  state: {}",
                 s.at as f64 / fs,
-                state_words(s.state)
+                state_words(s.previous, s.state)
             )),
             Progress::Beat(b) => {
                 let t = b.peak_index as f64 / fs;
                 bar.set_message(format!(
-                    "{:>5.1} s  HR {}",
+                    "{:>5.1} s  {MEDIAN_HR} {}",
                     t,
                     b.hr_smoothed_bpm
                         .map_or("-".into(), |h| format!("{h:.0} bpm"))
@@ -213,12 +214,12 @@ impl DemoArgs {
                 if t - last_shown >= 10.0 {
                     last_shown = t;
                     lines.push(format!(
-                        "  {:>6.1} s  beat: IBI {} ms, HR {} bpm, quality {:.2}{}",
+                        "  {:>6.1} s  beat: IBI {} ms, {MEDIAN_HR} {} bpm, quality {:.2}, {}",
                         t,
                         b.ibi_ms.map_or("-".into(), |i| format!("{i:.0}")),
                         b.hr_smoothed_bpm.map_or("-".into(), |h| format!("{h:.0}")),
                         b.quality,
-                        if b.flags.is_good() { "" } else { " (flagged)" }
+                        verdict_words(b.flags)
                     ));
                 }
             }
@@ -272,7 +273,7 @@ fn found_lines(summary: &Summary, truth: &MatchCounts) -> Vec<String> {
     )];
     if let Some(h) = &summary.heart_rate_bpm {
         lines.push(format!(
-            "  heart rate {:.0} to {:.0} bpm (mean {:.0}); events {:.0} ms after each peak",
+            "  {MEDIAN_HR} {:.0} to {:.0} bpm (mean {:.0}); events {:.0} ms after each peak",
             h.min,
             h.max,
             h.mean,

@@ -12,6 +12,7 @@
 //! Running recordings through the firmware on the emulated board: [`emulate`].
 //! A replay as one self-contained HTML page: [`report`].
 //! The analog front end's budget, LED to ADC: [`frontend`].
+//! The words for verdicts, flags and states on the terminal: [`vocabulary`].
 #![deny(missing_docs)]
 
 pub mod channel;
@@ -26,3 +27,4 @@ pub mod plot;
 pub mod replay;
 pub mod report;
 pub mod score;
+pub mod vocabulary;
