@@ -194,10 +194,10 @@ pub(super) fn beats_and_rate_lines(s: &Summary) -> String {
     );
     t += &match &s.heart_rate_bpm {
         Some(h) => format!(
-            "  heart rate  mean {:.1} bpm, min {:.1}, max {:.1}\n",
+            "  median HR   mean {:.1} bpm, min {:.1}, max {:.1}\n",
             h.mean, h.min, h.max
         ),
-        None => "  heart rate  none (no good beats)\n".into(),
+        None => "  median HR   none (no good beats)\n".into(),
     };
     t
 }

@@ -62,7 +62,7 @@ fn replay_writes_annotations_and_a_summary() {
         (33..=37).contains(&beats),
         "{beats} beats in 30 s at 72 bpm"
     );
-    let hr = v["summary"]["heart_rate_bpm"]["mean"].as_f64().unwrap();
+    let hr = v["summary"]["median_hr_bpm"]["mean"].as_f64().unwrap();
     assert!((hr - 72.0).abs() < 2.0, "{hr}");
     assert!(dir.path().join("ride.pwire").is_file());
     assert!(dir.path().join("ride.pwire.json").is_file());

@@ -56,6 +56,7 @@ pub struct StatusFields {
     /// Frames the board could not send since power-up.
     pub dropped_frames: u32,
     /// Non-finite samples the pipeline replaced since power-up.
+    #[serde(rename = "replaced_samples")]
     pub rejected_samples: u32,
 }
 
