@@ -11,6 +11,7 @@ use crate::ride::{
     against_truth, run_board, save_ride, scenario, state_words, stream, write_report, BoardOutcome,
     DemoResult, Progress,
 };
+use crate::values;
 use plethwire::emulate::BuildError;
 use plethwire::replay::{Replay, Summary};
 use plethwire::score::MatchCounts;
@@ -44,7 +45,7 @@ pub struct DemoArgs {
 
     /// How many times faster than real time to stream the ride on a
     /// terminal (0: as fast as possible; never paced in a pipe).
-    #[arg(long, value_name = "X", default_value_t = 40.0)]
+    #[arg(long, value_name = "X", default_value_t = 40.0, value_parser = values::non_negative)]
     pub speed: f64,
 
     /// Skip the emulated board even if QEMU is installed.
@@ -52,7 +53,7 @@ pub struct DemoArgs {
     pub no_board: bool,
 
     /// Seed of the ride's randomness (beat-to-beat variability, noise).
-    #[arg(long, value_name = "N", default_value_t = 7)]
+    #[arg(long, value_name = "N", default_value_t = 7, value_parser = values::whole_from(0u64))]
     pub seed: u64,
 
     /// Print the results as JSON instead of the running commentary.
