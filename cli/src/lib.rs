@@ -253,7 +253,10 @@ pub fn main() -> ExitCode {
         Ok(()) => ExitCode::SUCCESS,
         Err(failure) => {
             if let Some(message) = failure.message {
-                eprintln!("plethwire: {message}");
+                eprintln!(
+                    "plethwire: {}",
+                    plethwire::messages::without_os_codes(&message)
+                );
             }
             ExitCode::from(failure.code)
         }

@@ -1,6 +1,7 @@
-//! A file reader's message (serde, TOML) in the user's words: what value
-//! was expected and what was given, not the Rust type it was read into
-//! (`expected f64`, `unknown variant`).
+//! Messages in the user's words: a file reader's (serde, TOML) says what
+//! value was expected and what was given, not the Rust type it was read
+//! into (`expected f64`, `unknown variant`); a system error without its
+//! number.
 
 /// `message` with serde's wording replaced by the reader's: `invalid type:
 /// string "x", expected f64` becomes `expected a number, not the text "x"`.
@@ -30,6 +31,27 @@ pub fn plain(message: &str) -> String {
     };
     said.unwrap_or_else(|| message.to_owned())
         .replace('`', "\"")
+}
+
+/// `message` without the operating system's error numbers that Rust's I/O
+/// errors append (`No such file or directory (os error 2)`): the words
+/// before them say it.
+pub fn without_os_codes(message: &str) -> String {
+    let mut out = String::with_capacity(message.len());
+    let mut rest = message;
+    while let Some(at) = rest.find(" (os error ") {
+        let tail = &rest[at + " (os error ".len()..];
+        let digits = tail.bytes().take_while(u8::is_ascii_digit).count();
+        if digits > 0 && tail[digits..].starts_with(')') {
+            out.push_str(&rest[..at]);
+            rest = &tail[digits + 1..];
+        } else {
+            out.push_str(&rest[..at + 1]);
+            rest = &rest[at + 1..];
+        }
+    }
+    out.push_str(rest);
+    out
 }
 
 /// `GIVEN, expected WHAT` as `expected WHAT, not GIVEN`, in words.
@@ -90,7 +112,19 @@ fn names(list: &str) -> String {
 
 #[cfg(test)]
 mod tests {
-    use super::plain;
+    use super::{plain, without_os_codes};
+
+    #[test]
+    fn os_error_numbers_are_left_out() {
+        assert_eq!(
+            without_os_codes(
+                "/proc/x: cannot create the folder: No such file or directory (os error 2)"
+            ),
+            "/proc/x: cannot create the folder: No such file or directory"
+        );
+        assert_eq!(without_os_codes("a (os error x) b"), "a (os error x) b");
+        assert_eq!(without_os_codes("a (os error 13); b (os error 2)"), "a; b");
+    }
 
     #[test]
     fn serde_words_become_the_readers() {
