@@ -43,10 +43,19 @@ pub struct ReplayArgs {
     pub annotator: String,
 
     /// Also write every beat as CSV.
+    ///
+    /// Columns (docs/vocabulary.md): peak_sample, peak_s, onset_sample,
+    /// emitted_sample, ibi_ms, hr_bpm (60000 / IBI), median_hr_bpm (60000 /
+    /// median of the good intervals of the last 12 s), amplitude (input
+    /// units), quality (template correlation, 0 to 1), verdict (good, or bad
+    /// when any flag but no_interval is set) and flags: the flags set,
+    /// joined by | (no_interval, implausible_interval, clipped,
+    /// low_correlation, input_replaced, motion).
     #[arg(long)]
     pub beats_csv: bool,
 
-    /// Also write every beat as JSON.
+    /// Also write every beat as JSON: the CSV's columns as keys, flags as a
+    /// list of names.
     #[arg(long)]
     pub beats_json: bool,
 
