@@ -9,6 +9,7 @@ mod common;
 
 use common::plethwire;
 use plethwire::listen::{BeatSeen, Event, Screen, Settings, Sink, StateSeen};
+use plethwire::vocabulary::state_words;
 use plethwire_checks::{build_emulated_firmware, need, needs, qemu};
 use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, SignalState, StateEvent};
 use plethwire_records::{annotation_path, write_annotations, write_record, Annotation, NewSignal};
@@ -472,6 +473,11 @@ fn the_vocabulary_page_names_every_flag_and_state() {
         SignalState::Noisy,
     ];
     for s in states {
+        assert_eq!(
+            plethwire::report::state_name(s),
+            state_words(s),
+            "the page's state name"
+        );
         assert!(
             page.contains(&format!("`{}`", s.name())),
             "docs/vocabulary.md lacks state {}",
