@@ -230,7 +230,7 @@ fn table(s: &Scores) -> String {
         rate_cells(&s.pooled_heart_rate),
         timing_cells(&s.pooled_peak_timing),
     );
-    t += "HR MAE: mean absolute difference in bpm from the reference series, over 'secs' compared rows.\n";
+    t += "HR MAE: mean absolute difference in bpm of the median HR from the reference series, over 'secs' compared rows.\n";
     t += "dt: our matched peak minus the reference beat, ms: signed median, median and p95 of |dt|.\n";
     if s.pooled_windows.is_some() {
         t += &format!("\n{:<12}{}\n", "record", windows_header());
