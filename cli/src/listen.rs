@@ -47,7 +47,7 @@ pub struct ListenArgs {
 
     /// Baud rate; 8 data bits, no parity, 1 stop bit.
     #[arg(long, value_name = "N", default_value_t = 115_200,
-          value_parser = clap::value_parser!(u32).range(1..))]
+          value_parser = values::whole_from(1u32))]
     pub baud: u32,
 
     /// Folder for the recording (made if missing).

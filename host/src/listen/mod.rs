@@ -67,5 +67,4 @@ pub use scale::{Scale, ScaleSource, INVALID};
 pub use screen::{Screen, CAUTION};
 pub use session::{Session, LINK_EVERY, QUIET_AFTER};
 pub use summary::{summary_path, Setup, Summary, FLUSH_EVERY, RUNNING, SUMMARY_FORMAT};
-pub use text::flag_words;
 pub use timeline::{Timeline, LONG_SLACK_S, MAX_GAP_S, RESTART_SLACK};
