@@ -11,7 +11,8 @@ use crate::ride::{
     against_truth, run_board, save_ride, scenario, state_words, stream, write_report, BoardOutcome,
     DemoResult, Progress,
 };
-use plethwire::emulate::BuildError;
+use plethwire::emulate::FirmwareSearch;
+use plethwire::output_guard;
 use plethwire::replay::{Replay, Summary};
 use plethwire::score::MatchCounts;
 use plethwire_dsp::pipeline::Config;
@@ -57,20 +58,54 @@ pub struct DemoArgs {
     /// Print the results as JSON instead of the running commentary.
     #[arg(long)]
     pub json: bool,
+
+    /// The emulated firmware's ELF [default: $PLETHWIRE_FIRMWARE, else
+    /// built from --source].
+    #[arg(long, value_name = "ELF")]
+    pub firmware: Option<PathBuf>,
+
+    /// A plethwire checkout to build the emulated firmware in [default:
+    /// $PLETHWIRE_SOURCE, else the checkout this program was built from].
+    #[arg(long, value_name = "DIR")]
+    pub source: Option<PathBuf>,
+
+    /// Replace files in --out that this demo did not write.
+    #[arg(long)]
+    pub force: bool,
 }
 
-/// Build the emulated firmware, saying so first; cargo's diagnostics of a
-/// failed build go to standard error.
-fn build_firmware(say: &mut dyn FnMut(&str)) -> Result<PathBuf, BuildError> {
-    say("building the emulated firmware (cd firmware && cargo build --release; quick when up to date) ...");
-    let built = plethwire::emulate::build_firmware();
-    if let Err(BuildError::Failed { stderr, .. }) = &built {
-        say(stderr.trim_end());
-    }
-    built
+/// The files the demo writes in its folder.
+fn demo_files() -> [String; 5] {
+    [
+        "ride.hea".into(),
+        "ride.dat".into(),
+        "ride.truth".into(),
+        format!("ride.{}", plethwire::replay::DEFAULT_ANNOTATOR),
+        "ride.report.html".into(),
+    ]
 }
+
+/// The file that marks a folder as one the demo wrote (so running the
+/// demo again may replace its own files, and nobody else's).
+const DEMO_MARK: &str = ".plethwire-demo";
 
 impl DemoArgs {
+    /// Create `--out` and make sure the demo's files would replace only
+    /// files an earlier demo wrote there (or anything, with `--force`);
+    /// then mark the folder as the demo's.
+    fn claim_folder(&self) -> Result<(), Failure> {
+        let dir = super::replay::output_dir(Some(&self.out))?;
+        let ours = dir.join(DEMO_MARK).is_file();
+        let files: Vec<PathBuf> = demo_files().iter().map(|f| dir.join(f)).collect();
+        output_guard::check_outputs(&files, &[], self.force || ours)
+            .map_err(super::replay::guard_failure)?;
+        std::fs::write(
+            dir.join(DEMO_MARK),
+            "Written by `plethwire demo`: it may replace its own ride.* files here.\n",
+        )
+        .map_err(|e| Failure::refused(format!("{}: cannot write: {e}", dir.display())))
+    }
+
     /// Run the demo.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
         if !(self.speed.is_finite() && self.speed >= 0.0) {
@@ -85,12 +120,7 @@ impl DemoArgs {
         };
         say(out, "plethwire demo: a finger-clip pulse sensor on a bike trainer (made up, with known beats)")?;
         say(out, "  not a medical device, not for diagnosis; wire real sensors to people only through a battery or a USB isolator (IEC 60601-1 practice)")?;
-        std::fs::create_dir_all(&self.out).map_err(|e| {
-            Failure::refused(format!(
-                "{}: cannot create the folder: {e}",
-                self.out.display()
-            ))
-        })?;
+        self.claim_folder()?;
         let ride = scenario::ride(self.seed)
             .map_err(|e| Failure::refused(format!("cannot make the ride: {e}")))?;
         let (samples, mut files) = save_ride(&self.out, &ride).map_err(Failure::refused)?;
@@ -254,7 +284,12 @@ impl DemoArgs {
                     let _ = writeln!(std::io::stderr(), "  {t}");
                 }
             };
-            run_board(samples, config, replay, &mut || build_firmware(&mut note))
+            let search = FirmwareSearch {
+                elf: self.firmware.clone(),
+                source: self.source.clone(),
+                rebuild: true,
+            };
+            run_board(samples, config, replay, &mut || search.locate(&mut note))
         }
     }
 }

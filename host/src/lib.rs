@@ -22,6 +22,7 @@ pub mod frontend;
 pub mod listen;
 pub mod matching;
 pub mod motion;
+pub mod output_guard;
 pub mod plot;
 pub mod replay;
 pub mod report;
