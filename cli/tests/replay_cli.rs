@@ -7,9 +7,13 @@ use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::Path;
 use std::process::Command;
 
+/// Run `plethwire args` in a fresh scratch folder (where its outputs go
+/// unless `--out` says otherwise).
 fn plethwire(args: &[&str]) -> (i32, String, String) {
+    let scratch = tempfile::tempdir().unwrap();
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
         .args(args)
+        .current_dir(scratch.path())
         .output()
         .expect("run plethwire");
     (
@@ -54,7 +58,14 @@ fn replay_writes_annotations_and_a_summary() {
     let dir = tempfile::tempdir().unwrap();
     make_record(dir.path(), "ride");
     let rec = dir.path().join("ride");
-    let (code, out, err) = plethwire(&["replay", rec.to_str().unwrap(), "--json", "--beats-json"]);
+    let (code, out, err) = plethwire(&[
+        "replay",
+        rec.to_str().unwrap(),
+        "--json",
+        "--beats-json",
+        "--out",
+        dir.path().to_str().unwrap(),
+    ]);
     assert_eq!(code, 0, "{err}");
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     let beats = v["summary"]["beats"].as_u64().unwrap();
@@ -140,7 +151,14 @@ fn score_reports_pooled_counts_against_reference_annotations() {
     // The pipeline's own beats as the reference: every beat must match.
     for name in ["a", "b"] {
         let rec = dir.path().join(name);
-        let (code, _, err) = plethwire(&["replay", rec.to_str().unwrap(), "--annotator", "ref"]);
+        let (code, _, err) = plethwire(&[
+            "replay",
+            rec.to_str().unwrap(),
+            "--annotator",
+            "ref",
+            "--out",
+            dir.path().to_str().unwrap(),
+        ]);
         assert_eq!(code, 0, "{err}");
     }
     let (code, out, err) = plethwire(&[
