@@ -4,12 +4,11 @@ use clap::Args;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
-use std::time::{Duration, Instant};
 
 use super::Failure;
+use crate::ride::live::{stream_live, Told, WallClock};
 use crate::ride::{
-    against_truth, run_board, save_ride, scenario, state_words, stream, write_report, BoardOutcome,
-    DemoResult, Progress,
+    against_truth, run_board, save_ride, scenario, write_report, BoardOutcome, DemoResult,
 };
 use plethwire::emulate::FirmwareSearch;
 use plethwire::output_guard;
@@ -185,7 +184,8 @@ impl DemoArgs {
 
     /// Stream `samples` through the pipeline at `fs`, paced on a terminal
     /// (at `self.speed`) so the events can be watched, with a progress bar
-    /// and a line per phase, state change and every 10 s of beats.
+    /// and a line per phase, state change and every 10 s of beats, each
+    /// printed when its moment comes ([`stream_live`]).
     fn stream_watched(
         &self,
         samples: &[f64],
@@ -194,14 +194,8 @@ impl DemoArgs {
         chatty: bool,
         out: &mut dyn Write,
     ) -> Result<Replay, Failure> {
-        let mut lines: Vec<String> = Vec::new();
-        // Stream, paced on a terminal so the events can be watched.
         let tty = std::io::stdout().is_terminal() && chatty;
-        let pace = if tty && self.speed > 0.0 {
-            Some(self.speed)
-        } else {
-            None
-        };
+        let pace = (tty && self.speed > 0.0).then_some(self.speed);
         let bar = if tty {
             ProgressBar::with_draw_target(Some(samples.len() as u64), ProgressDrawTarget::stderr())
         } else {
@@ -211,60 +205,32 @@ impl DemoArgs {
             ProgressStyle::with_template("  {bar:40} {percent:>3}%  {msg}")
                 .unwrap_or_else(|_| ProgressStyle::default_bar()),
         );
-        let start = Instant::now();
-        let mut last_shown = -10.0;
-        let replay = stream(samples, config, &mut |p| match p {
-            Progress::Sample(n) => {
-                if n % 25 == 0 {
-                    bar.set_position(n);
-                    if let Some(x) = pace {
-                        let due = Duration::from_secs_f64(n as f64 / fs / x);
-                        if let Some(wait) = due.checked_sub(start.elapsed()) {
-                            std::thread::sleep(wait);
-                        }
+        let mut failed = None;
+        let replay = stream_live(
+            samples,
+            config,
+            fs,
+            pace,
+            &mut WallClock::start(),
+            &mut |told| match told {
+                Told::Position(n) => bar.set_position(n),
+                Told::Rate(m) => bar.set_message(m),
+                // Above the bar on a terminal, else straight out.
+                Told::Line { text, .. } if chatty && failed.is_none() => {
+                    if tty {
+                        bar.println(&text);
+                    } else {
+                        failed = writeln!(out, "{text}").and_then(|_| out.flush()).err();
                     }
                 }
-            }
-            Progress::Phase(ph) => lines.push(format!("  {:>6.1} s  ── {}", ph.start_s, ph.what)),
-            Progress::State(s) => lines.push(format!(
-                "  {:>6.1} s  state: {}",
-                s.at as f64 / fs,
-                state_words(s.state)
-            )),
-            Progress::Beat(b) => {
-                let t = b.peak_index as f64 / fs;
-                bar.set_message(format!(
-                    "{:>5.1} s  HR {}",
-                    t,
-                    b.hr_smoothed_bpm
-                        .map_or("-".into(), |h| format!("{h:.0} bpm"))
-                ));
-                // One beat line every 10 s of ride keeps the stream readable.
-                if t - last_shown >= 10.0 {
-                    last_shown = t;
-                    lines.push(format!(
-                        "  {:>6.1} s  beat: IBI {} ms, HR {} bpm, quality {:.2}{}",
-                        t,
-                        b.ibi_ms.map_or("-".into(), |i| format!("{i:.0}")),
-                        b.hr_smoothed_bpm.map_or("-".into(), |h| format!("{h:.0}")),
-                        b.quality,
-                        if b.flags.is_good() { "" } else { " (flagged)" }
-                    ));
-                }
-            }
-        });
-        // Print the commentary as it came (above the bar on a terminal).
-        for l in lines.drain(..) {
-            if chatty {
-                if tty {
-                    bar.println(&l);
-                } else {
-                    writeln!(out, "{l}").map_err(Failure::output)?;
-                }
-            }
-        }
+                Told::Line { .. } => {}
+            },
+        );
         bar.finish_and_clear();
-        Ok(replay)
+        match failed {
+            Some(e) => Err(Failure::output(e)),
+            None => Ok(replay),
+        }
     }
 
     /// The emulated board's run of `samples`, compared with the host's

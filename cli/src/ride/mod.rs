@@ -6,6 +6,7 @@
 //! board when QEMU is there (and compared bit for bit), saved as a WFDB
 //! record, and summed up in a report page.
 
+pub mod live;
 pub mod scenario;
 
 use plethwire::emulate::{compare, find_qemu, Emulation, Firmware, FirmwareError, Link};
