@@ -27,7 +27,14 @@ this demo with known beats: rest, effort, a sprint that shakes the clip,
 recovery, the clip slipping off for 6 s, cool-down. The ride is streamed
 through the beat pipeline, scored against its true beats, run through the
 emulated board when QEMU is installed (and compared bit for bit), saved as
-a WFDB record, and summed up in a report page to open in a browser.
+a WFDB record, and summed up in a report page to open in a browser. On a
+terminal each event is printed when its paced moment comes.
+
+Files go in --out (default: plethwire-demo in the current folder); the demo
+replaces only files an earlier demo wrote there (--force: any). The
+emulated firmware: --firmware ELF or $PLETHWIRE_FIRMWARE, else built in the
+checkout --source DIR or $PLETHWIRE_SOURCE names, else in the checkout this
+program was built from.
 
 Not a medical device; not for diagnosis. Exit status: 0 done, 1 the board
 disagreed with the host or a file could not be written, 2 the command line
@@ -216,14 +223,14 @@ impl DemoArgs {
                 Told::Position(n) => bar.set_position(n),
                 Told::Rate(m) => bar.set_message(m),
                 // Above the bar on a terminal, else straight out.
-                Told::Line { text, .. } if chatty && failed.is_none() => {
+                Told::Line(text) if chatty && failed.is_none() => {
                     if tty {
                         bar.println(&text);
                     } else {
                         failed = writeln!(out, "{text}").and_then(|_| out.flush()).err();
                     }
                 }
-                Told::Line { .. } => {}
+                Told::Line(_) => {}
             },
         );
         bar.finish_and_clear();

@@ -166,9 +166,7 @@ impl EmulateArgs {
         let firmware = self.firmware()?;
         let qemu = find_qemu().map_err(Failure::refused)?;
         let rec = load(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
-        let dir = super::replay::output_dir(self.out.as_deref())?;
-        let ann_path = annotation_path(&dir.join(&rec.name), &self.annotator);
-        super::replay::check_outputs(&self.record, &[ann_path], self.force)?;
+        let dir = self.output_dir(&rec)?;
         let fs = rec.signal.fs;
         let config = self.pipeline.config(fs);
         let n = match self.seconds {
@@ -239,6 +237,15 @@ impl EmulateArgs {
                 "the board's events differ from the host replay: {e}"
             ))
         })
+    }
+
+    /// The folder for the annotation file of `rec`, once nothing is in
+    /// the way of that file.
+    fn output_dir(&self, rec: &Recording) -> Result<PathBuf, Failure> {
+        let dir = super::replay::output_dir(self.out.as_deref())?;
+        let file = annotation_path(&dir.join(&rec.name), &self.annotator);
+        super::replay::check_outputs(&self.record, &[file], self.force)?;
+        Ok(dir)
     }
 
     /// The firmware as `--firmware`, `--source` and the environment say;

@@ -80,7 +80,7 @@ fn write_truth(dir: &Path, name: &str, s: &plethwire_synth::Synthetic) {
         .iter()
         .map(|b| Annotation::beat(b.peak as i64))
         .collect();
-    write_annotations(&annotation_path(&dir.join(name), "peak"), &beats).unwrap();
+    write_annotations(annotation_path(&dir.join(name), "peak"), &beats).unwrap();
 }
 
 /// Beats and good beats of `score REC [extra...] --json`.

@@ -45,7 +45,7 @@ fn make_record(dir: &Path, name: &str) -> PathBuf {
         .iter()
         .map(|b| Annotation::beat(b.peak as i64))
         .collect();
-    write_annotations(&annotation_path(&dir.join(name), "peak"), &truth).unwrap();
+    write_annotations(annotation_path(&dir.join(name), "peak"), &truth).unwrap();
     dir.join(name)
 }
 

@@ -51,7 +51,7 @@ fn make_record(dir: &Path, name: &str, truth: bool) -> PathBuf {
             .iter()
             .map(|b| Annotation::beat(b.peak as i64))
             .collect();
-        write_annotations(&annotation_path(&dir.join(name), "peak"), &beats).unwrap();
+        write_annotations(annotation_path(&dir.join(name), "peak"), &beats).unwrap();
     }
     dir.join(name)
 }
@@ -102,7 +102,7 @@ fn nothing_to_compare_is_refused() {
     let dir = tempfile::tempdir().unwrap();
     let a = make_record(dir.path(), "a", false);
     // A reference file that holds no beat.
-    write_annotations(&annotation_path(&a, "peak"), &[]).unwrap();
+    write_annotations(annotation_path(&a, "peak"), &[]).unwrap();
     one_line_refusal(
         plethwire(dir.path(), &["score", a.to_str().unwrap()]),
         &["nothing could be scored", "a"],

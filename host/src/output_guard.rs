@@ -207,7 +207,7 @@ mod tests {
         // The same input named another way.
         let other_way = dir.path().join(".").join("old.csv");
         assert_eq!(
-            check_outputs(&[other_way.clone()], &[old], true),
+            check_outputs(std::slice::from_ref(&other_way), &[old], true),
             Err(OutputError::IsInput(other_way))
         );
         assert_eq!(check_outputs(&[new], &[], false), Ok(()));

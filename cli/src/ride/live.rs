@@ -39,13 +39,8 @@ impl Clock for WallClock {
 
 /// What the watcher is told as the ride streams.
 pub enum Told {
-    /// A line of commentary, at ride time `at_s`.
-    Line {
-        /// Ride time the line is about, s.
-        at_s: f64,
-        /// The line.
-        text: String,
-    },
+    /// A line of commentary; it starts with the ride time it is about.
+    Line(String),
     /// Samples streamed so far, for a progress bar.
     Position(u64),
     /// The latest heart rate, for the bar's message.
@@ -76,17 +71,15 @@ pub fn stream_live(
                 }
             }
         }
-        Progress::Phase(ph) => watch(Told::Line {
-            at_s: ph.start_s,
-            text: format!("  {:>6.1} s  ── {}", ph.start_s, ph.what),
-        }),
-        Progress::State(s) => {
-            let at_s = s.at as f64 / fs;
-            watch(Told::Line {
-                at_s,
-                text: format!("  {at_s:>6.1} s  state: {}", state_words(s.state)),
-            })
-        }
+        Progress::Phase(ph) => watch(Told::Line(format!(
+            "  {:>6.1} s  ── {}",
+            ph.start_s, ph.what
+        ))),
+        Progress::State(s) => watch(Told::Line(format!(
+            "  {:>6.1} s  state: {}",
+            s.at as f64 / fs,
+            state_words(s.state)
+        ))),
         Progress::Beat(b) => {
             let t = b.peak_index as f64 / fs;
             let hr = b.hr_smoothed_bpm.map_or("-".into(), |h| format!("{h:.0}"));
@@ -94,15 +87,12 @@ pub fn stream_live(
             // One beat line every 10 s of ride keeps the stream readable.
             if t - last_shown >= 10.0 {
                 last_shown = t;
-                watch(Told::Line {
-                    at_s: t,
-                    text: format!(
-                        "  {t:>6.1} s  beat: IBI {} ms, HR {hr} bpm, quality {:.2}{}",
-                        b.ibi_ms.map_or("-".into(), |i| format!("{i:.0}")),
-                        b.quality,
-                        if b.flags.is_good() { "" } else { " (flagged)" }
-                    ),
-                });
+                watch(Told::Line(format!(
+                    "  {t:>6.1} s  beat: IBI {} ms, HR {hr} bpm, quality {:.2}{}",
+                    b.ibi_ms.map_or("-".into(), |i| format!("{i:.0}")),
+                    b.quality,
+                    if b.flags.is_good() { "" } else { " (flagged)" }
+                )));
             }
         }
     })
@@ -146,7 +136,9 @@ mod tests {
             Some(speed),
             &mut clock.clone(),
             &mut |t| {
-                if let Told::Line { at_s, text } = t {
+                if let Told::Line(text) = t {
+                    // The ride time the line starts with.
+                    let at_s: f64 = text.split_whitespace().next().unwrap().parse().unwrap();
                     told.push((now.get().as_secs_f64(), at_s, text));
                 }
             },
