@@ -33,7 +33,17 @@ fn run(exe: &Path, cwd: &Path, args: &[&str], env: &[(&str, &Path)]) -> Output {
     for (k, v) in env {
         cmd.env(k, v);
     }
-    cmd.output().expect("run the installed plethwire")
+    // A test thread forking while another copies its binary can hold the
+    // copy open for writing a moment (ETXTBSY): try again.
+    for _ in 0..100 {
+        match cmd.output() {
+            Err(e) if e.kind() == std::io::ErrorKind::ExecutableFileBusy => {
+                std::thread::sleep(std::time::Duration::from_millis(20))
+            }
+            got => return got.expect("run the installed plethwire"),
+        }
+    }
+    panic!("the copied binary stayed busy")
 }
 
 fn stderr(o: &Output) -> String {
