@@ -2,6 +2,8 @@
 //! without QEMU (the runs themselves are checked in `tests/`, which has the
 //! emulator harness).
 
+mod common;
+
 use std::process::Command;
 
 /// Run `plethwire args` in a fresh scratch folder (where its outputs go
@@ -18,20 +20,6 @@ fn plethwire(args: &[&str]) -> (i32, String, String) {
         String::from_utf8_lossy(&out.stdout).into_owned(),
         String::from_utf8_lossy(&out.stderr).into_owned(),
     )
-}
-
-/// A 52-byte ELF header: 32-bit, little-endian, an executable for
-/// `machine` with entry point `entry` (System V ABI ELF header layout).
-fn elf_header(machine: u16, entry: u32) -> Vec<u8> {
-    let mut h = vec![0u8; 52];
-    h[..4].copy_from_slice(b"\x7fELF");
-    h[4] = 1;
-    h[5] = 1;
-    h[6] = 1;
-    h[16..18].copy_from_slice(&2u16.to_le_bytes());
-    h[18..20].copy_from_slice(&machine.to_le_bytes());
-    h[24..28].copy_from_slice(&entry.to_le_bytes());
-    h
 }
 
 #[test]
@@ -60,7 +48,7 @@ fn a_missing_qemu_is_one_line_saying_how_to_get_it() {
     // little-endian ARM executable, entry in its code memory); QEMU is
     // looked for next.
     let elf = dir.path().join("fw.elf");
-    std::fs::write(&elf, elf_header(40, 0x0000_0401)).unwrap();
+    std::fs::write(&elf, common::elf_header(40, 0x0000_0401)).unwrap();
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
         .args(["emulate", "no/such/record", "--elf"])
         .arg(&elf)

@@ -7,9 +7,9 @@
 //! `PLETHWIRE_SOURCE` set to the empty string stands for an install whose
 //! checkout is gone: the baked build folder is then not used.
 
+mod common;
+
 use plethwire_checks::{build_emulated_firmware, need, needs, qemu, repo_root};
-use plethwire_records::{write_record, NewSignal};
-use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
@@ -50,19 +50,9 @@ fn stderr(o: &Output) -> String {
     String::from_utf8_lossy(&o.stderr).into_owned()
 }
 
-/// A 20 s synthetic record `r` in `dir` (a scenario of our own).
+/// A 20 s synthetic record `r` in `dir`.
 fn make_record(dir: &Path) -> PathBuf {
-    let s = generate(&SynthOptions {
-        sample_rate_hz: 125.0,
-        duration_s: 20.0,
-        hr: HrSchedule::constant(66.0),
-        ..SynthOptions::default()
-    })
-    .unwrap();
-    let digital: Vec<i32> = s.samples.iter().map(|&v| (v * 1000.0) as i32).collect();
-    let sig = NewSignal::new("PLETH", "NU", 1000.0, 0);
-    write_record(dir, "r", 125.0, &[sig], &[digital]).unwrap();
-    dir.join("r")
+    common::synthetic_record(dir, "r", 20.0, 66.0, false)
 }
 
 #[test]
@@ -175,20 +165,6 @@ fn a_checkout_named_by_the_source_variable_is_built_in() {
     assert_eq!(v["identical_to_host"], true);
 }
 
-/// A 52-byte ELF header: 32-bit little-endian executable for `machine`
-/// with entry point `entry` (System V ABI ELF header layout).
-fn elf_header(machine: u16, entry: u32) -> Vec<u8> {
-    let mut h = vec![0u8; 52];
-    h[..4].copy_from_slice(b"\x7fELF");
-    h[4] = 1;
-    h[5] = 1;
-    h[6] = 1;
-    h[16..18].copy_from_slice(&2u16.to_le_bytes());
-    h[18..20].copy_from_slice(&machine.to_le_bytes());
-    h[24..28].copy_from_slice(&entry.to_le_bytes());
-    h
-}
-
 /// How the check names the processor these tests run on.
 fn host_processor() -> &'static str {
     if cfg!(target_arch = "x86_64") {
@@ -206,7 +182,7 @@ fn a_wrong_elf_is_named_before_qemu_starts() {
     let cwd = tempfile::tempdir().unwrap();
     let stm32 = cwd.path().join("stm32.elf");
     // ARM, linked at the STM32F411's flash (0x0800_0000).
-    std::fs::write(&stm32, elf_header(40, 0x0800_0199)).unwrap();
+    std::fs::write(&stm32, common::elf_header(40, 0x0800_0199)).unwrap();
     let raw = cwd.path().join("image.bin");
     std::fs::write(&raw, [0u8, 0, 1, 0x20, 0x99, 0x01, 0, 0]).unwrap();
     let cases: [(&Path, &str); 3] = [

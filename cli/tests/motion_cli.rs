@@ -4,7 +4,10 @@
 //! accelerometer (gravity on z, an arm swing on x), never a copy of shared
 //! data.
 
-use plethwire_records::{annotation_path, write_annotations, write_record, Annotation, NewSignal};
+mod common;
+
+use common::write_truth;
+use plethwire_records::{write_record, NewSignal};
 use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::{Path, PathBuf};
 use std::process::Command;
@@ -71,16 +74,6 @@ fn make_record(dir: &Path, name: &str, swing_hz: f64) -> PathBuf {
     .unwrap();
     write_truth(dir, name, &s);
     dir.join(name)
-}
-
-/// The generator's beats as `<name>.peak`, the reference `score` needs.
-fn write_truth(dir: &Path, name: &str, s: &plethwire_synth::Synthetic) {
-    let beats: Vec<Annotation> = s
-        .beats
-        .iter()
-        .map(|b| Annotation::beat(b.peak as i64))
-        .collect();
-    write_annotations(annotation_path(&dir.join(name), "peak"), &beats).unwrap();
 }
 
 /// Beats and good beats of `score REC [extra...] --json`.

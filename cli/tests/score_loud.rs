@@ -4,56 +4,16 @@
 //! shows. Recordings are invented in a temp folder (a synthetic pulse,
 //! `plethwire_synth`).
 
-use plethwire_records::{annotation_path, write_annotations, write_record, Annotation, NewSignal};
-use plethwire_synth::{generate, HrSchedule, SynthOptions};
+use plethwire_records::{annotation_path, write_annotations};
 use std::path::{Path, PathBuf};
-use std::process::Command;
 
-fn plethwire(cwd: &Path, args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
-        .args(args)
-        .current_dir(cwd)
-        .output()
-        .expect("run plethwire");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+mod common;
+use common::run_in as plethwire;
 
 /// A 30 s, 72 bpm record `name` in `dir`; with `truth`, its true beats
 /// as `<name>.peak`.
 fn make_record(dir: &Path, name: &str, truth: bool) -> PathBuf {
-    let s = generate(&SynthOptions {
-        sample_rate_hz: 125.0,
-        duration_s: 30.0,
-        hr: HrSchedule::constant(72.0),
-        ..SynthOptions::default()
-    })
-    .unwrap();
-    let digital: Vec<i32> = s
-        .samples
-        .iter()
-        .map(|&v| (v * 1000.0).round() as i32)
-        .collect();
-    write_record(
-        dir,
-        name,
-        125.0,
-        &[NewSignal::new("PLETH", "NU", 1000.0, 0)],
-        &[digital],
-    )
-    .unwrap();
-    if truth {
-        let beats: Vec<Annotation> = s
-            .beats
-            .iter()
-            .map(|b| Annotation::beat(b.peak as i64))
-            .collect();
-        write_annotations(annotation_path(&dir.join(name), "peak"), &beats).unwrap();
-    }
-    dir.join(name)
+    common::synthetic_record(dir, name, 30.0, 72.0, truth)
 }
 
 fn one_line_refusal(got: (i32, String, String), names: &[&str]) {
