@@ -193,3 +193,22 @@ fn the_demo_replaces_only_its_own_files() {
     let (code, _, err) = demo("theirs", &["--force"]);
     assert_eq!(code, 0, "{err}");
 }
+
+#[test]
+fn the_filter_plot_is_not_replaced_without_force() {
+    let here = tempfile::tempdir().unwrap();
+    let plot = here.path().join("plethwire-filter.svg");
+    std::fs::write(&plot, "my drawing").unwrap();
+    let args = ["filter", "--rate", "250", "--band", "0.5:8"];
+    refused(
+        plethwire(here.path(), &args),
+        1,
+        &["plethwire-filter.svg", "--force"],
+    );
+    assert_eq!(std::fs::read_to_string(&plot).unwrap(), "my drawing");
+    let mut forced = args.to_vec();
+    forced.push("--force");
+    let (code, _, err) = plethwire(here.path(), &forced);
+    assert_eq!(code, 0, "{err}");
+    assert!(std::fs::read_to_string(&plot).unwrap().contains("<svg"));
+}
