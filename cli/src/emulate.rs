@@ -17,7 +17,7 @@ use plethwire::emulate::{
     PerfReport, Session,
 };
 use plethwire::replay::{
-    load, replay, write_beat_annotations, Recording, Replay, Summary, DEFAULT_ANNOTATOR,
+    load, replay, write_recording_beats, Recording, Replay, Summary, DEFAULT_ANNOTATOR,
 };
 use plethwire_records::annotation_path;
 
@@ -215,8 +215,8 @@ impl EmulateArgs {
             ))
         })?;
         let board = session.to_replay();
-        let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &board)
-            .map_err(Failure::refused)?;
+        let ann =
+            write_recording_beats(&dir, &rec, &self.annotator, &board).map_err(Failure::refused)?;
         let agreement = compare(&board.beats, &board.states, &host);
         let text = if self.json {
             json_report(

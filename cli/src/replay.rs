@@ -11,8 +11,8 @@ use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
 use plethwire::output_guard::{self, OutputError, DEFAULT_OUTPUT_DIR};
 use plethwire::replay::{
-    beat_rows, beats_csv, load, replay_recording, write_beat_annotations, InputInfo, Replay,
-    Summary, DEFAULT_ANNOTATOR,
+    beat_rows, beats_csv, load, replay_recording, write_recording_beats, InputInfo, Recording,
+    Replay, Summary, DEFAULT_ANNOTATOR,
 };
 use plethwire_records::annotation_path;
 
@@ -139,7 +139,7 @@ impl ReplayArgs {
                 self.record.display()
             ))
         })?;
-        let written = self.write_outputs(&rec.name, &run)?;
+        let written = self.write_outputs(&rec, &run)?;
         let summary = run.summary();
         let motion = rec.motion.as_ref().map(|m| MotionReport {
             signals: &m.names,
@@ -190,15 +190,15 @@ impl ReplayArgs {
         outputs
     }
 
-    /// Write the beats of `run` (the recording `name`) as
+    /// Write the beats of `run` (a replay of `rec`) as
     /// [`Self::outputs`] lists them, once none is in the way; returns the
     /// files written.
-    fn write_outputs(&self, name: &str, run: &Replay) -> Result<Vec<String>, Failure> {
+    fn write_outputs(&self, rec: &Recording, run: &Replay) -> Result<Vec<String>, Failure> {
         let dir = output_dir(self.out.as_deref())?;
-        let outputs = self.outputs(&dir, name);
+        let outputs = self.outputs(&dir, &rec.name);
         check_outputs(&self.record, &outputs, self.force)?;
         let ann =
-            write_beat_annotations(&dir, name, &self.annotator, run).map_err(Failure::refused)?;
+            write_recording_beats(&dir, rec, &self.annotator, run).map_err(Failure::refused)?;
         let mut written = vec![ann.display().to_string()];
         let tables = [
             (self.beats_csv, beats_csv(run)),
