@@ -108,6 +108,14 @@ fn a_record_given_twice_counts_once_and_json_has_the_figures() {
         assert!((got - want).abs() < 1e-12, "{key}: {got} vs {want}");
         assert_eq!(r[key], p[key], "{key}");
     }
+    // The peaks' mean absolute error against the reference beats, ms:
+    // matched pairs lie within the ±150 ms window.
+    let t = &v1["pooled_peak_timing"];
+    let mae = t["mae_ms"]
+        .as_f64()
+        .unwrap_or_else(|| panic!("no mae_ms: {t}"));
+    assert!((0.0..=150.0).contains(&mae), "{t}");
+    assert_eq!(v1["records"][0]["peak_timing"]["mae_ms"], t["mae_ms"]);
     // The table's pooled row says the same.
     let (code, table, _) = plethwire(dir.path(), &["score", a_s, a_s]);
     assert_eq!(code, 0);
