@@ -113,7 +113,7 @@ fn require_reference_beats(base: &Path, annotator: &str) -> Result<(), Failure> 
 }
 
 /// `; annotation files beside it: a, b` or nothing.
-pub(crate) fn beside_hint(base: &Path) -> String {
+fn beside_hint(base: &Path) -> String {
     let found = annotators_beside(base);
     if found.is_empty() {
         String::new()
