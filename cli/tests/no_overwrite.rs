@@ -212,3 +212,33 @@ fn the_filter_plot_is_not_replaced_without_force() {
     assert_eq!(code, 0, "{err}");
     assert!(std::fs::read_to_string(&plot).unwrap().contains("<svg"));
 }
+
+#[test]
+fn the_frontend_plot_needs_force_and_never_replaces_the_circuit() {
+    let here = tempfile::tempdir().unwrap();
+    let circuit = here.path().join("clip.toml");
+    let example = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/../examples/frontend-fingerclip.toml"
+    );
+    std::fs::copy(example, &circuit).unwrap();
+    let text = std::fs::read_to_string(&circuit).unwrap();
+    let c = circuit.to_str().unwrap();
+    refused(
+        plethwire(here.path(), &["frontend", c, "--plot", c, "--force"]),
+        1,
+        &["clip.toml", "never"],
+    );
+    assert_eq!(std::fs::read_to_string(&circuit).unwrap(), text);
+    let plot = here.path().join("plethwire-frontend.svg");
+    std::fs::write(&plot, "my drawing").unwrap();
+    refused(
+        plethwire(here.path(), &["frontend", c]),
+        1,
+        &["plethwire-frontend.svg", "--force"],
+    );
+    assert_eq!(std::fs::read_to_string(&plot).unwrap(), "my drawing");
+    let (code, _, err) = plethwire(here.path(), &["frontend", c, "--force"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(std::fs::read_to_string(&plot).unwrap().contains("<svg"));
+}

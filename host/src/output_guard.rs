@@ -43,7 +43,7 @@ pub enum OutputError {
     #[error("{} already exists and plethwire does not replace files it did not make: choose another --out or name, or add --force to replace it", .0.display())]
     Exists(PathBuf),
     /// The output is a file being read.
-    #[error("{} is a file of the recording being read; plethwire never writes over its input, not even with --force", .0.display())]
+    #[error("{} is one of the files being read; plethwire never writes over its input, not even with --force", .0.display())]
     IsInput(PathBuf),
 }
 
