@@ -2,8 +2,8 @@
 //! through the real binary. Recordings here are invented in a temp folder
 //! (a synthetic pulse, `plethwire_synth`), never copies of shared data.
 
-use plethwire_records::{write_record, NewSignal};
-use plethwire_synth::{generate, HrSchedule, SynthOptions};
+mod common;
+
 use std::path::Path;
 use std::process::Command;
 
@@ -25,20 +25,7 @@ fn plethwire(args: &[&str]) -> (i32, String, String) {
 
 /// A 30 s, 72 bpm record in format 16 named `name` in `dir`.
 fn make_record(dir: &Path, name: &str) {
-    let s = generate(&SynthOptions {
-        sample_rate_hz: 125.0,
-        duration_s: 30.0,
-        hr: HrSchedule::constant(72.0),
-        ..SynthOptions::default()
-    })
-    .unwrap();
-    let digital: Vec<i32> = s
-        .samples
-        .iter()
-        .map(|&v| (v * 1000.0).round() as i32)
-        .collect();
-    let sig = NewSignal::new("PLETH", "NU", 1000.0, 0);
-    write_record(dir, name, 125.0, &[sig], &[digital]).unwrap();
+    common::synthetic_record(dir, name, 30.0, 72.0, false);
 }
 
 fn one_line_failure(args: &[&str], names: &str) {
