@@ -97,7 +97,7 @@ fn with_nothing_found_the_demo_says_what_to_do() {
     let out = run(&exe, cwd.path(), &["demo", "--json", "--speed", "0"], &[]);
     assert!(out.status.success(), "{}", stderr(&out));
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
-    let why = v["board"]["NotRun"].as_str().unwrap_or_default();
+    let why = v["board"]["not_run"].as_str().unwrap_or_default();
     for word in ["PLETHWIRE_FIRMWARE", "--firmware", "--source"] {
         assert!(why.contains(word), "{word} not in {}", v["board"]);
     }
@@ -136,7 +136,7 @@ fn the_firmware_variable_is_enough() {
     );
     assert!(out.status.success(), "{}", stderr(&out));
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
-    assert!(v["board"]["Agreed"].is_object(), "{}", v["board"]);
+    assert!(v["board"]["agreed"].is_object(), "{}", v["board"]);
 }
 
 #[test]
