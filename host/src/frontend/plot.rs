@@ -1,27 +1,36 @@
 //! The Bode plot as SVG: gain against mid-band and phase, of the analog
 //! chain alone and with the digital band-pass after it, on one logarithmic
-//! frequency axis with the heart band shaded. Drawn with the host's plot
-//! toolkit ([`crate::plot`]), so it looks like `plethwire filter`'s plot.
+//! frequency axis with the heart band shaded, the legend above the panels
+//! and the report's findings below them. A gain below the axis is drawn as
+//! leaving it, not along the floor. The phase is the one
+//! [`phase_track_deg`] gives, which the response table shows too. Drawn
+//! with the host's plot toolkit ([`crate::plot`]), so it looks like
+//! `plethwire filter`'s plot.
 
 use plotters::prelude::*;
 use std::path::Path;
 
 use super::band::ALLOWED_LOSS_DB;
 use super::quantity::sig3;
-use super::report::FrontendReport;
+use super::report::{wrap_deg, FrontendReport};
+use super::sampling::DigitalFilter;
+use super::transfer::Chain;
+use crate::plot::legend::{legend_height, remarks_height};
 use crate::plot::theme::{BAND, BOARD, DESIGN, WIDTH};
 use crate::plot::{
-    draw_legend, legend_line, log_frequencies, range_of, rgb, sheet_panel, svg, titled,
-    unwrapped_phase_deg, write_svg_file, Area, Drawn, PlotError,
+    band_entry, clip, draw_clipped, legend_strip, log_frequencies, range_of, remarks_strip, rgb,
+    sheet_panel, svg, titled, unwrapped_phase_deg, write_svg_file, Area, Drawn, Entry, Level,
+    PlotError, Remark, Swatch,
 };
 
 /// The plot's frequency axis, Hz.
 pub const PLOT_RANGE_HZ: (f64, f64) = (0.05, 50.0);
 const POINTS: usize = 600;
-/// Gains below this are drawn at it.
+/// The gain axis's lower end; a curve below it is drawn as leaving it.
 const GAIN_FLOOR_DB: f64 = -60.0;
 const GAIN_CEILING_DB: f64 = 3.0;
-const HEIGHT: u32 = 720;
+/// Height of the two panels, px; the title, legend and findings add theirs.
+const PANELS_HEIGHT: u32 = 720;
 const TITLE_CHARS_PER_LINE: usize = 90;
 
 type Curve = Vec<(f64, f64)>;
@@ -31,82 +40,141 @@ struct Curves {
     combined: Curve,
 }
 
+/// Phase of the analog chain, and of it with the digital band-pass below
+/// Nyquist, at each of `freqs`, degrees: followed along a dense sweep from
+/// the lower end of [`PLOT_RANGE_HZ`] (or of `freqs`), where each starts
+/// within (−180, 180], without jumps of whole turns. The response table
+/// and the plot both take their phase from here, so they agree.
+pub(crate) fn phase_track_deg(
+    chain: &Chain,
+    digital: &DigitalFilter,
+    freqs: &[f64],
+) -> Vec<(f64, Option<f64>)> {
+    let lo = freqs.iter().copied().fold(PLOT_RANGE_HZ.0, f64::min);
+    let hi = freqs.iter().copied().fold(PLOT_RANGE_HZ.1, f64::max);
+    let mut grid = log_frequencies(lo, hi, POINTS, &chain.transfer.poles_hz());
+    grid.extend(freqs.iter().copied().filter(|f| f.is_finite() && *f > 0.0));
+    grid.sort_by(f64::total_cmp);
+    grid.dedup();
+    // The chain's own phase is continuous in frequency; only its start is
+    // brought into one turn.
+    let raw: Vec<f64> = grid.iter().map(|&f| chain.transfer.phase_deg(f)).collect();
+    let turns = |first: f64| first - wrap_deg(first);
+    let analog_shift = raw.first().map_or(0.0, |&p| turns(p));
+    let top = digital.rate_hz / 2.0 * (1.0 - 1e-4);
+    let below = grid.iter().take_while(|&&f| f < top).count();
+    let responses: Vec<_> = grid[..below]
+        .iter()
+        .map(|&f| {
+            plethwire_dsp::response::response(digital.design.sections(), f, digital.rate_hz)
+        })
+        .collect();
+    let digital_deg = unwrapped_phase_deg(&responses);
+    let combined_shift = digital_deg
+        .first()
+        .zip(raw.first())
+        .map_or(0.0, |(d, a)| turns(a - analog_shift + d));
+    let at = |f: f64| grid.binary_search_by(|g| g.total_cmp(&f)).ok();
+    freqs
+        .iter()
+        .map(|&f| {
+            let i = at(f);
+            let analog = i.map_or(f64::NAN, |i| raw[i] - analog_shift);
+            let combined = i
+                .filter(|&i| i < below)
+                .map(|i| analog + digital_deg[i] - combined_shift);
+            (analog, combined)
+        })
+        .collect()
+}
+
 /// Gain and phase curves of the analog chain and of it with the digital
 /// filter (the latter only below Nyquist).
 fn curves(r: &FrontendReport, freqs: &[f64]) -> (Curves, Curves) {
     let chain = &r.chain;
-    let clamp = |db: f64| db.clamp(GAIN_FLOOR_DB, GAIN_CEILING_DB);
     let top = r.digital.rate_hz / 2.0 * (1.0 - 1e-4);
     let below: Vec<f64> = freqs.iter().copied().filter(|&f| f < top).collect();
-    let digital: Vec<_> = below
-        .iter()
-        .map(|&f| {
-            plethwire_dsp::response::response(r.digital.design.sections(), f, r.digital.rate_hz)
-        })
-        .collect();
-    let digital_phase = unwrapped_phase_deg(&digital);
+    let digital_db = |f: f64| {
+        plethwire_dsp::response::response(r.digital.design.sections(), f, r.digital.rate_hz)
+            .magnitude_db
+    };
     let gain = Curves {
-        analog: freqs
-            .iter()
-            .map(|&f| (f, clamp(chain.relative_db(f))))
-            .collect(),
+        analog: freqs.iter().map(|&f| (f, chain.relative_db(f))).collect(),
         combined: below
             .iter()
-            .zip(&digital)
-            .map(|(&f, d)| (f, clamp(chain.relative_db(f) + d.magnitude_db)))
+            .map(|&f| (f, chain.relative_db(f) + digital_db(f)))
             .collect(),
     };
+    let track = phase_track_deg(chain, &r.digital, freqs);
     let phase = Curves {
-        analog: freqs
+        analog: freqs.iter().zip(&track).map(|(&f, p)| (f, p.0)).collect(),
+        combined: freqs
             .iter()
-            .map(|&f| (f, chain.transfer.phase_deg(f)))
-            .collect(),
-        combined: below
-            .iter()
-            .zip(&digital_phase)
-            .map(|(&f, p)| (f, chain.transfer.phase_deg(f) + p))
+            .zip(&track)
+            .filter_map(|(&f, p)| p.1.map(|c| (f, c)))
             .collect(),
     };
     (gain, phase)
+}
+
+/// The report's findings as the figure shows them: warnings, then notes.
+fn remarks(r: &FrontendReport) -> Vec<Remark> {
+    let of = |level: Level, list: &[String]| -> Vec<Remark> {
+        list.iter()
+            .map(|text| Remark {
+                level,
+                text: text.clone(),
+            })
+            .collect()
+    };
+    [of(Level::Warning, &r.warnings), of(Level::Note, &r.notes)].concat()
+}
+
+/// The legend above the panels; the mark of a curve leaving the axis is
+/// explained only when one does.
+fn legend(combined_label: &str, gain: &Curves) -> Vec<Entry> {
+    let mut entries = vec![
+        band_entry(),
+        Entry::new(
+            Swatch::Dashed(BAND, 1),
+            "3 dB below mid-band: the most the band may lose",
+        ),
+        Entry::new(Swatch::Line(DESIGN, 2), "analog chain"),
+        Entry::new(Swatch::Line(BOARD, 2), combined_label),
+    ];
+    let y = (GAIN_FLOOR_DB, GAIN_CEILING_DB);
+    if clip(&gain.analog, y).leaves() || clip(&gain.combined, y).leaves() {
+        entries.push(Entry::new(
+            Swatch::Leaves(BOARD),
+            "the curve leaves the axis here (continues below it)",
+        ));
+    }
+    entries
 }
 
 struct PanelSpec<'s> {
     title: &'s str,
     unit: &'s str,
     y: (f64, f64),
-    /// Draw the −3 dB line and the legend (the gain panel).
+    /// Draw the −3 dB line (the gain panel).
     gain: bool,
-    combined_label: &'s str,
 }
 
 fn draw_panel(area: &Area<'_>, marks: &[f64], spec: PanelSpec<'_>, c: Curves) -> Drawn {
     let x = PLOT_RANGE_HZ;
     let mut chart = sheet_panel(area, spec.title, spec.unit, (x, spec.y), marks)?;
     if spec.gain {
-        let limit = rgb(BAND).stroke_width(1);
-        chart
-            .draw_series(DashedLineSeries::new(
-                [(x.0, -ALLOWED_LOSS_DB), (x.1, -ALLOWED_LOSS_DB)],
-                6,
-                4,
-                limit,
-            ))?
-            .label("3 dB below mid-band: the most the band may lose")
-            .legend(legend_line(limit));
+        chart.draw_series(DashedLineSeries::new(
+            [(x.0, -ALLOWED_LOSS_DB), (x.1, -ALLOWED_LOSS_DB)],
+            6,
+            4,
+            rgb(BAND).stroke_width(1),
+        ))?;
     }
-    let analog = rgb(DESIGN).stroke_width(2);
-    chart
-        .draw_series(LineSeries::new(c.analog, analog))?
-        .label("analog chain")
-        .legend(legend_line(analog));
-    let combined = rgb(BOARD).stroke_width(2);
-    chart
-        .draw_series(LineSeries::new(c.combined, combined))?
-        .label(spec.combined_label)
-        .legend(legend_line(combined));
-    if spec.gain {
-        draw_legend(&mut chart)?;
-    }
+    let analog = (rgb(DESIGN).stroke_width(2), DESIGN);
+    draw_clipped(&mut chart, &c.analog, spec.y, analog, None)?;
+    let combined = (rgb(BOARD).stroke_width(2), BOARD);
+    draw_clipped(&mut chart, &c.combined, spec.y, combined, None)?;
     Ok(())
 }
 
@@ -141,18 +209,25 @@ pub fn render_svg(r: &FrontendReport) -> Result<String, PlotError> {
             unit: "gain (dB)",
             y: (GAIN_FLOOR_DB, GAIN_CEILING_DB),
             gain: true,
-            combined_label: &combined_label,
         },
         PanelSpec {
             title: "phase",
             unit: "phase (degrees)",
             y: phase_y,
             gain: false,
-            combined_label: &combined_label,
         },
     ];
-    svg((WIDTH, HEIGHT), |root| {
+    let entries = legend(&combined_label, &gain);
+    let findings = remarks(r);
+    let title_h = 25 * crate::plot::wrap_words(&title, TITLE_CHARS_PER_LINE).len() as u32;
+    let height = title_h
+        + legend_height(&entries, WIDTH)
+        + PANELS_HEIGHT
+        + remarks_height(&findings, WIDTH);
+    svg((WIDTH, height), |root| {
         let body = titled(root, &title, TITLE_CHARS_PER_LINE)?;
+        let body = legend_strip(&body, &entries)?;
+        let body = remarks_strip(&body, &findings)?;
         let panels = body.split_evenly((2, 1));
         for ((area, spec), c) in panels.iter().zip(specs).zip([gain, phase]) {
             draw_panel(area, &marks, spec, c)?;

@@ -1,15 +1,18 @@
 //! The band-pass the pipeline ran, at the record's rate: gain and group
-//! delay against frequency, with this record's heart rates shaded.
+//! delay against frequency, with this record's heart rates shaded. A gain
+//! below the axis is drawn as leaving it, not along the floor.
 
 use super::render;
 use crate::plot::theme::{HEART, LINE, WIDTH};
-use crate::plot::{draw_marks, frequency_chart, range_of, rgb, Area, Drawn, Frame, Layout};
+use crate::plot::{
+    draw_clipped, draw_marks, frequency_chart, range_of, rgb, Area, Drawn, Frame, Layout,
+};
 use crate::plot::{PlotError, Sweep};
 use crate::report::band::BandPass;
 use plotters::prelude::*;
 
 const HEIGHT: u32 = 520;
-/// Gains below this are drawn at it.
+/// The gain axis's lower end; the curve leaves the axis below it.
 const GAIN_FLOOR_DB: f64 = -60.0;
 
 /// The record's heart rates as frequencies, Hz: lowest, mean, highest.
@@ -38,7 +41,7 @@ fn panel(
         ))?;
     }
     draw_marks(&mut chart, x, y, &[band.low_hz, band.high_hz], 4)?;
-    chart.draw_series(LineSeries::new(curve, rgb(LINE).stroke_width(2)))?;
+    draw_clipped(&mut chart, &curve, y, (rgb(LINE).stroke_width(2), LINE), None)?;
     Ok(())
 }
 
@@ -54,8 +57,8 @@ pub fn response_svg(band: &BandPass, heart: HeartBand) -> Result<String, PlotErr
     let gain: Vec<(f64, f64)> = f
         .iter()
         .zip(&sweep.board)
-        .map(|(&hz, r)| (hz, r.magnitude_db.max(GAIN_FLOOR_DB)))
-        .filter(|p| p.1.is_finite())
+        .map(|(&hz, r)| (hz, r.magnitude_db))
+        .filter(|p| !p.1.is_nan())
         .collect();
     let delay: Vec<(f64, f64)> = f
         .iter()
