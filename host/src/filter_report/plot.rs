@@ -179,3 +179,7 @@ pub fn render_svg(report: &FilterReport) -> Result<String, PlotError> {
 pub fn write_svg(report: &FilterReport, path: &Path) -> Result<(), PlotError> {
     write_svg_file(path, render_svg(report))
 }
+
+#[cfg(test)]
+#[path = "plot_tests.rs"]
+mod tests;

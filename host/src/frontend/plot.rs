@@ -240,3 +240,6 @@ pub fn render_svg(r: &FrontendReport) -> Result<String, PlotError> {
 pub fn write_svg(report: &FrontendReport, path: &Path) -> Result<(), PlotError> {
     write_svg_file(path, render_svg(report))
 }
+
+#[cfg(test)]
+mod tests;

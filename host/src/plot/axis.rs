@@ -54,7 +54,7 @@ const UNITS: [&str; 27] = [
 
 /// Whether `rest` (the text after a space) starts with one of [`UNITS`]
 /// as a whole word.
-fn starts_with_unit(rest: &str) -> bool {
+pub(crate) fn starts_with_unit(rest: &str) -> bool {
     let word: String = rest
         .chars()
         .take_while(|c| c.is_alphabetic() || matches!(c, '%' | '°'))

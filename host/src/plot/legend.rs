@@ -51,11 +51,14 @@ pub const ROW_H: u32 = 20;
 /// Padding inside a strip's frame, px.
 const PAD: i32 = 8;
 
-/// A generous width of `text` at the label font, px: the SVG carries no
-/// font metrics, so this errs wide (the Chromium check measures the real
-/// thing).
+/// Pixels per character of the label font: plotters writes a font of
+/// `size / 1.24` px, and 0.6 of that errs wide for a sans-serif (the SVG
+/// carries no font metrics; the Chromium check measures the real thing).
+const CHAR_W: f64 = FONT.1 as f64 / 1.24 * 0.6;
+
+/// A generous width of `text` at the label font, px.
 fn text_width(text: &str) -> i32 {
-    (text.chars().count() as f64 * f64::from(FONT.1) * 0.6).ceil() as i32
+    (text.chars().count() as f64 * CHAR_W).ceil() as i32
 }
 
 /// Entries per row, laid out left to right within `width` px.
@@ -179,7 +182,7 @@ pub struct Remark {
 
 /// Characters of a remark's line at the label font across `width` px.
 fn remark_chars(width: u32) -> usize {
-    ((width as i32 - 4 * PAD - 80) as f64 / (f64::from(FONT.1) * 0.6)).max(20.0) as usize
+    ((width as i32 - 4 * PAD - 80) as f64 / CHAR_W).max(20.0) as usize
 }
 
 /// The lines of each remark across `width` px.

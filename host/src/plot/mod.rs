@@ -9,6 +9,8 @@ pub mod axis;
 pub mod clip;
 pub mod legend;
 pub mod panel;
+#[cfg(test)]
+pub(crate) mod svg_check;
 pub mod sweep;
 pub mod theme;
 
