@@ -76,6 +76,10 @@ fn the_notch_leaves_the_axis_instead_of_lying_on_the_floor() {
         .collect();
     assert!(magnitude.len() >= 2, "{} magnitude curves", magnitude.len());
     for c in &magnitude {
-        assert!(run_along_bottom(c) < 3, "a curve runs along the floor: {:?}", &c[c.len().saturating_sub(8)..]);
+        assert!(
+            run_along_bottom(c) < 3,
+            "a curve runs along the floor: {:?}",
+            &c[c.len().saturating_sub(8)..]
+        );
     }
 }

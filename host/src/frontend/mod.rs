@@ -36,6 +36,7 @@ mod budget;
 mod circuit;
 mod draft;
 mod led;
+mod phase;
 mod plot;
 mod quantity;
 mod render;

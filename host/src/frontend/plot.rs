@@ -3,7 +3,7 @@
 //! frequency axis with the heart band shaded, the legend above the panels
 //! and the report's findings below them. A gain below the axis is drawn as
 //! leaving it, not along the floor. The phase is the one
-//! [`phase_track_deg`] gives, which the response table shows too. Drawn
+//! `phase::phase_track` gives, which the response table shows too. Drawn
 //! with the host's plot toolkit ([`crate::plot`]), so it looks like
 //! `plethwire filter`'s plot.
 
@@ -12,20 +12,16 @@ use std::path::Path;
 
 use super::band::ALLOWED_LOSS_DB;
 use super::quantity::sig3;
-use super::report::{wrap_deg, FrontendReport};
-use super::sampling::DigitalFilter;
-use super::transfer::Chain;
+use super::report::FrontendReport;
 use crate::plot::legend::{legend_height, remarks_height};
 use crate::plot::theme::{BAND, BOARD, DESIGN, WIDTH};
 use crate::plot::{
     band_entry, clip, draw_clipped, legend_strip, log_frequencies, range_of, remarks_strip, rgb,
-    sheet_panel, svg, titled, unwrapped_phase_deg, write_svg_file, Area, Drawn, Entry, Level,
-    PlotError, Remark, Swatch,
+    sheet_panel, svg, titled, write_svg_file, Area, Drawn, Entry, Level, PlotError, Remark, Swatch,
 };
 
-/// The plot's frequency axis, Hz.
-pub const PLOT_RANGE_HZ: (f64, f64) = (0.05, 50.0);
-const POINTS: usize = 600;
+pub use super::phase::PLOT_RANGE_HZ;
+use super::phase::POINTS;
 /// The gain axis's lower end; a curve below it is drawn as leaving it.
 const GAIN_FLOOR_DB: f64 = -60.0;
 const GAIN_CEILING_DB: f64 = 3.0;
@@ -38,54 +34,6 @@ type Curve = Vec<(f64, f64)>;
 struct Curves {
     analog: Curve,
     combined: Curve,
-}
-
-/// Phase of the analog chain, and of it with the digital band-pass below
-/// Nyquist, at each of `freqs`, degrees: followed along a dense sweep from
-/// the lower end of [`PLOT_RANGE_HZ`] (or of `freqs`), where each starts
-/// within (−180, 180], without jumps of whole turns. The response table
-/// and the plot both take their phase from here, so they agree.
-pub(crate) fn phase_track_deg(
-    chain: &Chain,
-    digital: &DigitalFilter,
-    freqs: &[f64],
-) -> Vec<(f64, Option<f64>)> {
-    let lo = freqs.iter().copied().fold(PLOT_RANGE_HZ.0, f64::min);
-    let hi = freqs.iter().copied().fold(PLOT_RANGE_HZ.1, f64::max);
-    let mut grid = log_frequencies(lo, hi, POINTS, &chain.transfer.poles_hz());
-    grid.extend(freqs.iter().copied().filter(|f| f.is_finite() && *f > 0.0));
-    grid.sort_by(f64::total_cmp);
-    grid.dedup();
-    // The chain's own phase is continuous in frequency; only its start is
-    // brought into one turn.
-    let raw: Vec<f64> = grid.iter().map(|&f| chain.transfer.phase_deg(f)).collect();
-    let turns = |first: f64| first - wrap_deg(first);
-    let analog_shift = raw.first().map_or(0.0, |&p| turns(p));
-    let top = digital.rate_hz / 2.0 * (1.0 - 1e-4);
-    let below = grid.iter().take_while(|&&f| f < top).count();
-    let responses: Vec<_> = grid[..below]
-        .iter()
-        .map(|&f| {
-            plethwire_dsp::response::response(digital.design.sections(), f, digital.rate_hz)
-        })
-        .collect();
-    let digital_deg = unwrapped_phase_deg(&responses);
-    let combined_shift = digital_deg
-        .first()
-        .zip(raw.first())
-        .map_or(0.0, |(d, a)| turns(a - analog_shift + d));
-    let at = |f: f64| grid.binary_search_by(|g| g.total_cmp(&f)).ok();
-    freqs
-        .iter()
-        .map(|&f| {
-            let i = at(f);
-            let analog = i.map_or(f64::NAN, |i| raw[i] - analog_shift);
-            let combined = i
-                .filter(|&i| i < below)
-                .map(|i| analog + digital_deg[i] - combined_shift);
-            (analog, combined)
-        })
-        .collect()
 }
 
 /// Gain and phase curves of the analog chain and of it with the digital
@@ -105,7 +53,7 @@ fn curves(r: &FrontendReport, freqs: &[f64]) -> (Curves, Curves) {
             .map(|&f| (f, chain.relative_db(f) + digital_db(f)))
             .collect(),
     };
-    let track = phase_track_deg(chain, &r.digital, freqs);
+    let track = super::phase::phase_track(chain, &r.digital, freqs);
     let phase = Curves {
         analog: freqs.iter().zip(&track).map(|(&f, p)| (f, p.0)).collect(),
         combined: freqs
@@ -220,10 +168,8 @@ pub fn render_svg(r: &FrontendReport) -> Result<String, PlotError> {
     let entries = legend(&combined_label, &gain);
     let findings = remarks(r);
     let title_h = 25 * crate::plot::wrap_words(&title, TITLE_CHARS_PER_LINE).len() as u32;
-    let height = title_h
-        + legend_height(&entries, WIDTH)
-        + PANELS_HEIGHT
-        + remarks_height(&findings, WIDTH);
+    let height =
+        title_h + legend_height(&entries, WIDTH) + PANELS_HEIGHT + remarks_height(&findings, WIDTH);
     svg((WIDTH, height), |root| {
         let body = titled(root, &title, TITLE_CHARS_PER_LINE)?;
         let body = legend_strip(&body, &entries)?;

@@ -39,16 +39,6 @@ pub struct ResponseRow {
     pub with_digital_phase_deg: Option<f64>,
 }
 
-/// An angle in degrees brought into (−180, 180].
-pub(crate) fn wrap_deg(d: f64) -> f64 {
-    let w = d - 360.0 * (d / 360.0).round();
-    if w <= -180.0 {
-        w + 360.0
-    } else {
-        w
-    }
-}
-
 /// The whole report.
 #[derive(Clone, Debug, Serialize)]
 pub struct FrontendReport {
@@ -199,7 +189,7 @@ fn table(chain: &Chain, digital: &DigitalFilter) -> Vec<ResponseRow> {
     freqs.dedup();
     let nyquist = digital.rate_hz / 2.0;
     let mid = chain.midband_v_per_a.abs();
-    let phase = super::plot::phase_track_deg(chain, digital, &freqs);
+    let phase = super::phase::phase_track(chain, digital, &freqs);
     freqs
         .into_iter()
         .zip(phase)
@@ -218,18 +208,4 @@ fn table(chain: &Chain, digital: &DigitalFilter) -> Vec<ResponseRow> {
             }
         })
         .collect()
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn angles_wrap_into_a_half_open_turn() {
-        assert_eq!(wrap_deg(190.0), -170.0);
-        assert_eq!(wrap_deg(-180.0), 180.0);
-        assert_eq!(wrap_deg(180.0), 180.0);
-        assert_eq!(wrap_deg(-45.0), -45.0);
-        assert_eq!(wrap_deg(725.0), 5.0);
-    }
 }

@@ -191,7 +191,10 @@ mod tests {
             wrap_words("mid-band -23 V/µA; digital", 13),
             ["mid-band", "-23\u{a0}V/µA;", "digital"]
         );
-        assert_eq!(units_kept("12 s of 3 beats, 5 %"), "12\u{a0}s of 3 beats, 5\u{a0}%");
+        assert_eq!(
+            units_kept("12 s of 3 beats, 5 %"),
+            "12\u{a0}s of 3 beats, 5\u{a0}%"
+        );
         assert_eq!(units_kept("2 seconds"), "2 seconds");
     }
 
@@ -200,6 +203,9 @@ mod tests {
         let page = r#"<style>a { margin: 0 0 2px; } p { x: 1 s; }</style><p><span v="1 s">4.0</span> <small>ms</small></p>"#;
         let kept = units_kept(page);
         assert!(kept.starts_with(r#"<style>a { margin: 0 0 2px; } p { x: 1 s; }</style>"#));
-        assert!(kept.ends_with("<span v=\"1 s\">4.0</span>\u{a0}<small>ms</small></p>"), "{kept}");
+        assert!(
+            kept.ends_with("<span v=\"1 s\">4.0</span>\u{a0}<small>ms</small></p>"),
+            "{kept}"
+        );
     }
 }

@@ -64,7 +64,8 @@ pub fn clip(points: &[(f64, f64)], y: (f64, f64)) -> Clipped {
     let mut previous: Option<(f64, f64)> = None;
     for &p in points {
         if p.1.is_nan() {
-            out.runs.extend((!run.is_empty()).then(|| std::mem::take(&mut run)));
+            out.runs
+                .extend((!run.is_empty()).then(|| std::mem::take(&mut run)));
             previous = None;
             continue;
         }

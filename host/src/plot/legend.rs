@@ -7,7 +7,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::axis::{units_kept, wrap_words};
-use super::theme::{rgb, Rgb, FLAGGED, FONT, LEGEND_FRAME, LINE, RAW};
+use super::theme::{rgb, Rgb, BAND, FLAGGED, FONT, LEGEND_FRAME, LINE, RAW};
 use super::{Area, DrawFailure};
 
 /// How a legend entry is drawn.
@@ -40,6 +40,15 @@ impl Entry {
             label: units_kept(&label.into()),
         }
     }
+}
+
+/// The legend entry of the heart band
+/// [`super::panel::draw_band_and_marks`] shades.
+pub fn band_entry() -> Entry {
+    Entry::new(
+        Swatch::Block(BAND, 0.3),
+        "heart band 0.5-3.7 Hz (30-220 bpm)",
+    )
 }
 
 /// Width of a swatch and the gap after it, px.

@@ -8,7 +8,6 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::axis::{hz_label, ticks};
-use super::legend::{Entry, Swatch};
 use super::theme::{mesh_colours, rgb, BAND, CAPTION_FONT, FONT, GUIDE};
 use super::DrawFailure;
 
@@ -104,16 +103,8 @@ pub fn sheet_panel<'a, 'b>(
     Ok(chart)
 }
 
-/// The legend entry of the heart band [`draw_band_and_marks`] shades.
-pub fn band_entry() -> Entry {
-    Entry::new(
-        Swatch::Block(BAND, 0.3),
-        "heart band 0.5-3.7 Hz (30-220 bpm)",
-    )
-}
-
 /// Shade the heart band (clipped to the x range `x`; its legend entry is
-/// [`band_entry`]) and draw a dashed line at each of `marks` inside it, over the y range
+/// [`super::legend::band_entry`]) and draw a dashed line at each of `marks` inside it, over the y range
 /// `y`.
 pub fn draw_band_and_marks(
     chart: &mut LogPanelChart<'_, '_>,

@@ -25,7 +25,9 @@ pub fn split_unit(texts: &[String]) -> Option<(String, String)> {
 pub type Box4 = (f64, f64, f64, f64);
 
 fn number(n: roxmltree::Node<'_, '_>, name: &str) -> f64 {
-    n.attribute(name).and_then(|v| v.parse().ok()).unwrap_or(0.0)
+    n.attribute(name)
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(0.0)
 }
 
 /// The boxes of every legend frame (a rectangle stroked in the legend
@@ -35,7 +37,10 @@ pub fn legend_frames(svg: &str) -> Vec<Box4> {
     let doc = roxmltree::Document::parse(svg).expect("well-formed SVG");
     doc.descendants()
         .filter(|n| n.has_tag_name("rect"))
-        .filter(|n| n.attribute("stroke").is_some_and(|s| s.eq_ignore_ascii_case(&frame)))
+        .filter(|n| {
+            n.attribute("stroke")
+                .is_some_and(|s| s.eq_ignore_ascii_case(&frame))
+        })
         .map(|n| {
             let (x, y) = (number(n, "x"), number(n, "y"));
             (x, y, x + number(n, "width"), y + number(n, "height"))
@@ -65,7 +70,9 @@ pub fn crosses(b: Box4, curve: &[(f64, f64)]) -> bool {
     let inside = |(x, y): (f64, f64)| x >= b.0 && x <= b.2 && y >= b.1 && y <= b.3;
     curve.windows(2).any(|w| {
         let (a, c) = (w[0], w[1]);
-        let steps = (((c.0 - a.0).abs() + (c.1 - a.1).abs()) * 2.0).ceil().max(1.0) as usize;
+        let steps = (((c.0 - a.0).abs() + (c.1 - a.1).abs()) * 2.0)
+            .ceil()
+            .max(1.0) as usize;
         (0..=steps).any(|i| {
             let t = i as f64 / steps as f64;
             inside((a.0 + t * (c.0 - a.0), a.1 + t * (c.1 - a.1)))

@@ -60,7 +60,10 @@ fn a_gain_below_the_axis_is_broken_and_marked_not_flattened() {
     let marks = doc
         .descendants()
         .filter(|n| n.has_tag_name("polygon"))
-        .filter(|n| n.attribute("fill").is_some_and(|f| f.eq_ignore_ascii_case(&colour)))
+        .filter(|n| {
+            n.attribute("fill")
+                .is_some_and(|f| f.eq_ignore_ascii_case(&colour))
+        })
         .count();
     assert!(marks >= 2, "the edge is marked in the plot and its legend");
 }
@@ -79,7 +82,11 @@ fn the_table_shows_the_phase_the_plot_draws() {
                 drawn.1
             );
         }
-        let with: Vec<f64> = r.response.iter().filter_map(|r| r.with_digital_phase_deg).collect();
+        let with: Vec<f64> = r
+            .response
+            .iter()
+            .filter_map(|r| r.with_digital_phase_deg)
+            .collect();
         assert_eq!(with.len(), phase.combined.len());
         for (t, p) in with.iter().zip(&phase.combined) {
             assert!((t - p.1).abs() < 1e-9, "{} Hz: table {t} plot {}", p.0, p.1);
@@ -94,7 +101,7 @@ fn the_table_shows_the_phase_the_plot_draws() {
 fn phase_follows_the_frequency_without_jumps() {
     let r = report(EXAMPLE);
     let freqs = log_frequencies(0.05, 50.0, 600, &[]);
-    let track = phase_track_deg(&r.chain, &r.digital, &freqs);
+    let track = crate::frontend::phase::phase_track(&r.chain, &r.digital, &freqs);
     for w in track.windows(2) {
         assert!((w[1].0 - w[0].0).abs() < 30.0, "{w:?}");
         if let (Some(a), Some(b)) = (w[0].1, w[1].1) {
@@ -106,13 +113,29 @@ fn phase_follows_the_frequency_without_jumps() {
 #[test]
 fn every_finding_is_on_the_figure() {
     let r = troubled();
-    assert!(r.warnings.iter().any(|w| w.starts_with("clipping")), "{:?}", r.warnings);
-    assert!(r.warnings.iter().any(|w| w.contains("below the rule")), "{:?}", r.warnings);
+    assert!(
+        r.warnings.iter().any(|w| w.starts_with("clipping")),
+        "{:?}",
+        r.warnings
+    );
+    assert!(
+        r.warnings.iter().any(|w| w.contains("below the rule")),
+        "{:?}",
+        r.warnings
+    );
     let svg = render_svg(&r).unwrap();
-    let plain = |s: &str| s.replace('\u{a0}', " ").split_whitespace().collect::<Vec<_>>().join(" ");
+    let plain = |s: &str| {
+        s.replace('\u{a0}', " ")
+            .split_whitespace()
+            .collect::<Vec<_>>()
+            .join(" ")
+    };
     let shown = plain(&texts(&svg).join(" "));
     for finding in r.warnings.iter().chain(&r.notes) {
-        assert!(shown.contains(&plain(finding)), "{finding:?} not in {shown:?}");
+        assert!(
+            shown.contains(&plain(finding)),
+            "{finding:?} not in {shown:?}"
+        );
     }
     for level in ["warning", "note"] {
         assert!(texts(&svg).iter().any(|t| t == level), "no {level}");

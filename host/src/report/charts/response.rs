@@ -41,7 +41,13 @@ fn panel(
         ))?;
     }
     draw_marks(&mut chart, x, y, &[band.low_hz, band.high_hz], 4)?;
-    draw_clipped(&mut chart, &curve, y, (rgb(LINE).stroke_width(2), LINE), None)?;
+    draw_clipped(
+        &mut chart,
+        &curve,
+        y,
+        (rgb(LINE).stroke_width(2), LINE),
+        None,
+    )?;
     Ok(())
 }
 
