@@ -46,7 +46,18 @@ fn the_legend_covers_no_curve() {
         }],
         100.0,
     );
-    for svg in [band_and_notch(), wide] {
+    // A high corner: the stop band climbs through the panel's lower left
+    // corner (−92 dB at 0.01 Hz, −64 dB at 0.05 Hz), where a legend in
+    // the panel would sit.
+    let steep = plot(
+        vec![Stage::BandPass {
+            low_hz: 2.0,
+            high_hz: 8.0,
+            order: 2,
+        }],
+        100.0,
+    );
+    for svg in [band_and_notch(), wide, steep] {
         let frames = legend_frames(&svg);
         assert!(!frames.is_empty(), "no legend frame");
         for f in &frames {
