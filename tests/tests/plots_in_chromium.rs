@@ -123,6 +123,7 @@ fn figures_read_right_in_chromium() {
     let dir = PathBuf::from(env!("CARGO_TARGET_TMPDIR")).join("plots-in-chromium");
     std::fs::create_dir_all(&dir).unwrap();
     let [frontend, troubled] = frontend_svgs();
+    let report = report_page();
     let pages = [
         ("filter", page_of_svg(&filter_svg()), (960, 1000), true),
         ("frontend", page_of_svg(&frontend), (960, 1000), true),
@@ -132,7 +133,9 @@ fn figures_read_right_in_chromium() {
             (960, 1100),
             true,
         ),
-        ("report", report_page(), (1100, 7000), false),
+        ("report", report.clone(), (1100, 7000), false),
+        // A phone's width: the figures shrink, the text wraps.
+        ("report-narrow", report, (420, 9000), false),
     ];
     let mut all = Vec::new();
     for (name, html, size, sheet) in &pages {

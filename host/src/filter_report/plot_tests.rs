@@ -37,27 +37,19 @@ fn the_title_keeps_each_number_with_its_unit() {
 
 #[test]
 fn the_legend_covers_no_curve() {
-    // A wide band with a low corner: its curves sweep the whole panel.
-    let wide = plot(
-        vec![Stage::BandPass {
-            low_hz: 0.05,
-            high_hz: 40.0,
-            order: 4,
-        }],
-        100.0,
-    );
-    // A high corner: the stop band climbs through the panel's lower left
-    // corner (−92 dB at 0.01 Hz, −64 dB at 0.05 Hz), where a legend in
-    // the panel would sit.
-    let steep = plot(
-        vec![Stage::BandPass {
-            low_hz: 2.0,
-            high_hz: 8.0,
-            order: 2,
-        }],
-        100.0,
-    );
-    for svg in [band_and_notch(), wide, steep] {
+    let band = |low_hz, high_hz, order| {
+        let stage = Stage::BandPass {
+            low_hz,
+            high_hz,
+            order,
+        };
+        plot(vec![stage], 100.0)
+    };
+    // A wide band with a low corner: its curves sweep the whole panel. A
+    // high corner: the stop band climbs through the panel's lower left
+    // corner (−92 dB at 0.01 Hz, −64 dB at 0.05 Hz), where a legend in the
+    // panel would sit.
+    for svg in [band_and_notch(), band(0.05, 40.0, 4), band(2.0, 8.0, 2)] {
         let frames = legend_frames(&svg);
         assert!(!frames.is_empty(), "no legend frame");
         for f in &frames {
