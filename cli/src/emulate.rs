@@ -16,7 +16,7 @@ use plethwire::emulate::{
     compare, find_elf, find_qemu, Agreement, Disagreement, Emulation, Link, PerfReport, Session,
 };
 use plethwire::replay::{
-    load, replay, write_beat_annotations, Recording, Replay, Summary, DEFAULT_ANNOTATOR,
+    load, replay, write_recording_beats, Recording, Replay, Summary, DEFAULT_ANNOTATOR,
 };
 
 const EXAMPLES: &str = "\
@@ -195,8 +195,8 @@ impl EmulateArgs {
         })?;
         let board = session.to_replay();
         let dir = super::replay::beat_file_dir(self.out.as_deref(), &rec.path)?;
-        let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &board)
-            .map_err(Failure::refused)?;
+        let ann =
+            write_recording_beats(&dir, &rec, &self.annotator, &board).map_err(Failure::refused)?;
         let agreement = compare(&board.beats, &board.states, &host);
         let text = if self.json {
             json_report(

@@ -8,8 +8,9 @@ use std::path::PathBuf;
 use super::Failure;
 use plethwire::filter_report::{
     check_const_name, human_report, write_svg, FilterDesignError, FilterReport, FilterSpec, Stage,
-    DEFAULT_NOTCH_QUALITY, DEFAULT_ORDER,
+    DEFAULT_NOTCH_QUALITY, DEFAULT_ORDER, MAX_DESIGN_RATE_HZ,
 };
+use plethwire_dsp::pipeline::{MAX_RATE_HZ, MIN_RATE_HZ};
 
 const EXAMPLES: &str = "\
 Examples:
@@ -21,9 +22,16 @@ Stages run in this order: --dc-block, --high-pass, --band, --low-pass, then
 each --notch as given. Exit status: 0 done, 1 the filter was refused or the
 plot could not be written, 2 the command line could not be understood.";
 
+fn after_help() -> String {
+    format!(
+        "{EXAMPLES}\n\nA rate outside the beat pipeline's {MIN_RATE_HZ} to {MAX_RATE_HZ} Hz is designed \
+         with a warning; above {MAX_DESIGN_RATE_HZ} Hz it is refused."
+    )
+}
+
 /// Options of `plethwire filter`.
 #[derive(Args, Debug, Clone, PartialEq)]
-#[command(after_help = EXAMPLES)]
+#[command(after_help = after_help())]
 pub struct FilterArgs {
     /// Sample rate of the ADC, Hz.
     #[arg(long, value_name = "HZ", value_parser = values::hz, allow_negative_numbers = true)]
@@ -160,6 +168,11 @@ impl FilterArgs {
         let spec = self.spec()?;
         let mut report = FilterReport::build(&spec, self.at.as_deref(), &self.name, command)
             .map_err(Failure::refused)?;
+        // On stderr, so the report on stdout stays as it is (its JSON
+        // carries them too).
+        for w in &report.warnings {
+            eprintln!("plethwire: warning: {w}");
+        }
         if !self.no_plot {
             write_svg(&report, &self.plot).map_err(Failure::refused)?;
             report.plot = Some(self.plot.display().to_string());

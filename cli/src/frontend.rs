@@ -1,15 +1,20 @@
 //! `plethwire frontend`: the analog front end's budget from a circuit file,
 //! options, or both.
 
-use crate::values;
 use clap::{Args, ValueEnum};
 use std::io::Write;
 use std::path::PathBuf;
 
 use super::Failure;
+
+mod parsers;
+
+use parsers::{
+    adc_ref_v, dc_ua, farads, level_v, ohms, pulse_ua, rails, rate_hz, rated_ma, stage, supply_v,
+};
 use plethwire::frontend::{
-    human_report, parse_value, write_svg, DetectorDraft, DetectorKind, Draft, Farads,
-    FrontendError, FrontendReport, Kind, LedDraft, LoadAt, Ohms, Resistors, StageDraft, CAUTIONS,
+    human_report, limits, write_svg, DetectorDraft, DetectorKind, Draft, Farads, FrontendError,
+    FrontendReport, LedDraft, LoadAt, Ohms, RailsPair, Resistors, StageDraft, CAUTIONS,
 };
 
 const EXAMPLES: &str = "\
@@ -21,25 +26,33 @@ Examples:
       --pulse-ua 1 --no-plot
 
 Stages (--stage, or [[stage]] in the file) run in the order given:
-  highpass,r=R,c=C    lowpass,r=R,c=C    buffer
-  inverting,rin=R,rf=R[,cf=C][,cin=C]    noninverting,rin=R,rf=R[,cf=C][,cin=C]
-Values take SI prefixes: 470, 4.7k, 4k7, 22u, 100n.
+  highpass,r=R,c=C    lowpass,r=R,c=C    buffer[,rails=LOW:HIGH]
+  inverting,rin=R,rf=R[,cf=C][,cin=C][,rails=LOW:HIGH]
+  noninverting,rin=R,rf=R[,cf=C][,cin=C][,rails=LOW:HIGH]
+Values take SI prefixes: 470, 4.7k, 4k7, 22u, 100n (1 mΩ to 1 TΩ, 1 fF to 1 F).
 
-Sample rate: at least 10 × the chain's highest analog corner and at least
-25 Hz, rounded up to 25, 50, 100, 200, 250, 500, 1000 Hz and so on (or
---rate). Digital band-pass: Butterworth order 2, 0.3 Hz to 8 Hz (at most
-0.4 × the rate), printed as the plethwire filter command that designs it.
+Every node is checked against its own rails: the detector's output (the
+TIA's, from its reference, --tia-ref, default the bias) and each
+amplifier's, with the steady photocurrent and the pulse on it; an
+amplifier without rails of its own has the board's (--rails, default 0 V
+to the LED supply); a passive RC stage has none. A node that leaves its
+rails, or a pulse that leaves the ADC range, is an error in the report.
 
 The circuit file is TOML with the tables [led] (supply_v, forward_v,
 resistor = one value or a list in parallel, parallel, rated_ma), [detector]
-(kind = \"photodiode\" with feedback, feedback_cap; or \"phototransistor\"
-with load, load_cap, load_at = \"emitter\" or \"collector\"), [[stage]]
-(kind and the keys above), [adc] (bits, reference_v, bias_v, rate_hz),
+(kind = \"photodiode\" with feedback, feedback_cap, reference_v; or
+\"phototransistor\" with load, load_cap, load_at = \"emitter\" or
+\"collector\"; either with rails = [LOW, HIGH]), [[stage]] (kind and the
+keys above, rails = [LOW, HIGH]), [adc] (bits, reference_v, bias_v, rate_hz),
 [pulse] (change_ua, dc_ua) and [rails] (low_v, high_v); see
 examples/frontend-fingerclip.toml. Options override the file's values;
 --stage, --tia and --phototransistor replace its stages or detector.
 
-Exit status: 0 done, 1 the circuit file could not be read or was refused,
+";
+
+const EXIT_AND_CAUTIONS: &str = "\
+Exit status: 0 done (also when the report finds errors: they are listed
+under Errors, and in the JSON's findings with level \"error\"), 1 the circuit file could not be read or was refused,
 the LED cannot light, or the plot could not be written, 2 the command line
 could not be understood or does not describe a whole circuit.
 
@@ -59,11 +72,11 @@ pub struct FrontendArgs {
     pub name: Option<String>,
 
     /// LED supply voltage, V.
-    #[arg(long, value_name = "V", value_parser = values::positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "V", value_parser = supply_v, allow_negative_numbers = true)]
     pub supply: Option<f64>,
 
     /// LED forward voltage at its working current, V.
-    #[arg(long, value_name = "V", value_parser = values::positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "V", value_parser = supply_v, allow_negative_numbers = true)]
     pub led_vf: Option<f64>,
 
     /// LED series resistor; several, comma-separated, are in parallel.
@@ -77,11 +90,11 @@ pub struct FrontendArgs {
     pub led_r: Option<Vec<f64>>,
 
     /// How many of the one --led-r resistor are in parallel.
-    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..=i64::from(limits::MAX_PARALLEL)))]
     pub led_parallel: Option<u32>,
 
     /// The LED's rated continuous current, mA; a higher current warns.
-    #[arg(long, value_name = "MA", value_parser = values::positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "MA", value_parser = rated_ma, allow_negative_numbers = true)]
     pub led_rated_ma: Option<f64>,
 
     /// Detector: a photodiode into a transimpedance amplifier with this
@@ -92,6 +105,15 @@ pub struct FrontendArgs {
     /// Capacitor across the transimpedance feedback resistor.
     #[arg(long, value_name = "CF", value_parser = farads, requires = "tia", allow_negative_numbers = true)]
     pub tia_cf: Option<f64>,
+
+    /// The transimpedance amplifier's reference (its non-inverting
+    /// input), V: its output with no light [default: the bias].
+    #[arg(long, value_name = "V", value_parser = level_v, conflicts_with = "phototransistor", allow_negative_numbers = true)]
+    pub tia_ref: Option<f64>,
+
+    /// The detector's own rails, V [default: --rails].
+    #[arg(long, value_name = "LOW:HIGH", value_parser = rails, allow_negative_numbers = true)]
+    pub detector_rails: Option<(f64, f64)>,
 
     /// Detector: a phototransistor with this load resistor.
     #[arg(long, value_name = "RLOAD", value_parser = ohms, allow_negative_numbers = true)]
@@ -114,27 +136,29 @@ pub struct FrontendArgs {
     pub adc_bits: Option<u32>,
 
     /// ADC reference voltage (input range 0 to this), V [default: 3.3].
-    #[arg(long, value_name = "V", value_parser = values::positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "V", value_parser = adc_ref_v, allow_negative_numbers = true)]
     pub adc_ref: Option<f64>,
 
     /// DC level of the signal at the ADC input, V [default: half the reference].
-    #[arg(long, value_name = "V", value_parser = values::number, allow_negative_numbers = true)]
+    #[arg(long, value_name = "V", value_parser = level_v, allow_negative_numbers = true)]
     pub bias: Option<f64>,
 
-    /// Sample rate to use, Hz [default: the recommended one].
-    #[arg(long, value_name = "HZ", value_parser = values::positive, allow_negative_numbers = true)]
+    /// Sample rate to use, within the pipeline's range, Hz [default: the
+    /// recommended one].
+    #[arg(long, value_name = "HZ", value_parser = rate_hz, allow_negative_numbers = true)]
     pub rate: Option<f64>,
 
-    /// Amplifier supply rails, V [default: 0 to the LED supply].
-    #[arg(long, value_name = "LOW:HIGH", value_parser = values::rails_v, allow_negative_numbers = true)]
+    /// The board's amplifier rails, every stage's unless it gives its own
+    /// (rails=LOW:HIGH), V [default: 0 to the LED supply].
+    #[arg(long, value_name = "LOW:HIGH", value_parser = rails, allow_negative_numbers = true)]
     pub rails: Option<(f64, f64)>,
 
     /// Photocurrent change of one pulse, µA peak to peak.
-    #[arg(long, value_name = "UA", value_parser = values::positive, allow_negative_numbers = true)]
+    #[arg(long, value_name = "UA", value_parser = pulse_ua, allow_negative_numbers = true)]
     pub pulse_ua: Option<f64>,
 
-    /// Steady photocurrent, µA (shifts the output where the chain passes DC).
-    #[arg(long, value_name = "UA", value_parser = values::non_negative, allow_negative_numbers = true)]
+    /// Steady photocurrent, µA (places every DC-coupled node).
+    #[arg(long, value_name = "UA", value_parser = dc_ua, allow_negative_numbers = true)]
     pub dc_ua: Option<f64>,
 
     /// Where to write the SVG Bode plot.
@@ -160,46 +184,23 @@ pub enum LoadAtArg {
 }
 
 fn after_help() -> String {
-    format!("{EXAMPLES}{}", CAUTIONS.join("\n  - "))
+    format!(
+        "{EXAMPLES}{SAMPLING}{EXIT_AND_CAUTIONS}{}",
+        CAUTIONS.join("\n  - "),
+        SAMPLING = sampling_help()
+    )
 }
 
-fn ohms(text: &str) -> Result<f64, String> {
-    parse_value(text, Kind::Resistance).map_err(|e| e.to_string())
-}
-
-fn farads(text: &str) -> Result<f64, String> {
-    parse_value(text, Kind::Capacitance).map_err(|e| e.to_string())
-}
-
-/// `KIND[,KEY=VALUE...]`, read through the circuit file's own rules by
-/// writing it as the TOML of one stage.
-fn stage(text: &str) -> Result<StageDraft, String> {
-    let mut parts = text.split(',');
-    let kind = parts.next().unwrap_or("").trim();
-    let plain = |s: &str| {
-        !s.is_empty()
-            && s.chars()
-                .all(|c| c.is_alphanumeric() || "._+-µ".contains(c))
-    };
-    if !plain(kind) {
-        return Err(format!(
-            "'{text}': expected KIND[,KEY=VALUE...], such as lowpass,r=47k,c=1u"
-        ));
-    }
-    let mut toml = format!("kind = \"{kind}\"\n");
-    for part in parts {
-        let (key, value) = part
-            .split_once('=')
-            .map(|(k, v)| (k.trim(), v.trim()))
-            .filter(|(k, v)| plain(k) && plain(v))
-            .ok_or_else(|| format!("'{part}': expected KEY=VALUE, such as r=47k"))?;
-        toml.push_str(&format!("{key} = \"{value}\"\n"));
-    }
-    let draft = StageDraft::from_toml(&toml).map_err(|e| e.to_string())?;
-    draft
-        .resolve()
-        .map(|_| draft)
-        .map_err(|e| format!("{kind} {e}"))
+/// The sample-rate rule, with the pipeline's range from plethwire-dsp.
+fn sampling_help() -> String {
+    use plethwire_dsp::pipeline::{MAX_RATE_HZ, MIN_RATE_HZ};
+    format!(
+        "Sample rate: at least 10 × the chain's highest analog corner and at least \
+         {MIN_RATE_HZ} Hz, rounded up to 25, 50, 100, 200, 250, 500 or 1000 Hz and at most \
+         {MAX_RATE_HZ} Hz, the pipeline's range (--rate must lie in it). Digital band-pass: \
+         Butterworth order 2, 0.3 Hz to 8 Hz (at most 0.4 × the rate), printed as the \
+         plethwire filter command that designs it.\n\n"
+    )
 }
 
 impl FrontendArgs {
@@ -218,6 +219,8 @@ impl FrontendArgs {
                 load: None,
                 load_cap: None,
                 load_at: None,
+                reference_v: None,
+                rails: None,
             }),
             (None, Some(load)) => Some(DetectorDraft {
                 kind: DetectorKind::Phototransistor,
@@ -229,6 +232,8 @@ impl FrontendArgs {
                     LoadAtArg::Emitter => LoadAt::Emitter,
                     LoadAtArg::Collector => LoadAt::Collector,
                 }),
+                reference_v: None,
+                rails: None,
             }),
             (None, None) => None,
         };
@@ -264,20 +269,29 @@ impl FrontendArgs {
             None => Draft::default(),
         };
         let from_file = self.circuit.is_some();
-        let circuit = base
-            .overlaid(self.draft()?)
-            .resolve()
-            .map_err(|e| match e {
-                // Incomplete or inconsistent: the file's fault if there is one.
-                FrontendError::Missing { .. }
-                | FrontendError::Invalid { .. }
-                | FrontendError::Stage { .. }
-                    if !from_file =>
-                {
-                    Failure::usage(e)
-                }
-                other => Failure::refused(other),
-            })?;
+        let mut merged = base.overlaid(self.draft()?);
+        // The detector's reference and rails lay over whichever detector
+        // the file or the options gave.
+        if let Some(d) = merged.detector.as_mut() {
+            d.reference_v = self.tia_ref.or(d.reference_v);
+            d.rails = self
+                .detector_rails
+                .map(|(l, h)| RailsPair(l, h))
+                .or(d.rails);
+        }
+        let circuit = merged.resolve().map_err(|e| match e {
+            // Incomplete or inconsistent: the file's fault if there is one.
+            FrontendError::Missing { .. }
+            | FrontendError::Invalid { .. }
+            | FrontendError::Stage { .. }
+            | FrontendError::OutOfBounds { .. }
+            | FrontendError::Rate { .. }
+                if !from_file =>
+            {
+                Failure::usage(e)
+            }
+            other => Failure::refused(other),
+        })?;
         let mut report = FrontendReport::build(&circuit).map_err(Failure::refused)?;
         if !self.no_plot {
             write_svg(&report, &self.plot).map_err(Failure::refused)?;
@@ -292,29 +306,5 @@ impl FrontendArgs {
             human_report(&report)
         };
         out.write_all(text.as_bytes()).map_err(Failure::output)
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn stage_options_read_like_the_file() {
-        let s = stage("inverting,rin=1k,rf=470k,cf=100n").unwrap();
-        assert_eq!(s.rin, Some(Ohms(1e3)));
-        assert_eq!(s.rf, Some(Ohms(470e3)));
-        assert!(s.cf.is_some_and(|c| (c.0 - 100e-9).abs() < 1e-20));
-        assert!(stage("buffer").is_ok());
-        let e = stage("lowpass,r=47k").unwrap_err();
-        assert_eq!(e, "lowpass missing c");
-        let e = stage("lowpass,r=47k,c=1u,rf=1k").unwrap_err();
-        assert_eq!(e, "lowpass does not take rf (it takes r, c)");
-        let e = stage("lowpass,r=-47k,c=1u").unwrap_err();
-        assert!(e.contains("above 0"), "{e}");
-        let e = stage("bandpass,r=1k").unwrap_err();
-        assert!(e.contains("unknown variant `bandpass`"), "{e}");
-        assert!(stage("lowpass,r=\"1k\"").is_err());
-        assert!(stage("lowpass,r").is_err());
     }
 }

@@ -10,7 +10,7 @@ use plethwire_dsp::pipeline::BeatFlags;
 use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
 use plethwire::replay::{
-    beat_rows, beats_csv, load, replay_recording, write_beat_annotations, BeatRow, InputInfo,
+    beat_rows, beats_csv, load, replay_recording, write_recording_beats, BeatRow, InputInfo,
     Summary, DEFAULT_ANNOTATOR,
 };
 
@@ -110,8 +110,8 @@ impl ReplayArgs {
         })?;
         let dir = beat_file_dir(self.out.as_deref(), &rec.path)?;
         let mut written = Vec::new();
-        let ann = write_beat_annotations(&dir, &rec.name, &self.annotator, &run)
-            .map_err(Failure::refused)?;
+        let ann =
+            write_recording_beats(&dir, &rec, &self.annotator, &run).map_err(Failure::refused)?;
         written.push(ann.display().to_string());
         let mut write = |ext: &str, body: String| -> Result<(), Failure> {
             let path = dir.join(format!("{}.{}.{ext}", rec.name, self.annotator));

@@ -32,26 +32,6 @@ pub(crate) fn number(text: &str) -> Result<f64, String> {
     finite_number(text.trim()).ok_or_else(|| "expected a number, such as 5 or 1.7".to_owned())
 }
 
-/// A finite number above 0 (blanks around it allowed).
-pub(crate) fn positive(text: &str) -> Result<f64, String> {
-    let v = number(text)?;
-    if v > 0.0 {
-        Ok(v)
-    } else {
-        Err(format!("must be above 0, not {v}"))
-    }
-}
-
-/// A finite number of 0 or more (blanks around it allowed).
-pub(crate) fn non_negative(text: &str) -> Result<f64, String> {
-    let v = number(text)?;
-    if v >= 0.0 {
-        Ok(v)
-    } else {
-        Err(format!("must be 0 or more, not {v}"))
-    }
-}
-
 /// A number above 0, written exactly (no blanks).
 pub(crate) fn positive_exact(text: &str) -> Result<f64, String> {
     finite_number(text)
@@ -119,8 +99,7 @@ mod tests {
 
     #[test]
     fn positive_numbers_refuse_zero_and_text() {
-        assert_eq!(positive(" 2.5 "), Ok(2.5));
-        assert_eq!(positive("0").unwrap_err(), "must be above 0, not 0");
+        assert_eq!(number(" 2.5 "), Ok(2.5));
         assert_eq!(
             positive_exact("x").unwrap_err(),
             "expected a number above 0"

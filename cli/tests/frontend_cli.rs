@@ -49,12 +49,14 @@ fn num(v: &Value) -> f64 {
     v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))
 }
 
+/// The messages of the findings at level error or warning.
 fn warnings(report: &Value) -> Vec<String> {
-    report["warnings"]
+    report["findings"]
         .as_array()
         .unwrap()
         .iter()
-        .map(|w| w.as_str().unwrap().to_owned())
+        .filter(|f| f["level"] == "error" || f["level"] == "warning")
+        .map(|f| f["message"].as_str().unwrap().to_owned())
         .collect()
 }
 
@@ -334,8 +336,8 @@ fn bad_input_is_one_line_and_never_a_panic() {
     check_failure(
         d,
         &["frontend", EXAMPLE, "--rate", "8"],
-        1,
-        "use at least 9.25 Hz",
+        2,
+        "'--rate <HZ>': the sample rate must be between 25 and 1000 Hz, not 8 Hz",
     );
 
     // From the command line alone: usage errors.

@@ -2,10 +2,11 @@
 //! (PhysioNet's open format) and CSV files, in pure Rust.
 //!
 //! * [`Record`] opens `dir/name` (or `dir/name.hea`) and reads its signals
-//!   as stored integers or physical values; [`RecordWriter`] writes one in
-//!   format 16.
+//!   as stored integers or physical values (multi-segment records joined
+//!   into one); [`RecordWriter`] writes one in format 16.
 //! * [`read_annotations`] / [`write_annotations`] handle WFDB annotation
-//!   files (MIT format), e.g. reference beat positions.
+//!   files (MIT format), e.g. reference beat positions;
+//!   [`AnnotationFile`] keeps a file's time-resolution note.
 //! * [`read_csv_signal`] takes one column of a CSV file as a signal;
 //!   [`read_numerics`] reads a table of sparse once-a-second values; uneven
 //!   frame times are put on a uniform grid by [`resample`].
@@ -38,8 +39,10 @@ pub use error::{Error, ErrorKind, Result, UnknownTimeUnit};
 pub use numerics::{read_numerics, Numerics};
 pub use rr::read_rr_intervals;
 pub use wfdb_annotation::{
-    annotation_path, code_for_symbol, decode_annotations, encode_annotations, read_annotations,
-    symbol_for_code, write_annotations, Annotation, EncodeError, EncodeProblem, NORMAL,
+    annotation_path, code_for_symbol, decode_annotation_file, decode_annotations,
+    encode_annotation_file, encode_annotations, read_annotation_file, read_annotations,
+    read_annotations_at, symbol_for_code, write_annotation_file, write_annotations, Annotation,
+    AnnotationFile, EncodeError, EncodeProblem, NORMAL,
 };
 pub use wfdb_format::{FormatProblem, SignalFormat};
 pub use wfdb_header::{

@@ -10,11 +10,24 @@
 //! SUB (61: I is this annotation's subtype),
 //! CHN (62: I is the `chan` of this and later annotations) and
 //! AUX (63: I bytes of text follow, padded to an even count).
-//! A word of 0 ends the file.
+//! A word of 0 ends the file; a code-0 entry at the same time as the one
+//! before it is written as SKIP −1 and then the word `0, 1`, as Python
+//! wfdb writes its end-of-definitions mark.
+//!
+//! A NOTE (22) at time 0 whose aux text is `## time resolution: R` says
+//! that the file's times count ticks of R per second rather than frames of
+//! the record (annot(5); the byte layout as Python wfdb 4.x
+//! `wfdb/io/annotation.py` writes and reads it): see [`AnnotationFile`].
 
 use std::path::{Path, PathBuf};
 
 use super::error::{Error, ErrorKind, Result};
+
+mod resolution;
+pub use resolution::{
+    decode_annotation_file, encode_annotation_file, read_annotation_file, read_annotations_at,
+    write_annotation_file, AnnotationFile,
+};
 
 const SKIP: u16 = 59;
 const NUM: u16 = 60;
@@ -28,14 +41,19 @@ const MAX_STEP: i64 = 0x3FF;
 
 /// Code of a normal beat, symbol `N`.
 pub const NORMAL: u8 = 1;
+/// Code of a comment annotation (NOTE, symbol `"`), whose aux text is the comment.
+const NOTE: u8 = 22;
 
 /// One annotation.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Annotation {
-    /// Sample number (0-based, in frames of the record).
+    /// Time as a sample number (0-based): in frames of the record from
+    /// [`read_annotations`], in the file's own ticks from
+    /// [`decode_annotations`] and [`AnnotationFile`].
     pub sample: i64,
     /// Annotation type code (1..=49; 0 marks an entry that is not an
-    /// annotation, which some files carry).
+    /// annotation, which some files carry and which is written back as it
+    /// came).
     pub code: u8,
     /// Subtype (signed, default 0).
     pub subtype: i8,
@@ -117,15 +135,25 @@ pub fn annotation_path(record: &Path, annotator: &str) -> PathBuf {
     PathBuf::from(name)
 }
 
-/// Read the annotation file at `path`.
+/// Read the annotation file at `path`, times in frames of the record.
+///
+/// A file whose time-resolution note differs from the frame rate of the
+/// record beside it (`dir/name.hea` for `dir/name.ext`) has its times
+/// converted to frames, rounded to the nearest, as the WFDB library reads
+/// them; such a file with no record header beside it is an error (use
+/// [`read_annotations_at`] or [`read_annotation_file`]).
 pub fn read_annotations(path: impl AsRef<Path>) -> Result<Vec<Annotation>> {
-    let path = path.as_ref();
-    let bytes = std::fs::read(path).map_err(|e| Error::from_io(path, "read", &e))?;
-    decode_annotations(&bytes).map_err(|kind| Error::new(path, kind))
+    resolution::read_in_frames(path.as_ref())
 }
 
-/// Decode the bytes of an annotation file.
+/// Decode the bytes of an annotation file: every entry but the
+/// time-resolution note, times in the file's own ticks.
 pub fn decode_annotations(bytes: &[u8]) -> std::result::Result<Vec<Annotation>, ErrorKind> {
+    decode_annotation_file(bytes).map(|f| f.annotations)
+}
+
+/// Every entry of an annotation file as stored, the notes included.
+fn decode_entries(bytes: &[u8]) -> std::result::Result<Vec<Annotation>, ErrorKind> {
     if bytes.is_empty() {
         return Err(ErrorKind::Empty);
     }
@@ -227,8 +255,11 @@ pub struct EncodeError {
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 pub enum EncodeProblem {
     /// The code is no annotation type.
-    #[error("code {0} is not an annotation type (1..={LAST_TYPE})")]
+    #[error("code {0} is not an annotation type (0..={LAST_TYPE})")]
     NotAType(u8),
+    /// The time resolution (shown as text) is not a finite rate above 0.
+    #[error("time resolution {0} is not a rate above 0 per second")]
+    BadResolution(String),
     /// Its sample comes before the one before it (or before 0).
     #[error(
         "sample {sample} comes before the previous one ({previous}); \
@@ -251,16 +282,28 @@ pub enum EncodeProblem {
 /// Encode annotations as an annotation file's bytes.
 ///
 /// Annotations must be in time order (equal times allowed), at sample 0 or
-/// later, with codes 1..=49 and aux text of at most 255 Latin-1
+/// later, with codes 0..=49 and aux text of at most 255 Latin-1
 /// characters. Steps above 1023 samples go in SKIP words; `chan` and `num`
 /// are written only where they change, the subtype only where it is not 0,
-/// as the specification's carry-over rules allow.
+/// as the specification's carry-over rules allow. Times are written as
+/// they are, with no time-resolution note ([`encode_annotation_file`]
+/// writes one).
 pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec<u8>, EncodeError> {
     let mut out = Vec::with_capacity(annotations.len() * 2 + 2);
+    encode_entries(annotations, &mut out)?;
+    put(&mut out, 0, 0);
+    Ok(out)
+}
+
+/// Append the words of `annotations` (no end word) to `out`.
+fn encode_entries(
+    annotations: &[Annotation],
+    out: &mut Vec<u8>,
+) -> std::result::Result<(), EncodeError> {
     let (mut time, mut chan, mut num) = (0i64, 0u8, 0i8);
     for (index, a) in annotations.iter().enumerate() {
         let refuse = |problem| Err(EncodeError { index, problem });
-        if a.code == 0 || a.code > LAST_TYPE {
+        if a.code > LAST_TYPE {
             return refuse(EncodeProblem::NotAType(a.code));
         }
         if a.sample < time {
@@ -273,23 +316,26 @@ pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec
         if step > MAX_STEP {
             // One SKIP holds a signed 32-bit interval; longer gaps take several.
             while step > 0 {
-                let part = step.min(i32::MAX as i64) as u32;
-                put(&mut out, SKIP, 0);
-                out.extend_from_slice(&((part >> 16) as u16).to_le_bytes());
-                out.extend_from_slice(&(part as u16).to_le_bytes());
+                let part = step.min(i32::MAX as i64) as i32;
+                put_skip(out, part);
                 step -= part as i64;
             }
         }
-        put(&mut out, a.code as u16, step as u16);
+        if a.code == 0 && step == 0 {
+            // The word 0, 0 would end the file: step back one tick first.
+            put_skip(out, -1);
+            step = 1;
+        }
+        put(out, a.code as u16, step as u16);
         if a.subtype != 0 {
-            put(&mut out, SUB, a.subtype as u8 as u16);
+            put(out, SUB, a.subtype as u8 as u16);
         }
         if a.chan != chan {
-            put(&mut out, CHN, a.chan as u16);
+            put(out, CHN, a.chan as u16);
             chan = a.chan;
         }
         if a.num != num {
-            put(&mut out, NUM, a.num as u8 as u16);
+            put(out, NUM, a.num as u8 as u16);
             num = a.num;
         }
         if let Some(text) = &a.aux {
@@ -303,7 +349,7 @@ pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec
             if bytes.len() > 255 {
                 return refuse(EncodeProblem::AuxTooLong(bytes.len()));
             }
-            put(&mut out, AUX, bytes.len() as u16);
+            put(out, AUX, bytes.len() as u16);
             out.extend_from_slice(&bytes);
             if bytes.len() % 2 == 1 {
                 out.push(0);
@@ -311,8 +357,15 @@ pub fn encode_annotations(annotations: &[Annotation]) -> std::result::Result<Vec
         }
         time = a.sample;
     }
-    put(&mut out, 0, 0);
-    Ok(out)
+    Ok(())
+}
+
+/// Append a SKIP word and its signed 32-bit interval, high word first.
+fn put_skip(out: &mut Vec<u8>, interval: i32) {
+    let bits = interval as u32;
+    put(out, SKIP, 0);
+    out.extend_from_slice(&((bits >> 16) as u16).to_le_bytes());
+    out.extend_from_slice(&(bits as u16).to_le_bytes());
 }
 
 /// Write `annotations` to the annotation file `path` (see

@@ -35,7 +35,9 @@ pub enum SignalFormat {
 pub enum FormatProblem {
     /// No WFDB format has this code.
     Unknown,
-    /// A real WFDB format that these readers do not decode; the text says which.
+    /// A real WFDB format that these readers do not decode; the text is
+    /// the whole message, e.g. "signal formats 508, 516 and 524
+    /// (FLAC-compressed) are not supported".
     Unsupported(&'static str),
 }
 
@@ -55,12 +57,12 @@ impl SignalFormat {
             311 => SignalFormat::Fmt311,
             0 => {
                 return Err(FormatProblem::Unsupported(
-                    "format 0 (null signal, no samples stored)",
+                    "signal format 0 (null signal, no samples stored) is not supported",
                 ))
             }
             508 | 516 | 524 => {
                 return Err(FormatProblem::Unsupported(
-                    "formats 508/516/524 (FLAC-compressed)",
+                    "signal formats 508, 516 and 524 (FLAC-compressed) are not supported",
                 ))
             }
             _ => return Err(FormatProblem::Unknown),

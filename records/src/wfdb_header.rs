@@ -44,7 +44,9 @@ pub struct Header {
     pub base_time: Option<BaseTime>,
     /// Date of the first sample, if given.
     pub base_date: Option<BaseDate>,
-    /// One entry per signal line.
+    /// One entry per signal line. For a multi-segment record opened as a
+    /// [`Record`](crate::Record): the whole record's signals, from its
+    /// layout header or first segment.
     pub signals: Vec<SignalSpec>,
     /// One entry per segment line (multi-segment records only).
     pub segment_specs: Vec<SegmentSpec>,
@@ -222,7 +224,13 @@ impl Header {
         for seg in &self.segment_specs {
             let _ = writeln!(out, "{} {}", seg.name, seg.samples);
         }
-        for s in &self.signals {
+        // A multi-segment record's signals live in its segments' headers.
+        let signals = if self.segments.is_some() {
+            &[][..]
+        } else {
+            &self.signals[..]
+        };
+        for s in signals {
             let _ = write!(out, "{} {}", s.file_name, s.format.code());
             if s.samples_per_frame != 1 {
                 let _ = write!(out, "x{}", s.samples_per_frame);

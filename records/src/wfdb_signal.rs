@@ -13,8 +13,10 @@ use super::wfdb_header::{Header, SignalSpec};
 use super::{LoadedSignal, DEFAULT_SIGNAL};
 
 mod group;
+mod segments;
 
 use group::{check_length, Group};
+use segments::Segments;
 
 /// An opened WFDB record. Opening reads the header and checks that every
 /// signal file exists and is long enough; samples are read on request.
@@ -25,6 +27,8 @@ pub struct Record {
     header: Header,
     frames: u64,
     groups: Vec<Group>,
+    /// The segments of a multi-segment record (`groups` is then empty).
+    segments: Option<Box<Segments>>,
 }
 
 /// `dir/name` for `dir/name`, `dir/name.hea` or `dir/name.`: the header
@@ -50,11 +54,13 @@ impl Record {
         Record::from_header(header, header_path, dir)
     }
 
-    /// Build a record from an already parsed header whose signal files lie in `dir`.
+    /// Build a record from an already parsed header whose signal files lie
+    /// in `dir`. A multi-segment header opens its segments, which are then
+    /// read as one record; its signals are those of its layout header or
+    /// (fixed layout) its first segment.
     pub fn from_header(header: Header, header_path: PathBuf, dir: PathBuf) -> Result<Record> {
-        let unsupported = |m: &str| Err(Error::new(&header_path, ErrorKind::Unsupported(m.into())));
         if header.segments.is_some() {
-            return unsupported("multi-segment records are not supported");
+            return Segments::open(header, header_path, dir);
         }
         let groups = Group::of_header(&header, &header_path, &dir)?;
         let mut frames = header.samples;
@@ -78,6 +84,7 @@ impl Record {
             header,
             frames: frames.unwrap_or(0),
             groups,
+            segments: None,
         })
     }
 
@@ -164,6 +171,9 @@ impl Record {
     /// Stored (digital) samples of signal `index`: `len() × samples per
     /// frame` values. Invalid samples keep their stored sentinel value.
     pub fn read_digital(&self, index: usize) -> Result<Vec<i32>> {
+        if let Some(segments) = &self.segments {
+            return segments.read_digital(self, index);
+        }
         let (g, pos) = self.locate(index)?;
         let mut all = self.read_group(&self.groups[g])?;
         Ok(all.swap_remove(pos))
@@ -171,6 +181,11 @@ impl Record {
 
     /// Stored samples of every signal, each file read once.
     pub fn read_all_digital(&self) -> Result<Vec<Vec<i32>>> {
+        if self.segments.is_some() {
+            return (0..self.n_signals())
+                .map(|i| self.read_digital(i))
+                .collect();
+        }
         let mut out = vec![Vec::new(); self.n_signals()];
         for g in &self.groups {
             for (&s, samples) in g.signals.iter().zip(self.read_group(g)?) {
@@ -185,6 +200,9 @@ impl Record {
     /// same arithmetic and NaN rule as Python wfdb's `rdrecord` physical
     /// output.
     pub fn read_physical(&self, index: usize) -> Result<Vec<f64>> {
+        if let Some(segments) = &self.segments {
+            return segments.read_physical(self, index);
+        }
         let digital = self.read_digital(index)?;
         Ok(self.to_physical(index, &digital))
     }
@@ -225,8 +243,20 @@ impl Record {
     /// Check every signal that has a checksum in the header against its
     /// samples (sum of all samples modulo 2^16, header(5)). Headers write it
     /// signed or unsigned; both are accepted.
+    ///
+    /// The sums are over the samples as the file stores them: a skewed
+    /// signal is summed before it is shifted into line, as the writer
+    /// summed it.
     pub fn verify_checksums(&self) -> Result<()> {
-        let all = self.read_all_digital()?;
+        if let Some(segments) = &self.segments {
+            return segments.verify_checksums();
+        }
+        let mut all = vec![Vec::new(); self.n_signals()];
+        for g in &self.groups {
+            for (&s, samples) in g.signals.iter().zip(self.read_group_stored(g)?) {
+                all[s] = samples;
+            }
+        }
         for (i, (spec, samples)) in self.header.signals.iter().zip(&all).enumerate() {
             let Some(stated) = spec.checksum else {
                 continue;
@@ -262,8 +292,22 @@ impl Record {
         ))
     }
 
-    /// Read one signal file and split it into its signals' samples.
+    /// Read one signal file and split it into its signals' samples, each
+    /// skewed signal shifted into line.
     fn read_group(&self, g: &Group) -> Result<Vec<Vec<i32>>> {
+        let mut out = self.read_group_stored(g)?;
+        for (k, &s) in g.signals.iter().enumerate() {
+            let spec = &self.header.signals[s];
+            if spec.skew > 0 {
+                apply_skew(&mut out[k], spec, &g.path)?;
+            }
+        }
+        Ok(out)
+    }
+
+    /// Read one signal file and split it into its signals' samples as
+    /// stored (skew not applied).
+    fn read_group_stored(&self, g: &Group) -> Result<Vec<Vec<i32>>> {
         let bytes = std::fs::read(&g.path).map_err(|e| Error::from_io(&g.path, "read", &e))?;
         let per_frame = g.frame_samples(&self.header);
         // Checked again: the file may have changed since the record was opened.
@@ -293,12 +337,6 @@ impl Record {
             for (k, &n) in slots.iter().enumerate() {
                 out[k].extend_from_slice(&frame[at..at + n]);
                 at += n;
-            }
-        }
-        for (k, &s) in g.signals.iter().enumerate() {
-            let spec = &self.header.signals[s];
-            if spec.skew > 0 {
-                apply_skew(&mut out[k], spec, &g.path)?;
             }
         }
         Ok(out)

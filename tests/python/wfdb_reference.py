@@ -15,14 +15,25 @@ one result per task, in order. Tasks:
   (smooth_frames=False); otherwise rdrecord's default frame layout is used.
   Result: the header fields.
 * {"op": "read_ann", "record": path, "ext": extension}
-  wfdb.rdann. Result: sample, symbol, subtype, chan, num, aux_note lists.
+  wfdb.rdann. Result: sample, symbol, subtype, chan, num, aux_note lists
+  and fs (the file's time-resolution note, else the record header's).
+* {"op": "read_joined", "record": path, "out": prefix, "digital": bool}
+  wfdb.rdrecord of a multi-segment record, joined into one (m2s): physical
+  values to prefix.ch.p, with "digital" also stored values to prefix.ch.d.
+  Result: fs, n_sig, sig_len, sig_name, units, samps_per_frame, lengths.
+* {"op": "stored_sums", "record": path}
+  wfdb.rdrecord(physical=False, ignore_skew=True): the samples as stored.
+  Result: the header's checksum list and each signal's sum modulo 65536.
+* {"op": "write_multi_header", "dir", "name", "fs", "n_sig", "sig_len",
+  "seg_name", "seg_len"}
+  wfdb.MultiRecord(...).wrheader: a multi-segment master header. Result: {}.
 * {"op": "write_record", "dir", "name", "fs", "sig_len", "signals": [{"file",
   "fmt", "spf", "skew", "byte_offset", "gain", "baseline", "units", "name",
   "adc_res", "digital": [...]}]}
   wfdb.Record(...).wrsamp with the stored values given. Result: {}.
 * {"op": "write_ann", "dir", "record", "ext", "sample", "symbol", "subtype",
-  "chan", "num", "aux_note"}
-  wfdb.wrann. Result: {}.
+  "chan", "num", "aux_note", optional "fs"}
+  wfdb.wrann (with fs, it writes a time-resolution note). Result: {}.
 """
 import json
 import sys
@@ -98,7 +109,51 @@ def read_ann(task):
         "chan": [int(c) for c in a.chan],
         "num": [int(n) for n in a.num],
         "aux_note": list(a.aux_note),
+        "fs": None if a.fs is None else float(a.fs),
     }
+
+
+def read_joined(task):
+    phys = wfdb.rdrecord(task["record"])
+    digi = wfdb.rdrecord(task["record"], physical=False) if task.get("digital") else None
+    lengths = []
+    for ch in range(phys.n_sig):
+        p = np.ascontiguousarray(phys.p_signal[:, ch], dtype="<f8")
+        p.tofile(f"{task['out']}.{ch}.p")
+        if digi is not None:
+            d = np.ascontiguousarray(digi.d_signal[:, ch], dtype="<i8")
+            d.tofile(f"{task['out']}.{ch}.d")
+        lengths.append(int(p.size))
+    return {
+        "fs": float(phys.fs),
+        "n_sig": int(phys.n_sig),
+        "sig_len": int(phys.sig_len),
+        "sig_name": list(phys.sig_name),
+        "units": list(phys.units),
+        "samps_per_frame": [int(s) for s in phys.samps_per_frame],
+        "lengths": lengths,
+    }
+
+
+def stored_sums(task):
+    r = wfdb.rdrecord(task["record"], physical=False, ignore_skew=True)
+    sums = [int(np.sum(r.d_signal[:, ch].astype(np.int64)) % 65536) for ch in range(r.n_sig)]
+    return {"checksum": [int(c) for c in r.checksum], "sums": sums}
+
+
+def write_multi_header(task):
+    m = wfdb.MultiRecord(
+        record_name=task["name"],
+        n_sig=task["n_sig"],
+        fs=task["fs"],
+        sig_len=task["sig_len"],
+        seg_name=task["seg_name"],
+        seg_len=task["seg_len"],
+    )
+    # wfdb 4.3 checks the segment fields against n_seg but does not set it.
+    m.n_seg = len(task["seg_name"])
+    m.wrheader(write_dir=task["dir"])
+    return {}
 
 
 def write_record(task):
@@ -142,6 +197,7 @@ def write_ann(task):
         chan=np.array(task["chan"], dtype=np.int64),
         num=np.array(task["num"], dtype=np.int64),
         aux_note=task["aux_note"],
+        fs=task.get("fs"),
         write_dir=task["dir"],
     )
     return {}
@@ -152,6 +208,9 @@ OPS = {
     "read_ann": read_ann,
     "write_record": write_record,
     "write_ann": write_ann,
+    "read_joined": read_joined,
+    "stored_sums": stored_sums,
+    "write_multi_header": write_multi_header,
 }
 
 

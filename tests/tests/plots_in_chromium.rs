@@ -21,7 +21,14 @@ use plethwire_dsp::pipeline::Config;
 use plethwire_synth::{generate, SynthOptions};
 use std::path::PathBuf;
 
-fn filter_svg() -> String {
+/// The band-pass and notch at 250 Hz, and a band-pass at 20 Hz, below
+/// the pipeline's rates: its warning is drawn on the figure.
+fn filter_svgs() -> [String; 2] {
+    let low = vec![Stage::BandPass {
+        low_hz: 0.5,
+        high_hz: 4.0,
+        order: 2,
+    }];
     let stages = vec![
         Stage::BandPass {
             low_hz: 0.5,
@@ -33,8 +40,10 @@ fn filter_svg() -> String {
             quality: 30.0,
         },
     ];
-    let spec = FilterSpec::new(250.0, stages).unwrap();
-    filter_report::render_svg(&FilterReport::build(&spec, None, "F", "cmd").unwrap()).unwrap()
+    [(250.0, stages), (20.0, low)].map(|(rate, stages)| {
+        let spec = FilterSpec::new(rate, stages).unwrap();
+        filter_report::render_svg(&FilterReport::build(&spec, None, "F", "cmd").unwrap()).unwrap()
+    })
 }
 
 /// The example circuit, and the same at 100 Hz with a pulse that clips:
@@ -123,9 +132,16 @@ fn figures_read_right_in_chromium() {
     let dir = PathBuf::from(env!("CARGO_TARGET_TMPDIR")).join("plots-in-chromium");
     std::fs::create_dir_all(&dir).unwrap();
     let [frontend, troubled] = frontend_svgs();
+    let [filter, slow_filter] = filter_svgs();
     let report = report_page();
     let pages = [
-        ("filter", page_of_svg(&filter_svg()), (960, 1000), true),
+        ("filter", page_of_svg(&filter), (960, 1000), true),
+        (
+            "filter-warning",
+            page_of_svg(&slow_filter),
+            (960, 1100),
+            true,
+        ),
         ("frontend", page_of_svg(&frontend), (960, 1000), true),
         (
             "frontend-findings",

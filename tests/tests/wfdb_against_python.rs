@@ -30,7 +30,9 @@ use serde_json::{json, Value};
 
 #[path = "wfdb_against_python/reference.rs"]
 mod reference;
-use reference::{compare, have_wfdb, read_le, reference, PyAnnotations, PyRecord, Tally};
+use reference::{
+    compare, have_wfdb, read_le, reference, wrann_task, PyAnnotations, PyRecord, Tally,
+};
 
 /// The `.hea` files of the shared recordings, sorted.
 fn shared_headers(data: &Path) -> Vec<PathBuf> {
@@ -474,18 +476,6 @@ fn rich_annotations(num: i8) -> Vec<Annotation> {
     anns
 }
 
-fn py_annotation_task(dir: &Path, record: &str, anns: &[Annotation]) -> Value {
-    json!({
-        "op": "write_ann", "dir": dir.display().to_string(), "record": record, "ext": "py",
-        "sample": anns.iter().map(|a| a.sample).collect::<Vec<_>>(),
-        "symbol": anns.iter().map(|a| a.symbol().unwrap()).collect::<Vec<_>>(),
-        "subtype": anns.iter().map(|a| a.subtype).collect::<Vec<_>>(),
-        "chan": anns.iter().map(|a| a.chan).collect::<Vec<_>>(),
-        "num": anns.iter().map(|a| a.num).collect::<Vec<_>>(),
-        "aux_note": anns.iter().map(|a| a.aux.clone().unwrap_or_default()).collect::<Vec<_>>(),
-    })
-}
-
 #[test]
 fn annotations_cross_between_our_writer_and_rdann_and_wrann_and_our_reader() {
     if !need(needs::PYTHON, have_wfdb()) {
@@ -507,7 +497,7 @@ fn annotations_cross_between_our_writer_and_rdann_and_wrann_and_our_reader() {
     let answers = reference(vec![
         json!({"op": "read_ann", "record": rec_name, "ext": "ours"}),
         json!({"op": "read_ann", "record": rec_name, "ext": "beats"}),
-        py_annotation_task(tmp.path(), "annrec", &for_wrann),
+        wrann_task(tmp.path(), "annrec", "py", &for_wrann, None),
         json!({"op": "read_ann", "record": rec_name, "ext": "py"}),
     ]);
     let mut by_ext = BTreeMap::new();

@@ -25,7 +25,10 @@ pub use report::{
     on_a_zero, BoardFilter, CoefficientSet, FilterReport, ResponsePoint, ResponseRow,
     SectionCoefficients, BOARD_STRUCTURE, ZERO_PROXIMITY,
 };
-pub use spec::{FilterSpec, Stage, DEFAULT_NOTCH_QUALITY, DEFAULT_ORDER, USEFUL_FREQUENCIES_HZ};
+pub use spec::{
+    FilterSpec, Stage, DEFAULT_NOTCH_QUALITY, DEFAULT_ORDER, MAX_DESIGN_RATE_HZ,
+    USEFUL_FREQUENCIES_HZ,
+};
 
 use plethwire_dsp::design::MAX_SECTIONS;
 use plethwire_dsp::DesignError;
@@ -39,6 +42,12 @@ pub enum FilterDesignError {
     NothingToDesign,
     /// The sample rate is not a positive finite number.
     BadSampleRate {
+        /// The rate given, Hz.
+        sample_rate_hz: f64,
+    },
+    /// The sample rate is above [`MAX_DESIGN_RATE_HZ`]: no ADC of a pulse
+    /// sensor samples that fast.
+    RateTooHigh {
         /// The rate given, Hz.
         sample_rate_hz: f64,
     },
@@ -90,6 +99,10 @@ impl fmt::Display for FilterDesignError {
                 f,
                 "sample rate {sample_rate_hz} Hz refused: {}",
                 DesignError::InvalidSampleRate
+            ),
+            Self::RateTooHigh { sample_rate_hz } => write!(
+                f,
+                "sample rate {sample_rate_hz} Hz refused: filters are designed at up to {MAX_DESIGN_RATE_HZ} Hz"
             ),
             Self::Refused {
                 stage,

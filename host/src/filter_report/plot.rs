@@ -2,7 +2,8 @@
 //! logarithmic frequency axis, design and board cascade overlaid, with the
 //! heart band shaded and the legend above the panels. Where a gain falls
 //! below the axis the curve is broken there and marked, not drawn along
-//! the floor. Drawn with the host's plot toolkit ([`crate::plot`]).
+//! the floor; the report's warnings are drawn below the panels. Drawn with
+//! the host's plot toolkit ([`crate::plot`]).
 
 use plethwire_dsp::filter::Biquad;
 use plethwire_dsp::response::Response;
@@ -10,11 +11,12 @@ use plotters::prelude::*;
 use std::path::Path;
 
 use super::report::{on_a_zero, FilterReport};
+use crate::plot::legend::remarks_height;
 use crate::plot::theme::{BOARD, DESIGN, WIDTH};
 use crate::plot::{
-    axis_range_hz, band_entry, clip, draw_clipped, legend_strip, phase_near_deg, range_of, rgb,
-    sheet_panel, svg, titled, unwrapped_phase_deg, write_svg_file, Area, Drawn, Entry, PlotError,
-    Swatch, Sweep,
+    axis_range_hz, band_entry, clip, draw_clipped, legend_strip, phase_near_deg, range_of,
+    remarks_strip, rgb, sheet_panel, svg, titled, unwrapped_phase_deg, write_svg_file, Area, Drawn,
+    Entry, Level, PlotError, Remark, Swatch, Sweep,
 };
 
 /// The gain axis's lower end, so deep stop bands stay readable; a curve
@@ -165,9 +167,20 @@ pub fn render_svg(report: &FilterReport) -> Result<String, PlotError> {
         report.spec.describe_stages()
     );
     let entries = legend(&panels);
-    svg((WIDTH, HEIGHT), |root| {
+    // The report's warnings at the figure's foot, below the panels.
+    let findings: Vec<Remark> = report
+        .warnings
+        .iter()
+        .map(|w| Remark {
+            level: Level::Warning,
+            text: w.clone(),
+        })
+        .collect();
+    let height = HEIGHT + remarks_height(&findings, WIDTH);
+    svg((WIDTH, height), |root| {
         let body = titled(root, &title, TITLE_CHARS_PER_LINE)?;
         let body = legend_strip(&body, &entries)?;
+        let body = remarks_strip(&body, &findings)?;
         for (area, c) in body.split_evenly((3, 1)).iter().zip(panels) {
             draw_panel(area, x, &corners, c)?;
         }

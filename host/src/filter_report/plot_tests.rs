@@ -1,6 +1,6 @@
 //! The response plot against the defects it once had: a title split
 //! between a number and its unit, a legend over the curves, a notch drawn
-//! along the floor.
+//! along the floor, warnings missing from the picture.
 
 use super::*;
 use crate::filter_report::Stage;
@@ -85,4 +85,28 @@ fn the_notch_leaves_the_axis_instead_of_lying_on_the_floor() {
             &c[c.len().saturating_sub(8)..]
         );
     }
+}
+
+#[test]
+fn a_rate_outside_the_pipelines_range_is_warned_on_the_figure() {
+    let low = vec![Stage::BandPass {
+        low_hz: 0.5,
+        high_hz: 4.0,
+        order: 2,
+    }];
+    let spec = crate::filter_report::FilterSpec::new(20.0, low).unwrap();
+    let report = FilterReport::build(&spec, None, "F", "cmd").unwrap();
+    assert_eq!(report.warnings.len(), 1, "{:?}", report.warnings);
+    let svg = render_svg(&report).unwrap();
+    let plain = |s: &str| {
+        s.replace('\u{a0}', " ")
+            .split_whitespace()
+            .collect::<Vec<_>>()
+            .join(" ")
+    };
+    let shown = plain(&texts(&svg).join(" "));
+    assert!(shown.contains(&plain(&report.warnings[0])), "{shown}");
+    assert!(texts(&svg).iter().any(|t| t == "warning"));
+    // Without a warning the figure has none.
+    assert!(!texts(&band_and_notch()).iter().any(|t| t == "warning"));
 }

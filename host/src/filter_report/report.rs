@@ -138,6 +138,9 @@ pub struct FilterReport {
     pub response: Vec<ResponseRow>,
     /// The sections as Rust source for plethwire-dsp.
     pub rust_const: String,
+    /// What to know before using it: a rate outside the pipeline's range
+    /// (designed anyway, since a filter can serve other uses).
+    pub warnings: Vec<String>,
     /// Where the SVG was written, if it was.
     pub plot: Option<String>,
     /// The design itself, for further evaluation (not serialised).
@@ -194,6 +197,7 @@ impl FilterReport {
             },
             response: rows,
             rust_const,
+            warnings: rate_warning(rate).into_iter().collect(),
             plot: None,
             design,
             board_sections,
@@ -203,6 +207,16 @@ impl FilterReport {
 
 /// The realised coefficients of the board's cascade, naming the first
 /// section that rounding to `f32` would make unstable.
+/// A warning when `rate_hz` is outside the pipeline's range: the filter is
+/// still designed, for other uses than the beat pipeline.
+fn rate_warning(rate_hz: f64) -> Option<String> {
+    plethwire_dsp::pipeline::check_sample_rate(rate_hz)
+        .err()
+        .map(|e| {
+            format!("{e} for the beat pipeline; this filter is designed anyway, for other uses")
+        })
+}
+
 fn board_sections(design: &Design) -> Result<Vec<Biquad<f64>>, FilterDesignError> {
     match design.cascade::<Delta, MAX_SECTIONS>() {
         Ok(cascade) => Ok(cascade.realised()[..design.len()].to_vec()),

@@ -114,6 +114,11 @@ impl Stage {
     }
 }
 
+/// The fastest rate a filter is designed for, Hz: a thousand times the
+/// pipeline's top rate, past any pulse sensor's ADC, where a heart-band
+/// corner is a millionth of the rate and the sections' poles crowd `z = 1`.
+pub const MAX_DESIGN_RATE_HZ: f64 = 1e6;
+
 /// A whole request: stages in the order they are applied, and the rate.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct FilterSpec {
@@ -150,6 +155,11 @@ impl FilterSpec {
     /// Design every stage and chain them. The first refusal wins; a bad
     /// sample rate is reported as such rather than against a stage.
     pub fn design(&self) -> Result<Design, FilterDesignError> {
+        if self.sample_rate_hz > MAX_DESIGN_RATE_HZ {
+            return Err(FilterDesignError::RateTooHigh {
+                sample_rate_hz: self.sample_rate_hz,
+            });
+        }
         let mut parts = Vec::with_capacity(self.stages.len());
         for stage in &self.stages {
             match stage.design(self.sample_rate_hz) {
@@ -289,6 +299,15 @@ mod tests {
                 assert_eq!(reason, DesignError::BandEdgesReversed);
             }
             other => panic!("expected a refusal, got {other:?}"),
+        }
+        for absurd in [1.5e6, 1e308, f64::INFINITY] {
+            let fast = spec(absurd, vec![Stage::DcBlock { corner_hz: 0.5 }]);
+            assert_eq!(
+                fast.design(),
+                Err(FilterDesignError::RateTooHigh {
+                    sample_rate_hz: absurd
+                })
+            );
         }
         let negative = spec(-5.0, vec![Stage::DcBlock { corner_hz: 0.5 }]);
         assert_eq!(

@@ -1,10 +1,13 @@
 //! The signal budget at the ADC: how far one pulse swings the output, where
-//! that swing sits against the ADC's input range and the amplifier rails,
-//! and how much photocurrent one ADC step stands for.
+//! that swing sits against the ADC's input range, and how much photocurrent
+//! one ADC step stands for. Each node against its rails is in
+//! [`super::nodes`].
 
 use serde::Serialize;
 
 use super::circuit::Circuit;
+use super::findings::{node, Finding, Level};
+use super::nodes::NodeLevel;
 use super::quantity::sig3;
 use super::transfer::Chain;
 
@@ -59,23 +62,26 @@ pub struct Swing {
     pub codes: f64,
     /// The output leaves the ADC's input range.
     pub adc_clips: bool,
-    /// The output leaves the amplifier rails.
-    pub rails_clip: bool,
 }
 
 impl Swing {
-    /// The swing of the circuit's pulse, if it gives one.
-    pub fn of(circuit: &Circuit, chain: &Chain, adc: &AdcBudget) -> Option<Self> {
+    /// The swing of the circuit's pulse at the ADC input, the chain's
+    /// last node `adc_in`, if the circuit gives a pulse.
+    pub fn of(
+        circuit: &Circuit,
+        chain: &Chain,
+        adc: &AdcBudget,
+        adc_in: &NodeLevel,
+    ) -> Option<Self> {
         let pulse_ua = circuit.pulse.change_ua?;
         let swing_vpp = chain.midband_v_per_ua().abs() * pulse_ua;
         let dc_shift_v = circuit
             .pulse
             .dc_ua
             .zip(chain.transfer.dc_gain())
-            .map(|(dc_ua, gain)| gain * dc_ua * 1e-6);
-        let centre_v = circuit.adc.bias_v + dc_shift_v.unwrap_or(0.0);
+            .map(|_| adc_in.steady_v - adc_in.dark_v);
+        let centre_v = adc_in.steady_v;
         let (low_v, high_v) = (centre_v - swing_vpp / 2.0, centre_v + swing_vpp / 2.0);
-        let rails = &circuit.rails;
         Some(Self {
             pulse_ua,
             swing_vpp,
@@ -85,20 +91,12 @@ impl Swing {
             high_v,
             codes: swing_vpp / (adc.lsb_mv * 1e-3),
             adc_clips: low_v < 0.0 || high_v > circuit.adc.reference_v,
-            rails_clip: low_v < rails.low_v || high_v > rails.high_v,
         })
     }
 
-    /// Warnings about clipping and about a pulse too small for the ADC.
-    pub fn warnings(&self, circuit: &Circuit) -> Vec<String> {
+    /// Clipping at the ADC (an error) and a pulse too small for it.
+    pub fn findings(&self, circuit: &Circuit) -> Vec<Finding> {
         let mut out = Vec::new();
-        let span = format!(
-            "the output swings from {} V to {} V ({} V p-p around {} V)",
-            sig3(self.low_v),
-            sig3(self.high_v),
-            sig3(self.swing_vpp),
-            sig3(self.centre_v)
-        );
         if self.adc_clips {
             let reference = circuit.adc.reference_v;
             let cause = if self.swing_vpp > reference {
@@ -106,99 +104,89 @@ impl Swing {
             } else {
                 "move the bias or lower the gain"
             };
-            out.push(format!(
-                "clipping: {span}, beyond the ADC input range 0 V to {} V; {cause}",
-                sig3(reference)
-            ));
-        }
-        if self.rails_clip {
-            let r = &circuit.rails;
-            out.push(format!(
-                "clipping: {span}, beyond the amplifier rails {} V to {} V",
-                sig3(r.low_v),
-                sig3(r.high_v)
+            out.push(Finding::new(
+                Level::Error,
+                node::ADC,
+                format!(
+                    "clipping: the output swings from {} V to {} V ({} V p-p around {} V), beyond the ADC input range 0 V to {} V; {cause}",
+                    sig3(self.low_v),
+                    sig3(self.high_v),
+                    sig3(self.swing_vpp),
+                    sig3(self.centre_v),
+                    sig3(reference)
+                ),
             ));
         }
         if self.codes < MIN_PULSE_CODES {
-            out.push(format!(
-                "the pulse spans only {} ADC codes (fewer than {MIN_PULSE_CODES}): raise the gain or the LED current",
-                sig3(self.codes)
-            ));
-        }
-        out
-    }
-
-    /// Notes on the DC level: blocked, or unknown where it matters.
-    pub fn notes(&self, circuit: &Circuit, chain: &Chain) -> Vec<String> {
-        let mut out = Vec::new();
-        match (circuit.pulse.dc_ua, chain.transfer.dc_gain()) {
-            (Some(dc), None) => out.push(format!(
-                "the steady photocurrent ({} µA) is blocked by the AC coupling",
-                sig3(dc)
-            )),
-            (None, Some(gain)) => out.push(format!(
-                "the chain passes DC ({} V/µA): give the steady photocurrent (pulse.dc_ua, --dc-ua) to place the output",
-                sig3(gain * 1e-6)
-            )),
-            _ => {}
-        }
-        if circuit.adc.bias_assumed && chain.transfer.dc_gain().is_some() {
-            // A DC-coupled output starts from the detector's own level
-            // (ground for an emitter load, the supply for a collector load).
-            out.push(format!(
-                "no adc.bias_v (--bias) given: the output with no light is taken as {} V, half the reference",
-                sig3(circuit.adc.bias_v)
+            out.push(Finding::new(
+                Level::Warning,
+                node::ADC,
+                format!(
+                    "the pulse spans only {} ADC codes (fewer than {MIN_PULSE_CODES}): raise the gain or the LED current",
+                    sig3(self.codes)
+                ),
             ));
         }
         out
     }
 }
 
+/// Notes on the DC level: blocked, unknown where it matters, or assumed.
+pub fn dc_notes(circuit: &Circuit, chain: &Chain) -> Vec<Finding> {
+    let mut out = Vec::new();
+    match (circuit.pulse.dc_ua, chain.transfer.dc_gain()) {
+        (Some(dc), None) => out.push(Finding::new(
+            Level::Note,
+            node::ADC,
+            format!(
+                "the steady photocurrent ({} µA) is blocked by the AC coupling before the ADC",
+                sig3(dc)
+            ),
+        )),
+        (None, _) => out.push(Finding::new(
+            Level::Note,
+            node::DETECTOR,
+            "no steady photocurrent given (pulse.dc_ua, --dc-ua): every DC-coupled node is placed as if there were none",
+        )),
+        _ => {}
+    }
+    let s = &circuit.supplies;
+    if s.reference_assumed {
+        out.push(Finding::new(
+            Level::Note,
+            node::DETECTOR,
+            format!(
+                "no detector.reference_v (--tia-ref) given: the TIA's reference is taken as the bias, {} V",
+                sig3(s.reference_v)
+            ),
+        ));
+    }
+    if circuit.adc.bias_assumed && (s.reference_assumed || !circuit.stages.is_empty()) {
+        out.push(Finding::new(
+            Level::Note,
+            node::ADC,
+            format!(
+                "no adc.bias_v (--bias) given: the bias the stages work around is taken as {} V, half the ADC reference",
+                sig3(circuit.adc.bias_v)
+            ),
+        ));
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::frontend::circuit::{Adc, AmpStage, Detector, LedDrive, Pulse, Rails};
+    use crate::frontend::circuit::AmpStage;
+    use crate::frontend::nodes::levels;
+    use crate::frontend::test_circuit::circuit;
 
-    /// A −10 kΩ transimpedance, a unity buffer and an inverting stage of
-    /// gain −`last`.
-    fn circuit(last: f64, pulse_ua: f64) -> Circuit {
-        Circuit {
-            name: None,
-            led: LedDrive {
-                supply_v: 5.0,
-                forward_v: 1.7,
-                resistors_ohm: vec![470.0],
-                rated_ma: None,
-            },
-            detector: Detector::Photodiode {
-                feedback_ohm: 10e3,
-                feedback_f: None,
-            },
-            stages: vec![
-                AmpStage::Buffer,
-                AmpStage::Inverting {
-                    rin_ohm: 1e3,
-                    rf_ohm: last * 1e3,
-                    cf_f: None,
-                    cin_f: None,
-                },
-            ],
-            adc: Adc {
-                bits: 12,
-                reference_v: 3.3,
-                bias_v: 1.65,
-                bias_assumed: false,
-                rate_hz: None,
-            },
-            pulse: Pulse {
-                change_ua: Some(pulse_ua),
-                dc_ua: None,
-            },
-            rails: Rails {
-                low_v: 0.0,
-                high_v: 5.0,
-            },
-        }
+    fn swing(c: &Circuit) -> (Chain, Swing) {
+        let chain = Chain::of(c);
+        let adc = AdcBudget::of(c, &chain);
+        let nodes = levels(c, &chain);
+        let s = Swing::of(c, &chain, &adc, nodes.last().unwrap()).unwrap();
+        (chain, s)
     }
 
     #[test]
@@ -210,13 +198,11 @@ mod tests {
         assert!((chain.midband_v_per_a - 4.7e6).abs() < 1e-6);
         assert!((chain.midband_v_per_ua() - 4.7).abs() < 1e-12);
         let c = circuit(47.0, 1.0);
-        let chain = Chain::of(&c);
+        let (chain, s) = swing(&c);
         assert!((chain.midband_v_per_a - 470e3).abs() < 1e-6);
-        let adc = AdcBudget::of(&c, &chain);
-        let s = Swing::of(&c, &chain, &adc).unwrap();
         assert!((s.swing_vpp - 0.470).abs() < 1e-12, "1 µA gives 470 mV");
-        assert!(!s.adc_clips && !s.rails_clip);
-        assert!(s.warnings(&c).is_empty());
+        assert!(!s.adc_clips);
+        assert!(s.findings(&c).is_empty());
     }
 
     #[test]
@@ -231,36 +217,30 @@ mod tests {
     }
 
     #[test]
-    fn a_swing_wider_than_the_adc_range_warns_of_clipping() {
+    fn a_swing_wider_than_the_adc_range_is_an_error_at_the_adc() {
         // 1 µA at 4.7 V/µA is 4.7 V p-p, wider than 3.3 V.
         let c = circuit(470.0, 1.0);
-        let chain = Chain::of(&c);
-        let adc = AdcBudget::of(&c, &chain);
-        let s = Swing::of(&c, &chain, &adc).unwrap();
-        assert!(s.adc_clips && s.rails_clip);
-        let w = s.warnings(&c);
+        let (_, s) = swing(&c);
+        assert!(s.adc_clips);
+        let f = s.findings(&c);
+        assert_eq!((f[0].level, f[0].node.as_str()), (Level::Error, node::ADC));
         assert!(
-            w[0].starts_with("clipping: the output swings from -0.7 V to 4 V"),
-            "{w:?}"
+            f[0].message
+                .starts_with("clipping: the output swings from -0.7 V to 4 V"),
+            "{f:?}"
         );
-        assert!(w[0].contains("wider than the range"), "{w:?}");
-        assert!(
-            w[1].contains("beyond the amplifier rails 0 V to 5 V"),
-            "{w:?}"
-        );
+        assert!(f[0].message.contains("wider than the range"), "{f:?}");
     }
 
     #[test]
     fn dc_photocurrent_shifts_a_dc_coupled_output() {
         let mut c = circuit(47.0, 0.1);
         c.pulse.dc_ua = Some(2.0);
-        let chain = Chain::of(&c);
-        let adc = AdcBudget::of(&c, &chain);
-        let s = Swing::of(&c, &chain, &adc).unwrap();
+        let (chain, s) = swing(&c);
         // 2 µA × 0.47 V/µA = 0.94 V above the 1.65 V bias.
         assert!((s.dc_shift_v.unwrap() - 0.94).abs() < 1e-12);
         assert!((s.centre_v - 2.59).abs() < 1e-12);
-        assert!(s.notes(&c, &chain).is_empty());
+        assert!(dc_notes(&c, &chain).is_empty());
         c.stages.insert(
             0,
             AmpStage::HighPass {
@@ -268,20 +248,25 @@ mod tests {
                 c_f: 1e-6,
             },
         );
-        let chain = Chain::of(&c);
-        let s = Swing::of(&c, &chain, &adc).unwrap();
+        c.supplies.stages.insert(0, None);
+        let (chain, s) = swing(&c);
         assert_eq!(s.dc_shift_v, None);
-        assert!(s.notes(&c, &chain)[0].contains("blocked by the AC coupling"));
+        assert!((s.centre_v - 1.65).abs() < 1e-12);
+        assert!(dc_notes(&c, &chain)[0]
+            .message
+            .contains("blocked by the AC coupling"));
     }
 
     #[test]
     fn a_tiny_pulse_warns_that_it_spans_few_codes() {
         let c = circuit(47.0, 0.01);
-        let chain = Chain::of(&c);
-        let adc = AdcBudget::of(&c, &chain);
-        let s = Swing::of(&c, &chain, &adc).unwrap();
+        let (_, s) = swing(&c);
         // 4.7 mV over 0.806 mV steps: 5.83 codes.
         assert!((s.codes - 5.833).abs() < 1e-3);
-        assert!(s.warnings(&c)[0].starts_with("the pulse spans only 5.83 ADC codes"));
+        let f = s.findings(&c);
+        assert_eq!(f[0].level, Level::Warning);
+        assert!(f[0]
+            .message
+            .starts_with("the pulse spans only 5.83 ADC codes"));
     }
 }

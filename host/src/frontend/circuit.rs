@@ -253,6 +253,24 @@ pub struct Rails {
     pub high_v: f64,
 }
 
+/// Each amplifier's supply rails and the detector's reference: where each
+/// node's output saturates.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Supplies {
+    /// The detector's rails: a transimpedance amplifier's, or the supply a
+    /// phototransistor works between.
+    pub detector: Rails,
+    /// The detector's output with no photocurrent, volts: a TIA's
+    /// reference (its non-inverting input); a phototransistor's low rail
+    /// (emitter load) or high rail (collector load).
+    pub reference_v: f64,
+    /// A TIA's `reference_v` was not given and is the chain's bias.
+    pub reference_assumed: bool,
+    /// Each stage's rails, in signal order; `None` for a passive RC stage,
+    /// which cannot saturate by itself.
+    pub stages: Vec<Option<Rails>>,
+}
+
 /// A whole front end, checked.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Circuit {
@@ -268,6 +286,8 @@ pub struct Circuit {
     pub adc: Adc,
     /// The pulse at the detector.
     pub pulse: Pulse,
-    /// The amplifier rails.
+    /// The board's amplifier rails, every stage's unless it has its own.
     pub rails: Rails,
+    /// Each node's rails and the detector's reference.
+    pub supplies: Supplies,
 }

@@ -6,16 +6,21 @@
 use serde::Deserialize;
 use std::path::Path;
 
+use plethwire_dsp::pipeline::check_sample_rate;
+
 use super::circuit::{Adc, Circuit, LedDrive, Pulse, Rails};
+use super::limits::{self, Bounds};
 use super::FrontendError;
 
 mod parts;
+mod supplies;
 
 use parts::kind_name;
 pub use parts::{
-    AdcDraft, DetectorDraft, DetectorKind, LedDraft, PulseDraft, RailsDraft, Resistors, StageDraft,
-    StageError, StageKind,
+    AdcDraft, DetectorDraft, DetectorKind, LedDraft, PulseDraft, RailsDraft, RailsPair, Resistors,
+    StageDraft, StageError, StageKind,
 };
+use supplies::ordered_rails;
 
 /// ADC resolution when none is given: the 12-bit ADC of the STM32F411, the
 /// board plethwire's firmware targets.
@@ -167,75 +172,39 @@ pub(super) fn invalid(key: impl Into<String>, reason: impl Into<String>) -> Fron
     }
 }
 
-/// A finite number above zero, or which key is wrong.
-fn positive(v: f64, key: &str, unit: &str) -> Result<f64, FrontendError> {
-    if v.is_finite() && v > 0.0 {
-        Ok(v)
-    } else {
-        Err(invalid(key, format!("must be above 0 {unit}, not {v}")))
-    }
-}
-
-fn non_negative(v: f64, key: &str, unit: &str) -> Result<f64, FrontendError> {
-    if v.is_finite() && v >= 0.0 {
-        Ok(v)
-    } else {
-        Err(invalid(key, format!("must be 0 {unit} or more, not {v}")))
-    }
-}
-
-fn finite(v: f64, key: &str) -> Result<f64, FrontendError> {
-    if v.is_finite() {
-        Ok(v)
-    } else {
-        Err(invalid(key, format!("must be a finite number, not {v}")))
-    }
+/// `v` within `bounds`, or which key is wrong.
+fn bounded(v: f64, key: &str, bounds: Bounds) -> Result<f64, FrontendError> {
+    bounds
+        .check(v)
+        .map_err(|source| FrontendError::OutOfBounds {
+            key: key.to_owned(),
+            source,
+        })
 }
 
 impl Draft {
     /// Check everything and fill in the defaults: ADC of
     /// [`DEFAULT_ADC_BITS`] at [`DEFAULT_ADC_REFERENCE_V`], bias at half the
-    /// reference, rails from 0 V to the LED supply, one resistor.
+    /// reference, the board's rails from 0 V to the LED supply and every
+    /// amplifier's rails the board's, a TIA's reference at the bias, one
+    /// resistor. Every value is held to [`limits`].
     pub fn resolve(&self) -> Result<Circuit, FrontendError> {
-        let l = &self.led;
-        let supply_v = l
-            .supply_v
-            .ok_or_else(|| missing("the LED supply voltage", "led.supply_v", "--supply"))?;
-        let supply_v = positive(supply_v, "led.supply_v", "V")?;
-        let forward_v = l
-            .forward_v
-            .ok_or_else(|| missing("the LED forward voltage", "led.forward_v", "--led-vf"))?;
-        let forward_v = positive(forward_v, "led.forward_v", "V")?;
-        let Resistors(listed) = l
-            .resistor
-            .clone()
-            .ok_or_else(|| missing("the LED series resistor", "led.resistor", "--led-r"))?;
-        let resistors_ohm = match (listed.as_slice(), l.parallel) {
-            (_, Some(0)) => return Err(invalid("led.parallel", "must be 1 or more")),
-            ([one], n) => vec![*one; n.unwrap_or(1) as usize],
-            (_, Some(_)) => {
-                return Err(invalid(
-                    "led.parallel",
-                    "goes with one resistor value; a list of resistors is already in parallel",
-                ))
-            }
-            (many, None) => many.to_vec(),
-        };
-        let rated_ma = l
-            .rated_ma
-            .map(|v| positive(v, "led.rated_ma", "mA"))
-            .transpose()?;
-        if supply_v <= forward_v {
-            return Err(FrontendError::LedOff {
-                supply_v,
-                forward_v,
-            });
-        }
+        let led = self.resolve_led()?;
         let detector = self
             .detector
             .as_ref()
             .ok_or_else(|| missing("the detector", "[detector]", "--tia or --phototransistor"))?
             .resolve()?;
+        if self.stages.len() > limits::MAX_STAGES {
+            return Err(invalid(
+                "[[stage]]",
+                format!(
+                    "lists {} stages; a chain takes at most {}",
+                    self.stages.len(),
+                    limits::MAX_STAGES
+                ),
+            ));
+        }
         let stages = self
             .stages
             .iter()
@@ -247,30 +216,76 @@ impl Draft {
                 })
             })
             .collect::<Result<Vec<_>, _>>()?;
+        let adc = self.resolve_adc()?;
+        let rails = self.resolve_rails(led.supply_v)?;
+        let supplies = self.resolve_supplies(rails, &detector, &stages, adc.bias_v)?;
+        let p = &self.pulse;
         Ok(Circuit {
             name: self.name.clone(),
-            led: LedDrive {
-                supply_v,
-                forward_v,
-                resistors_ohm,
-                rated_ma,
-            },
+            led,
             detector,
             stages,
-            adc: self.resolve_adc()?,
+            adc,
             pulse: Pulse {
-                change_ua: self
-                    .pulse
+                change_ua: p
                     .change_ua
-                    .map(|v| positive(v, "pulse.change_ua", "µA"))
+                    .map(|v| bounded(v, "pulse.change_ua", limits::PULSE_UA))
                     .transpose()?,
-                dc_ua: self
-                    .pulse
+                dc_ua: p
                     .dc_ua
-                    .map(|v| non_negative(v, "pulse.dc_ua", "µA"))
+                    .map(|v| bounded(v, "pulse.dc_ua", limits::DC_UA))
                     .transpose()?,
             },
-            rails: self.resolve_rails(supply_v)?,
+            rails,
+            supplies,
+        })
+    }
+
+    fn resolve_led(&self) -> Result<LedDrive, FrontendError> {
+        let l = &self.led;
+        let supply_v = l
+            .supply_v
+            .ok_or_else(|| missing("the LED supply voltage", "led.supply_v", "--supply"))?;
+        let supply_v = bounded(supply_v, "led.supply_v", limits::SUPPLY_V)?;
+        let forward_v = l
+            .forward_v
+            .ok_or_else(|| missing("the LED forward voltage", "led.forward_v", "--led-vf"))?;
+        let forward_v = bounded(forward_v, "led.forward_v", limits::SUPPLY_V)?;
+        let Resistors(listed) = l
+            .resistor
+            .clone()
+            .ok_or_else(|| missing("the LED series resistor", "led.resistor", "--led-r"))?;
+        let resistors_ohm = match (listed.as_slice(), l.parallel) {
+            (_, Some(n)) if !(1..=limits::MAX_PARALLEL).contains(&n) => {
+                return Err(invalid(
+                    "led.parallel",
+                    format!("must be 1 to {}, not {n}", limits::MAX_PARALLEL),
+                ))
+            }
+            ([one], n) => vec![*one; n.unwrap_or(1) as usize],
+            (_, Some(_)) => {
+                return Err(invalid(
+                    "led.parallel",
+                    "goes with one resistor value; a list of resistors is already in parallel",
+                ))
+            }
+            (many, None) => many.to_vec(),
+        };
+        let rated_ma = l
+            .rated_ma
+            .map(|v| bounded(v, "led.rated_ma", limits::RATED_MA))
+            .transpose()?;
+        if supply_v <= forward_v {
+            return Err(FrontendError::LedOff {
+                supply_v,
+                forward_v,
+            });
+        }
+        Ok(LedDrive {
+            supply_v,
+            forward_v,
+            resistors_ohm,
+            rated_ma,
         })
     }
 
@@ -280,33 +295,44 @@ impl Draft {
         if !(1..=32).contains(&bits) {
             return Err(invalid("adc.bits", format!("must be 1 to 32, not {bits}")));
         }
-        let reference_v = positive(
+        let reference_v = bounded(
             a.reference_v.unwrap_or(DEFAULT_ADC_REFERENCE_V),
             "adc.reference_v",
-            "V",
+            limits::ADC_REFERENCE_V,
         )?;
         Ok(Adc {
             bits,
             reference_v,
-            bias_v: finite(a.bias_v.unwrap_or(reference_v / 2.0), "adc.bias_v")?,
+            bias_v: bounded(
+                a.bias_v.unwrap_or(reference_v / 2.0),
+                "adc.bias_v",
+                limits::LEVEL_V,
+            )?,
             bias_assumed: a.bias_v.is_none(),
             rate_hz: a
                 .rate_hz
-                .map(|v| positive(v, "adc.rate_hz", "Hz"))
+                .map(|v| {
+                    check_sample_rate(v).map_err(|source| FrontendError::Rate {
+                        key: "adc.rate_hz",
+                        source,
+                    })
+                })
                 .transpose()?,
         })
     }
 
     fn resolve_rails(&self, supply_v: f64) -> Result<Rails, FrontendError> {
-        let low_v = finite(self.rails.low_v.unwrap_or(0.0), "rails.low_v")?;
-        let high_v = finite(self.rails.high_v.unwrap_or(supply_v), "rails.high_v")?;
-        if low_v >= high_v {
-            return Err(invalid(
-                "rails",
-                format!("low_v ({low_v} V) must be below high_v ({high_v} V)"),
-            ));
-        }
-        Ok(Rails { low_v, high_v })
+        let low_v = bounded(
+            self.rails.low_v.unwrap_or(0.0),
+            "rails.low_v",
+            limits::LEVEL_V,
+        )?;
+        let high_v = bounded(
+            self.rails.high_v.unwrap_or(supply_v),
+            "rails.high_v",
+            limits::LEVEL_V,
+        )?;
+        ordered_rails("rails", low_v, high_v)
     }
 }
 

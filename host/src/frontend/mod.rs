@@ -35,35 +35,44 @@ mod band;
 mod budget;
 mod circuit;
 mod draft;
+mod findings;
 mod led;
+pub mod limits;
+mod nodes;
 mod phase;
 mod plot;
 mod quantity;
 mod render;
 mod report;
 mod sampling;
+#[cfg(test)]
+mod test_circuit;
 mod transfer;
 
 pub use band::{check_band, BandCheck, Loss, ALLOWED_LOSS_DB, HEART_BAND_HZ};
 pub use budget::{AdcBudget, Swing, MIN_PULSE_CODES};
-pub use circuit::{Adc, AmpStage, Circuit, Detector, LedDrive, LoadAt, Pulse, Rails};
+pub use circuit::{Adc, AmpStage, Circuit, Detector, LedDrive, LoadAt, Pulse, Rails, Supplies};
 pub use draft::{
     AdcDraft, CircuitTomlError, DetectorDraft, DetectorKind, Draft, LedDraft, PulseDraft,
-    RailsDraft, Resistors, StageDraft, StageError, StageKind, DEFAULT_ADC_BITS,
+    RailsDraft, RailsPair, Resistors, StageDraft, StageError, StageKind, DEFAULT_ADC_BITS,
     DEFAULT_ADC_REFERENCE_V,
 };
+pub use findings::{node, stage_node, Finding, Level};
 pub use led::{parallel_ohm, LedBudget};
+pub use nodes::{InputRange, NodeLevel};
 pub use plot::{render_svg, write_svg, PLOT_RANGE_HZ};
-pub use quantity::{bpm, parse_value, si, sig3, Farads, Kind, Ohms, ValueError};
+pub use quantity::{bpm, parse_value, plain, si, sig3, Farads, Kind, Ohms, ValueError};
 pub use render::human_report;
 pub use report::{FrontendReport, ResponseRow, TABLE_FREQUENCIES_HZ};
 pub use sampling::{
     usual_rate_at_least, DigitalFilter, RateAdvice, CORNER_FACTOR, DIGITAL_HIGH_HZ, DIGITAL_LOW_HZ,
-    DIGITAL_ORDER, MIN_RATE_HZ,
+    DIGITAL_ORDER,
 };
 pub use transfer::{Block, Chain, Factored};
 
 use crate::filter_report::FilterDesignError;
+use limits::OutOfBounds;
+use plethwire_dsp::pipeline::SampleRateError;
 
 /// Printed with every human-readable report and in the command's help.
 pub const CAUTIONS: [&str; 4] = [
@@ -112,6 +121,31 @@ pub enum FrontendError {
         key: String,
         /// What is wrong with it.
         reason: String,
+    },
+    /// A value outside what a sensor front end can have.
+    #[error("{key} {source}")]
+    OutOfBounds {
+        /// The key concerned.
+        key: String,
+        /// The bounds and the value.
+        source: OutOfBounds,
+    },
+    /// The sample rate is outside the pipeline's range.
+    #[error("{key}: {source}")]
+    Rate {
+        /// The key concerned.
+        key: &'static str,
+        /// The range and the rate.
+        source: SampleRateError,
+    },
+    /// A number the report works out is not finite: the circuit's values
+    /// are out of all proportion.
+    #[error("the {what} works out to {value}: check the circuit's values")]
+    NotFinite {
+        /// Which quantity.
+        what: String,
+        /// Its value.
+        value: f64,
     },
     /// A stage's keys do not fit its kind.
     #[error("{stage} {source}")]

@@ -11,6 +11,7 @@ use plotters::prelude::*;
 use std::path::Path;
 
 use super::band::ALLOWED_LOSS_DB;
+use super::findings::Level as FindingLevel;
 use super::quantity::sig3;
 use super::report::FrontendReport;
 use crate::plot::legend::{legend_height, remarks_height};
@@ -65,17 +66,20 @@ fn curves(r: &FrontendReport, freqs: &[f64]) -> (Curves, Curves) {
     (gain, phase)
 }
 
-/// The report's findings as the figure shows them: warnings, then notes.
+/// The report's findings as the figure shows them, in the report's order
+/// (errors, warnings, notes), each with the node it is about.
 fn remarks(r: &FrontendReport) -> Vec<Remark> {
-    let of = |level: Level, list: &[String]| -> Vec<Remark> {
-        list.iter()
-            .map(|text| Remark {
-                level,
-                text: text.clone(),
-            })
-            .collect()
-    };
-    [of(Level::Warning, &r.warnings), of(Level::Note, &r.notes)].concat()
+    r.findings
+        .iter()
+        .map(|f| Remark {
+            level: match f.level {
+                FindingLevel::Error => Level::Error,
+                FindingLevel::Warning => Level::Warning,
+                FindingLevel::Note => Level::Note,
+            },
+            text: format!("{}: {}", f.node, f.message),
+        })
+        .collect()
 }
 
 /// The legend above the panels; the mark of a curve leaving the axis is

@@ -34,6 +34,24 @@ impl Kind {
         }
     }
 
+    /// The values a real part takes, in its unit: 1 mΩ to 1 TΩ, 1 fF to
+    /// 1 F. Beyond them a value is a typo, and products and ratios of
+    /// such values overflow or vanish.
+    pub fn range(self) -> (f64, f64) {
+        match self {
+            Kind::Resistance => (1e-3, 1e12),
+            Kind::Capacitance => (1e-15, 1.0),
+        }
+    }
+
+    /// [`Kind::range`] in words.
+    fn range_text(self) -> &'static str {
+        match self {
+            Kind::Resistance => "1 mΩ and 1 TΩ",
+            Kind::Capacitance => "1 fF and 1 F",
+        }
+    }
+
     /// More examples of how to write one, after the resistor's.
     fn examples(self) -> &'static str {
         match self {
@@ -82,8 +100,16 @@ pub enum ValueError {
         kind: Kind,
     },
     /// The value is not a finite number above zero.
-    #[error("a {} must be above 0 {}, not {value}", .kind.name(), .kind.unit())]
+    #[error("a {} must be above 0 {}, not {}", .kind.name(), .kind.unit(), plain(*.value))]
     NotPositive {
+        /// The value read.
+        value: f64,
+        /// What it measures.
+        kind: Kind,
+    },
+    /// The value is above zero but no real part has it.
+    #[error("a {} must be between {}, not {} {}", .kind.name(), .kind.range_text(), plain(*.value), .kind.unit())]
+    OutOfRange {
         /// The value read.
         value: f64,
         /// What it measures.
@@ -92,7 +118,7 @@ pub enum ValueError {
 }
 
 /// Parse a resistance or capacitance, which must be a finite number above
-/// zero; the error says what was wrong.
+/// zero within [`Kind::range`]; the error says what was wrong.
 pub fn parse_value(text: &str, kind: Kind) -> Result<f64, ValueError> {
     let bad = || ValueError::NotAValue {
         text: text.to_owned(),
@@ -124,13 +150,16 @@ pub fn parse_value(text: &str, kind: Kind) -> Result<f64, ValueError> {
     check_positive(number, kind)
 }
 
-/// A value must be above zero: a resistor of 0 Ω divides by zero, and a
-/// negative part does not exist.
+/// A value must be above zero (a resistor of 0 Ω divides by zero, and a
+/// negative part does not exist) and within [`Kind::range`].
 fn check_positive(value: f64, kind: Kind) -> Result<f64, ValueError> {
-    if value.is_finite() && value > 0.0 {
-        Ok(value)
-    } else {
+    let (least, most) = kind.range();
+    if !(value.is_finite() && value > 0.0) {
         Err(ValueError::NotPositive { value, kind })
+    } else if !(least..=most).contains(&value) {
+        Err(ValueError::OutOfRange { value, kind })
+    } else {
+        Ok(value)
     }
 }
 
@@ -199,6 +228,17 @@ pub fn sig3(x: f64) -> String {
         s.trim_end_matches('0').trim_end_matches('.').to_owned()
     } else {
         s
+    }
+}
+
+/// `x` as given, in full, but in exponent form when very large or very
+/// small: `470`, `0.25`, `1e308`, `1e-320`.
+pub fn plain(x: f64) -> String {
+    let a = x.abs();
+    if a != 0.0 && a.is_finite() && !(1e-4..1e9).contains(&a) {
+        format!("{x:e}")
+    } else {
+        format!("{x}")
     }
 }
 
@@ -285,6 +325,15 @@ mod tests {
             "'ten' is not a capacitance: write e.g. 4700, 4.7k or 4k7, 22u or 100n"
         );
         assert!(parse_value("0", Kind::Capacitance).is_err());
+        // Above zero but no real part: refused, naming the range.
+        let e = parse_value("1e-320", Kind::Resistance).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "a resistance must be between 1 mΩ and 1 TΩ, not 1e-320 Ω"
+        );
+        assert!(parse_value("1e308", Kind::Resistance).is_err());
+        assert!(parse_value("2", Kind::Capacitance).is_err());
+        assert!(parse_value("1p", Kind::Capacitance).is_ok());
         assert!(parse_value("inf", Kind::Resistance).is_err());
     }
 

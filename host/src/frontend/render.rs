@@ -3,6 +3,7 @@
 use std::fmt::Write as _;
 
 use super::band::HEART_BAND_HZ;
+use super::findings::Level;
 use super::quantity::{bpm, si, sig3};
 use super::report::{FrontendReport, ResponseRow};
 use super::transfer::Factored;
@@ -91,13 +92,16 @@ pub fn human_report(r: &FrontendReport) -> String {
 
     led_section(&mut s, r);
     chain_section(&mut s, r);
+    levels_section(&mut s, r);
     adc_section(&mut s, r);
     sampling_section(&mut s, r);
-    for (title, list) in [("Warnings", &r.warnings), ("Notes", &r.notes)] {
-        if !list.is_empty() {
-            let _ = writeln!(s, "\n{title}");
-            for w in list {
-                let _ = writeln!(s, "  - {w}");
+    for level in [Level::Error, Level::Warning, Level::Note] {
+        let mut list = r.at_level(level).peekable();
+        if list.peek().is_some() {
+            let _ = writeln!(s, "\n{}", level.heading());
+            for f in list {
+                let tag = if level == Level::Error { "ERROR " } else { "" };
+                let _ = writeln!(s, "  - {tag}[{}] {}", f.node, f.message);
             }
         }
     }
@@ -216,7 +220,7 @@ fn adc_section(s: &mut String, r: &FrontendReport) {
     let _ = writeln!(s, "Signal at the ADC");
     let _ = writeln!(
         s,
-        "  ADC {} bits, 0 V to {} V, bias {} V; rails {} V to {} V",
+        "  ADC {} bits, 0 V to {} V, bias {} V; board rails {} V to {} V",
         a.bits,
         sig3(a.reference_v),
         sig3(a.bias_v),
@@ -231,23 +235,67 @@ fn adc_section(s: &mut String, r: &FrontendReport) {
         si(r.adc.full_scale_ua * 1e-6, "A")
     );
     if let Some(w) = &r.swing {
+        let saturated = r.nodes.iter().filter(|n| n.saturates).count();
         let _ = writeln!(
             s,
-            "  pulse {} p-p: {} p-p around {:.3} V, from {:.3} V to {:.3} V, {} codes; {}",
+            "  pulse {} p-p: {} p-p around {:.3} V, from {:.3} V to {:.3} V, {} codes; {}{}",
             si(w.pulse_ua * 1e-6, "A"),
             si(w.swing_vpp, "V"),
             w.centre_v,
             w.low_v,
             w.high_v,
             sig3(w.codes),
-            match (w.adc_clips, w.rails_clip) {
-                (false, false) => "inside the ADC range and the rails",
-                (true, false) => "CLIPS at the ADC",
-                (false, true) => "CLIPS at the rails",
-                (true, true) => "CLIPS at the ADC and the rails",
+            if w.adc_clips {
+                "CLIPS at the ADC"
+            } else {
+                "inside the ADC range"
+            },
+            match saturated {
+                0 => "; every node within its rails".to_owned(),
+                1 => "; 1 node SATURATES (see Errors)".to_owned(),
+                n => format!("; {n} nodes SATURATE (see Errors)"),
             }
         );
     }
+}
+
+/// Each node's DC level and swing against its rails, and the detector's
+/// input range.
+fn levels_section(s: &mut String, r: &FrontendReport) {
+    let _ = writeln!(
+        s,
+        "Levels, node by node (dark: no photocurrent; steady: with the steady photocurrent)"
+    );
+    for (i, n) in r.nodes.iter().enumerate() {
+        let adc = if i + 1 == r.nodes.len() {
+            " (the ADC input)"
+        } else {
+            ""
+        };
+        let rails = n
+            .rails
+            .map_or("passive, no rails of its own".to_owned(), |x| {
+                format!("rails {} V to {} V", sig3(x.low_v), sig3(x.high_v))
+            });
+        let swing = n
+            .swing_vpp
+            .map_or(String::new(), |v| format!(", pulse {} p-p", si(v, "V")));
+        let _ = writeln!(
+            s,
+            "  {}{adc}: dark {} V, steady {} V{swing}; {} V to {} V; {rails}{}",
+            n.node,
+            sig3(n.dark_v),
+            sig3(n.steady_v),
+            sig3(n.low_v),
+            sig3(n.high_v),
+            if n.saturates { ": SATURATES" } else { "" }
+        );
+    }
+    let _ = writeln!(
+        s,
+        "  input range: {}\n",
+        r.input_range.describe(&r.circuit.detector)
+    );
 }
 
 /// The sample rate and the digital band-pass.

@@ -4,13 +4,17 @@
 use serde::Serialize;
 
 use super::band::{check_band, BandCheck};
-use super::budget::{AdcBudget, Swing};
+use super::budget::{dc_notes, AdcBudget, Swing};
 use super::circuit::Circuit;
+use super::findings::{node, Finding, Level};
 use super::led::LedBudget;
+use super::nodes::{self, InputRange, NodeLevel};
 use super::quantity::{bpm, sig3};
 use super::sampling::{DigitalFilter, RateAdvice};
 use super::transfer::Chain;
 use super::{FrontendError, CAUTIONS};
+
+mod finite;
 
 /// Frequencies of the response table, Hz, before the chain's own corners
 /// are added: 0.05 to 50 Hz, the heart band's edges among them.
@@ -60,16 +64,20 @@ pub struct FrontendReport {
     pub heart_band_with_digital: BandCheck,
     /// The ADC step in photocurrent.
     pub adc: AdcBudget,
-    /// The swing of the given pulse, if one was given.
+    /// Every node's levels against its rails, detector first; the last is
+    /// the ADC input.
+    pub nodes: Vec<NodeLevel>,
+    /// The photocurrent the detector takes before it saturates.
+    pub input_range: InputRange,
+    /// The swing of the given pulse at the ADC, if one was given.
     pub swing: Option<Swing>,
     /// The sample rate.
     pub sampling: RateAdvice,
     /// The digital band-pass at that rate.
     pub digital: DigitalFilter,
-    /// What needs fixing or checking.
-    pub warnings: Vec<String>,
-    /// What was not checked, or was assumed.
-    pub notes: Vec<String>,
+    /// What was found, errors first, then warnings, then notes; each with
+    /// the node it is about.
+    pub findings: Vec<Finding>,
     /// The safety cautions.
     pub cautions: Vec<&'static str>,
     /// Where the plot was written, if it was.
@@ -77,7 +85,8 @@ pub struct FrontendReport {
 }
 
 impl FrontendReport {
-    /// Work out everything for `circuit`.
+    /// Work out everything for `circuit`; refused if a number it works
+    /// out is not finite.
     pub fn build(circuit: &Circuit) -> Result<Self, FrontendError> {
         let led = LedBudget::of(&circuit.led);
         let chain = Chain::of(circuit);
@@ -86,48 +95,46 @@ impl FrontendReport {
         let heart_band = check_band(|f| chain.relative_db(f));
         let heart_band_with_digital = check_band(|f| chain.relative_db(f) + digital.gain_db(f));
         let adc = AdcBudget::of(circuit, &chain);
-        let swing = Swing::of(circuit, &chain, &adc);
+        let nodes = nodes::levels(circuit, &chain);
+        let input_range = InputRange::of(circuit);
+        let adc_in = nodes.last().expect("a chain has its detector");
+        let swing = Swing::of(circuit, &chain, &adc, adc_in);
 
-        let mut warnings: Vec<String> = led.warning(&circuit.led).into_iter().collect();
+        let mut findings = nodes::findings(circuit, &nodes, &input_range);
+        findings.extend(
+            led.warning(&circuit.led)
+                .map(|w| Finding::new(Level::Warning, node::LED, w)),
+        );
+        let chain_warning = |m: String| Finding::new(Level::Warning, node::CHAIN, m);
         if !heart_band.passes {
-            warnings.push(format!("the analog chain {}", heart_band.verdict));
+            findings.push(chain_warning(format!(
+                "the analog chain {}",
+                heart_band.verdict
+            )));
         }
         if !heart_band_with_digital.passes {
-            warnings.push(format!(
+            findings.push(chain_warning(format!(
                 "with the digital band-pass, the heart band {}",
                 heart_band_with_digital.verdict
-            ));
+            )));
         }
         if let Some(s) = &swing {
-            warnings.extend(s.warnings(circuit));
+            findings.extend(s.findings(circuit));
         }
         if !chain.has_low_pass() {
-            warnings.push(
+            findings.push(chain_warning(
                 "the analog chain has no low-pass: nothing limits noise and aliasing before the \
                  ADC; add a corner, e.g. a capacitor across a feedback resistor"
                     .to_owned(),
-            );
+            ));
         }
-        warnings.extend(sampling.warning());
-        if let Some(w) = shortfall_warning(&chain) {
-            warnings.push(w);
-        }
+        findings.extend(sampling.findings());
+        findings.extend(shortfall_warning(&chain).map(chain_warning));
+        findings.extend(notes(circuit, &chain));
+        // Stable: within a level, in the order found.
+        findings.sort_by_key(|f| f.level);
 
-        let mut notes = Vec::new();
-        if circuit.led.rated_ma.is_none() {
-            notes.push(
-                "no rated LED current given (led.rated_ma, --led-rated-ma): not checked".to_owned(),
-            );
-        }
-        match &swing {
-            Some(s) => notes.extend(s.notes(circuit, &chain)),
-            None => notes.push(
-                "no pulse given (pulse.change_ua, --pulse-ua): swing and clipping not checked"
-                    .to_owned(),
-            ),
-        }
-
-        Ok(Self {
+        let report = Self {
             title: circuit
                 .name
                 .clone()
@@ -140,15 +147,49 @@ impl FrontendReport {
             heart_band,
             heart_band_with_digital,
             adc,
+            nodes,
+            input_range,
             swing,
             sampling,
             digital,
-            warnings,
-            notes,
+            findings,
             cautions: CAUTIONS.to_vec(),
             plot: None,
-        })
+        };
+        finite::check(&report)?;
+        Ok(report)
     }
+
+    /// The findings at `level`.
+    pub fn at_level(&self, level: Level) -> impl Iterator<Item = &Finding> {
+        self.findings.iter().filter(move |f| f.level == level)
+    }
+
+    /// True when some node saturates or the ADC clips.
+    pub fn has_errors(&self) -> bool {
+        self.at_level(Level::Error).next().is_some()
+    }
+}
+
+/// What was not checked, or was assumed.
+fn notes(circuit: &Circuit, chain: &Chain) -> Vec<Finding> {
+    let mut out = Vec::new();
+    if circuit.led.rated_ma.is_none() {
+        out.push(Finding::new(
+            Level::Note,
+            node::LED,
+            "no rated LED current given (led.rated_ma, --led-rated-ma): not checked",
+        ));
+    }
+    if circuit.pulse.change_ua.is_none() {
+        out.push(Finding::new(
+            Level::Note,
+            node::PULSE,
+            "no pulse given (pulse.change_ua, --pulse-ua): the swing and clipping of a pulse not checked",
+        ));
+    }
+    out.extend(dc_notes(circuit, chain));
+    out
 }
 
 /// A warning when the chain's corners overlap so that it never comes

@@ -5,22 +5,28 @@
 //! Our rules: sample at least 10 times the chain's highest analog corner,
 //! so the analog roll-off has done its work well before Nyquist, and at
 //! least 25 Hz, so a 3.7 Hz pulse gets several samples per cycle; round up
-//! to the next of 25, 50, 100, 200, 250, 500, 1000 Hz and so on. The
+//! to the next of 25, 50, 100, 200, 250, 500, 1000 Hz, and never above the
+//! pipeline's top rate ([`MAX_RATE_HZ`]; its range is plethwire-dsp's
+//! `check_sample_rate`). The
 //! digital band-pass is a Butterworth of order 2 from 0.3 Hz (a second-order
 //! edge there costs about half a dB at 0.5 Hz) to 8 Hz (room for the pulse's
 //! harmonics, which carry its shape), its upper edge held at or below 0.4 of
 //! the sample rate.
 
+use plethwire_dsp::pipeline::{MAX_RATE_HZ as TOP_F32, MIN_RATE_HZ as LEAST_F32};
 use plethwire_dsp::Design;
 use serde::Serialize;
 
+use super::findings::{node, Finding, Level};
 use super::quantity::{round3, sig3};
 use super::transfer::Chain;
 use super::FrontendError;
 use crate::filter_report::{FilterSpec, SectionCoefficients, Stage};
 
-/// The lowest rate recommended, Hz.
-pub const MIN_RATE_HZ: f64 = 25.0;
+/// The lowest rate recommended, Hz: the pipeline's lowest.
+const MIN_RATE_HZ: f64 = LEAST_F32 as f64;
+/// The highest rate recommended, Hz: the pipeline's highest.
+const MAX_RATE_HZ: f64 = TOP_F32 as f64;
 /// The rate is at least this many times the highest analog corner.
 pub const CORNER_FACTOR: f64 = 10.0;
 /// The digital band-pass's lower edge, Hz.
@@ -39,7 +45,8 @@ pub struct RateAdvice {
     pub highest_corner_hz: Option<f64>,
     /// The least rate the rule allows, Hz.
     pub minimum_hz: f64,
-    /// The rule's rate rounded up to a usual one, Hz.
+    /// The rule's rate rounded up to a usual one, at most the pipeline's
+    /// top rate, Hz.
     pub recommended_hz: f64,
     /// The rate the report works with: the circuit's own, or the
     /// recommended one.
@@ -69,7 +76,7 @@ impl RateAdvice {
         let highest_corner_hz = chain.highest_corner_hz();
         let from_corner = highest_corner_hz.map_or(0.0, |f| CORNER_FACTOR * f);
         let minimum_hz = from_corner.max(MIN_RATE_HZ);
-        let recommended_hz = usual_rate_at_least(minimum_hz);
+        let recommended_hz = usual_rate_at_least(minimum_hz).min(MAX_RATE_HZ);
         let rule = match highest_corner_hz {
             Some(f) => format!(
                 "at least {CORNER_FACTOR} × the highest analog corner ({} Hz) and at least {MIN_RATE_HZ} Hz: {} Hz",
@@ -77,6 +84,11 @@ impl RateAdvice {
                 sig3(minimum_hz)
             ),
             None => format!("the chain has no corner; at least {MIN_RATE_HZ} Hz"),
+        };
+        let rule = if minimum_hz > MAX_RATE_HZ {
+            format!("{rule}; held at the pipeline's highest, {MAX_RATE_HZ} Hz")
+        } else {
+            rule
         };
         Self {
             highest_corner_hz,
@@ -87,9 +99,23 @@ impl RateAdvice {
         }
     }
 
-    /// A warning when the circuit's own rate is below the rule.
-    pub fn warning(&self) -> Option<String> {
-        (self.used_hz < self.minimum_hz * (1.0 - 1e-12)).then(|| {
+    /// A warning when the rule asks for more than the pipeline takes, or
+    /// when the circuit's own rate is below the rule.
+    pub fn findings(&self) -> Vec<Finding> {
+        let mut out = Vec::new();
+        if self.minimum_hz > MAX_RATE_HZ {
+            out.push(Finding::new(
+                Level::Warning,
+                node::SAMPLING,
+                format!(
+                    "the rule asks for {} Hz, above the {MAX_RATE_HZ} Hz the pipeline takes: \
+                     recommended {MAX_RATE_HZ} Hz; add a low-pass at or below {} Hz before the ADC",
+                    sig3(self.minimum_hz),
+                    MAX_RATE_HZ / CORNER_FACTOR
+                ),
+            ));
+        }
+        if self.used_hz < self.recommended_hz.min(self.minimum_hz) * (1.0 - 1e-12) {
             let why = match self.highest_corner_hz {
                 Some(f) if CORNER_FACTOR * f > MIN_RATE_HZ => {
                     format!(
@@ -99,13 +125,18 @@ impl RateAdvice {
                 }
                 _ => "the least rate for the heart band".to_owned(),
             };
-            format!(
-                "the sample rate {} Hz is below the rule's {} Hz ({why}): recommended {} Hz",
-                self.used_hz,
-                sig3(self.minimum_hz),
-                self.recommended_hz
-            )
-        })
+            out.push(Finding::new(
+                Level::Warning,
+                node::SAMPLING,
+                format!(
+                    "the sample rate {} Hz is below the rule's {} Hz ({why}): recommended {} Hz",
+                    self.used_hz,
+                    sig3(self.minimum_hz),
+                    self.recommended_hz
+                ),
+            ));
+        }
+        out
     }
 }
 
@@ -178,6 +209,7 @@ impl DigitalFilter {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::frontend::circuit::AmpStage;
     use plethwire_dsp::design::butterworth_bandpass;
 
     #[test]
@@ -189,6 +221,39 @@ mod tests {
         assert_eq!(usual_rate_at_least(251.0), 500.0);
         assert_eq!(usual_rate_at_least(600.0), 1000.0);
         assert_eq!(usual_rate_at_least(100.0), 100.0);
+    }
+
+    #[test]
+    fn the_advice_stays_within_the_pipeline_range() {
+        use crate::frontend::test_circuit::circuit;
+        // No capacitor anywhere: no corner, the least rate.
+        let chain = Chain::of(&circuit(47.0, 1.0));
+        let advice = RateAdvice::of(&chain, None);
+        assert_eq!(advice.recommended_hz, 25.0);
+        // A 2 kHz corner asks for 20 kHz: held at the pipeline's 1000 Hz,
+        // with a warning.
+        let mut c = circuit(47.0, 1.0);
+        c.stages.push(AmpStage::LowPass {
+            r_ohm: 1e3,
+            c_f: 1.0 / (2.0 * std::f64::consts::PI * 2e3 * 1e3),
+        });
+        let advice = RateAdvice::of(&Chain::of(&c), None);
+        assert!((advice.minimum_hz - 20e3).abs() < 1e-6);
+        assert_eq!(advice.recommended_hz, 1000.0);
+        assert_eq!(advice.used_hz, 1000.0);
+        assert!(advice
+            .rule
+            .ends_with("held at the pipeline's highest, 1000 Hz"));
+        let f = advice.findings();
+        assert_eq!(f.len(), 1, "{f:?}");
+        assert!(f[0]
+            .message
+            .contains("above the 1000 Hz the pipeline takes"));
+        // A rate given below the rule warns.
+        let advice = RateAdvice::of(&Chain::of(&c), Some(500.0));
+        assert!(advice.findings()[1]
+            .message
+            .starts_with("the sample rate 500 Hz is below"));
     }
 
     #[test]

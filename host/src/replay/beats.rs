@@ -1,7 +1,9 @@
 //! A replay's beats as a WFDB annotation file, rows, and our beat CSV.
 
-use super::{Replay, ReplayError};
-use plethwire_records::{annotation_path, write_annotations, Annotation};
+use super::{Recording, Replay, ReplayError};
+use plethwire_records::{
+    annotation_path, write_annotation_file, Annotation, AnnotationFile, Header,
+};
 use serde::Serialize;
 use std::path::{Path, PathBuf};
 
@@ -12,13 +14,47 @@ pub fn write_beat_annotations(
     annotator: &str,
     replay: &Replay,
 ) -> Result<PathBuf, ReplayError> {
+    write_beats(dir, record_name, annotator, replay, None)
+}
+
+/// [`write_beat_annotations`] for the replay of `rec`. When its signal has
+/// several samples per frame of a WFDB record, the times are that
+/// signal's samples and the file says so in a time-resolution note
+/// (annot(5)), so WFDB readers (Python wfdb's `rdann` among them) place
+/// them right.
+pub fn write_recording_beats(
+    dir: &Path,
+    rec: &Recording,
+    annotator: &str,
+    replay: &Replay,
+) -> Result<PathBuf, ReplayError> {
+    let header = annotation_path(&rec.path, "hea");
+    let frame_rate = match header.is_file() {
+        true => Some(Header::read(&header)?.fs),
+        false => None,
+    };
+    let resolution = frame_rate.filter(|&f| f != replay.fs).map(|_| replay.fs);
+    write_beats(dir, &rec.name, annotator, replay, resolution)
+}
+
+fn write_beats(
+    dir: &Path,
+    record_name: &str,
+    annotator: &str,
+    replay: &Replay,
+    time_resolution: Option<f64>,
+) -> Result<PathBuf, ReplayError> {
     let path = annotation_path(&dir.join(record_name), annotator);
     let annotations: Vec<Annotation> = replay
         .peaks()
         .into_iter()
         .map(|p| Annotation::beat(p as i64))
         .collect();
-    write_annotations(&path, &annotations)?;
+    let file = AnnotationFile {
+        time_resolution,
+        annotations,
+    };
+    write_annotation_file(&path, &file)?;
     Ok(path)
 }
 

@@ -3,7 +3,7 @@
 
 use crate::channel::{choose, ChannelChoice};
 use crate::motion::{self, MotionSignals};
-use plethwire_dsp::pipeline::{MAX_RATE_HZ, MIN_RATE_HZ};
+use plethwire_dsp::pipeline::{check_sample_rate, MAX_RATE_HZ, MIN_RATE_HZ};
 use plethwire_records::resample::ResampleReport;
 use plethwire_records::{
     csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignalOptions, LoadedSignal,
@@ -270,15 +270,20 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
     let read = read_csv_signals(path, &columns, &options)?;
     input.resampled = read.time.and_then(|t| t.resampled);
     let fs = read.signals[0].fs;
-    if !(f64::from(MIN_RATE_HZ)..=f64::from(MAX_RATE_HZ)).contains(&fs) {
+    // The pipeline's range, checked here rather than in the records crate:
+    // its CSV reader also serves motion and reference columns at other rates.
+    if let Err(mut e) = check_sample_rate(fs) {
+        // A measured rate to 4 decimals, unless that would round it into the range.
+        let shown = (fs * 1e4).round() / 1e4;
+        if check_sample_rate(shown).is_err() {
+            e.rate_hz = shown;
+        }
         let hint = if time.is_some() {
-            " (check --time-unit, or give the grid rate with --rate)"
+            " (measured from the time column: check --time-unit, or give the grid rate with --rate)"
         } else {
             ""
         };
-        return Err(fail(format!(
-            "sample rate {fs:.4} Hz is outside the pipeline's {MIN_RATE_HZ}-{MAX_RATE_HZ} Hz{hint}"
-        )));
+        return Err(fail(format!("{e}{hint}")));
     }
     let (signal, channel) = pick(path, read.signals)?;
     input.channel = channel;

@@ -116,7 +116,6 @@ fn symbol_table() {
 
 #[test]
 fn writer_refuses_what_the_format_cannot_hold() {
-    assert!(encode_annotations(&[Annotation::new(1, 0)]).is_err());
     assert!(encode_annotations(&[Annotation::new(1, 50)]).is_err());
     let e = encode_annotations(&[Annotation::beat(5), Annotation::beat(4)]).unwrap_err();
     assert_eq!(
@@ -187,4 +186,124 @@ fn random_bytes_never_panic() {
         }
         let _ = decode_annotations(&bytes);
     }
+}
+
+/// Python wfdb 4.x's bytes for a time-resolution note of `text` followed by
+/// its end-of-definitions mark (`calc_fs_bytes` and `end_special_bytes` in
+/// `wfdb/io/annotation.py`).
+fn python_note(text: &str) -> Vec<u8> {
+    let mut b = vec![0, 88, 20 + text.len() as u8, 252];
+    b.extend(b"## time resolution: ");
+    b.extend(text.as_bytes());
+    if text.len() % 2 == 1 {
+        b.push(0);
+    }
+    b.extend([0, 236, 255, 255, 255, 255, 1, 0]);
+    b
+}
+
+#[test]
+fn time_resolution_note_is_written_and_read_as_python_wfdb_lays_it_out() {
+    for (rate, text) in [(500.0, "500"), (250.5, "250.5"), (1000.0, "1000")] {
+        let file = AnnotationFile {
+            time_resolution: Some(rate),
+            annotations: vec![Annotation::beat(3), Annotation::beat(1500)],
+        };
+        let bytes = encode_annotation_file(&file).unwrap();
+        let mut wanted = python_note(text);
+        wanted.extend(encode_annotations(&file.annotations).unwrap());
+        assert_eq!(bytes, wanted, "{text}");
+        // The note and its mark are not annotations.
+        assert_eq!(decode_annotation_file(&bytes).unwrap(), file);
+        assert_eq!(decode_annotations(&bytes).unwrap(), file.annotations);
+    }
+    let bad = AnnotationFile {
+        time_resolution: Some(0.0),
+        annotations: vec![],
+    };
+    assert!(encode_annotation_file(&bad).is_err());
+    let mut note = Annotation::new(0, 22);
+    note.aux = Some("## time resolution: fast".into());
+    let e = decode_annotation_file(&encode_annotations(&[note]).unwrap()).unwrap_err();
+    assert!(e.to_string().contains("not a number above 0"), "{e}");
+}
+
+#[test]
+fn times_follow_the_note_into_frames_or_any_rate() {
+    // Ticks of 1000 per second in a record of 250 frames per second.
+    let file = AnnotationFile {
+        time_resolution: Some(1000.0),
+        annotations: vec![Annotation::beat(1000), Annotation::beat(2002)],
+    };
+    let frames: Vec<i64> = file
+        .at_rate(250.0, 250.0)
+        .iter()
+        .map(|a| a.sample)
+        .collect();
+    assert_eq!(frames, vec![250, 501]);
+    let plain = AnnotationFile {
+        time_resolution: None,
+        annotations: vec![Annotation::beat(250)],
+    };
+    // No note: the times are frames, here of a 250 Hz record read at 500.
+    assert_eq!(plain.at_rate(250.0, 500.0)[0].sample, 500);
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("r.fast");
+    write_annotation_file(&path, &file).unwrap();
+    let e = read_annotations(&path).unwrap_err();
+    assert!(e.to_string().contains("no record header"), "{e}");
+    std::fs::write(dir.path().join("r.hea"), "r 1 250 3000\nr.dat 16\n").unwrap();
+    let read: Vec<i64> = read_annotations(&path)
+        .unwrap()
+        .iter()
+        .map(|a| a.sample)
+        .collect();
+    assert_eq!(read, vec![250, 501]);
+    let at: Vec<i64> = read_annotations_at(&path, 250.0, 1000.0)
+        .unwrap()
+        .iter()
+        .map(|a| a.sample)
+        .collect();
+    assert_eq!(at, vec![1000, 2002]);
+    assert_eq!(read_annotation_file(&path).unwrap(), file);
+}
+
+#[test]
+fn code_0_and_notes_round_trip_exactly() {
+    let mut note = Annotation::new(7, 22);
+    note.aux = Some("electrode moved".into());
+    let mut early = Annotation::new(0, 22);
+    early.aux = Some("## not a rate".into());
+    let anns = vec![
+        early,
+        Annotation::new(0, 0),
+        Annotation::new(5, 0),
+        Annotation::beat(5),
+        Annotation::new(5, 0),
+        note,
+        Annotation::new(5000, 0),
+        Annotation::new(5000, 0),
+    ];
+    let bytes = encode_annotations(&anns).unwrap();
+    assert_eq!(decode_annotations(&bytes).unwrap(), anns);
+    // A code 0 at the time of the one before: SKIP -1, then 0 one tick on.
+    assert_eq!(
+        &bytes[bytes.len() - 10..],
+        &words(&[59 << 10, 0xFFFF, 0xFFFF, 1, 0])[..]
+    );
+    // What the reader returns from a file written by Python wfdb writes
+    // back to the same bytes.
+    let mut theirs = python_note("360");
+    theirs.extend(words(&[
+        1 << 10 | 18,
+        22 << 10 | 5,
+        63 << 10 | 3,
+        0x6261,
+        0x0063,
+        0,
+    ]));
+    let file = decode_annotation_file(&theirs).unwrap();
+    assert_eq!(file.time_resolution, Some(360.0));
+    assert_eq!(file.annotations[1].aux.as_deref(), Some("abc"));
+    assert_eq!(encode_annotation_file(&file).unwrap(), theirs);
 }

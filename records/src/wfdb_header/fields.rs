@@ -337,9 +337,7 @@ fn parse_format_field(text: &str) -> Result<(SignalFormat, u32, u32, u64), LineE
             )))
         }
         Err(FormatProblem::Unsupported(what)) => {
-            return Err(LineError::Format(ErrorKind::Unsupported(format!(
-                "signal {what} is not supported"
-            ))))
+            return Err(LineError::Format(ErrorKind::Unsupported(what.into())))
         }
     };
     // 0 samples per frame means 1, as in the WFDB library.

@@ -148,13 +148,6 @@ fn inconsistent_headers_are_refused() {
         "r 3 125 1\na.dat 16\nb.dat 16\na.dat 16\n",
     );
     assert!(Record::open(dir.path().join("r")).is_err());
-    let dir = fixture(&[], "r/2 1 125 10\ns1 5\ns2 5\n");
-    let e = Record::open(dir.path().join("r")).unwrap_err();
-    assert!(
-        e.to_string()
-            .contains("multi-segment records are not supported"),
-        "{e}"
-    );
 }
 
 #[test]

@@ -60,7 +60,7 @@ pub enum DesignError {
 impl fmt::Display for DesignError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(match self {
-            Self::InvalidSampleRate => "the sample rate must be a positive number of hertz",
+            Self::InvalidSampleRate => "the sample rate must be a finite number above 0 Hz",
             Self::NonPositiveCorner => "a corner frequency must be above 0 Hz",
             Self::CornerAtOrAboveNyquist => {
                 "a corner frequency must be below half the sample rate (Nyquist)"

@@ -62,7 +62,10 @@ pub use elgendi::Elgendi;
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
 pub use motion::{MotionReference, MotionTracker, NoMotion, Verdict};
 pub use ring::{History, Ring, RunningSum};
-pub use settings::{Config, Options, PipelineError, DETECTOR_BASE_HZ, MAX_RATE_HZ, MIN_RATE_HZ};
+pub use settings::{
+    check_sample_rate, Config, Options, PipelineError, RateRange, SampleRateError,
+    DETECTOR_BASE_HZ, MAX_RATE_HZ, MIN_RATE_HZ,
+};
 pub use with_motion::MotionPipeline;
 pub use zong::Zong;
 

@@ -5,10 +5,63 @@ use crate::math::max_f32;
 use crate::DesignError;
 use core::fmt;
 
-/// Lowest input sample rate accepted, Hz (a phone camera's rate).
+/// Lowest input sample rate accepted, Hz (a phone camera's rate). With
+/// [`MAX_RATE_HZ`], the one sample-rate range of plethwire: the pipeline,
+/// the host's recording loaders and `plethwire frontend` refuse a rate
+/// outside it with [`SampleRateError`]'s message, `plethwire filter`
+/// warns with it.
 pub const MIN_RATE_HZ: f32 = 25.0;
 /// Highest input sample rate accepted, Hz.
 pub const MAX_RATE_HZ: f32 = 1000.0;
+
+/// The sample-rate range in words: `the sample rate must be between 25 and
+/// 1000 Hz`, the message every refusal of a rate outside it starts with.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct RateRange;
+
+impl fmt::Display for RateRange {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(
+            f,
+            "the sample rate must be between {MIN_RATE_HZ} and {MAX_RATE_HZ} Hz"
+        )
+    }
+}
+
+/// A sample rate outside [`MIN_RATE_HZ`] to [`MAX_RATE_HZ`] (or not a
+/// number): [`RateRange`]'s words and the rate given.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SampleRateError {
+    /// The rate refused, Hz.
+    pub rate_hz: f64,
+}
+
+impl fmt::Display for SampleRateError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let a = self.rate_hz.abs();
+        // A measured rate far out (a time column in the wrong unit) reads
+        // better in exponent form than as hundreds of digits.
+        if a.is_finite() && a != 0.0 && !(1e-3..1e9).contains(&a) {
+            write!(f, "{RateRange}, not {:e} Hz", self.rate_hz)
+        } else {
+            write!(f, "{RateRange}, not {} Hz", self.rate_hz)
+        }
+    }
+}
+
+#[cfg(feature = "std")]
+impl std::error::Error for SampleRateError {}
+
+/// `rate_hz` if it lies in [`MIN_RATE_HZ`] to [`MAX_RATE_HZ`], ends
+/// included; the one check of the range.
+pub fn check_sample_rate(rate_hz: f64) -> Result<f64, SampleRateError> {
+    if (f64::from(MIN_RATE_HZ)..=f64::from(MAX_RATE_HZ)).contains(&rate_hz) {
+        Ok(rate_hz)
+    } else {
+        Err(SampleRateError { rate_hz })
+    }
+}
 /// The detector runs at the input rate divided by `floor(fs / 62.5)`, so at
 /// 62.5 to 125 Hz (or the input rate when lower). Work at the input rate is
 /// then one filter section and the conditioning; everything else runs at
@@ -65,7 +118,7 @@ impl Config {
     /// The checks that need no filter design: the rate, the heart-rate
     /// window and the order of the band's edges.
     pub(super) fn check(&self) -> Result<(), PipelineError> {
-        if !(MIN_RATE_HZ..=MAX_RATE_HZ).contains(&self.sample_rate_hz) {
+        if check_sample_rate(f64::from(self.sample_rate_hz)).is_err() {
             return Err(PipelineError::SampleRate);
         }
         let o = &self.options;
@@ -109,10 +162,7 @@ pub enum PipelineError {
 impl fmt::Display for PipelineError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
-            Self::SampleRate => write!(
-                f,
-                "the sample rate must be between {MIN_RATE_HZ} and {MAX_RATE_HZ} Hz"
-            ),
+            Self::SampleRate => write!(f, "{RateRange}"),
             Self::HrWindow => {
                 f.write_str("the heart-rate window must be a positive number of seconds")
             }
@@ -158,6 +208,35 @@ mod tests {
             assert!(text.contains("heart-rate window"), "{text}");
             assert!(!text.contains("corner"), "{text}");
         }
+    }
+
+    #[test]
+    fn the_range_is_checked_once_with_one_message() {
+        for ok in [25.0, 62.5, 1000.0] {
+            assert_eq!(check_sample_rate(ok), Ok(ok));
+        }
+        for bad in [5.0, 24.999, 1000.001, 2000.0, 0.0, -25.0, f64::INFINITY] {
+            assert_eq!(
+                check_sample_rate(bad),
+                Err(SampleRateError { rate_hz: bad })
+            );
+        }
+        assert!(check_sample_rate(f64::NAN).is_err());
+        assert_eq!(
+            SampleRateError { rate_hz: 2000.0 }.to_string(),
+            "the sample rate must be between 25 and 1000 Hz, not 2000 Hz"
+        );
+        assert_eq!(
+            SampleRateError { rate_hz: 1e308 }.to_string(),
+            "the sample rate must be between 25 and 1000 Hz, not 1e308 Hz"
+        );
+        // The pipeline's refusal is the same words.
+        let e = Pipeline::new(Config::new(2000.0)).err().unwrap();
+        assert_eq!(
+            e.to_string(),
+            "the sample rate must be between 25 and 1000 Hz"
+        );
+        assert!(Pipeline::new(Config::new(f32::NAN)).is_err());
     }
 
     #[test]

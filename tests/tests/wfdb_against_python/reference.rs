@@ -106,6 +106,27 @@ impl PyAnnotations {
     }
 }
 
+/// A `write_ann` task: `wfdb.wrann` writes `anns` as `dir/record.ext`,
+/// with a time-resolution note of `fs` when given.
+pub fn wrann_task(
+    dir: &Path,
+    record: &str,
+    ext: &str,
+    anns: &[Annotation],
+    fs: Option<f64>,
+) -> Value {
+    json!({
+        "op": "write_ann", "dir": dir.display().to_string(), "record": record, "ext": ext,
+        "sample": anns.iter().map(|a| a.sample).collect::<Vec<_>>(),
+        "symbol": anns.iter().map(|a| a.symbol().unwrap()).collect::<Vec<_>>(),
+        "subtype": anns.iter().map(|a| a.subtype).collect::<Vec<_>>(),
+        "chan": anns.iter().map(|a| a.chan).collect::<Vec<_>>(),
+        "num": anns.iter().map(|a| a.num).collect::<Vec<_>>(),
+        "aux_note": anns.iter().map(|a| a.aux.clone().unwrap_or_default()).collect::<Vec<_>>(),
+        "fs": fs,
+    })
+}
+
 pub fn read_le<T, const N: usize>(path: &Path, from: fn([u8; N]) -> T) -> Vec<T> {
     let bytes = std::fs::read(path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
     bytes

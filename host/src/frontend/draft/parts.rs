@@ -52,6 +52,40 @@ impl<'de> Deserialize<'de> for Resistors {
     }
 }
 
+/// Rails of one part, `[LOW, HIGH]` in the file or `LOW:HIGH` (how
+/// `--stage` writes it), volts; checked when the draft resolves.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct RailsPair(pub f64, pub f64);
+
+impl<'de> Deserialize<'de> for RailsPair {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct Pair;
+        impl<'de> Visitor<'de> for Pair {
+            type Value = RailsPair;
+            fn expecting(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+                f.write_str("rails as [LOW, HIGH] in volts, such as [0, 3.3]")
+            }
+            fn visit_str<E: de::Error>(self, v: &str) -> Result<RailsPair, E> {
+                let number = |t: &str| t.trim().parse::<f64>().ok();
+                v.split_once(':')
+                    .and_then(|(a, b)| Some(RailsPair(number(a)?, number(b)?)))
+                    .ok_or_else(|| {
+                        E::custom(format!("'{v}' is not LOW:HIGH in volts, such as 0:3.3"))
+                    })
+            }
+            fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<RailsPair, A::Error> {
+                let low: Option<f64> = seq.next_element()?;
+                let high: Option<f64> = seq.next_element()?;
+                match (low, high, seq.next_element::<f64>()?) {
+                    (Some(low), Some(high), None) => Ok(RailsPair(low, high)),
+                    _ => Err(de::Error::custom("rails take two voltages, [LOW, HIGH]")),
+                }
+            }
+        }
+        d.deserialize_any(Pair)
+    }
+}
+
 /// `[led]`.
 #[derive(Clone, Debug, Default, Deserialize, PartialEq)]
 #[serde(deny_unknown_fields)]
@@ -94,6 +128,11 @@ pub struct DetectorDraft {
     pub load_cap: Option<Farads>,
     /// Phototransistor: where the load sits (default emitter).
     pub load_at: Option<LoadAt>,
+    /// Photodiode: the TIA's reference (non-inverting input), volts
+    /// (default: the chain's bias, `adc.bias_v`).
+    pub reference_v: Option<f64>,
+    /// The detector's own rails (default: `[rails]`).
+    pub rails: Option<RailsPair>,
 }
 
 /// The stage kinds a file names.
@@ -130,6 +169,8 @@ pub struct StageDraft {
     pub cf: Option<Farads>,
     /// Amplifiers: the capacitor in series with `rin`.
     pub cin: Option<Farads>,
+    /// Amplifiers and buffers: their own rails (default: `[rails]`).
+    pub rails: Option<RailsPair>,
 }
 
 /// `[adc]`.
@@ -181,7 +222,7 @@ impl DetectorDraft {
         };
         match self.kind {
             DetectorKind::Photodiode => {
-                let takes = "feedback, feedback_cap";
+                let takes = "feedback, feedback_cap, reference_v, rails";
                 foreign("load", self.load.is_some(), "photodiode", takes)?;
                 foreign("load_cap", self.load_cap.is_some(), "photodiode", takes)?;
                 foreign("load_at", self.load_at.is_some(), "photodiode", takes)?;
@@ -198,8 +239,9 @@ impl DetectorDraft {
                 })
             }
             DetectorKind::Phototransistor => {
-                let (kind, takes) = ("phototransistor", "load, load_cap, load_at");
+                let (kind, takes) = ("phototransistor", "load, load_cap, load_at, rails");
                 foreign("feedback", self.feedback.is_some(), kind, takes)?;
+                foreign("reference_v", self.reference_v.is_some(), kind, takes)?;
                 foreign("feedback_cap", self.feedback_cap.is_some(), kind, takes)?;
                 let Ohms(load_ohm) = self.load.ok_or_else(|| {
                     missing(
@@ -235,11 +277,13 @@ impl StageDraft {
             ("rf", self.rf.is_some()),
             ("cf", self.cf.is_some()),
             ("cin", self.cin.is_some()),
+            ("rails", self.rails.is_some()),
         ];
+        // A passive RC stage has no supply of its own to saturate at.
         let takes: &[&str] = match self.kind {
             StageKind::Highpass | StageKind::Lowpass => &["r", "c"],
-            StageKind::Buffer => &[],
-            StageKind::Inverting | StageKind::Noninverting => &["rin", "rf", "cf", "cin"],
+            StageKind::Buffer => &["rails"],
+            StageKind::Inverting | StageKind::Noninverting => &["rin", "rf", "cf", "cin", "rails"],
         };
         if let Some(&(key, _)) = given.iter().find(|(k, g)| *g && !takes.contains(k)) {
             let list = if takes.is_empty() {

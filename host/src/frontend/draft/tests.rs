@@ -83,7 +83,7 @@ fn an_unknown_key_names_itself_and_its_line() {
     let e = resolve(&stage).unwrap_err();
     assert_eq!(
         e.to_string(),
-        "stage 2 (inverting) does not take c (it takes rin, rf, cf, cin)"
+        "stage 2 (inverting) does not take c (it takes rin, rf, cf, cin, rails)"
     );
 }
 
@@ -130,29 +130,60 @@ fn values_out_of_range_are_refused() {
         (
             "supply_v = 5",
             "supply_v = -5",
-            "led.supply_v must be above 0 V, not -5",
+            "led.supply_v must be above 0 V and at most 100 V, not -5",
+        ),
+        (
+            "supply_v = 5",
+            "supply_v = 1e308",
+            "led.supply_v must be above 0 V and at most 100 V, not 1e308",
+        ),
+        (
+            "reference_v = 3.0",
+            "reference_v = 1e-320",
+            "adc.reference_v must be at least 0.001 V and at most 100 V",
+        ),
+        (
+            "reference_v = 3.0",
+            "reference_v = 3.0\nrate_hz = 2000",
+            "adc.rate_hz: the sample rate must be between 25 and 1000 Hz, not 2000 Hz",
+        ),
+        (
+            "reference_v = 3.0",
+            "reference_v = 3.0\nrate_hz = 5",
+            "adc.rate_hz: the sample rate must be between 25 and 1000 Hz, not 5 Hz",
+        ),
+        (
+            "parallel = 3",
+            "parallel = 4000000000",
+            "led.parallel must be 1 to 100, not 4000000000",
         ),
         ("bits = 10", "bits = 0", "adc.bits must be 1 to 32, not 0"),
         (
             "parallel = 3",
             "parallel = 0",
-            "led.parallel must be 1 or more",
+            "led.parallel must be 1 to 100, not 0",
         ),
         (
             "change_ua = 0.1",
             "change_ua = 0",
-            "pulse.change_ua must be above 0 µA",
+            "pulse.change_ua must be above 0 µA and at most 100000 µA, not 0",
         ),
         (
             "change_ua = 0.1",
             "change_ua = 0.1\ndc_ua = -1",
-            "pulse.dc_ua must be 0 µA or more",
+            "pulse.dc_ua must be at least 0 µA and at most 100000 µA, not -1",
         ),
     ];
     for (from, to, expect) in cases {
         let e = resolve(&WHOLE.replace(from, to)).unwrap_err().to_string();
-        assert!(e.starts_with(expect), "{to}: {e}");
+        assert!(e.contains(expect), "{to}: {e}");
     }
+    // A gain of 1e-320 is refused as the file is read, at its line.
+    let tiny = Draft::from_toml(&WHOLE.replace("rf = \"470k\"", "rf = \"1e-320\""));
+    assert_eq!(
+        tiny.unwrap_err().to_string(),
+        "line 17 (`rf = \"1e-320\"`): a resistance must be between 1 mΩ and 1 TΩ, not 1e-320 Ω"
+    );
     let dim = WHOLE.replace("supply_v = 5", "supply_v = 1.5");
     assert!(matches!(
         resolve(&dim).unwrap_err(),
@@ -165,7 +196,54 @@ fn values_out_of_range_are_refused() {
     assert!(resolve(&rails)
         .unwrap_err()
         .to_string()
-        .starts_with("rails low_v (3 V)"));
+        .starts_with("rails low (3 V) must be below high (1 V)"));
+}
+
+#[test]
+fn each_amplifier_has_its_own_rails_or_the_boards() {
+    let text = WHOLE
+        .replace(
+            "feedback = \"10k\"",
+            "feedback = \"10k\"\nreference_v = 0.5\nrails = [0, 3.3]",
+        )
+        .replace("kind = \"buffer\"", "kind = \"buffer\"\nrails = \"-5:5\"");
+    let c = resolve(&text).unwrap();
+    let s = &c.supplies;
+    assert_eq!((s.detector.low_v, s.detector.high_v), (0.0, 3.3));
+    assert_eq!((s.reference_v, s.reference_assumed), (0.5, false));
+    let buffer = s.stages[0].unwrap();
+    assert_eq!((buffer.low_v, buffer.high_v), (-5.0, 5.0));
+    // The inverting stage has none of its own: the board's, 0 V to the
+    // LED supply.
+    let inverting = s.stages[1].unwrap();
+    assert_eq!((inverting.low_v, inverting.high_v), (0.0, 5.0));
+    // Without a reference, a TIA's is the bias.
+    let c = resolve(WHOLE).unwrap();
+    assert_eq!(
+        (c.supplies.reference_v, c.supplies.reference_assumed),
+        (1.5, true)
+    );
+
+    let outside = WHOLE.replace("feedback = \"10k\"", "feedback = \"10k\"\nreference_v = 7");
+    assert_eq!(
+        resolve(&outside).unwrap_err().to_string(),
+        "detector.reference_v (--tia-ref) must lie within the detector's rails, 0 V to 5 V, not 7 V"
+    );
+    let passive = WHOLE.replace(
+        "kind = \"buffer\"",
+        "kind = \"lowpass\"\nr = \"1k\"\nc = \"1u\"\nrails = [0, 5]",
+    );
+    let e = resolve(&passive).unwrap_err().to_string();
+    assert_eq!(e, "stage 1 (lowpass) does not take rails (it takes r, c)");
+    let reversed = WHOLE.replace("kind = \"buffer\"", "kind = \"buffer\"\nrails = [5, 0]");
+    let e = resolve(&reversed).unwrap_err().to_string();
+    assert_eq!(e, "stage 1 rails low (5 V) must be below high (0 V)");
+    let huge = WHOLE.replace("kind = \"buffer\"", "kind = \"buffer\"\nrails = [0, 1e308]");
+    let e = resolve(&huge).unwrap_err().to_string();
+    assert!(
+        e.starts_with("stage 1 rails must be at least -100 V and at most 100 V"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -179,7 +257,7 @@ fn a_phototransistor_takes_only_its_own_keys() {
     let mixed = WHOLE.replace("kind = \"photodiode\"", "kind = \"phototransistor\"");
     assert_eq!(
         resolve(&mixed).unwrap_err().to_string(),
-        "detector.feedback is not for a phototransistor (it takes load, load_cap, load_at)"
+        "detector.feedback is not for a phototransistor (it takes load, load_cap, load_at, rails)"
     );
 }
 
@@ -200,6 +278,7 @@ fn options_override_the_file() {
             rf: None,
             cf: None,
             cin: None,
+            rails: None,
         }],
         ..Draft::default()
     };

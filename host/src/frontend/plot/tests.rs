@@ -113,15 +113,16 @@ fn phase_follows_the_frequency_without_jumps() {
 #[test]
 fn every_finding_is_on_the_figure() {
     let r = troubled();
+    let said = |level: FindingLevel, what: &str| {
+        r.findings
+            .iter()
+            .any(|f| f.level == level && f.message.contains(what))
+    };
+    assert!(said(FindingLevel::Error, "clipping"), "{:?}", r.findings);
     assert!(
-        r.warnings.iter().any(|w| w.starts_with("clipping")),
+        said(FindingLevel::Warning, "below the rule"),
         "{:?}",
-        r.warnings
-    );
-    assert!(
-        r.warnings.iter().any(|w| w.contains("below the rule")),
-        "{:?}",
-        r.warnings
+        r.findings
     );
     let svg = render_svg(&r).unwrap();
     let plain = |s: &str| {
@@ -131,13 +132,11 @@ fn every_finding_is_on_the_figure() {
             .join(" ")
     };
     let shown = plain(&texts(&svg).join(" "));
-    for finding in r.warnings.iter().chain(&r.notes) {
-        assert!(
-            shown.contains(&plain(finding)),
-            "{finding:?} not in {shown:?}"
-        );
+    for f in &r.findings {
+        let line = plain(&format!("{}: {}", f.node, f.message));
+        assert!(shown.contains(&line), "{line:?} not in {shown:?}");
     }
-    for level in ["warning", "note"] {
+    for level in ["error", "warning", "note"] {
         assert!(texts(&svg).iter().any(|t| t == level), "no {level}");
     }
 }
