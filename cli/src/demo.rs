@@ -11,9 +11,11 @@ use crate::ride::{
     against_truth, run_board, save_ride, scenario, state_words, stream, write_report, BoardOutcome,
     DemoResult, Progress,
 };
+use crate::values;
 use plethwire::emulate::BuildError;
 use plethwire::replay::{Replay, Summary};
 use plethwire::score::MatchCounts;
+use plethwire::vocabulary::{verdict_words, MEDIAN_HR};
 use plethwire_dsp::pipeline::Config;
 
 const EXAMPLES: &str = "\
@@ -43,7 +45,7 @@ pub struct DemoArgs {
 
     /// How many times faster than real time to stream the ride on a
     /// terminal (0: as fast as possible; never paced in a pipe).
-    #[arg(long, value_name = "X", default_value_t = 40.0)]
+    #[arg(long, value_name = "X", default_value_t = 40.0, value_parser = values::non_negative)]
     pub speed: f64,
 
     /// Skip the emulated board even if QEMU is installed.
@@ -51,7 +53,7 @@ pub struct DemoArgs {
     pub no_board: bool,
 
     /// Seed of the ride's randomness (beat-to-beat variability, noise).
-    #[arg(long, value_name = "N", default_value_t = 7)]
+    #[arg(long, value_name = "N", default_value_t = 7, value_parser = values::whole_from(0u64))]
     pub seed: u64,
 
     /// Print the results as JSON instead of the running commentary.
@@ -199,12 +201,12 @@ impl DemoArgs {
             Progress::State(s) => lines.push(format!(
                 "  {:>6.1} s  state: {}",
                 s.at as f64 / fs,
-                state_words(s.state)
+                state_words(s.previous, s.state)
             )),
             Progress::Beat(b) => {
                 let t = b.peak_index as f64 / fs;
                 bar.set_message(format!(
-                    "{:>5.1} s  HR {}",
+                    "{:>5.1} s  {MEDIAN_HR} {}",
                     t,
                     b.hr_smoothed_bpm
                         .map_or("-".into(), |h| format!("{h:.0} bpm"))
@@ -213,12 +215,12 @@ impl DemoArgs {
                 if t - last_shown >= 10.0 {
                     last_shown = t;
                     lines.push(format!(
-                        "  {:>6.1} s  beat: IBI {} ms, HR {} bpm, quality {:.2}{}",
+                        "  {:>6.1} s  beat: IBI {} ms, {MEDIAN_HR} {} bpm, quality {:.2}, {}",
                         t,
                         b.ibi_ms.map_or("-".into(), |i| format!("{i:.0}")),
                         b.hr_smoothed_bpm.map_or("-".into(), |h| format!("{h:.0}")),
                         b.quality,
-                        if b.flags.is_good() { "" } else { " (flagged)" }
+                        verdict_words(b.flags)
                     ));
                 }
             }
@@ -272,7 +274,7 @@ fn found_lines(summary: &Summary, truth: &MatchCounts) -> Vec<String> {
     )];
     if let Some(h) = &summary.heart_rate_bpm {
         lines.push(format!(
-            "  heart rate {:.0} to {:.0} bpm (mean {:.0}); events {:.0} ms after each peak",
+            "  {MEDIAN_HR} {:.0} to {:.0} bpm (mean {:.0}); events {:.0} ms after each peak",
             h.min,
             h.max,
             h.mean,

@@ -7,7 +7,8 @@ use clap::Args;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, SignalState, StateEvent};
+use plethwire::vocabulary::{state_change_words, verdict_words, HR, MEDIAN_HR};
+use plethwire_dsp::pipeline::{BeatEvent, StateEvent};
 use plethwire_dsp::wire::{Frame, Message};
 
 use super::pipeline_opts::PipelineOpts;
@@ -82,58 +83,27 @@ pub struct EmulateArgs {
     pub pipeline: PipelineOpts,
 }
 
-/// Flag names, in bit order.
-const FLAG_NAMES: [(u8, &str); 6] = [
-    (BeatFlags::NO_INTERVAL, "no-interval"),
-    (BeatFlags::IMPLAUSIBLE_INTERVAL, "implausible"),
-    (BeatFlags::CLIPPED, "clipped"),
-    (BeatFlags::LOW_CORRELATION, "low-correlation"),
-    (BeatFlags::INPUT_REJECTED, "replaced-input"),
-    (BeatFlags::MOTION, "motion"),
-];
-
-fn state_name(s: SignalState) -> &'static str {
-    match s {
-        SignalState::Acquiring => "acquiring",
-        SignalState::Good => "good",
-        SignalState::NoSignal => "no-signal",
-        SignalState::Saturated => "saturated",
-        SignalState::Noisy => "noisy",
-    }
-}
-
 /// One line for a beat: peak time, interval, heart rates, quality, flags.
 fn beat_line(b: &BeatEvent, fs: f64) -> String {
     let num = |v: Option<f32>, unit: &str| {
         v.map_or(format!("{:>10}", "-"), |v| format!("{v:>6.1} {unit:<3}"))
     };
-    let flags: Vec<&str> = FLAG_NAMES
-        .iter()
-        .filter(|(bit, _)| b.flags.has(*bit))
-        .map(|(_, name)| *name)
-        .collect();
-    let verdict = if b.flags.is_good() { "good" } else { "bad" };
-    let flags = if flags.is_empty() {
-        verdict.to_string()
-    } else {
-        format!("{verdict} {}", flags.join(","))
-    };
     format!(
-        "{:>9.3} s  beat   ibi {}  hr {}  smoothed {}  q {:.2}  {flags}\n",
+        "{:>9.3} s  beat   IBI {}  {HR} {}  {MEDIAN_HR} {}  quality {:.2}  {}\n",
         b.peak_index as f64 / fs,
         num(b.ibi_ms, "ms"),
         num(b.hr_bpm, "bpm"),
         num(b.hr_smoothed_bpm, "bpm"),
-        b.quality
+        b.quality,
+        verdict_words(b.flags)
     )
 }
 
 fn state_line(s: &StateEvent, fs: f64) -> String {
     format!(
-        "{:>9.3} s  state  {} -> {}\n",
+        "{:>9.3} s  state  {}\n",
         s.at as f64 / fs,
-        state_name(s.previous),
-        state_name(s.state)
+        state_change_words(s.previous, s.state)
     )
 }
 

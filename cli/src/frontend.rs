@@ -6,6 +6,7 @@ use std::io::Write;
 use std::path::PathBuf;
 
 use super::Failure;
+use crate::values;
 
 mod parsers;
 
@@ -90,7 +91,7 @@ pub struct FrontendArgs {
     pub led_r: Option<Vec<f64>>,
 
     /// How many of the one --led-r resistor are in parallel.
-    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..=i64::from(limits::MAX_PARALLEL)))]
+    #[arg(long, value_name = "N", value_parser = values::whole_in(1u32, limits::MAX_PARALLEL))]
     pub led_parallel: Option<u32>,
 
     /// The LED's rated continuous current, mA; a higher current warns.
@@ -132,7 +133,7 @@ pub struct FrontendArgs {
     pub stages: Vec<StageDraft>,
 
     /// ADC resolution, bits [default: 12].
-    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..=32))]
+    #[arg(long, value_name = "N", value_parser = values::whole_in(1u32, 32))]
     pub adc_bits: Option<u32>,
 
     /// ADC reference voltage (input range 0 to this), V [default: 3.3].

@@ -8,6 +8,7 @@ mod demo;
 mod emulate;
 mod filter;
 mod frontend;
+mod hyphen_values;
 mod listen;
 mod pipeline_opts;
 mod replay;
@@ -155,6 +156,14 @@ fn one_line(err: &clap::Error, help: &str) -> String {
                 .collect();
             line = format!("missing a command (one of: {})", names.join(", "));
         }
+        ErrorKind::InvalidValue => {
+            if let Some(ContextValue::Strings(valid)) = err
+                .get(ContextKind::ValidValue)
+                .filter(|v| !matches!(v, ContextValue::Strings(s) if s.is_empty()))
+            {
+                line.push_str(&format!(" (one of: {})", valid.join(", ")));
+            }
+        }
         _ => {}
     }
     let suggested = [ContextKind::SuggestedArg, ContextKind::SuggestedSubcommand]
@@ -212,7 +221,7 @@ fn command_line(args: &[OsString]) -> String {
 /// Parse `args` (program name first) and run the command, printing its
 /// output to `out`. Help and version requests print and succeed.
 pub fn run(args: Vec<OsString>, out: &mut dyn Write) -> Result<(), Failure> {
-    let cli = match Cli::try_parse_from(&args) {
+    let cli = match Cli::try_parse_from(hyphen_values::joined(&Cli::command(), args.clone())) {
         Ok(cli) => cli,
         Err(e) if matches!(e.kind(), ErrorKind::DisplayHelp | ErrorKind::DisplayVersion) => {
             let mut text = e.render().to_string();
@@ -244,7 +253,10 @@ pub fn main() -> ExitCode {
         Ok(()) => ExitCode::SUCCESS,
         Err(failure) => {
             if let Some(message) = failure.message {
-                eprintln!("plethwire: {message}");
+                eprintln!(
+                    "plethwire: {}",
+                    plethwire::messages::without_os_codes(&message)
+                );
             }
             ExitCode::from(failure.code)
         }
@@ -286,6 +298,33 @@ mod tests {
             m.contains("'--bnd'") && m.contains("did you mean '--band'"),
             "{m}"
         );
+    }
+
+    #[test]
+    fn a_value_starting_with_a_hyphen_reads_as_with_an_equals_sign() {
+        let spaced = failure(&["plethwire", "filter", "--rate", "250", "--band", "-1:8"]);
+        let joined = failure(&["plethwire", "filter", "--rate", "250", "--band=-1:8"]);
+        assert_eq!(spaced, joined);
+        let m = spaced.message.unwrap();
+        assert!(!m.contains("unexpected argument"), "{m}");
+        // A known option after one that wants a value is still an option.
+        let f = failure(&["plethwire", "filter", "--rate", "--band", "1:2"]);
+        assert!(f
+            .message
+            .unwrap()
+            .contains("a value is required for '--rate <HZ>'"));
+        let rails = failure(&["plethwire", "replay", "rec", "--rails", "-1:x"]);
+        assert!(rails
+            .message
+            .unwrap()
+            .contains("invalid value '-1:x' for '--rails"));
+    }
+
+    #[test]
+    fn a_wrong_choice_lists_the_right_ones() {
+        let f = failure(&["plethwire", "replay", "rec", "--polarity", "x"]);
+        let m = f.message.unwrap();
+        assert!(m.contains("(one of: auto, up, down)"), "{m}");
     }
 
     #[test]

@@ -11,8 +11,8 @@ use std::time::{Duration, SystemTime};
 
 use super::Failure;
 use plethwire::listen::{
-    record_name, run, session_files, Ending, Event, ListenError, NeverCause, Recorder, Screen,
-    SerialConnector, Session, Settings, Setup, Sink, Summary,
+    record_name, run, session_files, Capture, Ending, Event, ListenError, NeverCause, Progress,
+    Recorder, Screen, SerialConnector, Session, Settings, Setup, Sink,
 };
 use plethwire::replay::DEFAULT_ANNOTATOR;
 
@@ -28,10 +28,12 @@ Examples:
 
 Writes, in --out: NAME.pwire (WFDB annotations, symbol N at each beat's
 peak), NAME.hea/NAME.dat (format-16 WFDB record of the raw and filtered
-samples, when the board sends them) and NAME.session.json (summary). The
-files are finished on Ctrl-C, when --seconds are up, or when the port is
-gone for longer than --wait. Unplugging is survived: the same path is
-tried every 0.5 s and the recording goes on.
+samples, when the board sends them) and NAME.session.json (summary). All
+are brought up to date twice a second, so a recording cut off (the program
+killed, the laptop shut) keeps all but its last second; they are finished
+on Ctrl-C, when --seconds are up, or when the port is gone for longer than
+--wait. Unplugging is survived: the same path is tried every 0.5 s and the
+recording goes on.
 Exit status: 0 recorded, 1 the port never opened or the files could not be
 written, 2 the command line could not be understood.";
 
@@ -45,7 +47,7 @@ pub struct ListenArgs {
 
     /// Baud rate; 8 data bits, no parity, 1 stop bit.
     #[arg(long, value_name = "N", default_value_t = 115_200,
-          value_parser = clap::value_parser!(u32).range(1..))]
+          value_parser = values::whole_from(1u32))]
     pub baud: u32,
 
     /// Folder for the recording (made if missing).
@@ -115,17 +117,21 @@ fn want_colour(json: bool) -> bool {
 
 /// Events to the recorder first, then the screen; remembers which failed.
 struct Tee<'a, 'b> {
-    recorder: &'a mut Recorder,
+    capture: &'a mut Capture,
     screen: &'a mut Screen<'b>,
     screen_failed: bool,
 }
 
 impl Sink for Tee<'_, '_> {
     fn event(&mut self, event: &Event) -> io::Result<()> {
-        self.recorder.event(event)?;
+        self.capture.event(event)?;
         self.screen
             .event(event)
             .inspect_err(|_| self.screen_failed = true)
+    }
+
+    fn tick(&mut self, now: std::time::Instant, progress: &Progress) -> io::Result<()> {
+        self.capture.tick(now, progress)
     }
 }
 
@@ -165,18 +171,20 @@ impl ListenArgs {
         };
         let mut screen = Screen::new(out, self.json, want_colour(self.json), &settings);
         screen.start(&setup, dir).map_err(Failure::output)?;
-        let mut recorder = Recorder::new(dir, &name, DEFAULT_ANNOTATOR);
-        recorder.comment(&format!(
-            "plethwire listen on {} at {} baud; PLETH is raw, PLETH filtered the board's band-pass",
-            self.port, self.baud
-        ));
+        let mut capture = Capture::new(Recorder::new(dir, &name, DEFAULT_ANNOTATOR), setup, dir);
+        capture
+            .comment(&format!(
+                "plethwire listen on {} at {} baud; PLETH is raw, PLETH filtered the board's band-pass",
+                self.port, self.baud
+            ))
+            .map_err(|e| Failure::refused(format!("cannot record: {e}")))?;
         let mut session = Session::new(self.rate);
         let mut connector = SerialConnector {
             path: self.port.clone(),
             baud: self.baud,
         };
         let mut tee = Tee {
-            recorder: &mut recorder,
+            capture: &mut capture,
             screen: &mut screen,
             screen_failed: false,
         };
@@ -193,13 +201,9 @@ impl ListenArgs {
             ),
             Err(e) => return Err(self.never_opened(e)),
         };
-        let written = recorder
-            .finish()
+        let (_, summary) = capture
+            .finish(&session.progress(), ended_by)
             .map_err(|e| Failure::refused(format!("cannot finish the recording: {e}")))?;
-        let summary = Summary::new(&setup, &session, ended_by, &written);
-        summary
-            .write(dir)
-            .map_err(|e| Failure::refused(e.to_string()))?;
         if let Some(f) = failure {
             return Err(f);
         }
@@ -209,7 +213,7 @@ impl ListenArgs {
     fn never_opened(&self, e: ListenError) -> Failure {
         let port = &self.port;
         Failure::refused(match e {
-            ListenError::Refused(e) => format!("cannot open {port} as a serial port: {e}"),
+            ListenError::Refused(e) => format!("cannot open {port}: {e}"),
             ListenError::NeverOpened {
                 waited,
                 cause: NeverCause::GaveUp(e),

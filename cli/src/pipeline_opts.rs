@@ -74,7 +74,7 @@ pub struct PipelineOpts {
     /// CSV only: the sample rate, Hz; with a time column, the rate of the
     /// uniform grid the rows are resampled onto [default: the median frame
     /// rate when the times are uneven].
-    #[arg(long, value_name = "HZ")]
+    #[arg(long, value_name = "HZ", value_parser = values::hz)]
     pub rate: Option<f64>,
 
     /// CSV only: take the sample times from this column [default: a column

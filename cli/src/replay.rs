@@ -43,10 +43,19 @@ pub struct ReplayArgs {
     pub annotator: String,
 
     /// Also write every beat as CSV.
+    ///
+    /// Columns (docs/vocabulary.md): peak_sample, peak_s, onset_sample,
+    /// emitted_sample, ibi_ms, hr_bpm (60000 / IBI), median_hr_bpm (60000 /
+    /// median of the good intervals of the last 12 s), amplitude (input
+    /// units), quality (template correlation, 0 to 1), verdict (good, or bad
+    /// when any flag but no_interval is set) and flags: the flags set,
+    /// joined by | (no_interval, implausible_interval, clipped,
+    /// low_correlation, input_replaced, motion).
     #[arg(long)]
     pub beats_csv: bool,
 
-    /// Also write every beat as JSON.
+    /// Also write every beat as JSON: the CSV's columns as keys, flags as a
+    /// list of names.
     #[arg(long)]
     pub beats_json: bool,
 
@@ -194,10 +203,10 @@ pub(super) fn beats_and_rate_lines(s: &Summary) -> String {
     );
     t += &match &s.heart_rate_bpm {
         Some(h) => format!(
-            "  heart rate  mean {:.1} bpm, min {:.1}, max {:.1}\n",
+            "  median HR   mean {:.1} bpm, min {:.1}, max {:.1}\n",
             h.mean, h.min, h.max
         ),
-        None => "  heart rate  none (no good beats)\n".into(),
+        None => "  median HR   none (no good beats)\n".into(),
     };
     t
 }

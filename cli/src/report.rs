@@ -97,7 +97,7 @@ struct Printed<'a> {
 fn human(path: &Path, bytes: usize, f: &Figures) -> String {
     let opt = |v: Option<f64>, d: usize| v.map_or("-".into(), |v| format!("{v:.d$}"));
     let mut t = format!(
-        "{}: wrote {} ({} KB)\n  {} beats ({:.1} % good), heart rate mean {} bpm, SDNN {} ms, RMSSD {} ms, SD1 {} ms, SD2 {} ms\n",
+        "{}: wrote {} ({} KB)\n  {} beats ({:.1} % good), median HR mean {} bpm, SDNN {} ms, RMSSD {} ms, SD1 {} ms, SD2 {} ms\n",
         f.record,
         path.display(),
         bytes.div_ceil(1024),

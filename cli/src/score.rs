@@ -25,7 +25,7 @@ Examples:
 Each record is replayed through the pipeline. Beats are matched one to one
 within ±150 ms (ANSI/AAMI EC57 practice) against <record>.<reference>;
 heart rate, once per reference row, against column --rate-column of
-<record><rate-suffix> (the latest smoothed heart rate reported by then).
+<record><rate-suffix> (the latest median heart rate reported by then).
 Peak timing: our matched peak minus the reference beat, ms. Heart rate in
 reference windows (<record><window-suffix>: window_start_s,window_end_s,bpm)
 when that table exists: 60000 / median of the intervals of the beats whose
@@ -230,7 +230,7 @@ fn table(s: &Scores) -> String {
         rate_cells(&s.pooled_heart_rate),
         timing_cells(&s.pooled_peak_timing),
     );
-    t += "HR MAE: mean absolute difference in bpm from the reference series, over 'secs' compared rows.\n";
+    t += "HR MAE: mean absolute difference in bpm of the median HR from the reference series, over 'secs' compared rows.\n";
     t += "dt: our matched peak minus the reference beat, ms: signed median, median and p95 of |dt|.\n";
     if s.pooled_windows.is_some() {
         t += &format!("\n{:<12}{}\n", "record", windows_header());

@@ -12,11 +12,52 @@ fn low_high(text: &str, missing: impl FnOnce() -> String) -> Result<(&str, &str)
     text.split_once(':').ok_or_else(missing)
 }
 
-/// A frequency in hertz.
+/// A frequency in hertz (a finite number; its range is checked where it
+/// is used).
 pub(crate) fn hz(text: &str) -> Result<f64, String> {
-    text.trim()
-        .parse::<f64>()
-        .map_err(|_| "expected a number of hertz, such as 250 or 0.5".to_owned())
+    finite_number(text.trim())
+        .ok_or_else(|| "expected a number of hertz, such as 250 or 0.5".to_owned())
+}
+
+/// A whole number from `low` to `high` (blanks around it allowed).
+pub(crate) fn whole_in<T: Whole>(
+    low: T,
+    high: T,
+) -> impl Fn(&str) -> Result<T, String> + Clone + Send + Sync + 'static {
+    move |text| {
+        whole(
+            text,
+            low,
+            Some(high),
+            format!("a whole number from {low} to {high}"),
+        )
+    }
+}
+
+/// A whole number of `low` or more (blanks around it allowed).
+pub(crate) fn whole_from<T: Whole>(
+    low: T,
+) -> impl Fn(&str) -> Result<T, String> + Clone + Send + Sync + 'static {
+    move |text| whole(text, low, None, format!("a whole number, {low} or more"))
+}
+
+/// What [`whole_in`] and [`whole_from`] parse.
+pub(crate) trait Whole:
+    Copy + PartialOrd + std::fmt::Display + std::str::FromStr + Send + Sync + 'static
+{
+}
+impl Whole for u32 {}
+impl Whole for u64 {}
+
+fn whole<T: Whole>(text: &str, low: T, high: Option<T>, expected: String) -> Result<T, String> {
+    let v: T = text
+        .trim()
+        .parse()
+        .map_err(|_| format!("expected {expected}"))?;
+    if v < low || high.is_some_and(|h| v > h) {
+        return Err(format!("expected {expected}, not {v}"));
+    }
+    Ok(v)
 }
 
 /// A band `LOW:HIGH` in hertz.
@@ -30,6 +71,16 @@ pub(crate) fn band_hz(text: &str) -> Result<(f64, f64), String> {
 /// A finite number (blanks around it allowed).
 pub(crate) fn number(text: &str) -> Result<f64, String> {
     finite_number(text.trim()).ok_or_else(|| "expected a number, such as 5 or 1.7".to_owned())
+}
+
+/// A finite number of 0 or more (blanks around it allowed).
+pub(crate) fn non_negative(text: &str) -> Result<f64, String> {
+    let v = number(text)?;
+    if v >= 0.0 {
+        Ok(v)
+    } else {
+        Err(format!("expected a number of 0 or more, not {v}"))
+    }
 }
 
 /// A number above 0, written exactly (no blanks).
@@ -110,6 +161,22 @@ mod tests {
             "'-1' is not a positive number of seconds"
         );
         assert_eq!(band_hz("0.5:8"), Ok((0.5, 8.0)));
+        assert!(hz("1e400").is_err() && hz("nan").is_err());
+        let bits = whole_in(1u32, 32);
+        assert_eq!(bits(" 12 "), Ok(12));
+        assert_eq!(
+            bits("x").unwrap_err(),
+            "expected a whole number from 1 to 32"
+        );
+        assert_eq!(
+            bits("40").unwrap_err(),
+            "expected a whole number from 1 to 32, not 40"
+        );
+        assert!(bits("-1").is_err());
+        assert_eq!(
+            whole_from(1u64)("0").unwrap_err(),
+            "expected a whole number, 1 or more, not 0"
+        );
         assert!(band_hz("8").is_err());
     }
 }

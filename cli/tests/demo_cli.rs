@@ -21,11 +21,11 @@ fn the_demo_finds_the_rides_beats_and_writes_its_files() {
     // Truth: the generator's beats (synthetic ride, a scenario of our own).
     let tp = v["against_truth"]["tp"].as_f64().unwrap();
     let fp = v["against_truth"]["fp"].as_f64().unwrap();
-    let fn_ = v["against_truth"]["fn_"].as_f64().unwrap();
+    let fn_ = v["against_truth"]["fn"].as_f64().unwrap();
     let f1 = 2.0 * tp / (2.0 * tp + fp + fn_);
     assert!(f1 > 0.97, "F1 {f1} against the ride's true beats");
     assert!(v["true_beats"].as_u64().unwrap() > 350);
-    assert!(v["board"]["NotRun"]
+    assert!(v["board"]["not_run"]
         .as_str()
         .unwrap()
         .contains("--no-board"));

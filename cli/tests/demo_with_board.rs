@@ -23,7 +23,7 @@ fn the_demo_ride_agrees_on_the_emulated_board() {
     let mut out = Vec::new();
     run(args, &mut out).unwrap_or_else(|f| panic!("{:?}", f.message));
     let v: serde_json::Value = serde_json::from_slice(&out).unwrap();
-    let agreed = &v["board"]["Agreed"];
+    let agreed = &v["board"]["agreed"];
     assert!(agreed.is_object(), "{}", v["board"]);
     assert_eq!(agreed["beats"], v["summary"]["beats"]);
 }

@@ -66,7 +66,15 @@ fn a_file_that_is_not_a_serial_port_is_refused_at_once() {
     let file = dir.path().join("notes.txt");
     std::fs::write(&file, "not a port").unwrap();
     let out = listen(&["--port", s(&file), "--out", s(dir.path()), "--wait", "600"]);
-    one_line_error(&out, 1, "cannot open");
+    let err = one_line_error(&out, 1, "is not a serial port but an ordinary file");
+    assert!(err.contains("check that --port names"), "{err}");
+    // A folder, and a device that is no terminal: the system's own words
+    // for the latter ("Not a typewriter") are not the user's.
+    let out = listen(&["--port", s(dir.path()), "--out", s(dir.path())]);
+    one_line_error(&out, 1, "is not a serial port but a folder");
+    let out = listen(&["--port", "/dev/null", "--out", s(dir.path())]);
+    let err = one_line_error(&out, 1, "/dev/null: it is not a serial port");
+    assert!(!err.contains("typewriter"), "{err}");
 }
 
 #[test]

@@ -140,7 +140,7 @@ fn noisy_stream_is_shown_as_json_lines_and_recorded_exactly() {
     assert_eq!(beats[0]["ibi_ms"], Value::Null);
     assert_eq!(beats[0]["flags"], serde_json::json!(["no_interval"]));
     assert_eq!(beats[1]["hr_bpm"], 75.0);
-    assert_eq!(beats[2]["good"], false);
+    assert_eq!(beats[2]["verdict"], "bad");
     assert_eq!(beats[2]["flags"], serde_json::json!(["low_correlation"]));
     let states: Vec<&Value> = events(&lines, "state").collect();
     assert_eq!(states.len(), 1);
@@ -228,16 +228,16 @@ fn unplugging_and_replugging_continues_one_recording() {
     assert!(lines[1].contains("USB isolator") && lines[1].contains("IEC 60601-1"));
     let beat_lines: Vec<&String> = lines.iter().filter(|l| l.starts_with("beat ")).collect();
     assert_eq!(beat_lines.len(), 4, "{text}");
-    assert!(beat_lines[0].contains("0.400 s") && beat_lines[0].ends_with("no interval"));
+    assert!(beat_lines[0].contains("0.400 s") && beat_lines[0].ends_with("good (no interval)"));
     assert!(
-        beat_lines[1].contains("IBI   800 ms  HR  75.0  avg  72.5 bpm"),
+        beat_lines[1].contains("IBI   800 ms  HR  75.0 bpm  median HR  72.5 bpm"),
         "{}",
         beat_lines[1]
     );
-    assert!(beat_lines[2].ends_with("low correlation"));
+    assert!(beat_lines[2].ends_with("bad (low correlation)"));
     assert!(lines
         .iter()
-        .any(|l| l.starts_with("state ") && l.contains("good signal (was acquiring)")));
+        .any(|l| l.starts_with("state ") && l.contains("acquiring -> good")));
     assert!(
         lines
             .iter()

@@ -62,7 +62,7 @@ fn replay_writes_annotations_and_a_summary() {
         (33..=37).contains(&beats),
         "{beats} beats in 30 s at 72 bpm"
     );
-    let hr = v["summary"]["heart_rate_bpm"]["mean"].as_f64().unwrap();
+    let hr = v["summary"]["median_hr_bpm"]["mean"].as_f64().unwrap();
     assert!((hr - 72.0).abs() < 2.0, "{hr}");
     assert!(dir.path().join("ride.pwire").is_file());
     assert!(dir.path().join("ride.pwire.json").is_file());
@@ -154,7 +154,7 @@ fn score_reports_pooled_counts_against_reference_annotations() {
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     assert_eq!(v["records"].as_array().unwrap().len(), 2);
     assert_eq!(v["pooled_beats"]["fp"], 0);
-    assert_eq!(v["pooled_beats"]["fn_"], 0);
+    assert_eq!(v["pooled_beats"]["fn"], 0);
     assert!(v["pooled_beats"]["tp"].as_u64().unwrap() >= 66);
     let (code, out, _) = plethwire(&["score", dir.path().to_str().unwrap(), "--reference", "ref"]);
     assert_eq!(code, 0);

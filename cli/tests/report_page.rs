@@ -71,9 +71,9 @@ fn assert_core_figures(page: &Page, run: &Replay) {
     page.assert_figure("good_share_percent", Some(100.0 * s.good_share), 1);
     page.assert_figure("duration_s", Some(run.samples as f64 / run.fs), 1);
     let hr = s.heart_rate_bpm.expect("a heart rate");
-    page.assert_figure("hr_mean_bpm", Some(hr.mean), 1);
-    page.assert_figure("hr_min_bpm", Some(hr.min), 1);
-    page.assert_figure("hr_max_bpm", Some(hr.max), 1);
+    page.assert_figure("median_hr_mean_bpm", Some(hr.mean), 1);
+    page.assert_figure("median_hr_min_bpm", Some(hr.min), 1);
+    page.assert_figure("median_hr_max_bpm", Some(hr.max), 1);
     page.assert_figure("latency_median_ms", s.latency_median_ms, 0);
     page.assert_figure("nn_intervals", Some(h.nn_count as f64), 0);
     page.assert_figure("sdnn_ms", h.sdnn_ms.map(f64::from), 1);

@@ -97,7 +97,7 @@ fn pulses_match_the_r_peaks_moved_by_the_delay() {
         "{r_peaks} R peaks, {beats} beats"
     );
     let se = v["pooled_ecg"]["tp"].as_f64().unwrap()
-        / (v["pooled_ecg"]["tp"].as_f64().unwrap() + v["pooled_ecg"]["fn_"].as_f64().unwrap());
+        / (v["pooled_ecg"]["tp"].as_f64().unwrap() + v["pooled_ecg"]["fn"].as_f64().unwrap());
     // The pipeline needs a few seconds to start: the first beats may be
     // missed, nothing else.
     assert!(se > 0.93, "{e}");

@@ -12,6 +12,8 @@
 //! Running recordings through the firmware on the emulated board: [`emulate`].
 //! A replay as one self-contained HTML page: [`report`].
 //! The analog front end's budget, LED to ADC: [`frontend`].
+//! The words for verdicts, flags and states on the terminal: [`vocabulary`];
+//! file readers' messages in the user's words: [`messages`].
 #![deny(missing_docs)]
 
 pub mod channel;
@@ -21,8 +23,10 @@ pub mod filter_report;
 pub mod frontend;
 pub mod listen;
 pub mod matching;
+pub mod messages;
 pub mod motion;
 pub mod plot;
 pub mod replay;
 pub mod report;
 pub mod score;
+pub mod vocabulary;

@@ -16,7 +16,8 @@ pub struct MatchCounts {
     pub tp: usize,
     /// Detections with no reference beat.
     pub fp: usize,
-    /// Reference beats with no detection.
+    /// Reference beats with no detection (`fn` in JSON).
+    #[serde(rename = "fn")]
     pub fn_: usize,
 }
 

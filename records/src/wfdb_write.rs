@@ -5,7 +5,8 @@
 //!
 //! [`RecordWriter`] takes frames as they come, so a live session can be
 //! recorded without holding it in memory; the header, which needs the
-//! length and checksums, is written by [`RecordWriter::finish`].
+//! length and checksums, is written by [`RecordWriter::finish`], and as
+//! often as wanted before by [`RecordWriter::checkpoint`].
 
 use std::fs::File;
 use std::io::{BufWriter, Write};
@@ -172,6 +173,17 @@ impl RecordWriter {
 
     /// Flush the samples and write the header; returns it and its path.
     pub fn finish(mut self) -> Result<(Header, PathBuf)> {
+        let path = self.checkpoint()?;
+        Ok((self.header, path))
+    }
+
+    /// Bring the files up to date without ending the record: flush the
+    /// samples to the system, then replace the header by one that counts
+    /// them (written beside it and renamed over it, so a reader, or a
+    /// process killed meanwhile, only ever leaves a whole header). The
+    /// signal file may hold more frames than a header states; readers take
+    /// the header's count. Returns the header's path.
+    pub fn checkpoint(&mut self) -> Result<PathBuf> {
         self.out
             .flush()
             .map_err(|e| Error::from_io(&self.dat_path, "write", &e))?;
@@ -181,9 +193,13 @@ impl RecordWriter {
             spec.initial_value = self.first.as_ref().map_or(0, |f| f[i] as i32);
         }
         let path = self.dir.join(format!("{}.hea", self.header.record_name));
-        std::fs::write(&path, self.header.to_text())
+        let tmp = self
+            .dir
+            .join(format!("{}.hea.part", self.header.record_name));
+        std::fs::write(&tmp, self.header.to_text())
+            .and_then(|()| std::fs::rename(&tmp, &path))
             .map_err(|e| Error::from_io(&path, "write", &e))?;
-        Ok((self.header, path))
+        Ok(path)
     }
 
     fn invalid(&self, message: String) -> Error {
@@ -309,6 +325,26 @@ mod tests {
             .split_whitespace()
             .nth(6)
             .is_none_or(|c| c.parse::<i16>().is_ok())));
+    }
+
+    #[test]
+    fn a_checkpoint_leaves_a_readable_record_of_what_came_so_far() {
+        let dir = tempfile::tempdir().unwrap();
+        let signals = [NewSignal::new("PLETH", "NU", 10.0, 0)];
+        let mut w = RecordWriter::create(dir.path(), "live", 100.0, &signals).unwrap();
+        for v in 0..30 {
+            w.push_frame(&[v]).unwrap();
+        }
+        w.checkpoint().unwrap();
+        // More frames after the checkpoint: the header still counts 30.
+        w.push_frame(&[99]).unwrap();
+        let rec = Record::open(dir.path().join("live")).unwrap();
+        assert_eq!(rec.len(), 30);
+        rec.verify_checksums().unwrap();
+        assert_eq!(rec.read_digital(0).unwrap(), (0..30).collect::<Vec<i32>>());
+        assert!(!dir.path().join("live.hea.part").exists());
+        let (header, _) = w.finish().unwrap();
+        assert_eq!(header.samples, Some(31));
     }
 
     #[test]

@@ -12,6 +12,7 @@ use plethwire::emulate::{compare, find_elf, find_qemu, BuildError, EmulateError,
 use plethwire::replay::{Replay, Summary};
 use plethwire::report::{self, Reference, ReportInput};
 use plethwire::score::{match_beats, MatchCounts, MATCH_WINDOW_S};
+use plethwire::vocabulary::state_change_words;
 use plethwire_dsp::pipeline::{BeatEvent, Config, Pipeline, SignalState, StateEvent};
 use plethwire_records::{annotation_path, write_annotations, write_record, Annotation, NewSignal};
 use serde::Serialize;
@@ -22,8 +23,10 @@ use std::time::Duration;
 /// steps, so the 1.5-unit level and its pulse fit 16 bits with room.
 pub const SAVED_GAIN: f64 = 10_000.0;
 
-/// What the emulated board did.
+/// What the emulated board did (in JSON `agreed`, `disagreed` or
+/// `not_run`).
 #[derive(Debug, Clone, Serialize, PartialEq)]
+#[serde(rename_all = "snake_case")]
 pub enum BoardOutcome {
     /// It ran and agreed with the host, bit for bit.
     Agreed {
@@ -205,13 +208,14 @@ pub fn write_report(
     Ok(path)
 }
 
-/// A state change in words.
-pub fn state_words(s: SignalState) -> &'static str {
-    match s {
-        SignalState::Acquiring => "acquiring",
-        SignalState::Good => "good signal",
-        SignalState::NoSignal => "no signal (finger off?)",
-        SignalState::Saturated => "saturated (at the ADC rails)",
-        SignalState::Noisy => "noisy (motion?)",
-    }
+/// A state change in words (`docs/vocabulary.md`), with what it likely
+/// means on a bike: `good -> no signal (finger off?)`.
+pub fn state_words(previous: SignalState, s: SignalState) -> String {
+    let hint = match s {
+        SignalState::NoSignal => " (finger off?)",
+        SignalState::Saturated => " (at the ADC rails)",
+        SignalState::Noisy => " (motion?)",
+        SignalState::Acquiring | SignalState::Good => "",
+    };
+    format!("{}{hint}", state_change_words(previous, s))
 }

@@ -262,6 +262,21 @@ impl Listener {
         }
     }
 
+    /// The stdout lines that have come since the last call, without
+    /// waiting.
+    pub fn poll(&mut self) -> Vec<String> {
+        let fresh: Vec<String> = self.lines.try_iter().collect();
+        self.seen.extend(fresh.iter().cloned());
+        fresh
+    }
+
+    /// Kill it as `kill -9` does (SIGKILL: it runs no further code) and
+    /// wait until it is gone.
+    pub fn kill_hard(mut self) {
+        self.child.kill().expect("SIGKILL the listener");
+        self.child.wait().expect("reap the listener");
+    }
+
     /// Ask it to stop as Ctrl-C does.
     pub fn interrupt(&self) {
         let ok = Command::new("kill")

@@ -70,8 +70,7 @@ impl CircuitTomlError {
     /// `source` as `line N (text): message`, on one line; `text` is what
     /// was read.
     fn at_line(text: &str, source: toml::de::Error) -> Self {
-        let message = source
-            .message()
+        let message = crate::messages::plain(source.message())
             .split_whitespace()
             .collect::<Vec<_>>()
             .join(" ");
@@ -100,7 +99,7 @@ impl CircuitTomlError {
     fn without_line(source: toml::de::Error) -> Self {
         Self {
             line: None,
-            shown: source.message().trim().to_owned(),
+            shown: crate::messages::plain(source.message()),
             source: Box::new(source),
         }
     }

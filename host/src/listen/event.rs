@@ -2,7 +2,8 @@
 
 use plethwire_dsp::pipeline::{BeatEvent, StateEvent};
 use plethwire_dsp::wire::{DecodeStats, Hello, SampleBlock, Status};
-use std::time::Duration;
+use serde::Serialize;
+use std::time::{Duration, Instant, SystemTime};
 
 /// One thing that happened while listening.
 #[derive(Clone, Debug, PartialEq)]
@@ -85,10 +86,63 @@ pub struct StateSeen {
     pub time_s: Option<f64>,
 }
 
+/// What a session has seen, for the summary.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize)]
+pub struct Counts {
+    /// Hello frames.
+    pub hellos: u64,
+    /// Beat frames.
+    pub beats: u64,
+    /// State frames.
+    pub states: u64,
+    /// Status frames.
+    pub statuses: u64,
+    /// Sample frames.
+    pub sample_blocks: u64,
+    /// Samples that arrived while the sample rate was unknown or in doubt,
+    /// so were not recorded.
+    pub samples_unrecorded: u64,
+    /// Board restarts seen in its sample numbers.
+    pub restarts: u64,
+    /// Times the port was opened.
+    pub opens: u64,
+    /// Times it went away.
+    pub losses: u64,
+    /// Frames that decoded but whose sample numbers jump where no board
+    /// could have got to (counted as damaged too), not used.
+    pub implausible: u64,
+}
+
+/// What a session has seen so far, for a summary written as it goes.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Progress {
+    /// Frame counts.
+    pub counts: Counts,
+    /// The link's counters; frames refused for implausible sample numbers
+    /// are among the damaged.
+    pub link: DecodeStats,
+    /// The latest hello.
+    pub hello: Option<Hello>,
+    /// The latest status.
+    pub last_status: Option<Status>,
+    /// Wall-clock time of the first good frame.
+    pub first_frame: Option<SystemTime>,
+    /// Wall-clock time of the last good frame.
+    pub last_frame: Option<SystemTime>,
+}
+
 /// Where events go: the screen, the recorder, a test's list.
 pub trait Sink {
     /// Take one event; an error ends the session.
     fn event(&mut self, event: &Event) -> std::io::Result<()>;
+
+    /// Called after every read or read timeout (a few times a second),
+    /// so files can be brought up to date while nothing arrives; an error
+    /// ends the session.
+    fn tick(&mut self, now: Instant, progress: &Progress) -> std::io::Result<()> {
+        let _ = (now, progress);
+        Ok(())
+    }
 }
 
 impl Sink for Vec<Event> {

@@ -1,7 +1,7 @@
 //! The board's messages as JSON objects, with our own field names; shared
 //! by the JSON event lines and the session summary.
 
-use plethwire_dsp::pipeline::{BeatFlags, DetectorKind, SignalState};
+use plethwire_dsp::pipeline::DetectorKind;
 use plethwire_dsp::wire::{DecodeStats, Hello, Status};
 use serde::Serialize;
 
@@ -18,7 +18,8 @@ pub struct HelloFields {
     pub band_low_hz: f32,
     /// Band-pass upper edge, Hz.
     pub band_high_hz: f32,
-    /// Window of the smoothed heart rate, s.
+    /// Window of the median heart rate, s.
+    #[serde(rename = "median_hr_window_s")]
     pub hr_window_s: f32,
     /// ADC rails `[low, high]` in input units, when the board knows them.
     pub rails: Option<[f32; 2]>,
@@ -55,6 +56,7 @@ pub struct StatusFields {
     /// Frames the board could not send since power-up.
     pub dropped_frames: u32,
     /// Non-finite samples the pipeline replaced since power-up.
+    #[serde(rename = "replaced_samples")]
     pub rejected_samples: u32,
 }
 
@@ -102,46 +104,4 @@ impl From<DecodeStats> for LinkFields {
 /// The detector's command-line name ([`DetectorKind::cli_name`]).
 pub fn detector_name(d: DetectorKind) -> &'static str {
     d.cli_name()
-}
-
-/// A signal state as one word for JSON.
-pub fn state_key(s: SignalState) -> &'static str {
-    match s {
-        SignalState::Acquiring => "acquiring",
-        SignalState::Good => "good",
-        SignalState::NoSignal => "no_signal",
-        SignalState::Saturated => "saturated",
-        SignalState::Noisy => "noisy",
-    }
-}
-
-/// Each beat flag: its bit, its JSON key, its words on screen.
-pub const FLAG_NAMES: [(u8, &str, &str); 6] = [
-    (BeatFlags::NO_INTERVAL, "no_interval", "no interval"),
-    (
-        BeatFlags::IMPLAUSIBLE_INTERVAL,
-        "implausible_interval",
-        "implausible interval",
-    ),
-    (BeatFlags::CLIPPED, "clipped", "clipped"),
-    (
-        BeatFlags::LOW_CORRELATION,
-        "low_correlation",
-        "low correlation",
-    ),
-    (
-        BeatFlags::INPUT_REJECTED,
-        "input_replaced",
-        "input replaced",
-    ),
-    (BeatFlags::MOTION, "motion", "motion"),
-];
-
-/// The JSON keys of the flags set in `flags`, in bit order.
-pub fn flag_keys(flags: BeatFlags) -> Vec<&'static str> {
-    FLAG_NAMES
-        .iter()
-        .filter(|(bit, _, _)| flags.has(*bit))
-        .map(|(_, key, _)| *key)
-        .collect()
 }

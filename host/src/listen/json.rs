@@ -3,7 +3,8 @@
 use serde::Serialize;
 
 use super::event::Event;
-use super::fields::{flag_keys, state_key, HelloFields, LinkFields, StatusFields};
+use super::fields::{HelloFields, LinkFields, StatusFields};
+use crate::vocabulary::flag_list;
 
 #[derive(Serialize)]
 #[serde(tag = "event", rename_all = "snake_case")]
@@ -33,10 +34,11 @@ enum Line<'a> {
         latency_samples: u64,
         ibi_ms: Option<f32>,
         hr_bpm: Option<f32>,
+        #[serde(rename = "median_hr_bpm")]
         hr_smoothed_bpm: Option<f32>,
         amplitude: f32,
         quality: f32,
-        good: bool,
+        verdict: &'static str,
         flags: Vec<&'static str>,
     },
     State {
@@ -87,15 +89,15 @@ pub fn line(event: &Event, retry: (f64, f64)) -> Option<String> {
             hr_smoothed_bpm: b.beat.hr_smoothed_bpm,
             amplitude: b.beat.amplitude,
             quality: b.beat.quality,
-            good: b.beat.flags.is_good(),
-            flags: flag_keys(b.beat.flags),
+            verdict: b.beat.flags.verdict(),
+            flags: flag_list(b.beat.flags),
         },
         Event::State(s) => Line::State {
             time_s: s.time_s,
             sample: s.sample,
             board_sample: s.change.at,
-            state: state_key(s.change.state),
-            previous: state_key(s.change.previous),
+            state: s.change.state.name(),
+            previous: s.change.previous.name(),
         },
         Event::Status { status, link } => Line::Status {
             status: status.into(),
@@ -135,9 +137,9 @@ mod tests {
         assert_eq!(v["event"], "beat");
         assert_eq!(v["time_s"], 12.34);
         assert_eq!(v["hr_bpm"].to_string(), "73.9");
-        assert_eq!(v["hr_smoothed_bpm"], serde_json::Value::Null);
+        assert_eq!(v["median_hr_bpm"], serde_json::Value::Null);
         assert_eq!(v["latency_samples"], 35);
-        assert_eq!(v["good"], false);
+        assert_eq!(v["verdict"], "bad");
         assert_eq!(
             v["flags"],
             serde_json::json!(["clipped", "low_correlation"])
@@ -152,7 +154,7 @@ mod tests {
         });
         let v: serde_json::Value =
             serde_json::from_str(&line(&moved, (0.5, 30.0)).unwrap()).unwrap();
-        assert_eq!(v["good"], false);
+        assert_eq!(v["verdict"], "bad");
         assert_eq!(v["flags"], serde_json::json!(["motion"]));
     }
 }

@@ -142,7 +142,8 @@ pub fn run<C: Connector>(
                 Err(e) if is_idle(&e) => session.idle(now, sink),
                 Err(e) => break e.to_string(),
             };
-            fed.map_err(ListenError::Sink)?;
+            fed.and_then(|()| sink.tick(now, &session.progress()))
+                .map_err(ListenError::Sink)?;
         };
         drop(link);
         session.lost();

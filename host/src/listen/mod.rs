@@ -13,7 +13,9 @@
 //!   resynchronises the decoder and continues the same recording.
 //! * [`Recorder`] writes the beats as WFDB annotations and the samples as
 //!   a format-16 WFDB record ([`Scale`] says how values become 16 bits);
-//!   [`Summary`] is the JSON summary next to them.
+//!   [`Summary`] is the JSON summary next to them. [`Capture`] keeps all
+//!   of them readable while the session runs, so a killed recorder loses
+//!   at most the last second.
 //! * [`Screen`] shows events as text lines or JSON lines.
 //! * [`SerialConnector`] is the real serial port.
 //!
@@ -32,6 +34,8 @@
 //! assert_eq!(session.stats().damaged, 1);
 //! ```
 
+mod beat_file;
+mod capture;
 mod clock;
 mod event;
 mod fields;
@@ -48,16 +52,19 @@ mod timeline;
 
 #[cfg(test)]
 mod tests;
+#[cfg(test)]
+mod tests_jumps;
 
+pub use beat_file::BeatFile;
+pub use capture::Capture;
 pub use clock::{record_name, utc_text};
-pub use event::{BeatSeen, Event, Sink, StateSeen};
+pub use event::{BeatSeen, Counts, Event, Progress, Sink, StateSeen};
 pub use fields::{HelloFields, LinkFields, StatusFields};
 pub use link::{run, Connector, Ending, ListenError, NeverCause, Settings};
 pub use port::{PortLink, SerialConnector, READ_TIMEOUT};
-pub use recorder::{session_files, Recorder, SampleCounts, Written, MAX_GAP_S, SCALE_AFTER_S};
+pub use recorder::{session_files, Recorder, SampleCounts, Written, SCALE_AFTER_S};
 pub use scale::{Scale, ScaleSource, INVALID};
 pub use screen::{Screen, CAUTION};
-pub use session::{Counts, Session, LINK_EVERY, QUIET_AFTER};
-pub use summary::{summary_path, Setup, Summary, SUMMARY_FORMAT};
-pub use text::flag_words;
-pub use timeline::{Timeline, LONG_SLACK_S, RESTART_SLACK};
+pub use session::{Session, LINK_EVERY, QUIET_AFTER};
+pub use summary::{summary_path, Setup, Summary, FLUSH_EVERY, RUNNING, SUMMARY_FORMAT};
+pub use timeline::{Timeline, LONG_SLACK_S, MAX_GAP_S, RESTART_SLACK};

@@ -2,25 +2,30 @@
 //! samples, when the board sends them, as a format-16 WFDB record with
 //! two signals, `PLETH` (raw) and `PLETH filtered` (see [`super::scale`]).
 //! Sample numbers come from the board's frames, so a gap in them (frames
-//! lost, port away) is stored as invalid samples at the right place.
+//! lost, port away) is stored as invalid samples at the right place, up to
+//! [`MAX_GAP_S`]; the session has already refused numbers no board could
+//! reach, and every sum here is checked besides, so no value from the wire
+//! makes a writer loop or a sum wrap.
+//!
+//! [`Recorder::flush`] brings the files up to date while the session runs:
+//! the samples flushed and a header that counts them (see
+//! [`RecordWriter::checkpoint`]), the beats appended ([`BeatFile`]).
 
 use plethwire_dsp::wire::SampleBlock;
 use serde::Serialize;
 use std::io;
 use std::path::{Path, PathBuf};
 
+use super::beat_file::BeatFile;
 use super::event::{Event, Sink};
 use super::fields::detector_name;
 use super::scale::{Scale, INVALID};
-use plethwire_records::{annotation_path, write_annotations, Annotation, NewSignal, RecordWriter};
+use super::timeline::{FASTEST_HZ, MAX_GAP_S};
+use plethwire_records::{annotation_path, NewSignal, RecordWriter};
 
 /// Seconds of samples to look at before choosing a scale, when the hello
 /// gives no rails.
 pub const SCALE_AFTER_S: f64 = 2.0;
-
-/// The longest gap filled with invalid samples; a block further ahead
-/// has a sample number no real gap explains.
-pub const MAX_GAP_S: f64 = 86_400.0;
 
 /// What became of the samples.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize)]
@@ -52,6 +57,8 @@ pub struct Written {
     pub beats_annotated: u64,
     /// Beats whose peak lies before the record's first sample.
     pub beats_before_record: u64,
+    /// Beats more than [`MAX_GAP_S`] past anything recorded (not annotated).
+    pub beats_far_off: u64,
     /// The record's header, when samples arrived.
     pub record: Option<PathBuf>,
     /// Frames (samples per signal) in the record, gap fill included.
@@ -73,10 +80,12 @@ struct Open {
 pub struct Recorder {
     dir: PathBuf,
     name: String,
-    annotator: String,
     rails: Option<Scale>,
-    beats: Vec<u64>,
+    beats: BeatFile,
     beats_before: u64,
+    beats_far_off: u64,
+    /// The furthest record sample taken so far (beats and samples).
+    horizon: u64,
     rate: Option<f64>,
     pending: Vec<(i64, SampleBlock)>,
     pending_samples: u64,
@@ -102,15 +111,17 @@ pub fn summary_path(dir: &Path, name: &str) -> PathBuf {
 
 impl Recorder {
     /// A recorder for record `name` in `dir`; nothing is written before
-    /// the first samples (the record) or [`Recorder::finish`] (the rest).
+    /// the first [`Recorder::flush`] (the annotations) or the first
+    /// samples (the record).
     pub fn new(dir: &Path, name: &str, annotator: &str) -> Self {
         Self {
             dir: dir.to_path_buf(),
             name: name.to_string(),
-            annotator: annotator.to_string(),
             rails: None,
-            beats: Vec::new(),
+            beats: BeatFile::new(&annotation_path(&dir.join(name), annotator)),
             beats_before: 0,
+            beats_far_off: 0,
+            horizon: 0,
             rate: None,
             pending: Vec::new(),
             pending_samples: 0,
@@ -121,8 +132,27 @@ impl Recorder {
     }
 
     /// Add a line to the record header's comments.
-    pub fn comment(&mut self, text: &str) {
-        self.comments.push(text.replace(['\n', '\r'], " "));
+    pub fn comment(&mut self, text: &str) -> io::Result<()> {
+        let line = text.replace(['\n', '\r'], " ");
+        if let Some(open) = self.open.as_mut() {
+            open.writer.comment(&line).map_err(other)?;
+        }
+        self.comments.push(line);
+        Ok(())
+    }
+
+    /// Samples that make the longest gap filled.
+    fn max_gap(&self) -> u64 {
+        (MAX_GAP_S * self.rate.unwrap_or(FASTEST_HZ)).ceil() as u64
+    }
+
+    fn beat(&mut self, peak: u64) {
+        if peak > self.horizon.saturating_add(self.max_gap()) {
+            self.beats_far_off += 1;
+            return;
+        }
+        self.horizon = self.horizon.max(peak);
+        self.beats.push(peak);
     }
 
     fn samples(&mut self, start: i64, block: SampleBlock, rate_hz: f64) -> io::Result<()> {
@@ -154,24 +184,40 @@ impl Recorder {
             NewSignal::new("PLETH", "NU", scale.gain, scale.raw_baseline),
             NewSignal::new("PLETH filtered", "NU", scale.gain, 0),
         ];
-        let writer = RecordWriter::create(&self.dir, &self.name, rate, &signals).map_err(other)?;
+        let mut writer =
+            RecordWriter::create(&self.dir, &self.name, rate, &signals).map_err(other)?;
+        for c in &self.comments {
+            writer.comment(c).map_err(other)?;
+        }
         self.open = Some(Open { writer, scale });
         for (start, block) in std::mem::take(&mut self.pending) {
             self.write_block(start, &block)?;
+        }
+        // A header as soon as there are samples: the record reads from now on.
+        if let Some(open) = self.open.as_mut().filter(|o| o.writer.frames() > 0) {
+            open.writer.checkpoint().map_err(other)?;
         }
         Ok(())
     }
 
     fn write_block(&mut self, start: i64, block: &SampleBlock) -> io::Result<()> {
+        let max_gap = self.max_gap();
         let Some(open) = self.open.as_mut() else {
             return Ok(());
         };
-        let max_gap = (MAX_GAP_S * self.rate.unwrap_or(1.0)) as u64;
         let c = &mut self.counts;
-        for i in 0..usize::from(block.count) {
-            let Ok(at) = u64::try_from(start + i as i64) else {
-                c.before_record += 1;
-                continue;
+        let mut horizon = self.horizon;
+        for i in 0..usize::from(block.count).min(block.raw.len()) {
+            let at = match start.checked_add(i as i64) {
+                Some(at) if at < 0 => {
+                    c.before_record += 1;
+                    continue;
+                }
+                Some(at) => at as u64,
+                None => {
+                    c.far_off += 1;
+                    continue;
+                }
             };
             let next = open.writer.frames();
             if at < next {
@@ -193,8 +239,37 @@ impl Recorder {
             c.not_finite += u64::from(!raw.is_finite()) + u64::from(!filtered.is_finite());
             open.writer.push_frame(&[r, f]).map_err(other)?;
             c.recorded += 1;
+            horizon = horizon.max(at);
         }
+        self.horizon = horizon;
         Ok(())
+    }
+
+    /// Bring the files up to date: the samples so far with a header
+    /// that counts them, the beats so far.
+    pub fn flush(&mut self) -> io::Result<()> {
+        if let Some(open) = self.open.as_mut() {
+            open.writer.checkpoint().map_err(other)?;
+        }
+        self.beats.flush()
+    }
+
+    /// What the files hold (as of the last flush, for the record).
+    pub fn written(&self) -> Written {
+        Written {
+            annotations: self.beats.path().to_path_buf(),
+            beats_annotated: self.beats.count() as u64,
+            beats_before_record: self.beats_before,
+            beats_far_off: self.beats_far_off,
+            record: self
+                .open
+                .as_ref()
+                .map(|_| self.dir.join(format!("{}.hea", self.name))),
+            record_samples: self.open.as_ref().map_or(0, |o| o.writer.frames()),
+            rate_hz: self.rate,
+            scale: self.open.as_ref().map(|o| o.scale),
+            samples: self.counts,
+        }
     }
 
     /// Write what is still open: the record's header, the annotations.
@@ -202,36 +277,8 @@ impl Recorder {
         if self.open.is_none() && !self.pending.is_empty() {
             self.start_record()?;
         }
-        let (record, record_samples, scale) = match self.open.take() {
-            Some(mut open) => {
-                for c in &self.comments {
-                    open.writer.comment(c).map_err(other)?;
-                }
-                let frames = open.writer.frames();
-                let (_, path) = open.writer.finish().map_err(other)?;
-                (Some(path), frames, Some(open.scale))
-            }
-            None => (None, 0, None),
-        };
-        // Beats arrive in peak order; a board restart may break that.
-        self.beats.sort_unstable();
-        let annotations: Vec<Annotation> = self
-            .beats
-            .iter()
-            .map(|&p| Annotation::beat(i64::try_from(p).unwrap_or(i64::MAX)))
-            .collect();
-        let path = annotation_path(&self.dir.join(&self.name), &self.annotator);
-        write_annotations(&path, &annotations).map_err(other)?;
-        Ok(Written {
-            annotations: path,
-            beats_annotated: annotations.len() as u64,
-            beats_before_record: self.beats_before,
-            record,
-            record_samples,
-            rate_hz: self.rate,
-            scale,
-            samples: self.counts,
-        })
+        self.flush()?;
+        Ok(self.written())
     }
 }
 
@@ -249,10 +296,10 @@ impl Sink for Recorder {
                     detector_name(h.options.detector),
                     h.options.band_low_hz,
                     h.options.band_high_hz
-                ));
+                ))?;
             }
             Event::Beat(b) => match b.peak {
-                Some(p) => self.beats.push(p),
+                Some(p) => self.beat(p),
                 None => self.beats_before += 1,
             },
             Event::Samples {
@@ -262,7 +309,7 @@ impl Sink for Recorder {
             } => self.samples(*start, *block, *rate_hz)?,
             Event::Restart { sample } => self.comment(&format!(
                 "the board restarted; its new run starts at sample {sample}"
-            )),
+            ))?,
             _ => {}
         }
         Ok(())

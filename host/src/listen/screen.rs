@@ -121,8 +121,12 @@ impl<'a> Screen<'a> {
         }
         self.put(&line)?;
         let l = s.link;
+        let far = match s.counts.implausible {
+            0 => String::new(),
+            n => format!(", {n} with sample numbers out of reach"),
+        };
         self.put(&format!(
-            "link     frames {}  damaged {} ({} CRC)  lost {}  bytes dropped {}",
+            "link     frames {}  damaged {} ({} CRC{far})  lost {}  bytes dropped {}",
             l.frames, l.damaged, l.crc_errors, l.lost_frames, l.dropped_bytes
         ))?;
         for f in &s.files {

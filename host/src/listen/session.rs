@@ -1,43 +1,21 @@
 //! Bytes in, events out: the decoder, the board-to-record timeline and the
 //! session's counts, with no port and no files attached.
 
-use plethwire_dsp::wire::{DecodeStats, Decoder, Frame, Hello, Message, Status};
-use serde::Serialize;
+use plethwire_dsp::wire::{DecodeStats, Decoder, Frame, Hello, Message, SampleBlock, Status};
 use std::io;
 use std::time::{Duration, Instant, SystemTime};
 
-use super::event::{BeatSeen, Event, Sink, StateSeen};
+use super::event::{BeatSeen, Counts, Event, Progress, Sink, StateSeen};
 use super::timeline::Timeline;
+use admit::Held;
+
+mod admit;
 
 /// Silence on an open port after which we say so (once per silence).
 pub const QUIET_AFTER: Duration = Duration::from_secs(5);
 /// Changed link counters are reported at most this often, so a burst of
 /// line noise is one line, not hundreds.
 pub const LINK_EVERY: Duration = Duration::from_secs(1);
-
-/// What a session has seen, for the summary.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize)]
-pub struct Counts {
-    /// Hello frames.
-    pub hellos: u64,
-    /// Beat frames.
-    pub beats: u64,
-    /// State frames.
-    pub states: u64,
-    /// Status frames.
-    pub statuses: u64,
-    /// Sample frames.
-    pub sample_blocks: u64,
-    /// Samples that arrived while the sample rate was unknown or in doubt,
-    /// so were not recorded.
-    pub samples_unrecorded: u64,
-    /// Board restarts seen in its sample numbers.
-    pub restarts: u64,
-    /// Times the port was opened.
-    pub opens: u64,
-    /// Times it went away.
-    pub losses: u64,
-}
 
 /// The decoding half of a listening session.
 #[derive(Clone, Debug)]
@@ -57,6 +35,11 @@ pub struct Session {
     last_good: Option<Instant>,
     told_quiet: bool,
     last_status: Option<Status>,
+    /// When the last indexed frame was placed (or the first hello came),
+    /// on both clocks: the monotonic one stops while a laptop sleeps.
+    placed_at: Option<(Instant, SystemTime)>,
+    held: Option<Held>,
+    told_implausible: bool,
 }
 
 impl Session {
@@ -79,6 +62,9 @@ impl Session {
             last_good: None,
             told_quiet: false,
             last_status: None,
+            placed_at: None,
+            held: None,
+            told_implausible: false,
         }
     }
 
@@ -103,7 +89,7 @@ impl Session {
             if let Some(Ok(frame)) = self.decoder.push(b) {
                 self.last_good = Some(now);
                 self.told_quiet = false;
-                self.frame(frame, sink)?;
+                self.frame(frame, now, sink)?;
             }
         }
         // Bytes that never decode (a wrong baud rate) are silence too.
@@ -122,9 +108,24 @@ impl Session {
         self.report_link(now, sink)
     }
 
-    /// The decoder's counters.
+    /// The decoder's counters; frames refused for implausible sample
+    /// numbers are among the damaged.
     pub fn stats(&self) -> DecodeStats {
-        self.decoder.stats()
+        let mut s = self.decoder.stats();
+        s.damaged += self.counts.implausible;
+        s
+    }
+
+    /// What the session has seen so far.
+    pub fn progress(&self) -> Progress {
+        Progress {
+            counts: self.counts,
+            link: self.stats(),
+            hello: self.hello,
+            last_status: self.last_status,
+            first_frame: self.first_frame,
+            last_frame: self.last_frame,
+        }
     }
 
     /// The latest hello, if any.
@@ -153,7 +154,7 @@ impl Session {
     }
 
     fn report_link(&mut self, now: Instant, sink: &mut dyn Sink) -> io::Result<()> {
-        let stats = self.decoder.stats();
+        let stats = self.stats();
         let changed = stats.damaged != self.reported.damaged
             || stats.lost_frames != self.reported.lost_frames;
         let due = self
@@ -177,29 +178,45 @@ impl Session {
         }
     }
 
-    /// Map an indexed frame into the record, reporting a board restart.
-    fn place(&mut self, anchor: u64, now: u64, sink: &mut dyn Sink) -> io::Result<()> {
-        self.settle_rate();
-        if let Some(sample) = self.timeline.frame(anchor, now) {
-            self.counts.restarts += 1;
-            sink.event(&Event::Restart { sample })?;
-        }
-        Ok(())
-    }
-
     fn seconds(&self, sample: Option<u64>) -> Option<f64> {
         Some(sample? as f64 / self.rate?)
     }
 
-    fn frame(&mut self, frame: Frame, sink: &mut dyn Sink) -> io::Result<()> {
+    fn frame(&mut self, frame: Frame, t: Instant, sink: &mut dyn Sink) -> io::Result<()> {
         let wall = SystemTime::now();
         self.first_frame.get_or_insert(wall);
         self.last_frame = Some(wall);
         match frame.message {
-            Message::Hello(h) => self.on_hello(h, sink),
-            Message::Beat(beat) => {
+            Message::Hello(h) => self.on_hello(h, t, sink),
+            Message::Status(status) => {
+                self.counts.statuses += 1;
+                self.last_status = Some(status);
+                self.reported = self.stats();
+                sink.event(&Event::Status {
+                    status,
+                    link: self.reported,
+                })
+            }
+            Message::Beat(_) => {
                 self.counts.beats += 1;
-                self.place(beat.emitted_at, beat.emitted_at, sink)?;
+                self.indexed(frame, t, sink)
+            }
+            Message::State(_) => {
+                self.counts.states += 1;
+                self.indexed(frame, t, sink)
+            }
+            Message::Samples(_) => {
+                self.counts.sample_blocks += 1;
+                self.indexed(frame, t, sink)
+            }
+        }
+    }
+
+    /// An indexed frame placed in the record: say what it holds.
+    fn placed(&mut self, frame: Frame, t: Instant, sink: &mut dyn Sink) -> io::Result<()> {
+        self.placed_at = Some((t, SystemTime::now()));
+        match frame.message {
+            Message::Beat(beat) => {
                 let peak = self.timeline.record(beat.peak_index);
                 sink.event(&Event::Beat(BeatSeen {
                     beat,
@@ -208,8 +225,6 @@ impl Session {
                 }))
             }
             Message::State(change) => {
-                self.counts.states += 1;
-                self.place(change.at, change.at, sink)?;
                 let sample = self.timeline.record(change.at);
                 sink.event(&Event::State(StateSeen {
                     change,
@@ -217,45 +232,38 @@ impl Session {
                     time_s: self.seconds(sample),
                 }))
             }
-            Message::Status(status) => {
-                self.counts.statuses += 1;
-                self.last_status = Some(status);
-                self.reported = self.decoder.stats();
-                sink.event(&Event::Status {
-                    status,
-                    link: self.reported,
-                })
-            }
-            Message::Samples(block) => {
-                self.counts.sample_blocks += 1;
-                let last = block.first_index + u64::from(block.count.max(1)) - 1;
-                self.place(block.first_index, last, sink)?;
-                match self.rate.filter(|_| !self.rate_in_doubt) {
-                    Some(rate_hz) => sink.event(&Event::Samples {
-                        start: self.timeline.map(block.first_index),
-                        block,
-                        rate_hz,
-                    }),
-                    None => {
-                        self.counts.samples_unrecorded += u64::from(block.count);
-                        if self.told_no_rate || self.rate_in_doubt {
-                            return Ok(());
-                        }
-                        self.told_no_rate = true;
-                        sink.event(&Event::Notice(
-                            "samples arrive, but no hello has told their rate: they are not \
-                             recorded (give --rate to record them)"
-                                .into(),
-                        ))
-                    }
+            Message::Samples(block) => self.samples(block, sink),
+            Message::Hello(_) | Message::Status(_) => Ok(()),
+        }
+    }
+
+    fn samples(&mut self, block: SampleBlock, sink: &mut dyn Sink) -> io::Result<()> {
+        match self.rate.filter(|_| !self.rate_in_doubt) {
+            Some(rate_hz) => sink.event(&Event::Samples {
+                start: self.timeline.map(block.first_index),
+                block,
+                rate_hz,
+            }),
+            None => {
+                self.counts.samples_unrecorded += u64::from(block.count);
+                if self.told_no_rate || self.rate_in_doubt {
+                    return Ok(());
                 }
+                self.told_no_rate = true;
+                sink.event(&Event::Notice(
+                    "samples arrive, but no hello has told their rate: they are not \
+                     recorded (give --rate to record them)"
+                        .into(),
+                ))
             }
         }
     }
 
-    fn on_hello(&mut self, h: Hello, sink: &mut dyn Sink) -> io::Result<()> {
+    fn on_hello(&mut self, h: Hello, t: Instant, sink: &mut dyn Sink) -> io::Result<()> {
         self.counts.hellos += 1;
         self.timeline.hello();
+        // A board that has just said hello counts from about now.
+        self.placed_at.get_or_insert((t, SystemTime::now()));
         self.hello = Some(h);
         sink.event(&Event::Hello(h))?;
         let said = f64::from(h.sample_rate_hz);

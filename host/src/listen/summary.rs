@@ -4,13 +4,20 @@
 use serde::Serialize;
 use std::io;
 use std::path::{Path, PathBuf};
-use std::time::SystemTime;
+use std::time::{Duration, SystemTime};
 
 use super::clock::utc_text;
+use super::event::{Counts, Progress};
 use super::fields::{HelloFields, LinkFields, StatusFields};
 use super::recorder::{SampleCounts, Written};
 use super::scale::Scale;
-use super::session::{Counts, Session};
+
+/// `ended_by` of a summary written while the session runs.
+pub const RUNNING: &str = "running";
+
+/// How often the files are brought up to date while the session runs:
+/// twice a second, so a session cut off loses at most the last second.
+pub const FLUSH_EVERY: Duration = Duration::from_millis(500);
 
 /// Identifies the file's layout, for readers.
 pub const SUMMARY_FORMAT: &str = "plethwire-listen-session/1";
@@ -46,7 +53,11 @@ pub struct Summary {
     pub started_utc: String,
     /// Session end, ISO 8601 UTC.
     pub ended_utc: String,
-    /// `stopped`, `time_up`, `port_gone` or `failed`.
+    /// `stopped`, `time_up`, `port_gone` or `failed`; `running` while the
+    /// session runs (the summary is rewritten every [`FLUSH_EVERY`]), so a
+    /// summary that still says `running` is from a session that was cut
+    /// off (killed, crashed, the machine stopped), and `ended_utc` is when
+    /// it was last brought up to date.
     pub ended_by: &'static str,
     /// First good frame, ISO 8601 UTC.
     pub first_frame_utc: Option<String>,
@@ -64,6 +75,8 @@ pub struct Summary {
     pub beats_annotated: u64,
     /// Beats before the record's first sample (not annotated).
     pub beats_before_record: u64,
+    /// Beats further past the record than any gap it fills (not annotated).
+    pub beats_far_off: u64,
     /// The record's sample rate, Hz (the board's is under `board`).
     pub record_rate_hz: Option<f64>,
     /// Samples per signal in the record, gaps included.
@@ -79,9 +92,10 @@ pub struct Summary {
 }
 
 impl Summary {
-    /// Gather the summary of a finished session.
-    pub fn new(setup: &Setup, session: &Session, ended_by: &'static str, w: &Written) -> Self {
-        let (first, last) = session.frame_times();
+    /// Gather the summary of a session, finished or (`ended_by`
+    /// [`RUNNING`]) not.
+    pub fn new(setup: &Setup, seen: &Progress, ended_by: &'static str, w: &Written) -> Self {
+        let (first, last) = (seen.first_frame, seen.last_frame);
         let dir = w.annotations.parent().unwrap_or(Path::new("."));
         let mut files = vec![w.annotations.display().to_string()];
         if let Some(h) = &w.record {
@@ -99,12 +113,13 @@ impl Summary {
             ended_by,
             first_frame_utc: first.map(utc_text),
             last_frame_utc: last.map(utc_text),
-            board: session.hello().map(HelloFields::from),
-            last_status: session.last_status().map(StatusFields::from),
-            counts: session.counts(),
-            link: session.stats().into(),
+            board: seen.hello.as_ref().map(HelloFields::from),
+            last_status: seen.last_status.as_ref().map(StatusFields::from),
+            counts: seen.counts,
+            link: seen.link.into(),
             beats_annotated: w.beats_annotated,
             beats_before_record: w.beats_before_record,
+            beats_far_off: w.beats_far_off,
             record_rate_hz: w.rate_hz,
             record_samples: w.record_samples,
             record_seconds: w
@@ -117,13 +132,18 @@ impl Summary {
         }
     }
 
-    /// Write it next to the annotation file; returns its path.
+    /// Write it next to the annotation file (beside it first, then
+    /// renamed over it, so a reader never finds half a summary); returns
+    /// its path.
     pub fn write(&self, dir: &Path) -> io::Result<PathBuf> {
         let path = summary_path(dir, &self.record);
+        let tmp = path.with_extension("json.part");
         let text = serde_json::to_string_pretty(self).map_err(io::Error::other)? + "\n";
-        std::fs::write(&path, text).map_err(|e| {
-            io::Error::new(e.kind(), format!("{}: cannot write: {e}", path.display()))
-        })?;
+        std::fs::write(&tmp, text)
+            .and_then(|()| std::fs::rename(&tmp, &path))
+            .map_err(|e| {
+                io::Error::new(e.kind(), format!("{}: cannot write: {e}", path.display()))
+            })?;
         Ok(path)
     }
 }

@@ -56,7 +56,7 @@ impl Connector for Script {
     }
 }
 
-fn hello(rails: Option<(f32, f32)>) -> Message {
+pub(super) fn hello(rails: Option<(f32, f32)>) -> Message {
     Message::Hello(Hello {
         firmware_version: [0, 3, 1],
         sample_rate_hz: 100.0,
@@ -67,7 +67,7 @@ fn hello(rails: Option<(f32, f32)>) -> Message {
     })
 }
 
-fn beat(peak: u64) -> Message {
+pub(super) fn beat(peak: u64) -> Message {
     Message::Beat(BeatEvent {
         peak_index: peak,
         onset_index: None,
@@ -82,7 +82,7 @@ fn beat(peak: u64) -> Message {
 }
 
 /// 16 samples from `first`: raw is a whole count, filtered its tenth.
-fn block(first: u64) -> Message {
+pub(super) fn block(first: u64) -> Message {
     let mut b = SampleBlock {
         first_index: first,
         count: 16,
@@ -97,7 +97,7 @@ fn block(first: u64) -> Message {
     Message::Samples(b)
 }
 
-fn bytes(enc: &mut Encoder, messages: &[Message]) -> Vec<u8> {
+pub(super) fn bytes(enc: &mut Encoder, messages: &[Message]) -> Vec<u8> {
     let mut buf = [0u8; MAX_FRAME];
     messages
         .iter()
@@ -106,7 +106,7 @@ fn bytes(enc: &mut Encoder, messages: &[Message]) -> Vec<u8> {
 }
 
 /// Records and keeps every event.
-struct Both<'a>(&'a mut Recorder, Vec<Event>);
+pub(super) struct Both<'a>(pub(super) &'a mut Recorder, pub(super) Vec<Event>);
 
 impl Sink for Both<'_> {
     fn event(&mut self, e: &Event) -> io::Result<()> {

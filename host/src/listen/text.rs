@@ -5,7 +5,8 @@ use plethwire_dsp::pipeline::SignalState;
 use plethwire_dsp::wire::{DecodeStats, Hello, Status};
 
 use super::event::{BeatSeen, Event, StateSeen};
-use super::fields::{detector_name, FLAG_NAMES};
+use super::fields::detector_name;
+use crate::vocabulary::{state_change_words, verdict_words, HR, MEDIAN_HR};
 
 /// How lines look.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -115,7 +116,7 @@ fn hello(h: &Hello) -> String {
     };
     format!(
         "board    firmware {a}.{b}.{c}, {} Hz, {} detector, band {}-{} Hz, \
-         smoothed rate over {} s, {rails}",
+         {MEDIAN_HR} over {} s, {rails}",
         h.sample_rate_hz,
         detector_name(o.detector),
         o.band_low_hz,
@@ -124,41 +125,17 @@ fn hello(h: &Hello) -> String {
     )
 }
 
-/// Flags in words, or `ok`.
-pub fn flag_words(flags: plethwire_dsp::pipeline::BeatFlags) -> String {
-    let words: Vec<&str> = FLAG_NAMES
-        .iter()
-        .filter(|(bit, _, _)| flags.has(*bit))
-        .map(|(_, _, words)| *words)
-        .collect();
-    if words.is_empty() {
-        "ok".into()
-    } else {
-        words.join(", ")
-    }
-}
-
 fn beat(b: &BeatSeen) -> String {
     let e = &b.beat;
     format!(
-        "beat   {}  IBI {} ms  HR {}  avg {} bpm  quality {:.2}  {}",
+        "beat   {}  IBI {} ms  {HR} {} bpm  {MEDIAN_HR} {} bpm  quality {:.2}  {}",
         when(b.time_s, b.peak, e.peak_index),
         opt(e.ibi_ms, 5, 0),
         opt(e.hr_bpm, 5, 1),
         opt(e.hr_smoothed_bpm, 5, 1),
         e.quality,
-        flag_words(e.flags)
+        verdict_words(e.flags)
     )
-}
-
-fn state_words(s: SignalState) -> &'static str {
-    match s {
-        SignalState::Acquiring => "acquiring",
-        SignalState::Good => "good signal",
-        SignalState::NoSignal => "no signal",
-        SignalState::Saturated => "saturated",
-        SignalState::Noisy => "noisy",
-    }
 }
 
 fn state_tone(s: SignalState) -> Tone {
@@ -172,10 +149,9 @@ fn state_tone(s: SignalState) -> Tone {
 
 fn state(s: &StateSeen) -> String {
     format!(
-        "state  {}  {} (was {})",
+        "state  {}  {}",
         when(s.time_s, s.sample, s.change.at),
-        state_words(s.change.state),
-        state_words(s.change.previous)
+        state_change_words(s.change.previous, s.change.state)
     )
 }
 
@@ -245,11 +221,11 @@ mod tests {
         let first = lines(&seen(BeatFlags::NO_INTERVAL, None), &look(false));
         assert_eq!(
             good,
-            ["beat       12.340 s  IBI   812 ms  HR  73.9  avg  74.2 bpm  quality 0.97  ok"]
+            ["beat       12.340 s  IBI   812 ms  HR  73.9 bpm  median HR  74.2 bpm  quality 0.97  good"]
         );
         assert_eq!(
             first,
-            ["beat       12.340 s  IBI     - ms  HR     -  avg     - bpm  quality 0.97  no interval"]
+            ["beat       12.340 s  IBI     - ms  HR     - bpm  median HR     - bpm  quality 0.97  good (no interval)"]
         );
         let bad = lines(
             &seen(
@@ -258,12 +234,18 @@ mod tests {
             ),
             &look(false),
         );
-        assert!(bad[0].ends_with("implausible interval, clipped"), "{bad:?}");
+        assert!(
+            bad[0].ends_with("bad (implausible interval, clipped)"),
+            "{bad:?}"
+        );
         let moved = lines(
             &seen(BeatFlags::MOTION | BeatFlags::LOW_CORRELATION, Some(400.0)),
             &look(false),
         );
-        assert!(moved[0].ends_with("low correlation, motion"), "{moved:?}");
+        assert!(
+            moved[0].ends_with("bad (low correlation, motion)"),
+            "{moved:?}"
+        );
     }
 
     #[test]
@@ -278,7 +260,7 @@ mod tests {
             time_s: Some(2.0),
         });
         let plain = lines(&e, &look(false));
-        assert_eq!(plain, ["state       2.000 s  no signal (was good signal)"]);
+        assert_eq!(plain, ["state       2.000 s  good -> no signal"]);
         let painted = lines(&e, &look(true));
         assert_eq!(painted, [format!("\x1b[31m{}\x1b[0m", plain[0])]);
         assert!(lines(&seen(BeatFlags::CLIPPED, Some(800.0)), &look(true))[0].contains('\x1b'));

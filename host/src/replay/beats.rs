@@ -1,6 +1,7 @@
 //! A replay's beats as a WFDB annotation file, rows, and our beat CSV.
 
 use super::{Recording, Replay, ReplayError};
+use crate::vocabulary::flag_list;
 use plethwire_records::{
     annotation_path, write_annotation_file, Annotation, AnnotationFile, Header,
 };
@@ -71,18 +72,19 @@ pub struct BeatRow {
     pub emitted_sample: u64,
     /// Interval, ms.
     pub ibi_ms: Option<f32>,
-    /// Instantaneous heart rate, bpm.
+    /// Heart rate of this interval (60000 / IBI), bpm.
     pub hr_bpm: Option<f32>,
-    /// Smoothed heart rate, bpm.
-    pub hr_smoothed_bpm: Option<f32>,
+    /// Median heart rate (60000 / median of the good intervals of the last
+    /// 12 s), bpm.
+    pub median_hr_bpm: Option<f32>,
     /// Pulse amplitude (input units).
     pub amplitude: f32,
     /// Template correlation, 0 to 1.
     pub quality: f32,
-    /// Flag bits (see `plethwire_dsp::pipeline::BeatFlags`).
-    pub flags: u8,
-    /// Fit for heart rate and HRV.
-    pub good: bool,
+    /// `good` (fit for heart rate and HRV) or `bad`.
+    pub verdict: &'static str,
+    /// The flags set, by name (`plethwire_dsp::pipeline::BeatFlags::NAMES`).
+    pub flags: Vec<&'static str>,
 }
 
 /// The beats as rows.
@@ -97,21 +99,25 @@ pub fn beat_rows(replay: &Replay) -> Vec<BeatRow> {
             emitted_sample: b.emitted_at,
             ibi_ms: b.ibi_ms,
             hr_bpm: b.hr_bpm,
-            hr_smoothed_bpm: b.hr_smoothed_bpm,
+            median_hr_bpm: b.hr_smoothed_bpm,
             amplitude: b.amplitude,
             quality: b.quality,
-            flags: b.flags.0,
-            good: b.flags.is_good(),
+            verdict: b.flags.verdict(),
+            flags: flag_list(b.flags),
         })
         .collect()
 }
 
-/// Our beat CSV: a header line, then one row per beat.
+/// The header of our beat CSV: the keys of [`BeatRow`] in its JSON, in
+/// the same order (`docs/vocabulary.md`).
+pub const BEATS_CSV_HEADER: &str =
+    "peak_sample,peak_s,onset_sample,emitted_sample,ibi_ms,hr_bpm,median_hr_bpm,amplitude,quality,verdict,flags";
+
+/// Our beat CSV: a header line, then one row per beat; `flags` holds the
+/// names of the flags set joined by `|` (empty when none).
 pub fn beats_csv(replay: &Replay) -> String {
     let opt = |v: Option<f32>| v.map_or(String::new(), |v| format!("{v}"));
-    let mut s = String::from(
-        "peak_sample,peak_s,onset_sample,emitted_sample,ibi_ms,hr_bpm,hr_smoothed_bpm,amplitude,quality,flags,good\n",
-    );
+    let mut s = format!("{BEATS_CSV_HEADER}\n");
     for r in beat_rows(replay) {
         s.push_str(&format!(
             "{},{:.4},{},{},{},{},{},{},{},{},{}\n",
@@ -121,11 +127,11 @@ pub fn beats_csv(replay: &Replay) -> String {
             r.emitted_sample,
             opt(r.ibi_ms),
             opt(r.hr_bpm),
-            opt(r.hr_smoothed_bpm),
+            opt(r.median_hr_bpm),
             r.amplitude,
             r.quality,
-            r.flags,
-            u8::from(r.good)
+            r.verdict,
+            r.flags.join("|")
         ));
     }
     s

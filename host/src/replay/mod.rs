@@ -7,7 +7,9 @@ mod summary;
 #[cfg(test)]
 mod tests;
 
-pub use beats::{beat_rows, beats_csv, write_beat_annotations, write_recording_beats, BeatRow};
+pub use beats::{
+    beat_rows, beats_csv, write_beat_annotations, write_recording_beats, BeatRow, BEATS_CSV_HEADER,
+};
 pub use load::{load, InputInfo, Polarity, Recording, ReplayError, Source};
 pub use summary::{HrvSummary, RateSummary, Summary};
 

@@ -4,14 +4,14 @@ use super::Replay;
 use plethwire_dsp::hrv::{hrv, HrvStats};
 use serde::Serialize;
 
-/// Heart rate over a recording, bpm.
+/// The median heart rate over a recording, bpm.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct RateSummary {
-    /// Mean of the smoothed heart rate reported with each good beat.
+    /// Mean of the median heart rate reported with each good beat.
     pub mean: f64,
-    /// Lowest smoothed heart rate reported.
+    /// Lowest median heart rate reported with a good beat.
     pub min: f64,
-    /// Highest smoothed heart rate reported.
+    /// Highest median heart rate reported with a good beat.
     pub max: f64,
 }
 
@@ -26,14 +26,18 @@ pub struct Summary {
     pub good_beats: usize,
     /// `good_beats / beats`, 0 to 1.
     pub good_share: f64,
-    /// Smoothed heart rate statistics, if any was reported.
+    /// The median heart rate's statistics, if any was reported
+    /// (`median_hr_bpm` in JSON).
+    #[serde(rename = "median_hr_bpm")]
     pub heart_rate_bpm: Option<RateSummary>,
     /// Time-domain HRV over the whole recording, normal-to-normal intervals
     /// only (both beats good), Task Force of the ESC and NASPE 1996.
     pub hrv: HrvSummary,
     /// Median delay from a beat's peak to its event, ms.
     pub latency_median_ms: Option<f64>,
-    /// Non-finite samples replaced.
+    /// Non-finite samples replaced by the last good value
+    /// (`replaced_samples` in JSON).
+    #[serde(rename = "replaced_samples")]
     pub rejected_samples: u64,
     /// Samples at the rails.
     pub clipped_samples: u64,
@@ -66,7 +70,7 @@ impl From<HrvStats> for HrvSummary {
 }
 
 impl Replay {
-    /// `(time_s, bpm)` of every smoothed heart rate, at the moment it was
+    /// `(time_s, bpm)` of every median heart rate, at the moment it was
     /// reported.
     pub fn heart_rate_track(&self) -> Vec<(f64, f64)> {
         self.beats

@@ -95,15 +95,20 @@ pub struct Figures {
     pub good_beats: usize,
     /// Good beats as a share of all, percent.
     pub good_share_percent: f64,
-    /// Mean of the smoothed heart rate reported with good beats, bpm.
+    /// Mean of the median heart rate reported with good beats, bpm.
+    #[serde(rename = "median_hr_mean_bpm")]
     pub hr_mean_bpm: Option<f64>,
     /// Lowest of those, bpm.
+    #[serde(rename = "median_hr_min_bpm")]
     pub hr_min_bpm: Option<f64>,
     /// Highest of those, bpm.
+    #[serde(rename = "median_hr_max_bpm")]
     pub hr_max_bpm: Option<f64>,
     /// Median delay from a beat's peak to its event, ms.
     pub latency_median_ms: Option<f64>,
-    /// Non-finite samples replaced.
+    /// Non-finite samples replaced by the last good value
+    /// (`replaced_samples` in JSON).
+    #[serde(rename = "replaced_samples")]
     pub rejected_samples: u64,
     /// Samples at the rails.
     pub clipped_samples: u64,

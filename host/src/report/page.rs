@@ -23,17 +23,17 @@ fn summary_cards(f: &Figures) -> Vec<String> {
     let hr = match f.hr_mean_bpm {
         Some(_) => format!(
             "{} <small>bpm</small>",
-            fig("hr_mean_bpm", f.hr_mean_bpm, 1)
+            fig("median_hr_mean_bpm", f.hr_mean_bpm, 1)
         ),
         None => format!(
             "{} <small>no good beats</small>",
-            fig("hr_mean_bpm", None, 1)
+            fig("median_hr_mean_bpm", None, 1)
         ),
     };
     let range = format!(
         "{}–{} <small>bpm</small>",
-        fig("hr_min_bpm", f.hr_min_bpm, 1),
-        fig("hr_max_bpm", f.hr_max_bpm, 1)
+        fig("median_hr_min_bpm", f.hr_min_bpm, 1),
+        fig("median_hr_max_bpm", f.hr_max_bpm, 1)
     );
     let mut cards = vec![
         card(
@@ -72,8 +72,8 @@ fn summary_cards(f: &Figures) -> Vec<String> {
                 fig("good_share_percent", Some(f.good_share_percent), 1)
             ),
         ),
-        card("heart rate, mean", hr),
-        card("heart rate range", range),
+        card("median HR, mean", hr),
+        card("median HR range", range),
         card(
             "latency, peak to event",
             format!(
@@ -133,7 +133,7 @@ fn header(input: &ReportInput<'_>, f: &Figures, rendered: &[&str]) -> String {
         "<header id=\"summary\">\n<h1><span data-figure=\"record\">{name}</span><span class=\"tool\">plethwire report</span></h1>\n\
          <p class=\"sub\">signal <span data-figure=\"signal\">{signal}</span>{units}; input: {} samples replaced (not a number), {} at the rails, {} filter restarts</p>\n\
          {no_score}<dl class=\"cards\">{}</dl>\n<nav>{nav}</nav>\n</header>\n",
-        count("rejected_samples", Some(f.rejected_samples as usize)),
+        count("replaced_samples", Some(f.rejected_samples as usize)),
         count("clipped_samples", Some(f.clipped_samples as usize)),
         count("restarts", Some(f.restarts as usize)),
         cards.concat(),
@@ -213,7 +213,7 @@ fn score_section(input: &ReportInput<'_>, f: &Figures) -> Option<String> {
         &format!(
             "<div class=\"row\">{}\n<p class=\"note\">Beats match one to one within ±150 ms, closest pairs first \
              (ANSI/AAMI EC57 practice); Se = TP/(TP+FN), +P = TP/(TP+FP), F1 = 2TP/(2TP+FP+FN). The heart-rate error \
-             compares, at each second of the reference series, the smoothed rate the pipeline had last reported; \
+             compares, at each second of the reference series, the median HR the pipeline had last reported; \
              seconds without a reference value or before the first report are left out.</p></div>",
             table(&rows)
         ),

@@ -45,7 +45,7 @@ pub fn excerpt_section(
         (Mark::Line, RAW, "input"),
         (Mark::Line, BANDED, "band-passed"),
         (Mark::Dot, GOOD, "good beat (at its peak)"),
-        (Mark::Cross, FLAGGED, "flagged beat"),
+        (Mark::Cross, FLAGGED, "bad beat"),
     ];
     if reference.is_some() {
         marks.push((Mark::Triangle, REFERENCE, "reference beat"));
@@ -86,12 +86,12 @@ pub fn trend_sections(input: &ReportInput<'_>) -> Result<String, PlotError> {
         .filter(|p| !p.is_empty());
     let hr = charts::heart_rate_svg(run, reference.as_deref())?;
     let mut marks = vec![
-        (Mark::Dot, GOOD, "instantaneous, good beat"),
-        (Mark::Cross, FLAGGED, "instantaneous, flagged beat"),
+        (Mark::Dot, GOOD, "HR, good beat"),
+        (Mark::Cross, FLAGGED, "HR, bad beat"),
         (
             Mark::Line,
             LINE,
-            "smoothed (median of the last 12 s of good intervals)",
+            "median HR (of the good intervals of the last 12 s)",
         ),
     ];
     let source = input
@@ -101,17 +101,17 @@ pub fn trend_sections(input: &ReportInput<'_>) -> Result<String, PlotError> {
         marks.push((Mark::Line, REFERENCE, s.as_str()));
     }
     let hr_body = format!(
-        "{}\n<figure>{hr}</figure>\n<p class=\"note\">Instantaneous rate is 60000 / interval at each beat's peak; \
-         the smoothed rate is drawn when the pipeline reported it. Flagged beats beyond the axis are drawn on its edge.</p>",
+        "{}\n<figure>{hr}</figure>\n<p class=\"note\">HR is 60000 / interval at each beat's peak; \
+         the median HR is drawn when the pipeline reported it. Bad beats beyond the axis are drawn on its edge.</p>",
         legend(&marks)
     );
     let tach = charts::tachogram_svg(run)?;
     let tach_body = format!(
         "{}\n<figure>{tach}</figure>\n<p class=\"note\">Each beat's interval from the previous beat's peak. \
-         Flagged beats beyond the axis are drawn on its edge.</p>",
+         Bad beats beyond the axis are drawn on its edge.</p>",
         legend(&[
             (Mark::Dot, GOOD, "good beat"),
-            (Mark::Cross, FLAGGED, "flagged beat"),
+            (Mark::Cross, FLAGGED, "bad beat"),
         ])
     );
     Ok(section("heart-rate", &hr_body) + &section("intervals", &tach_body))
@@ -185,11 +185,11 @@ pub fn quality_section(input: &ReportInput<'_>, f: &Figures) -> Result<String, P
     ]);
     let body = format!(
         "{}\n{}\n<figure>{svg}</figure>\n<div class=\"row\">{rows}\n<p class=\"note\">Correlation of each pulse with \
-         the running template of recent clean pulses; below {MIN_CORRELATION} (dashed) a beat is flagged. A beat is \
-         good when no flag but “no interval” is set. The state strip follows the pipeline's state events.</p></div>",
+         the running template of recent clean pulses; below {MIN_CORRELATION} (dashed) a beat is flagged low correlation. A beat is \
+         good when no flag but “no interval” is set, bad otherwise. The state strip follows the pipeline's state events.</p></div>",
         legend(&[
             (Mark::Dot, GOOD, "good beat"),
-            (Mark::Cross, FLAGGED, "flagged beat"),
+            (Mark::Cross, FLAGGED, "bad beat"),
             (Mark::Dashed, GUIDE, "correlation threshold"),
         ]),
         legend(&state_marks),
@@ -249,8 +249,8 @@ pub fn filter_section(
         escape(&format!("{}", input.config.sample_rate_hz)),
         legend(&[
             (Mark::Line, LINE, "gain, group delay"),
-            (Mark::Block, HEART, "this record's heart rates (smoothed, min to max)"),
-            (Mark::Line, HEART, "mean heart rate"),
+            (Mark::Block, HEART, "this record's median HR, min to max"),
+            (Mark::Line, HEART, "mean of the median HR"),
             (Mark::Dashed, GUIDE, "band edges"),
             // A band-pass's zeros at DC and Nyquist take every such curve
             // below the axis at both ends.

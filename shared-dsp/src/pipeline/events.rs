@@ -31,6 +31,35 @@ impl BeatFlags {
         | Self::INPUT_REJECTED
         | Self::MOTION;
 
+    /// Every flag with its name, in bit order: the one name CSV, JSON and
+    /// the terminal use (`docs/vocabulary.md`; the terminal writes the
+    /// underscore as a space).
+    pub const NAMES: [(u8, &'static str); 6] = [
+        (Self::NO_INTERVAL, "no_interval"),
+        (Self::IMPLAUSIBLE_INTERVAL, "implausible_interval"),
+        (Self::CLIPPED, "clipped"),
+        (Self::LOW_CORRELATION, "low_correlation"),
+        (Self::INPUT_REJECTED, "input_replaced"),
+        (Self::MOTION, "motion"),
+    ];
+
+    /// The names of the flags set, in bit order.
+    pub fn names(self) -> impl Iterator<Item = &'static str> {
+        Self::NAMES
+            .into_iter()
+            .filter(move |(bit, _)| self.has(*bit))
+            .map(|(_, name)| name)
+    }
+
+    /// The beat's verdict in one word: `good` ([`Self::is_good`]) or `bad`.
+    pub fn verdict(self) -> &'static str {
+        if self.is_good() {
+            "good"
+        } else {
+            "bad"
+        }
+    }
+
     /// Is flag `bit` set?
     pub fn has(self, bit: u8) -> bool {
         self.0 & bit != 0
@@ -60,8 +89,8 @@ pub struct BeatEvent {
     pub ibi_ms: Option<f32>,
     /// Instantaneous heart rate, 60000 / IBI, bpm.
     pub hr_bpm: Option<f32>,
-    /// Smoothed heart rate: 60000 / median of the good intervals in the
-    /// last [`super::Options::hr_window_s`], bpm.
+    /// Median heart rate: 60000 / median of the good intervals in the
+    /// last [`super::Options::hr_window_s`] (12 s by default), bpm.
     pub hr_smoothed_bpm: Option<f32>,
     /// Pulse amplitude: foot-to-peak height of the lightly smoothed input
     /// (input units; with the DC level it gives the perfusion index).
@@ -86,6 +115,20 @@ pub enum SignalState {
     Saturated,
     /// Beats are found but most are not trusted (motion, artefact).
     Noisy,
+}
+
+impl SignalState {
+    /// The state's one name (`docs/vocabulary.md`; the terminal writes the
+    /// underscore as a space).
+    pub const fn name(self) -> &'static str {
+        match self {
+            Self::Acquiring => "acquiring",
+            Self::Good => "good",
+            Self::NoSignal => "no_signal",
+            Self::Saturated => "saturated",
+            Self::Noisy => "noisy",
+        }
+    }
 }
 
 /// A change of [`SignalState`].
@@ -113,5 +156,29 @@ impl Output {
     /// Nothing to report?
     pub fn is_empty(&self) -> bool {
         self.beat.is_none() && self.state.is_none()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_flag_has_one_plain_name() {
+        let mut all = 0u8;
+        for (i, (bit, name)) in BeatFlags::NAMES.iter().enumerate() {
+            assert_eq!(*bit, 1 << i, "{name} out of bit order");
+            assert!(name.bytes().all(|c| c.is_ascii_lowercase() || c == b'_'));
+            all |= bit;
+        }
+        assert_eq!(all | BeatFlags::BAD, all, "a flag without a name");
+        let f = BeatFlags(BeatFlags::NO_INTERVAL | BeatFlags::CLIPPED);
+        let mut names = f.names();
+        assert_eq!(names.next(), Some("no_interval"));
+        assert_eq!(names.next(), Some("clipped"));
+        assert_eq!(names.next(), None);
+        assert_eq!(f.verdict(), "bad");
+        assert_eq!(BeatFlags(BeatFlags::NO_INTERVAL).verdict(), "good");
+        assert_eq!(SignalState::NoSignal.name(), "no_signal");
     }
 }

@@ -75,7 +75,7 @@ fn an_unknown_key_names_itself_and_its_line() {
     let text = WHOLE.replace("rated_ma = 20", "rated_mA = 20");
     let e = Draft::from_toml(&text).unwrap_err().to_string();
     assert!(
-        e.starts_with("line 8 (`rated_mA = 20`): unknown field `rated_mA`"),
+        e.starts_with("line 8 (`rated_mA = 20`): unknown key \"rated_mA\""),
         "{e}"
     );
     assert!(!e.contains('\n'));

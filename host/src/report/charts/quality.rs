@@ -20,15 +20,9 @@ const CORRELATION_HEIGHT: u32 = 270;
 /// axes line up.
 const LABELS: u32 = 150;
 
-/// The flags in the order of their rows, with their names.
-pub const FLAG_ROWS: [(u8, &str); 6] = [
-    (BeatFlags::NO_INTERVAL, "no interval"),
-    (BeatFlags::IMPLAUSIBLE_INTERVAL, "implausible interval"),
-    (BeatFlags::CLIPPED, "clipped"),
-    (BeatFlags::LOW_CORRELATION, "low correlation"),
-    (BeatFlags::INPUT_REJECTED, "input replaced"),
-    (BeatFlags::MOTION, "motion"),
-];
+/// The flags in the order of their rows, with their names
+/// (`docs/vocabulary.md`).
+pub const FLAG_ROWS: [(u8, &str); 6] = BeatFlags::NAMES;
 
 /// The colour of a signal state's span.
 pub fn state_colour(s: SignalState) -> Rgb {
@@ -150,7 +144,8 @@ fn rows(
                 }),
         )?;
     }
-    let names = std::iter::once("signal state").chain(FLAG_ROWS.iter().map(|r| r.1));
+    let names = std::iter::once("signal state".to_string())
+        .chain(FLAG_ROWS.iter().map(|r| crate::vocabulary::words(r.1)));
     let style = TextStyle::from(FONT.into_font()).pos(Pos::new(HPos::Right, VPos::Center));
     for (k, name) in names.enumerate() {
         let (px, py) = chart.backend_coord(&(0.0, n - k as f64));
