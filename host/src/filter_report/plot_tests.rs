@@ -4,7 +4,9 @@
 
 use super::*;
 use crate::filter_report::Stage;
-use crate::plot::svg_check::{crosses, curves, legend_frames, run_along_bottom, split_unit, texts};
+use crate::plot::svg_check::{
+    crosses, curves, legend_frames, plain, run_along_bottom, split_unit, texts,
+};
 
 fn plot(stages: Vec<Stage>, rate: f64) -> String {
     let spec = crate::filter_report::FilterSpec::new(rate, stages).unwrap();
@@ -98,12 +100,6 @@ fn a_rate_outside_the_pipelines_range_is_warned_on_the_figure() {
     let report = FilterReport::build(&spec, None, "F", "cmd").unwrap();
     assert_eq!(report.warnings.len(), 1, "{:?}", report.warnings);
     let svg = render_svg(&report).unwrap();
-    let plain = |s: &str| {
-        s.replace('\u{a0}', " ")
-            .split_whitespace()
-            .collect::<Vec<_>>()
-            .join(" ")
-    };
     let shown = plain(&texts(&svg).join(" "));
     assert!(shown.contains(&plain(&report.warnings[0])), "{shown}");
     assert!(texts(&svg).iter().any(|t| t == "warning"));

@@ -12,6 +12,15 @@ pub fn texts(svg: &str) -> Vec<String> {
         .collect()
 }
 
+/// `text` with no-break spaces as plain ones and runs of white space as
+/// one: what a reader sees, for comparing a figure's text with a message.
+pub fn plain(text: &str) -> String {
+    text.replace('\u{a0}', " ")
+        .split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
 /// A line that ends in a number followed by a line that starts with a
 /// unit: a title wrapped between the two.
 pub fn split_unit(texts: &[String]) -> Option<(String, String)> {

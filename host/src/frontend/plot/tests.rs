@@ -5,7 +5,7 @@
 use super::*;
 use crate::frontend::Draft;
 use crate::plot::svg_check::{crosses, curves as drawn, legend_frames, run_along_bottom};
-use crate::plot::svg_check::{split_unit, texts};
+use crate::plot::svg_check::{plain, split_unit, texts};
 
 const EXAMPLE: &str = include_str!("../../../../examples/frontend-fingerclip.toml");
 
@@ -125,12 +125,6 @@ fn every_finding_is_on_the_figure() {
         r.findings
     );
     let svg = render_svg(&r).unwrap();
-    let plain = |s: &str| {
-        s.replace('\u{a0}', " ")
-            .split_whitespace()
-            .collect::<Vec<_>>()
-            .join(" ")
-    };
     let shown = plain(&texts(&svg).join(" "));
     for f in &r.findings {
         let line = plain(&format!("{}: {}", f.node, f.message));
