@@ -4,18 +4,18 @@ use clap::Args;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
-use std::time::{Duration, Instant};
 
 use super::Failure;
+use crate::ride::live::{stream_live, Told, WallClock};
 use crate::ride::{
-    against_truth, run_board, save_ride, scenario, state_words, stream, write_report, BoardOutcome,
-    DemoResult, Progress,
+    against_truth, run_board, save_ride, scenario, write_report, BoardOutcome, DemoResult,
 };
 use crate::values;
-use plethwire::emulate::BuildError;
+use plethwire::emulate::FirmwareSearch;
+use plethwire::output_guard;
 use plethwire::replay::{Replay, Summary};
 use plethwire::score::MatchCounts;
-use plethwire::vocabulary::{verdict_words, MEDIAN_HR};
+use plethwire::vocabulary::MEDIAN_HR;
 use plethwire_dsp::pipeline::Config;
 
 const EXAMPLES: &str = "\
@@ -29,7 +29,14 @@ this demo with known beats: rest, effort, a sprint that shakes the clip,
 recovery, the clip slipping off for 6 s, cool-down. The ride is streamed
 through the beat pipeline, scored against its true beats, run through the
 emulated board when QEMU is installed (and compared bit for bit), saved as
-a WFDB record, and summed up in a report page to open in a browser.
+a WFDB record, and summed up in a report page to open in a browser. On a
+terminal each event is printed when its paced moment comes.
+
+Files go in --out (default: plethwire-demo in the current folder); the demo
+replaces only files an earlier demo wrote there (--force: any). The
+emulated firmware: --firmware ELF or $PLETHWIRE_FIRMWARE, else built in the
+checkout --source DIR or $PLETHWIRE_SOURCE names, else in the checkout this
+program was built from.
 
 Not a medical device; not for diagnosis. Exit status: 0 done, 1 the board
 disagreed with the host or a file could not be written, 2 the command line
@@ -59,20 +66,54 @@ pub struct DemoArgs {
     /// Print the results as JSON instead of the running commentary.
     #[arg(long)]
     pub json: bool,
+
+    /// The emulated firmware's ELF [default: $PLETHWIRE_FIRMWARE, else
+    /// built from --source].
+    #[arg(long, value_name = "ELF")]
+    pub firmware: Option<PathBuf>,
+
+    /// A plethwire checkout to build the emulated firmware in [default:
+    /// $PLETHWIRE_SOURCE, else the checkout this program was built from].
+    #[arg(long, value_name = "DIR")]
+    pub source: Option<PathBuf>,
+
+    /// Replace files in --out that this demo did not write.
+    #[arg(long)]
+    pub force: bool,
 }
 
-/// Build the emulated firmware, saying so first; cargo's diagnostics of a
-/// failed build go to standard error.
-fn build_firmware(say: &mut dyn FnMut(&str)) -> Result<PathBuf, BuildError> {
-    say("building the emulated firmware (cd firmware && cargo build --release; quick when up to date) ...");
-    let built = plethwire::emulate::build_firmware();
-    if let Err(BuildError::Failed { stderr, .. }) = &built {
-        say(stderr.trim_end());
-    }
-    built
+/// The files the demo writes in its folder.
+fn demo_files() -> [String; 5] {
+    [
+        "ride.hea".into(),
+        "ride.dat".into(),
+        "ride.truth".into(),
+        format!("ride.{}", plethwire::replay::DEFAULT_ANNOTATOR),
+        "ride.report.html".into(),
+    ]
 }
+
+/// The file that marks a folder as one the demo wrote (so running the
+/// demo again may replace its own files, and nobody else's).
+const DEMO_MARK: &str = ".plethwire-demo";
 
 impl DemoArgs {
+    /// Create `--out` and make sure the demo's files would replace only
+    /// files an earlier demo wrote there (or anything, with `--force`);
+    /// then mark the folder as the demo's.
+    fn claim_folder(&self) -> Result<(), Failure> {
+        let dir = super::replay::output_dir(Some(&self.out))?;
+        let ours = dir.join(DEMO_MARK).is_file();
+        let files: Vec<PathBuf> = demo_files().iter().map(|f| dir.join(f)).collect();
+        output_guard::check_outputs(&files, &[], self.force || ours)
+            .map_err(super::replay::guard_failure)?;
+        std::fs::write(
+            dir.join(DEMO_MARK),
+            "Written by `plethwire demo`: it may replace its own ride.* files here.\n",
+        )
+        .map_err(|e| Failure::refused(format!("{}: cannot write: {e}", dir.display())))
+    }
+
     /// Run the demo.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
         if !(self.speed.is_finite() && self.speed >= 0.0) {
@@ -87,12 +128,7 @@ impl DemoArgs {
         };
         say(out, "plethwire demo: a finger-clip pulse sensor on a bike trainer (made up, with known beats)")?;
         say(out, "  not a medical device, not for diagnosis; wire real sensors to people only through a battery or a USB isolator (IEC 60601-1 practice)")?;
-        std::fs::create_dir_all(&self.out).map_err(|e| {
-            Failure::refused(format!(
-                "{}: cannot create the folder: {e}",
-                self.out.display()
-            ))
-        })?;
+        self.claim_folder()?;
         let ride = scenario::ride(self.seed)
             .map_err(|e| Failure::refused(format!("cannot make the ride: {e}")))?;
         let (samples, mut files) = save_ride(&self.out, &ride).map_err(Failure::refused)?;
@@ -157,7 +193,8 @@ impl DemoArgs {
 
     /// Stream `samples` through the pipeline at `fs`, paced on a terminal
     /// (at `self.speed`) so the events can be watched, with a progress bar
-    /// and a line per phase, state change and every 10 s of beats.
+    /// and a line per phase, state change and every 10 s of beats, each
+    /// printed when its moment comes ([`stream_live`]).
     fn stream_watched(
         &self,
         samples: &[f64],
@@ -166,14 +203,8 @@ impl DemoArgs {
         chatty: bool,
         out: &mut dyn Write,
     ) -> Result<Replay, Failure> {
-        let mut lines: Vec<String> = Vec::new();
-        // Stream, paced on a terminal so the events can be watched.
         let tty = std::io::stdout().is_terminal() && chatty;
-        let pace = if tty && self.speed > 0.0 {
-            Some(self.speed)
-        } else {
-            None
-        };
+        let pace = (tty && self.speed > 0.0).then_some(self.speed);
         let bar = if tty {
             ProgressBar::with_draw_target(Some(samples.len() as u64), ProgressDrawTarget::stderr())
         } else {
@@ -183,60 +214,32 @@ impl DemoArgs {
             ProgressStyle::with_template("  {bar:40} {percent:>3}%  {msg}")
                 .unwrap_or_else(|_| ProgressStyle::default_bar()),
         );
-        let start = Instant::now();
-        let mut last_shown = -10.0;
-        let replay = stream(samples, config, &mut |p| match p {
-            Progress::Sample(n) => {
-                if n % 25 == 0 {
-                    bar.set_position(n);
-                    if let Some(x) = pace {
-                        let due = Duration::from_secs_f64(n as f64 / fs / x);
-                        if let Some(wait) = due.checked_sub(start.elapsed()) {
-                            std::thread::sleep(wait);
-                        }
+        let mut failed = None;
+        let replay = stream_live(
+            samples,
+            config,
+            fs,
+            pace,
+            &mut WallClock::start(),
+            &mut |told| match told {
+                Told::Position(n) => bar.set_position(n),
+                Told::Rate(m) => bar.set_message(m),
+                // Above the bar on a terminal, else straight out.
+                Told::Line(text) if chatty && failed.is_none() => {
+                    if tty {
+                        bar.println(&text);
+                    } else {
+                        failed = writeln!(out, "{text}").and_then(|_| out.flush()).err();
                     }
                 }
-            }
-            Progress::Phase(ph) => lines.push(format!("  {:>6.1} s  ── {}", ph.start_s, ph.what)),
-            Progress::State(s) => lines.push(format!(
-                "  {:>6.1} s  state: {}",
-                s.at as f64 / fs,
-                state_words(s.previous, s.state)
-            )),
-            Progress::Beat(b) => {
-                let t = b.peak_index as f64 / fs;
-                bar.set_message(format!(
-                    "{:>5.1} s  {MEDIAN_HR} {}",
-                    t,
-                    b.hr_smoothed_bpm
-                        .map_or("-".into(), |h| format!("{h:.0} bpm"))
-                ));
-                // One beat line every 10 s of ride keeps the stream readable.
-                if t - last_shown >= 10.0 {
-                    last_shown = t;
-                    lines.push(format!(
-                        "  {:>6.1} s  beat: IBI {} ms, {MEDIAN_HR} {} bpm, quality {:.2}, {}",
-                        t,
-                        b.ibi_ms.map_or("-".into(), |i| format!("{i:.0}")),
-                        b.hr_smoothed_bpm.map_or("-".into(), |h| format!("{h:.0}")),
-                        b.quality,
-                        verdict_words(b.flags)
-                    ));
-                }
-            }
-        });
-        // Print the commentary as it came (above the bar on a terminal).
-        for l in lines.drain(..) {
-            if chatty {
-                if tty {
-                    bar.println(&l);
-                } else {
-                    writeln!(out, "{l}").map_err(Failure::output)?;
-                }
-            }
-        }
+                Told::Line(_) => {}
+            },
+        );
         bar.finish_and_clear();
-        Ok(replay)
+        match failed {
+            Some(e) => Err(Failure::output(e)),
+            None => Ok(replay),
+        }
     }
 
     /// The emulated board's run of `samples`, compared with the host's
@@ -256,7 +259,12 @@ impl DemoArgs {
                     let _ = writeln!(std::io::stderr(), "  {t}");
                 }
             };
-            run_board(samples, config, replay, &mut || build_firmware(&mut note))
+            let search = FirmwareSearch {
+                elf: self.firmware.clone(),
+                source: self.source.clone(),
+                rebuild: true,
+            };
+            run_board(samples, config, replay, &mut || search.locate(&mut note))
         }
     }
 }

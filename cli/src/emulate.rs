@@ -14,11 +14,13 @@ use plethwire_dsp::wire::{Frame, Message};
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
 use plethwire::emulate::{
-    compare, find_elf, find_qemu, Agreement, Disagreement, Emulation, Link, PerfReport, Session,
+    compare, find_qemu, Agreement, Disagreement, Emulation, Firmware, FirmwareSearch, Link,
+    PerfReport, Session,
 };
 use plethwire::replay::{
     load, replay, write_recording_beats, Recording, Replay, Summary, DEFAULT_ANNOTATOR,
 };
+use plethwire_records::annotation_path;
 
 const EXAMPLES: &str = "\
 Examples:
@@ -27,11 +29,17 @@ Examples:
   plethwire emulate ../shared/data/bidmc/bidmc01 --count-instructions --quiet
   plethwire emulate ../shared/data/bidmc/bidmc01 --seconds 30 --json
 
-Runs the firmware (firmware/emulated, built with `cd firmware && cargo build
---release`) in QEMU's mps2-an386 board, prints each beat and state change it
-sends, writes <record>.<annotator> (WFDB annotations, as `plethwire replay`)
-in --out (default: beside the record), and checks every event against the
-host's replay bit for bit. Exit status: 0 done and identical, 1 the board,
+Runs the firmware (firmware/emulated) in QEMU's mps2-an386 board, prints
+each beat and state change it sends, writes <record>.<annotator> (WFDB
+annotations, as `plethwire replay`, never over an existing file without
+--force) in --out (default: the current folder), and checks every event
+against the host's replay bit for bit.
+
+The firmware: --firmware ELF, else $PLETHWIRE_FIRMWARE, else built in the
+plethwire checkout --source DIR or $PLETHWIRE_SOURCE names, else the
+checkout this program was built from (firmware/target/thumbv7em-none-eabihf/
+release/plethwire-emulated, built there when missing; PLETHWIRE_SOURCE set
+to nothing turns this off). Exit status: 0 done and identical, 1 the board,
 QEMU or the files failed or the events differ, 2 the command line could not
 be understood.";
 
@@ -43,22 +51,34 @@ pub struct EmulateArgs {
     #[arg(value_name = "RECORD")]
     pub record: PathBuf,
 
-    /// Folder for the annotation file [default: the record's folder].
+    /// Folder for the annotation file [default: the current folder].
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
 
-    /// Annotator name: the output file's extension.
+    /// Annotator name: the output file's extension (not hea, dat or one
+    /// the recording's files use).
     #[arg(long, value_name = "NAME", default_value = DEFAULT_ANNOTATOR)]
     pub annotator: String,
+
+    /// Replace an annotation file that already exists, and allow an
+    /// annotator name a file beside the recording uses.
+    #[arg(long)]
+    pub force: bool,
 
     /// Send the samples over the emulated UART (about 10 kB/s) instead of
     /// semihosting files.
     #[arg(long)]
     pub uart: bool,
 
-    /// The emulated firmware's ELF [default: firmware/target/thumbv7em-none-eabihf/release/plethwire-emulated].
-    #[arg(long, value_name = "PATH")]
-    pub elf: Option<PathBuf>,
+    /// The emulated firmware's ELF [default: $PLETHWIRE_FIRMWARE, else
+    /// built from --source].
+    #[arg(long, visible_alias = "elf", value_name = "ELF")]
+    pub firmware: Option<PathBuf>,
+
+    /// A plethwire checkout to build the emulated firmware in [default:
+    /// $PLETHWIRE_SOURCE, else the checkout this program was built from].
+    #[arg(long, value_name = "DIR")]
+    pub source: Option<PathBuf>,
 
     /// Only the first S seconds of the recording.
     #[arg(long, value_name = "S", value_parser = values::positive_seconds)]
@@ -110,12 +130,13 @@ fn state_line(s: &StateEvent, fs: f64) -> String {
 impl EmulateArgs {
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
-        super::replay::check_annotator(&self.annotator)?;
+        super::replay::check_annotator(&self.record, &self.annotator, self.force)?;
         // The cheap checks first: no point loading 8 minutes of samples
         // for a board that is not there.
-        let elf = find_elf(self.elf.as_deref()).map_err(Failure::refused)?;
+        let firmware = self.firmware()?;
         let qemu = find_qemu().map_err(Failure::refused)?;
         let rec = load(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
+        let dir = self.output_dir(&rec)?;
         let fs = rec.signal.fs;
         let config = self.pipeline.config(fs);
         let n = match self.seconds {
@@ -126,12 +147,12 @@ impl EmulateArgs {
         let link = if self.uart { Link::Uart } else { Link::File };
         let emulation = Emulation {
             qemu,
-            elf,
+            elf: firmware.elf.clone(),
             link,
             count_instructions: self.count_instructions,
             timeout: None,
         };
-        let head = self.head_line(&rec, n);
+        let head = self.head_line(&rec, n) + &firmware_line(&firmware);
         let quiet = self.quiet || self.json;
         if !self.json {
             out.write_all(head.as_bytes()).map_err(Failure::output)?;
@@ -164,7 +185,6 @@ impl EmulateArgs {
             ))
         })?;
         let board = session.to_replay();
-        let dir = super::replay::beat_file_dir(self.out.as_deref(), &rec.path)?;
         let ann =
             write_recording_beats(&dir, &rec, &self.annotator, &board).map_err(Failure::refused)?;
         let agreement = compare(&board.beats, &board.states, &host);
@@ -176,7 +196,7 @@ impl EmulateArgs {
                 &session,
                 &board,
                 &agreement,
-                &ann,
+                (&ann, &firmware),
             )
         } else {
             summary(&session, &board.summary(), agreement.as_ref().ok(), &ann)
@@ -187,6 +207,33 @@ impl EmulateArgs {
                 "the board's events differ from the host replay: {e}"
             ))
         })
+    }
+
+    /// The folder for the annotation file of `rec`, once nothing is in
+    /// the way of that file.
+    fn output_dir(&self, rec: &Recording) -> Result<PathBuf, Failure> {
+        let dir = super::replay::output_dir(self.out.as_deref())?;
+        let file = annotation_path(&dir.join(&rec.name), &self.annotator);
+        super::replay::check_outputs(&self.record, &[file], self.force)?;
+        Ok(dir)
+    }
+
+    /// The firmware as `--firmware`, `--source` and the environment say;
+    /// a build's messages go to standard error.
+    fn firmware(&self) -> Result<Firmware, Failure> {
+        let search = FirmwareSearch {
+            elf: self.firmware.clone(),
+            source: self.source.clone(),
+            rebuild: false,
+        };
+        let quiet = self.json;
+        search
+            .locate(&mut |t| {
+                if !quiet {
+                    eprintln!("  {t}");
+                }
+            })
+            .map_err(Failure::refused)
     }
 
     /// The first line: which record, how long, at what rate, over which link.
@@ -204,6 +251,11 @@ impl EmulateArgs {
             }
         )
     }
+}
+
+/// Which firmware ran, and where it came from.
+fn firmware_line(f: &Firmware) -> String {
+    format!("  firmware    {} ({})\n", f.elf.display(), f.origin)
 }
 
 fn summary(
@@ -248,7 +300,7 @@ fn perf_line(p: &PerfReport) -> String {
 }
 
 /// The run as our JSON document: record, link, frames, summary, agreement
-/// with the host, performance and the annotation file.
+/// with the host, performance, the annotation file and the firmware.
 fn json_report(
     name: &str,
     uart: bool,
@@ -256,7 +308,7 @@ fn json_report(
     session: &Session,
     board: &Replay,
     agreement: &Result<Agreement, Disagreement>,
-    ann: &Path,
+    (ann, firmware): (&Path, &Firmware),
 ) -> String {
     let doc = serde_json::json!({
         "record": name,
@@ -272,6 +324,8 @@ fn json_report(
         "difference": agreement.as_ref().err().map(ToString::to_string),
         "perf": session.perf,
         "annotations": ann.display().to_string(),
+        "firmware": firmware.elf.display().to_string(),
+        "firmware_from": firmware.origin,
     });
     serde_json::to_string_pretty(&doc).unwrap_or_default() + "\n"
 }

@@ -19,8 +19,10 @@ Examples:
   plethwire filter --rate 500 --high-pass 0.5 --notch 50 --notch 60:20 --at 0.5,1.2,50 --json
 
 Stages run in this order: --dc-block, --high-pass, --band, --low-pass, then
-each --notch as given. Exit status: 0 done, 1 the filter was refused or the
-plot could not be written, 2 the command line could not be understood.";
+each --notch as given. The plot goes to the current folder; a file already
+there is not replaced without --force. Exit status: 0 done, 1 the filter
+was refused, the plot is in the way or could not be written, 2 the command
+line could not be understood.";
 
 fn after_help() -> String {
     format!(
@@ -80,6 +82,10 @@ pub struct FilterArgs {
     /// Do not write a plot.
     #[arg(long, conflicts_with = "plot")]
     pub no_plot: bool,
+
+    /// Replace the plot if the file already exists.
+    #[arg(long)]
+    pub force: bool,
 
     /// Print one JSON document instead of the text report.
     #[arg(long)]
@@ -174,6 +180,12 @@ impl FilterArgs {
             eprintln!("plethwire: warning: {w}");
         }
         if !self.no_plot {
+            plethwire::output_guard::check_outputs(
+                std::slice::from_ref(&self.plot),
+                &[],
+                self.force,
+            )
+            .map_err(Failure::refused)?;
             write_svg(&report, &self.plot).map_err(Failure::refused)?;
             report.plot = Some(self.plot.display().to_string());
         }

@@ -54,7 +54,8 @@ examples/frontend-fingerclip.toml. Options override the file's values;
 const EXIT_AND_CAUTIONS: &str = "\
 Exit status: 0 done (also when the report finds errors: they are listed
 under Errors, and in the JSON's findings with level \"error\"), 1 the circuit file could not be read or was refused,
-the LED cannot light, or the plot could not be written, 2 the command line
+the LED cannot light, or the plot is in the way (an existing file needs
+--force) or could not be written, 2 the command line
 could not be understood or does not describe a whole circuit.
 
 Cautions:
@@ -169,6 +170,11 @@ pub struct FrontendArgs {
     /// Do not write a plot.
     #[arg(long, conflicts_with = "plot")]
     pub no_plot: bool,
+
+    /// Replace the plot if the file already exists (never the circuit
+    /// file).
+    #[arg(long)]
+    pub force: bool,
 
     /// Print one JSON document instead of the text report.
     #[arg(long)]
@@ -295,6 +301,13 @@ impl FrontendArgs {
         })?;
         let mut report = FrontendReport::build(&circuit).map_err(Failure::refused)?;
         if !self.no_plot {
+            let inputs: Vec<PathBuf> = self.circuit.iter().cloned().collect();
+            plethwire::output_guard::check_outputs(
+                std::slice::from_ref(&self.plot),
+                &inputs,
+                self.force,
+            )
+            .map_err(Failure::refused)?;
             write_svg(&report, &self.plot).map_err(Failure::refused)?;
             report.plot = Some(self.plot.display().to_string());
         }

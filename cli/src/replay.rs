@@ -9,10 +9,12 @@ use plethwire_dsp::pipeline::BeatFlags;
 
 use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
+use plethwire::output_guard::{self, OutputError, DEFAULT_OUTPUT_DIR};
 use plethwire::replay::{
-    beat_rows, beats_csv, load, replay_recording, write_recording_beats, BeatRow, InputInfo,
-    Summary, DEFAULT_ANNOTATOR,
+    beat_rows, beats_csv, load, replay_recording, write_recording_beats, InputInfo, Recording,
+    Replay, Summary, DEFAULT_ANNOTATOR,
 };
+use plethwire_records::annotation_path;
 
 const EXAMPLES: &str = "\
 Examples:
@@ -21,10 +23,12 @@ Examples:
   plethwire replay session.csv --signal pleth --time-column time_s --json
 
 Writes <record>.<annotator> (WFDB annotations, symbol N at each systolic
-peak) in --out (default: beside the record); --beats-csv and --beats-json
-add <record>.<annotator>.csv / .json with every beat's fields. Exit status:
-0 done, 1 the recording could not be read or the results not written,
-2 the command line could not be understood.";
+peak) in --out (default: the current folder); --beats-csv and --beats-json
+add <record>.<annotator>.csv / .json with every beat's fields. A file that
+already exists is not replaced without --force; hea, dat and the recording's
+own files (its reference beats) are never written. Exit status: 0 done,
+1 the recording could not be read or the results not written, 2 the
+command line could not be understood.";
 
 /// Options of `plethwire replay`.
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -34,13 +38,20 @@ pub struct ReplayArgs {
     #[arg(value_name = "RECORD")]
     pub record: PathBuf,
 
-    /// Folder for the output files [default: the record's folder].
+    /// Folder for the output files [default: the current folder].
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
 
-    /// Annotator name: the output file's extension.
+    /// Annotator name: the output file's extension (not hea, dat or one
+    /// the recording's files use).
     #[arg(long, value_name = "NAME", default_value = DEFAULT_ANNOTATOR)]
     pub annotator: String,
+
+    /// Replace output files that already exist, and allow an annotator
+    /// name a file beside the recording uses (never its header or
+    /// samples).
+    #[arg(long)]
+    pub force: bool,
 
     /// Also write every beat as CSV.
     ///
@@ -92,22 +103,42 @@ struct MotionReport<'a> {
     flagged_beats: usize,
 }
 
-/// Refuse an annotator name that cannot be a file extension.
-pub(super) fn check_annotator(name: &str) -> Result<(), Failure> {
+/// Refuse an annotator name that cannot be a file extension, is a WFDB
+/// record part, or (unless `force`) is taken by a file of `record`.
+pub(super) fn check_annotator(record: &Path, name: &str, force: bool) -> Result<(), Failure> {
     let ok = !name.is_empty() && name.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
-    if ok {
-        Ok(())
-    } else {
-        Err(Failure::usage(format!(
+    if !ok {
+        return Err(Failure::usage(format!(
             "annotator name '{name}' must be letters, digits or '_' (it becomes a file extension)"
-        )))
+        )));
     }
+    output_guard::check_annotator(record, name, force).map_err(guard_failure)
+}
+
+/// A refused output as a failure: a record part is a bad option value
+/// (usage), anything else a refusal.
+pub(crate) fn guard_failure(e: OutputError) -> Failure {
+    match e {
+        OutputError::RecordPart(_) => Failure::usage(e),
+        _ => Failure::refused(e),
+    }
+}
+
+/// Refuse to write `outputs` over `record`'s own files, or over existing
+/// files unless `force`.
+pub(crate) fn check_outputs(
+    record: &Path,
+    outputs: &[PathBuf],
+    force: bool,
+) -> Result<(), Failure> {
+    output_guard::check_outputs(outputs, &output_guard::recording_files(record), force)
+        .map_err(guard_failure)
 }
 
 impl ReplayArgs {
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
-        check_annotator(&self.annotator)?;
+        check_annotator(&self.record, &self.annotator, self.force)?;
         let source = self.pipeline.source_with(&self.motion);
         let rec = load(&self.record, &source).map_err(Failure::refused)?;
         let config = self.pipeline.config(rec.signal.fs);
@@ -117,28 +148,7 @@ impl ReplayArgs {
                 self.record.display()
             ))
         })?;
-        let dir = beat_file_dir(self.out.as_deref(), &rec.path)?;
-        let mut written = Vec::new();
-        let ann =
-            write_recording_beats(&dir, &rec, &self.annotator, &run).map_err(Failure::refused)?;
-        written.push(ann.display().to_string());
-        let mut write = |ext: &str, body: String| -> Result<(), Failure> {
-            let path = dir.join(format!("{}.{}.{ext}", rec.name, self.annotator));
-            std::fs::write(&path, body)
-                .map_err(|e| Failure::refused(format!("{}: cannot write: {e}", path.display())))?;
-            written.push(path.display().to_string());
-            Ok(())
-        };
-        if self.beats_csv {
-            write("csv", beats_csv(&run))?;
-        }
-        if self.beats_json {
-            let rows: Vec<BeatRow> = beat_rows(&run);
-            write(
-                "json",
-                serde_json::to_string_pretty(&rows).unwrap_or_default() + "\n",
-            )?;
-        }
+        let written = self.write_outputs(&rec, &run)?;
         let summary = run.summary();
         let motion = rec.motion.as_ref().map(|m| MotionReport {
             signals: &m.names,
@@ -175,6 +185,44 @@ impl ReplayArgs {
             )
         };
         out.write_all(text.as_bytes()).map_err(Failure::output)
+    }
+
+    /// The outputs for the recording `name`: the annotation file, then
+    /// the beat tables asked for.
+    fn outputs(&self, dir: &Path, name: &str) -> Vec<PathBuf> {
+        let mut outputs = vec![annotation_path(&dir.join(name), &self.annotator)];
+        for (wanted, ext) in [(self.beats_csv, "csv"), (self.beats_json, "json")] {
+            if wanted {
+                outputs.push(dir.join(format!("{name}.{}.{ext}", self.annotator)));
+            }
+        }
+        outputs
+    }
+
+    /// Write the beats of `run` (a replay of `rec`) as
+    /// [`Self::outputs`] lists them, once none is in the way; returns the
+    /// files written.
+    fn write_outputs(&self, rec: &Recording, run: &Replay) -> Result<Vec<String>, Failure> {
+        let dir = output_dir(self.out.as_deref())?;
+        let outputs = self.outputs(&dir, &rec.name);
+        check_outputs(&self.record, &outputs, self.force)?;
+        let ann =
+            write_recording_beats(&dir, rec, &self.annotator, run).map_err(Failure::refused)?;
+        let mut written = vec![ann.display().to_string()];
+        let tables = [
+            (self.beats_csv, beats_csv(run)),
+            (
+                self.beats_json,
+                serde_json::to_string_pretty(&beat_rows(run)).unwrap_or_default() + "\n",
+            ),
+        ];
+        let bodies = tables.into_iter().filter(|(wanted, _)| *wanted);
+        for (path, (_, body)) in outputs[1..].iter().zip(bodies) {
+            std::fs::write(path, body)
+                .map_err(|e| Failure::refused(format!("{}: cannot write: {e}", path.display())))?;
+            written.push(path.display().to_string());
+        }
+        Ok(written)
     }
 }
 
@@ -275,16 +323,10 @@ fn human(name: &str, signal: &str, fs: f64, s: &Summary, written: &[String]) -> 
     t
 }
 
-/// Where the beat files of `record` go: `out`, else the record's folder;
-/// created when missing.
-pub(crate) fn beat_file_dir(out: Option<&Path>, record: &Path) -> Result<PathBuf, Failure> {
-    let dir = match out {
-        Some(d) => d.to_path_buf(),
-        None => record
-            .parent()
-            .map(|p| p.to_path_buf())
-            .unwrap_or_else(|| PathBuf::from(".")),
-    };
+/// Where output files go: `out`, else the current folder (the same for
+/// every command); created when missing.
+pub(crate) fn output_dir(out: Option<&Path>) -> Result<PathBuf, Failure> {
+    let dir = out.map_or_else(|| PathBuf::from(DEFAULT_OUTPUT_DIR), Path::to_path_buf);
     std::fs::create_dir_all(&dir).map_err(|e| {
         Failure::refused(format!("{}: cannot create the folder: {e}", dir.display()))
     })?;

@@ -10,7 +10,8 @@ use super::pipeline_opts::PipelineOpts;
 use super::Failure;
 use plethwire::replay::{load, replay};
 use plethwire::report::{self, Excerpt, Figures, Reference, ReportInput};
-use plethwire::score::records::References;
+use plethwire::score::records::{annotators_beside, References};
+use plethwire_records::annotation_path;
 
 const EXAMPLES: &str = "\
 Examples:
@@ -19,11 +20,13 @@ Examples:
   plethwire report session.csv --signal pleth --rate 100 --json
 
 Writes <record>.report.html in the current folder (or --out FILE): one HTML
-file with its figures inline, readable offline in any browser. Reference
-beats are read from <record>.<reference> (default: peak) and a reference
-heart rate from <record>n.csv (column pulse_bpm) when they exist beside the
-record. Exit status: 0 written, 1 the recording could not be read or the
-page not written, 2 the command line could not be understood.";
+file with its figures inline, readable offline in any browser; a file
+already there is not replaced without --force. Reference beats are read
+from <record>.peak and a reference heart rate from <record>n.csv (column
+pulse_bpm) when they exist beside the record; a --reference named must
+exist. Exit status: 0 written, 1 the recording could not be read, a named
+reference is missing or the page not written, 2 the command line could not
+be understood.";
 
 /// Options of `plethwire report`.
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -39,9 +42,14 @@ pub struct ReportArgs {
     pub out: Option<PathBuf>,
 
     /// Annotator of the reference beats: the extension of their WFDB
-    /// annotation file beside the record.
-    #[arg(long, value_name = "NAME", default_value = "peak")]
-    pub reference: String,
+    /// annotation file beside the record, which must exist [default:
+    /// peak, when it exists].
+    #[arg(long, value_name = "NAME")]
+    pub reference: Option<String>,
+
+    /// Replace the page if it already exists.
+    #[arg(long)]
+    pub force: bool,
 
     /// The stretch of signal to plot, START:SECONDS [default: the 20 s
     /// with the most good beats].
@@ -87,6 +95,33 @@ fn check_annotator(name: &str) -> Result<(), Failure> {
     }
 }
 
+/// The reference annotator unless `--reference` names one.
+const DEFAULT_REFERENCE: &str = "peak";
+
+/// Refuse when the reference beats `<base>.<annotator>` the user named
+/// are not there, naming the file and the annotation files that are.
+fn require_reference_beats(base: &Path, annotator: &str) -> Result<(), Failure> {
+    let file = annotation_path(base, annotator);
+    if file.is_file() {
+        return Ok(());
+    }
+    Err(Failure::refused(format!(
+        "no reference beats: {} does not exist (--reference {annotator}){}",
+        file.display(),
+        beside_hint(base)
+    )))
+}
+
+/// `; annotation files beside it: a, b` or nothing.
+fn beside_hint(base: &Path) -> String {
+    let found = annotators_beside(base);
+    if found.is_empty() {
+        String::new()
+    } else {
+        format!("; annotation files beside it: {}", found.join(", "))
+    }
+}
+
 #[derive(Serialize)]
 struct Printed<'a> {
     written: String,
@@ -129,7 +164,8 @@ fn human(path: &Path, bytes: usize, f: &Figures) -> String {
 impl ReportArgs {
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
-        check_annotator(&self.reference)?;
+        let annotator = self.reference.as_deref().unwrap_or(DEFAULT_REFERENCE);
+        check_annotator(annotator)?;
         let rec = load(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
         let config = self.pipeline.config(rec.signal.fs);
         let run = replay(&rec.signal.samples, config).map_err(|e| {
@@ -139,7 +175,7 @@ impl ReportArgs {
             ))
         })?;
         let refs = References {
-            annotator: self.reference.clone(),
+            annotator: annotator.to_owned(),
             ..References::default()
         };
         // A CSV recording's references sit beside it under its stem.
@@ -152,6 +188,9 @@ impl ReportArgs {
         } else {
             rec.path.clone()
         };
+        if self.reference.is_some() {
+            require_reference_beats(&base, annotator)?;
+        }
         let reference: Option<Reference> =
             Reference::load(&base, &refs).map_err(Failure::refused)?;
         let input = ReportInput {
@@ -168,6 +207,7 @@ impl ReportArgs {
             .out
             .clone()
             .unwrap_or_else(|| PathBuf::from(format!("{}.report.html", rec.name)));
+        super::replay::check_outputs(&self.record, std::slice::from_ref(&path), self.force)?;
         let (page, figures) = report::render(&input)
             .map_err(|e| Failure::refused(format!("{}: {e}", self.record.display())))?;
         std::fs::write(&path, &page).map_err(|e| {

@@ -7,7 +7,7 @@ use std::path::PathBuf;
 use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
 use plethwire::ecg::EcgScore;
-use plethwire::score::records::{score_all, References, Scores, DEFAULT_STRAP_SUFFIX};
+use plethwire::score::records::{score_all, ReferenceKind, References, Scores};
 use plethwire::score::timing::PeakTiming;
 use plethwire::score::windows::{ReplayWindows, WindowScore};
 use plethwire::score::{MatchCounts, RateError};
@@ -40,11 +40,14 @@ each R peak moved by the local pulse-arrival delay (the densest R-to-pulse
 offset over 60 s); stretches with no R peak for over 3 s, or with the
 ECG at its rails for over 0.2 s, are left out ('excl s'). 'PAT ms' is the
 median matched pulse minus R peak. Records without one of the references
-are scored on the others. With --motion, the accelerometer of the same
+are scored on the others; a reference named with an option must exist for
+every record, and a record with no reference at all, or a run that could
+compare nothing, is refused, naming the files. A record given twice is
+scored once. With --motion, the accelerometer of the same
 record is the pipeline's motion reference (beats that cannot be told
 apart from strong motion are not good; the beats found stay the same). Exit
-status: 0 done, 1 a record could not be read, 2 the command line could not
-be understood.";
+status: 0 done, 1 a record could not be read, a reference is missing or
+nothing could be scored, 2 the command line could not be understood.";
 
 /// Options of `plethwire score`.
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -54,25 +57,31 @@ pub struct ScoreArgs {
     #[arg(value_name = "PATH", required = true)]
     pub paths: Vec<PathBuf>,
 
-    /// Annotator of the reference beats.
-    #[arg(long, value_name = "NAME", default_value = "peak")]
-    pub reference: String,
+    /// Annotator of the reference beats; once named, every record must
+    /// have them [default: peak, where it exists].
+    #[arg(long, value_name = "NAME")]
+    pub reference: Option<String>,
 
-    /// Suffix of the reference heart-rate table next to each record.
-    #[arg(long, value_name = "SUFFIX", default_value = "n.csv")]
-    pub rate_suffix: String,
+    /// Suffix of the reference heart-rate table next to each record; once
+    /// named, every record must have it [default: n.csv, where it exists].
+    #[arg(long, value_name = "SUFFIX")]
+    pub rate_suffix: Option<String>,
 
-    /// Column of that table with the reference heart rate, bpm.
-    #[arg(long, value_name = "NAME", default_value = "pulse_bpm")]
-    pub rate_column: String,
+    /// Column of that table with the reference heart rate, bpm [default:
+    /// pulse_bpm].
+    #[arg(long, value_name = "NAME")]
+    pub rate_column: Option<String>,
 
     /// Suffix of the reference window table next to each record
-    /// (`window_start_s,window_end_s,bpm`), used when it exists.
-    #[arg(long, value_name = "SUFFIX", default_value = "bpm.csv")]
-    pub window_suffix: String,
-    /// Suffix of a chest strap's R-R interval list next to each recording.
-    #[arg(long, value_name = "SUFFIX", default_value = DEFAULT_STRAP_SUFFIX)]
-    pub strap_suffix: String,
+    /// (`window_start_s,window_end_s,bpm`); once named, every record must
+    /// have it [default: bpm.csv, where it exists].
+    #[arg(long, value_name = "SUFFIX")]
+    pub window_suffix: Option<String>,
+    /// Suffix of a chest strap's R-R interval list next to each recording;
+    /// once named, every recording must have it [default: .rr.txt, where
+    /// it exists].
+    #[arg(long, value_name = "SUFFIX")]
+    pub strap_suffix: Option<String>,
     /// ECG signal of the same record to score the pulses against.
     #[arg(long, value_name = "SIGNAL")]
     pub ecg: Option<String>,
@@ -91,16 +100,34 @@ pub struct ScoreArgs {
 }
 
 impl ScoreArgs {
+    /// The references to look for: the defaults, with each one the user
+    /// named required of every record.
+    fn references(&self) -> References {
+        let d = References::default();
+        let named = [
+            (ReferenceKind::Beats, self.reference.is_some()),
+            (
+                ReferenceKind::Rate,
+                self.rate_suffix.is_some() || self.rate_column.is_some(),
+            ),
+            (ReferenceKind::Windows, self.window_suffix.is_some()),
+            (ReferenceKind::Strap, self.strap_suffix.is_some()),
+        ];
+        let or = |v: &Option<String>, default: String| v.clone().unwrap_or(default);
+        References {
+            annotator: or(&self.reference, d.annotator),
+            rate_suffix: or(&self.rate_suffix, d.rate_suffix),
+            rate_column: or(&self.rate_column, d.rate_column),
+            window_suffix: or(&self.window_suffix, d.window_suffix),
+            strap_suffix: or(&self.strap_suffix, d.strap_suffix),
+            ecg: self.ecg.clone(),
+            required: named.into_iter().filter(|n| n.1).map(|n| n.0).collect(),
+        }
+    }
+
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
-        let refs = References {
-            annotator: self.reference.clone(),
-            rate_suffix: self.rate_suffix.clone(),
-            rate_column: self.rate_column.clone(),
-            window_suffix: self.window_suffix.clone(),
-            strap_suffix: self.strap_suffix.clone(),
-            ecg: self.ecg.clone(),
-        };
+        let refs = self.references();
         let (bar, progress) = progress_line();
         let scores = score_all(
             &self.paths,

@@ -9,9 +9,13 @@ use std::fmt::Write as _;
 use std::path::Path;
 use std::process::Command;
 
+/// Run `plethwire args` in a fresh scratch folder (where its outputs go
+/// unless `--out` says otherwise).
 fn plethwire(args: &[&str]) -> (i32, String, String) {
+    let scratch = tempfile::tempdir().unwrap();
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
         .args(args)
+        .current_dir(scratch.path())
         .output()
         .expect("run plethwire");
     (

@@ -2,11 +2,17 @@
 //! without QEMU (the runs themselves are checked in `tests/`, which has the
 //! emulator harness).
 
+mod common;
+
 use std::process::Command;
 
+/// Run `plethwire args` in a fresh scratch folder (where its outputs go
+/// unless `--out` says otherwise).
 fn plethwire(args: &[&str]) -> (i32, String, String) {
+    let scratch = tempfile::tempdir().unwrap();
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
         .args(args)
+        .current_dir(scratch.path())
         .output()
         .expect("run plethwire");
     (
@@ -29,7 +35,8 @@ fn a_missing_firmware_is_one_line_saying_how_to_build_it() {
     assert_eq!(err.lines().count(), 1, "{err}");
     assert!(
         err.starts_with("plethwire: no emulated firmware at /no/such/firmware.elf")
-            && err.contains("cargo build --release"),
+            && err.contains("--firmware")
+            && err.contains("--source"),
         "{err}"
     );
 }
@@ -37,9 +44,11 @@ fn a_missing_firmware_is_one_line_saying_how_to_build_it() {
 #[test]
 fn a_missing_qemu_is_one_line_saying_how_to_get_it() {
     let dir = tempfile::tempdir().unwrap();
-    // Enough of an ELF to be taken for one; QEMU is looked for next.
+    // Enough of an ELF header to be taken for the emulated board's (32-bit
+    // little-endian ARM executable, entry in its code memory); QEMU is
+    // looked for next.
     let elf = dir.path().join("fw.elf");
-    std::fs::write(&elf, b"\x7fELF\x01\x01\x01").unwrap();
+    std::fs::write(&elf, common::elf_header(40, 0x0000_0401)).unwrap();
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
         .args(["emulate", "no/such/record", "--elf"])
         .arg(&elf)

@@ -24,6 +24,9 @@ fn emulate_json_reports_identity_with_the_host() {
         "--seconds".into(),
         "30".into(),
         "--json".into(),
+        // Not the default name: a file beside a shared record may have it.
+        "--annotator".into(),
+        "board".into(),
         "--out".into(),
         dir.path().into(),
     ];

@@ -4,14 +4,21 @@
 //! accelerometer (gravity on z, an arm swing on x), never a copy of shared
 //! data.
 
+mod common;
+
+use common::write_truth;
 use plethwire_records::{write_record, NewSignal};
 use plethwire_synth::{generate, HrSchedule, SynthOptions};
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
+/// Run `plethwire args` in a fresh scratch folder (where its outputs go
+/// unless `--out` says otherwise).
 fn plethwire(args: &[&str]) -> (i32, String, String) {
+    let scratch = tempfile::tempdir().unwrap();
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
         .args(args)
+        .current_dir(scratch.path())
         .output()
         .expect("run plethwire");
     (
@@ -65,6 +72,7 @@ fn make_record(dir: &Path, name: &str, swing_hz: f64) -> PathBuf {
         &[pleth, x, y, z],
     )
     .unwrap();
+    write_truth(dir, name, &s);
     dir.join(name)
 }
 
@@ -116,7 +124,7 @@ fn an_accelerometer_at_rest_changes_no_flag() {
     let rec_s = rec.to_str().unwrap();
     let out_s = out.to_str().unwrap();
     let rows = |extra: &[&str]| {
-        let mut args = vec!["replay", rec_s, "--out", out_s, "--beats-json"];
+        let mut args = vec!["replay", rec_s, "--out", out_s, "--beats-json", "--force"];
         args.extend_from_slice(extra);
         let (code, _, err) = plethwire(&args);
         assert_eq!(code, 0, "{err}");
@@ -137,6 +145,7 @@ fn replay_names_the_accelerometer_and_counts_the_flagged_beats() {
         out.to_str().unwrap(),
         "--motion",
         "ACCX,ACCY,ACCZ",
+        "--force",
     ];
     let (code, text, err) = plethwire(&args);
     assert_eq!(code, 0, "{err}");
@@ -202,6 +211,7 @@ fn csv_columns_serve_as_the_accelerometer_and_a_missing_one_is_named() {
     }
     let path = dir.path().join("band.csv");
     std::fs::write(&path, csv).unwrap();
+    write_truth(dir.path(), "band", &s);
     let p = path.to_str().unwrap();
     let (code, out, err) = plethwire(&[
         "score", p, "--signal", "pleth", "--json", "--motion", "ax,ay,az",

@@ -44,6 +44,9 @@ fn replay_annotations_read_back_with_python_wfdb() {
             "--out".into(),
             out.path().into(),
             "--beats-csv".into(),
+            // Not the default name: a file beside a shared record may have it.
+            "--annotator".into(),
+            "found".into(),
         ];
         let mut text = Vec::new();
         run(args, &mut text).unwrap_or_else(|f| panic!("{rec}: {:?}", f.message));
@@ -64,12 +67,12 @@ fn replay_annotations_read_back_with_python_wfdb() {
         let record = out.path().join(&name);
         let read: Read = python_json(
             &["-c", RDANN],
-            &serde_json::json!({"record": record.to_string_lossy(), "annotator": "pwire"}),
+            &serde_json::json!({"record": record.to_string_lossy(), "annotator": "found"}),
         );
         let samples: Vec<u64> = read.sample.iter().map(|&s| s as u64).collect();
         assert_eq!(samples, expected, "{rec}: wfdb.rdann samples");
         assert!(read.symbol.iter().all(|s| s == "N"), "{rec}: symbols");
-        let csv = std::fs::read_to_string(out.path().join(format!("{name}.pwire.csv"))).unwrap();
+        let csv = std::fs::read_to_string(out.path().join(format!("{name}.found.csv"))).unwrap();
         assert_eq!(
             csv.lines().count(),
             expected.len() + 1,

@@ -2,14 +2,18 @@
 //! through the real binary. Recordings here are invented in a temp folder
 //! (a synthetic pulse, `plethwire_synth`), never copies of shared data.
 
-use plethwire_records::{write_record, NewSignal};
-use plethwire_synth::{generate, HrSchedule, SynthOptions};
+mod common;
+
 use std::path::Path;
 use std::process::Command;
 
+/// Run `plethwire args` in a fresh scratch folder (where its outputs go
+/// unless `--out` says otherwise).
 fn plethwire(args: &[&str]) -> (i32, String, String) {
+    let scratch = tempfile::tempdir().unwrap();
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
         .args(args)
+        .current_dir(scratch.path())
         .output()
         .expect("run plethwire");
     (
@@ -21,20 +25,7 @@ fn plethwire(args: &[&str]) -> (i32, String, String) {
 
 /// A 30 s, 72 bpm record in format 16 named `name` in `dir`.
 fn make_record(dir: &Path, name: &str) {
-    let s = generate(&SynthOptions {
-        sample_rate_hz: 125.0,
-        duration_s: 30.0,
-        hr: HrSchedule::constant(72.0),
-        ..SynthOptions::default()
-    })
-    .unwrap();
-    let digital: Vec<i32> = s
-        .samples
-        .iter()
-        .map(|&v| (v * 1000.0).round() as i32)
-        .collect();
-    let sig = NewSignal::new("PLETH", "NU", 1000.0, 0);
-    write_record(dir, name, 125.0, &[sig], &[digital]).unwrap();
+    common::synthetic_record(dir, name, 30.0, 72.0, false);
 }
 
 fn one_line_failure(args: &[&str], names: &str) {
@@ -54,7 +45,14 @@ fn replay_writes_annotations_and_a_summary() {
     let dir = tempfile::tempdir().unwrap();
     make_record(dir.path(), "ride");
     let rec = dir.path().join("ride");
-    let (code, out, err) = plethwire(&["replay", rec.to_str().unwrap(), "--json", "--beats-json"]);
+    let (code, out, err) = plethwire(&[
+        "replay",
+        rec.to_str().unwrap(),
+        "--json",
+        "--beats-json",
+        "--out",
+        dir.path().to_str().unwrap(),
+    ]);
     assert_eq!(code, 0, "{err}");
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     let beats = v["summary"]["beats"].as_u64().unwrap();
@@ -140,7 +138,14 @@ fn score_reports_pooled_counts_against_reference_annotations() {
     // The pipeline's own beats as the reference: every beat must match.
     for name in ["a", "b"] {
         let rec = dir.path().join(name);
-        let (code, _, err) = plethwire(&["replay", rec.to_str().unwrap(), "--annotator", "ref"]);
+        let (code, _, err) = plethwire(&[
+            "replay",
+            rec.to_str().unwrap(),
+            "--annotator",
+            "ref",
+            "--out",
+            dir.path().to_str().unwrap(),
+        ]);
         assert_eq!(code, 0, "{err}");
     }
     let (code, out, err) = plethwire(&[

@@ -25,6 +25,7 @@ pub mod listen;
 pub mod matching;
 pub mod messages;
 pub mod motion;
+pub mod output_guard;
 pub mod plot;
 pub mod replay;
 pub mod report;

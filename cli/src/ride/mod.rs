@@ -6,9 +6,10 @@
 //! board when QEMU is there (and compared bit for bit), saved as a WFDB
 //! record, and summed up in a report page.
 
+pub mod live;
 pub mod scenario;
 
-use plethwire::emulate::{compare, find_elf, find_qemu, BuildError, EmulateError, Emulation, Link};
+use plethwire::emulate::{compare, find_qemu, Emulation, Firmware, FirmwareError, Link};
 use plethwire::replay::{Replay, Summary};
 use plethwire::report::{self, Reference, ReportInput};
 use plethwire::score::{match_beats, MatchCounts, MATCH_WINDOW_S};
@@ -135,12 +136,13 @@ pub fn save_ride(
     ))
 }
 
-/// Run the ride through the emulated board, if it can be run.
+/// Run the ride through the emulated board, if QEMU is there and
+/// `firmware` finds (or builds) its firmware.
 pub fn run_board(
     samples: &[f64],
     config: Config,
     host: &Replay,
-    build: &mut dyn FnMut() -> Result<PathBuf, BuildError>,
+    firmware: &mut dyn FnMut() -> Result<Firmware, FirmwareError>,
 ) -> BoardOutcome {
     let qemu = match find_qemu() {
         Ok(q) => q,
@@ -150,14 +152,11 @@ pub fn run_board(
             )
         }
     };
-    // Build first (a no-op when up to date): an ELF left from older
+    // Built first (a no-op when up to date): an ELF left from older
     // sources would disagree with this host for the wrong reason.
-    let elf = match (build(), find_elf(None)) {
-        (Ok(e), _) | (Err(_), Ok(e)) => e,
-        (Err(why), Err(EmulateError::NoElf(_))) => {
-            return BoardOutcome::NotRun(format!("the emulated firmware could not be built: {why}"))
-        }
-        (Err(_), Err(e)) => return BoardOutcome::NotRun(e.to_string()),
+    let elf = match firmware() {
+        Ok(f) => f.elf,
+        Err(e) => return BoardOutcome::NotRun(e.to_string()),
     };
     let emu = Emulation {
         qemu,

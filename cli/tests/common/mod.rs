@@ -78,3 +78,70 @@ pub fn table_rows(report: &str) -> Vec<[Option<f64>; 7]> {
         })
         .collect()
 }
+
+/// Run `plethwire args` in `cwd`: exit status, stdout, stderr.
+pub fn run_in(cwd: &Path, args: &[&str]) -> (i32, String, String) {
+    let out = plethwire(cwd, args);
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+/// A synthetic record `name` in `dir` (format 16, 125 Hz, `seconds` at
+/// `bpm`; a scenario of our own, `plethwire_synth`); with `truth`, the
+/// generator's beats as `<name>.peak`, as a real record's expert
+/// reference. Returns the record's path.
+pub fn synthetic_record(
+    dir: &Path,
+    name: &str,
+    seconds: f64,
+    bpm: f64,
+    truth: bool,
+) -> std::path::PathBuf {
+    use plethwire_records::write_record;
+    let s = plethwire_synth::generate(&plethwire_synth::SynthOptions {
+        sample_rate_hz: 125.0,
+        duration_s: seconds,
+        hr: plethwire_synth::HrSchedule::constant(bpm),
+        ..plethwire_synth::SynthOptions::default()
+    })
+    .unwrap();
+    let digital: Vec<i32> = s
+        .samples
+        .iter()
+        .map(|&v| (v * 1000.0).round() as i32)
+        .collect();
+    let sig = plethwire_records::NewSignal::new("PLETH", "NU", 1000.0, 0);
+    write_record(dir, name, 125.0, &[sig], &[digital]).unwrap();
+    if truth {
+        write_truth(dir, name, &s);
+    }
+    dir.join(name)
+}
+
+/// The generator's beats of `s` as `<name>.peak` in `dir`.
+pub fn write_truth(dir: &Path, name: &str, s: &plethwire_synth::Synthetic) {
+    use plethwire_records::{annotation_path, write_annotations, Annotation};
+    let beats: Vec<Annotation> = s
+        .beats
+        .iter()
+        .map(|b| Annotation::beat(b.peak as i64))
+        .collect();
+    write_annotations(annotation_path(&dir.join(name), "peak"), &beats).unwrap();
+}
+
+/// A 52-byte ELF header: 32-bit, little-endian, an executable for
+/// `machine` with entry point `entry` (System V ABI ELF header layout).
+pub fn elf_header(machine: u16, entry: u32) -> Vec<u8> {
+    let mut h = vec![0u8; 52];
+    h[..4].copy_from_slice(b"\x7fELF");
+    h[4] = 1;
+    h[5] = 1;
+    h[6] = 1;
+    h[16..18].copy_from_slice(&2u16.to_le_bytes());
+    h[18..20].copy_from_slice(&machine.to_le_bytes());
+    h[24..28].copy_from_slice(&entry.to_le_bytes());
+    h
+}

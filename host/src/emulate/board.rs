@@ -10,7 +10,9 @@ use super::EmulateError;
 
 mod build;
 
-pub use build::{build_firmware, firmware_target_installed, BuildError, FIRMWARE_TARGET};
+pub use build::{
+    build_firmware, build_firmware_in, firmware_target_installed, BuildError, FIRMWARE_TARGET,
+};
 
 /// The machine: QEMU's MPS2 AN386 board (Cortex-M4F), no display, no
 /// monitor, UART0 on standard input and output. The same as the runner in
@@ -108,9 +110,11 @@ fn find_on_path(name: &str) -> Option<PathBuf> {
         .find(|candidate| candidate.is_file())
 }
 
-/// The repository roots to look in: the one this crate was built in, then
-/// any folder above the running program that holds `firmware/Cargo.toml`.
-fn repo_roots() -> Vec<PathBuf> {
+/// The repository roots to look in when the user named none: the one this
+/// crate was built in (the last fallback: it is gone once the checkout
+/// moves), then any folder above the running program that holds
+/// `firmware/Cargo.toml`.
+pub(super) fn repo_roots() -> Vec<PathBuf> {
     let mut roots = vec![Path::new(env!("CARGO_MANIFEST_DIR")).join("..")];
     if let Ok(exe) = std::env::current_exe() {
         roots.extend(
@@ -120,33 +124,6 @@ fn repo_roots() -> Vec<PathBuf> {
         );
     }
     roots
-}
-
-/// The emulated firmware's ELF: `explicit` if given (it must exist), else
-/// [`FIRMWARE_ELF`] below the repository root.
-pub fn find_elf(explicit: Option<&Path>) -> Result<PathBuf, EmulateError> {
-    let found = match explicit {
-        Some(p) if p.is_file() => p.to_path_buf(),
-        Some(p) => return Err(EmulateError::NoElf(p.to_path_buf())),
-        None => {
-            let roots = repo_roots();
-            roots
-                .iter()
-                .map(|r| r.join(FIRMWARE_ELF))
-                .find(|p| p.is_file())
-                .ok_or_else(|| EmulateError::NoElf(roots[0].join(FIRMWARE_ELF)))?
-        }
-    };
-    // QEMU loads anything as a raw image and locks up; say so instead.
-    let mut magic = [0u8; 4];
-    let is_elf = std::fs::File::open(&found)
-        .and_then(|mut f| std::io::Read::read_exact(&mut f, &mut magic))
-        .is_ok()
-        && magic == *b"\x7fELF";
-    if !is_elf {
-        return Err(EmulateError::NotElf(found));
-    }
-    Ok(found)
 }
 
 #[cfg(test)]
@@ -171,19 +148,5 @@ mod tests {
         let counted = qemu_args(Path::new("fw"), &["perf"], true);
         let i = counted.iter().position(|a| a == "-icount").unwrap();
         assert_eq!(counted[i + 1], "shift=0");
-    }
-
-    #[test]
-    fn a_missing_elf_is_named_with_how_to_build_it() {
-        let e = find_elf(Some(Path::new("/no/such/firmware.elf"))).unwrap_err();
-        let text = e.to_string();
-        assert!(text.contains("/no/such/firmware.elf") && text.contains("cargo build"));
-        assert!(!text.contains('\n'));
-        let not_elf = find_elf(Some(
-            Path::new(env!("CARGO_MANIFEST_DIR"))
-                .join("Cargo.toml")
-                .as_path(),
-        ));
-        assert!(not_elf.unwrap_err().to_string().contains("not an ELF file"));
     }
 }

@@ -18,16 +18,20 @@
 
 mod board;
 mod compare;
+mod elf;
+mod firmware;
 mod perf;
 mod run;
 mod session;
 
 pub use board::{
-    build_firmware, find_elf, find_qemu, firmware_target_installed, qemu_args, runner_args,
-    BuildError, BUILD_HINT, FIRMWARE_ELF, FIRMWARE_PROGRAM, FIRMWARE_TARGET, ICOUNT_ARGS,
-    MACHINE_ARGS, SEMIHOSTING,
+    build_firmware, build_firmware_in, find_qemu, firmware_target_installed, qemu_args,
+    runner_args, BuildError, BUILD_HINT, FIRMWARE_ELF, FIRMWARE_PROGRAM, FIRMWARE_TARGET,
+    ICOUNT_ARGS, MACHINE_ARGS, SEMIHOSTING,
 };
 pub use compare::{beat_difference, compare, Agreement, Disagreement};
+pub use elf::{check_elf, ElfProblem, EMULATED_FLASH};
+pub use firmware::{Firmware, FirmwareError, FirmwareSearch, FIRMWARE_VAR, SOURCE_VAR};
 pub use perf::{parse as parse_perf, PerfError, PerfReport};
 pub use session::{Session, StreamError};
 
@@ -52,7 +56,7 @@ pub enum Link {
 pub struct Emulation {
     /// `qemu-system-arm` ([`find_qemu`]).
     pub qemu: PathBuf,
-    /// The emulated firmware's ELF ([`find_elf`]).
+    /// The emulated firmware's ELF ([`FirmwareSearch::locate`]).
     pub elf: PathBuf,
     /// The link.
     pub link: Link,
@@ -69,13 +73,6 @@ pub enum EmulateError {
     /// No usable `qemu-system-arm`.
     #[error("qemu-system-arm not found: install it (Debian/Ubuntu: `apt-get install qemu-system-arm`) or set PLETHWIRE_QEMU")]
     NoQemu,
-    /// No firmware ELF at this path.
-    #[error("no emulated firmware at {}; {BUILD_HINT}, or pass --elf PATH", .0.display())]
-    NoElf(PathBuf),
-    /// The file at this path is not an ELF (QEMU would load it as a raw
-    /// image and lock up).
-    #[error("{} is not an ELF file; {BUILD_HINT}", .0.display())]
-    NotElf(PathBuf),
     /// Instruction counting was asked for over the UART.
     #[error("instruction counting works over semihosting files, not the UART")]
     CountingNeedsFiles,

@@ -4,17 +4,65 @@
 //! Beats are matched as [`crate::matching`] does (ANSI/AAMI EC57
 //! practice; its items are re-exported here).
 
-use serde::Serialize;
+use serde::{Serialize, Serializer};
 
 pub use crate::matching::{match_beats, match_pairs, MatchCounts, MATCH_WINDOW_S};
 
-/// Heart-rate agreement with a reference series.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Serialize)]
+/// Beat counts with the figures made of them, as JSON writes them.
+#[derive(Serialize)]
+struct CountsWithFigures<'a> {
+    #[serde(flatten)]
+    counts: &'a MatchCounts,
+    /// Se = TP / (TP + FN), a fraction; `null` with no reference beat.
+    sensitivity: Option<f64>,
+    /// +P = TP / (TP + FP), a fraction; `null` with no detected beat.
+    positive_predictivity: Option<f64>,
+    /// F1 = 2TP / (2TP + FP + FN), a fraction.
+    f1: Option<f64>,
+}
+
+/// Serialize beat counts with their sensitivity, positive predictivity
+/// and F1 beside them (`serialize_with` for `Option<MatchCounts>`).
+pub fn counts_with_figures<S: Serializer>(
+    counts: &Option<MatchCounts>,
+    s: S,
+) -> Result<S::Ok, S::Error> {
+    counts
+        .as_ref()
+        .map(|c| CountsWithFigures {
+            counts: c,
+            sensitivity: c.se(),
+            positive_predictivity: c.ppv(),
+            f1: c.f1(),
+        })
+        .serialize(s)
+}
+
+/// Heart-rate agreement with a reference series (JSON: its sums and
+/// `mae_bpm`, the mean absolute error).
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct RateError {
     /// Sum of absolute differences, bpm.
     pub abs_sum: f64,
     /// Seconds compared.
     pub count: usize,
+}
+
+impl Serialize for RateError {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        #[derive(Serialize)]
+        struct Shown {
+            abs_sum: f64,
+            count: usize,
+            mae_bpm: Option<f64>,
+        }
+        Shown {
+            abs_sum: self.abs_sum,
+            count: self.count,
+            mae_bpm: self.mae(),
+        }
+        .serialize(s)
+    }
 }
 
 impl RateError {
@@ -75,6 +123,7 @@ mod tests {
 pub mod record_refs;
 pub mod records;
 pub mod references;
+mod required;
 pub mod strap;
 pub mod timing;
 pub mod windows;

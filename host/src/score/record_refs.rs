@@ -12,6 +12,7 @@ use super::timing::PeakTiming;
 use super::windows::{RateWindow, ReplayWindows};
 use super::{match_pairs, rate_error, MatchCounts, RateError, MATCH_WINDOW_S};
 use crate::ecg::{EcgReference, EcgScore};
+use crate::output_guard::record_base;
 use crate::replay::{InputInfo, Recording, Replay, ReplayError, Summary};
 use serde::Serialize;
 
@@ -20,7 +21,9 @@ use serde::Serialize;
 pub struct RecordScore {
     /// Record name.
     pub record: String,
-    /// Beat comparison, when reference beats exist.
+    /// Beat comparison, when reference beats exist (JSON: with its
+    /// sensitivity, positive predictivity and F1).
+    #[serde(serialize_with = "super::counts_with_figures")]
     pub beats: Option<MatchCounts>,
     /// Reference beats.
     pub reference_beats: Option<usize>,
@@ -62,10 +65,12 @@ impl RecordReferences {
     /// one that exists but cannot be read (or an ECG that cannot be
     /// used) is an error naming the file.
     pub fn load(rec: &Recording, refs: &References) -> Result<Self, ReplayError> {
+        // A CSV recording's references sit beside it under its stem.
+        let base = record_base(&rec.path);
         Ok(Self {
-            beats: reference_beats(&rec.path, &refs.annotator)?,
-            windows: reference_windows(&rec.path, &refs.window_suffix)?,
-            rate: reference_rate(&rec.path, refs)?,
+            beats: reference_beats(&base, &refs.annotator)?,
+            windows: reference_windows(&base, &refs.window_suffix)?,
+            rate: reference_rate(&base, refs)?,
             strap_rr_ms: strap_intervals(&rec.path, &refs.strap_suffix)?,
             ecg: match &refs.ecg {
                 Some(name) => Some(load_ecg(rec, name)?),

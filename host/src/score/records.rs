@@ -5,12 +5,14 @@ use super::record_refs::RecordReferences;
 pub use super::record_refs::RecordScore;
 pub use super::references::{
     load_ecg, reference_beats, reference_rate, reference_windows, strap_intervals, RateSeries,
-    References, DEFAULT_STRAP_SUFFIX,
+    ReferenceKind, References, DEFAULT_STRAP_SUFFIX,
 };
+pub use super::required::{annotators_beside, check_references, check_scored};
 use super::timing::PeakTiming;
 use super::windows::ReplayWindows;
 use super::{MatchCounts, RateError};
 use crate::ecg::EcgScore;
+use crate::output_guard::record_base;
 use crate::replay::{load, replay_recording, Recording, Replay, ReplayError, Source};
 use plethwire_dsp::pipeline::Config;
 use serde::Serialize;
@@ -21,7 +23,9 @@ use std::path::{Path, PathBuf};
 pub struct Scores {
     /// Per record, in the order scored.
     pub records: Vec<RecordScore>,
-    /// Beat counts summed over the records that have reference beats.
+    /// Beat counts summed over the records that have reference beats
+    /// (JSON: with their sensitivity, positive predictivity and F1).
+    #[serde(serialize_with = "super::counts_with_figures")]
     pub pooled_beats: Option<MatchCounts>,
     /// Heart-rate error pooled over every compared second.
     pub pooled_heart_rate: Option<RateError>,
@@ -29,7 +33,9 @@ pub struct Scores {
     pub pooled_peak_timing: Option<PeakTiming>,
     /// Window figures summed over the records that have a window table.
     pub pooled_windows: Option<ReplayWindows>,
-    /// Counts against the ECG's R peaks summed over the records.
+    /// Counts against the ECG's R peaks summed over the records (JSON:
+    /// with their figures, as [`Scores::pooled_beats`]).
+    #[serde(serialize_with = "super::counts_with_figures")]
     pub pooled_ecg: Option<MatchCounts>,
 }
 
@@ -76,10 +82,35 @@ impl Scores {
     }
 }
 
-/// Every recording in `paths`: records and files as given, folders
-/// expanded to the WFDB records whose headers they hold and the CSV files
-/// they hold (sorted by name).
+/// Every recording in `paths`, each once (a record given twice, or both
+/// by name and through its folder, is scored once): records and files as
+/// given, folders expanded to the WFDB records whose headers they hold and
+/// the CSV files they hold (sorted by name).
 pub fn expand(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
+    let mut seen = std::collections::HashSet::new();
+    let mut once = expand_all(paths)?;
+    once.retain(|p| seen.insert(identity(p)));
+    Ok(once)
+}
+
+/// What makes two paths the same recording: the header's (or CSV file's)
+/// real path when it exists, else the path as written.
+fn identity(path: &Path) -> PathBuf {
+    let is_csv = path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
+    let file = if is_csv {
+        path.to_path_buf()
+    } else {
+        let mut header = record_base(path).into_os_string();
+        header.push(".hea");
+        PathBuf::from(header)
+    };
+    file.canonicalize().unwrap_or_else(|_| path.to_path_buf())
+}
+
+/// [`expand`] before duplicates are dropped.
+fn expand_all(paths: &[PathBuf]) -> Result<Vec<PathBuf>, ReplayError> {
     let mut out = Vec::new();
     for p in paths {
         if p.is_dir() {
@@ -148,9 +179,11 @@ pub fn ecg_score(rec: &Recording, run: &Replay, name: &str) -> Result<EcgScore, 
     Ok(load_ecg(rec, name)?.score(&run.peaks()))
 }
 
-/// Load, replay and score every record in `paths` with `config`'s
-/// options (the sample rate comes from each record); `progress` is
-/// told each record's name before it runs.
+/// Load, replay and score every record in `paths` (each once) with
+/// `config`'s options (the sample rate comes from each record); `progress`
+/// is told each record's name before it runs. Refused before any replay
+/// when a recording lacks a reference ([`check_references`]), and after
+/// when nothing could be scored ([`check_scored`]).
 pub fn score_all(
     paths: &[PathBuf],
     source: &Source,
@@ -158,8 +191,10 @@ pub fn score_all(
     refs: &References,
     mut progress: impl FnMut(&str),
 ) -> Result<Scores, ReplayError> {
+    let paths = expand(paths)?;
+    check_references(&paths, refs)?;
     let mut records = Vec::new();
-    for path in expand(paths)? {
+    for path in paths {
         progress(&path.display().to_string());
         let rec = load(&path, source)?;
         let cfg = Config {
@@ -170,6 +205,7 @@ pub fn score_all(
             .map_err(|e| ReplayError::Refused(format!("{}: {e}", path.display())))?;
         records.push(score_one(&rec, &run, refs)?);
     }
+    check_scored(&records)?;
     Ok(Scores::pooled(records))
 }
 

@@ -4,6 +4,7 @@
 
 use super::windows::{read_rate_windows, RateWindow};
 use crate::ecg::EcgReference;
+use crate::output_guard::record_base;
 use crate::replay::{Recording, ReplayError};
 use plethwire_records::{
     annotation_path, read_annotations, read_numerics, read_rr_intervals, read_wfdb_signal,
@@ -28,6 +29,52 @@ pub struct References {
     /// ECG signal of the same WFDB record to score the pulses against
     /// ([`crate::ecg`]), if any.
     pub ecg: Option<String>,
+    /// References the user named, which every recording must have (the
+    /// others are used where their file exists).
+    pub required: Vec<ReferenceKind>,
+}
+
+/// One kind of reference file beside a recording.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ReferenceKind {
+    /// Reference beats, `<record>.<annotator>`.
+    Beats,
+    /// Heart-rate table, `<record><rate_suffix>`.
+    Rate,
+    /// Window table, `<record><window_suffix>`.
+    Windows,
+    /// Strap R-R list, `<record><strap_suffix>`.
+    Strap,
+}
+
+impl ReferenceKind {
+    /// Every kind, in the order the files are listed.
+    pub const ALL: [ReferenceKind; 4] = [Self::Beats, Self::Rate, Self::Windows, Self::Strap];
+
+    /// The option that names this kind's file.
+    pub fn option(self) -> &'static str {
+        match self {
+            Self::Beats => "--reference",
+            Self::Rate => "--rate-suffix",
+            Self::Windows => "--window-suffix",
+            Self::Strap => "--strap-suffix",
+        }
+    }
+
+    /// The file of this kind for the recording at `path` (its name
+    /// without `.csv` for a CSV recording), where [`RecordReferences`]
+    /// reads it.
+    ///
+    /// [`RecordReferences`]: super::record_refs::RecordReferences
+    pub fn file(self, path: &Path, refs: &References) -> PathBuf {
+        let base = record_base(path);
+        match self {
+            Self::Beats => annotation_path(&base, &refs.annotator),
+            Self::Rate => numerics_path(&base, &refs.rate_suffix),
+            Self::Windows => numerics_path(&base, &refs.window_suffix),
+            Self::Strap => numerics_path(&base, &refs.strap_suffix),
+        }
+    }
 }
 
 /// Suffix of the strap's R-R list unless told otherwise.
@@ -42,6 +89,7 @@ impl Default for References {
             window_suffix: "bpm.csv".into(),
             strap_suffix: DEFAULT_STRAP_SUFFIX.into(),
             ecg: None,
+            required: Vec::new(),
         }
     }
 }
@@ -49,15 +97,7 @@ impl Default for References {
 /// The strap's R-R intervals (ms) for the recording at `path`, from
 /// `<record><suffix>`, or `None` when that file does not exist.
 pub fn strap_intervals(path: &Path, suffix: &str) -> Result<Option<Vec<f64>>, ReplayError> {
-    let record = if path
-        .extension()
-        .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
-    {
-        path.with_extension("")
-    } else {
-        path.to_path_buf()
-    };
-    let file = numerics_path(&record, suffix);
+    let file = numerics_path(&record_base(path), suffix);
     if !file.exists() {
         return Ok(None);
     }

@@ -19,6 +19,9 @@ pub struct PeakTiming {
     pub abs_median_ms: Option<f64>,
     /// 95th percentile of the absolute offsets, ms.
     pub abs_p95_ms: Option<f64>,
+    /// Mean absolute offset, ms (the peaks' mean absolute error against
+    /// the reference beats).
+    pub mae_ms: Option<f64>,
     /// The offsets themselves, ms, kept for pooling (not in the JSON).
     #[serde(skip)]
     pub offsets_ms: Vec<f64>,
@@ -34,6 +37,7 @@ impl PeakTiming {
             median_ms: percentile(&signed, 50.0),
             abs_median_ms: percentile(&abs, 50.0),
             abs_p95_ms: percentile(&abs, 95.0),
+            mae_ms: (!abs.is_empty()).then(|| abs.iter().sum::<f64>() / abs.len() as f64),
             offsets_ms,
         }
     }
@@ -99,6 +103,7 @@ mod tests {
         assert_eq!(a.offsets_ms, vec![20.0, -10.0, 30.0]);
         assert_eq!(a.median_ms, Some(20.0));
         assert_eq!(a.abs_median_ms, Some(20.0));
+        assert_eq!(a.mae_ms, Some(20.0));
         let b = PeakTiming::from_pairs(&[(50, 40)], 100.0);
         let pooled = PeakTiming::pooled([&a, &b]);
         assert_eq!(pooled.pairs, 4);
@@ -106,5 +111,7 @@ mod tests {
         // the two records' medians (-40).
         assert_eq!(pooled.median_ms, Some(5.0));
         assert_eq!(pooled.abs_median_ms, Some(25.0));
+        assert_eq!(pooled.mae_ms, Some(40.0));
+        assert_eq!(PeakTiming::from_offsets(Vec::new()).mae_ms, None);
     }
 }

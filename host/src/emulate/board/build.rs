@@ -14,7 +14,7 @@ pub const FIRMWARE_TARGET: &str = "thumbv7em-none-eabihf";
 #[derive(Debug, thiserror::Error)]
 pub enum BuildError {
     /// No `firmware/Cargo.toml` in any repository root looked at.
-    #[error("the firmware sources are not next to this program")]
+    #[error("no firmware sources (firmware/Cargo.toml) there")]
     NoSources,
     /// The standard library for [`FIRMWARE_TARGET`] is not installed.
     #[error(
@@ -111,6 +111,16 @@ pub fn build_firmware() -> Result<PathBuf, BuildError> {
         .map(|root| root.join("firmware"))
         .find(|dir| dir.join("Cargo.toml").is_file())
         .ok_or(BuildError::NoSources)?;
+    build_firmware_in(&dir)
+}
+
+/// [`build_firmware`] in the firmware workspace `dir` (a checkout's
+/// `firmware/` folder).
+pub fn build_firmware_in(dir: &Path) -> Result<PathBuf, BuildError> {
+    let dir = dir.to_path_buf();
+    if !dir.join("Cargo.toml").is_file() {
+        return Err(BuildError::NoSources);
+    }
     if !firmware_target_installed() {
         return Err(BuildError::NoTarget);
     }
