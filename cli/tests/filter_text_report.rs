@@ -43,7 +43,8 @@ fn writes_a_parseable_svg_with_the_title_and_all_curves() {
     let texts: Vec<String> = doc
         .descendants()
         .filter(|n| n.has_tag_name("text"))
-        .filter_map(|n| n.text().map(|t| t.trim().to_owned()))
+        // Numbers and units are held together by no-break spaces.
+        .filter_map(|n| n.text().map(|t| t.trim().replace('\u{a0}', " ")))
         .collect();
     // Long titles wrap over lines at the top of the picture.
     assert!(texts.join(" ").contains(title), "no title in {texts:?}");

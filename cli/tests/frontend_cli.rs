@@ -223,7 +223,8 @@ fn text_report_plot_and_cautions() {
     let texts: Vec<String> = doc
         .descendants()
         .filter(|n| n.has_tag_name("text"))
-        .filter_map(|n| n.text().map(|t| t.trim().to_owned()))
+        // Numbers and units are held together by no-break spaces.
+        .filter_map(|n| n.text().map(|t| t.trim().replace('\u{a0}', " ")))
         .collect();
     for label in [
         "gain against mid-band",

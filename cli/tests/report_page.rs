@@ -207,6 +207,50 @@ pub fn flatten(
 }
 
 #[test]
+fn navigation_and_cards_follow_what_is_on_the_page() {
+    let rec = scenario();
+    let samples: Vec<f64> = rec.samples.iter().map(|&x| f64::from(x)).collect();
+    let config = Config::new(rec.sample_rate_hz as f32);
+    let run = replay(&samples, config).unwrap();
+    // No reference: no score section, no link to one, no score cards.
+    let bare = read(&build(&ReportInput::new("bare", &samples, config, &run)).unwrap());
+    assert!(
+        !bare.sections.iter().any(|s| s == "score"),
+        "{:?}",
+        bare.sections
+    );
+    assert!(!bare
+        .cards
+        .iter()
+        .any(|c| c == "f1_percent" || c == "hr_mae_bpm"));
+    // A heart-rate series alone (as beside a BIDMC record): its error has
+    // a card, as `plethwire report` prints it, and the score is linked.
+    let rate = Reference {
+        rate_source: "the generator's schedule".into(),
+        rate: Some(
+            (0..180)
+                .map(|t| (t as f64, Some(rec_bpm(t as f64))))
+                .collect(),
+        ),
+        ..Reference::default()
+    };
+    let mut input = ReportInput::new("rate only", &samples, config, &run);
+    input.reference = Some(&rate);
+    let page = read(&build(&input).unwrap());
+    assert_eq!(page.sections.last().map(String::as_str), Some("score"));
+    assert!(
+        page.cards.iter().any(|c| c == "hr_mae_bpm"),
+        "{:?}",
+        page.cards
+    );
+    assert!(
+        !page.cards.iter().any(|c| c == "f1_percent"),
+        "{:?}",
+        page.cards
+    );
+}
+
+#[test]
 fn flagged_and_reference_beats_are_drawn_in_a_chosen_excerpt() {
     let rec = scenario();
     let samples: Vec<f64> = rec.samples.iter().map(|&x| f64::from(x)).collect();
@@ -333,7 +377,12 @@ fn shared_recordings_report_their_score() {
             scored.beats.and_then(|b| b.f1()).map(|f| 100.0 * f),
             2,
         );
-        page.assert_figure_if("hr_mae_bpm", scored.heart_rate.and_then(|h| h.mae()), 2);
+        let mae = scored.heart_rate.and_then(|h| h.mae());
+        page.assert_figure_if("hr_mae_bpm", mae, 2);
+        // What the terminal prints against the reference has its card.
+        if mae.is_some() {
+            assert!(page.cards.iter().any(|c| c == "hr_mae_bpm"), "{record}");
+        }
         assert!(html.len() < 1_000_000, "{record}: {} bytes", html.len());
     }
 }

@@ -28,10 +28,13 @@
 //! * `PLETHWIRE_PYTHON`: Python interpreter to use (default `python3`, then
 //!   `python`).
 //! * `PLETHWIRE_QEMU`: `qemu-system-arm` binary to use (default: from `PATH`).
+//! * `PLETHWIRE_CHROMIUM`: Chromium binary for the browser checks
+//!   (default: `chromium`, then `chromium-browser`, from `PATH`).
 
 pub mod accuracy;
 pub mod baseline;
 pub mod beside;
+pub mod browser;
 pub mod emulation;
 pub mod selfcheck;
 
@@ -64,6 +67,9 @@ pub mod needs {
     pub const SHARED_DATA: &str =
         "the shared recordings folder `../shared/data` next to the repository \
          (or set PLETHWIRE_DATA to its path)";
+    /// A headless browser for the pictures.
+    pub const CHROMIUM: &str = "chromium (Debian/Ubuntu: `apt-get install chromium`; \
+         or set PLETHWIRE_CHROMIUM; scripts/test-all installs it)";
     /// The Rust standard library for the emulated firmware's target.
     pub const FIRMWARE_TARGET: &str = "the Rust target thumbv7em-none-eabihf \
          (`rustup target add thumbv7em-none-eabihf`; scripts/test-all adds it)";

@@ -4,7 +4,8 @@
 
 use std::collections::BTreeMap;
 
-/// Section ids every page has, in order.
+/// Section ids a page may have, in order; all but the score are on every
+/// page.
 pub const SECTIONS: [&str; 8] = [
     "excerpt",
     "heart-rate",
@@ -31,6 +32,10 @@ pub struct Page {
     pub figures: BTreeMap<String, Shown>,
     /// Inline SVG figures per section id, as markup.
     pub svgs: BTreeMap<String, Vec<String>>,
+    /// The ids of the sections on the page, in order.
+    pub sections: Vec<String>,
+    /// The figures shown in the header's cards.
+    pub cards: Vec<String>,
 }
 
 impl Page {
@@ -127,7 +132,13 @@ pub fn read(html: &str) -> Page {
     assert_eq!(by_id("summary").tag_name().name(), "header");
     let mut svgs = BTreeMap::new();
     let mut previous = 0;
+    let mut sections = Vec::new();
     for id in SECTIONS {
+        let found = doc.descendants().find(|n| n.attribute("id") == Some(id));
+        if id == "score" && found.is_none() {
+            continue;
+        }
+        sections.push(id.to_owned());
         let s = by_id(id);
         assert_eq!(s.tag_name().name(), "section", "{id}");
         assert!(s.range().start > previous, "section {id} out of order");
@@ -143,6 +154,30 @@ pub fn read(html: &str) -> Page {
             .map(|n| html[n.range()].to_owned())
             .collect();
         svgs.insert(id.to_owned(), figures);
+    }
+    // The navigation links to exactly the sections there are, in order.
+    let nav: Vec<String> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("nav"))
+        .flat_map(|n| n.descendants().filter_map(|a| a.attribute("href")))
+        .map(|h| h.trim_start_matches('#').to_owned())
+        .collect();
+    assert_eq!(nav, sections, "the navigation follows the page");
+    let cards: Vec<String> = by_id("summary")
+        .descendants()
+        .filter(|n| n.has_tag_name("dl"))
+        .flat_map(|n| n.descendants().filter_map(|c| c.attribute("data-figure")))
+        .map(str::to_owned)
+        .collect();
+    for n in doc
+        .descendants()
+        .filter(|n| ["p", "li", "dd", "td", "th", "h2", "text"].contains(&n.tag_name().name()))
+    {
+        assert_eq!(
+            split_unit(&text_of(n)),
+            None,
+            "a number apart from its unit"
+        );
     }
     let footer = text_of(by_id("cautions"));
     for caution in [
@@ -173,5 +208,39 @@ pub fn read(html: &str) -> Page {
             "figure {name} shown twice with different values"
         );
     }
-    Page { figures, svgs }
+    Page {
+        figures,
+        svgs,
+        sections,
+        cards,
+    }
+}
+
+/// Units that must stay on the line of their number.
+const UNITS: [&str; 10] = ["Hz", "dB", "ms", "s", "bpm", "%", "V", "µA", "min", "mV"];
+
+/// A number and a unit after it with a plain (breakable) space between,
+/// if `text` has one: `"12 s"`, not `"12\u{a0}s"`.
+pub fn split_unit(text: &str) -> Option<String> {
+    let chars: Vec<char> = text.chars().collect();
+    (1..chars.len()).find_map(|i| {
+        if !(chars[i].is_whitespace() && chars[i] != '\u{a0}' && chars[i - 1].is_ascii_digit()) {
+            return None;
+        }
+        let rest: String = chars[i + 1..].iter().collect();
+        let word: String = rest
+            .chars()
+            .take_while(|c| c.is_alphabetic() || *c == '%')
+            .collect();
+        let word = if word.starts_with('%') {
+            "%".to_owned()
+        } else {
+            word
+        };
+        UNITS.contains(&word.as_str()).then(|| {
+            chars[i.saturating_sub(8)..(i + 4).min(chars.len())]
+                .iter()
+                .collect()
+        })
+    })
 }

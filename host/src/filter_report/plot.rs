@@ -1,6 +1,9 @@
 //! The response as an SVG: magnitude, phase and group delay stacked on one
 //! logarithmic frequency axis, design and board cascade overlaid, with the
-//! heart band shaded. Drawn with the host's plot toolkit ([`crate::plot`]).
+//! heart band shaded and the legend above the panels. Where a gain falls
+//! below the axis the curve is broken there and marked, not drawn along
+//! the floor; the report's warnings are drawn below the panels. Drawn with
+//! the host's plot toolkit ([`crate::plot`]).
 
 use plethwire_dsp::filter::Biquad;
 use plethwire_dsp::response::Response;
@@ -8,18 +11,21 @@ use plotters::prelude::*;
 use std::path::Path;
 
 use super::report::{on_a_zero, FilterReport};
+use crate::plot::legend::remarks_height;
 use crate::plot::theme::{BOARD, DESIGN, WIDTH};
 use crate::plot::{
-    axis_range_hz, draw_legend, legend_line, phase_near_deg, range_of, rgb, sheet_panel, svg,
-    titled, unwrapped_phase_deg, write_svg_file, Area, Drawn, PlotError, Sweep,
+    axis_range_hz, band_entry, clip, draw_clipped, legend_strip, phase_near_deg, range_of,
+    remarks_strip, rgb, sheet_panel, svg, titled, unwrapped_phase_deg, write_svg_file, Area, Drawn,
+    Entry, Level, PlotError, Remark, Swatch, Sweep,
 };
 
-/// Gains below this are drawn at it, so deep stop bands stay readable.
+/// The gain axis's lower end, so deep stop bands stay readable; a curve
+/// below it is drawn as leaving the axis.
 const GAIN_FLOOR_DB: f64 = -100.0;
 const GAIN_CEILING_DB: f64 = 5.0;
 /// About what fits across the plot at the title's font size.
 const TITLE_CHARS_PER_LINE: usize = 90;
-const HEIGHT: u32 = 960;
+const HEIGHT: u32 = 1000;
 
 type Curve = Vec<(f64, f64)>;
 
@@ -29,25 +35,38 @@ struct Curves<'c> {
     design: Curve,
     board: Curve,
     y: (f64, f64),
-    legend: bool,
+}
+
+impl Curves<'_> {
+    fn leaves(&self) -> bool {
+        clip(&self.design, self.y).leaves() || clip(&self.board, self.y).leaves()
+    }
 }
 
 fn draw_panel(area: &Area<'_>, x: (f64, f64), corners: &[f64], c: Curves<'_>) -> Drawn {
     let mut chart = sheet_panel(area, c.title, c.unit, (x, c.y), corners)?;
-    let design = rgb(DESIGN).stroke_width(2);
-    chart
-        .draw_series(LineSeries::new(c.design, design))?
-        .label("design (f64)")
-        .legend(legend_line(design));
-    let board = rgb(BOARD).stroke_width(1);
-    chart
-        .draw_series(DashedLineSeries::new(c.board, 7, 4, board))?
-        .label("board (Delta, f32)")
-        .legend(legend_line(board));
-    if c.legend {
-        draw_legend(&mut chart)?;
-    }
+    let design = (rgb(DESIGN).stroke_width(2), DESIGN);
+    draw_clipped(&mut chart, &c.design, c.y, design, None)?;
+    let board = (rgb(BOARD).stroke_width(1), BOARD);
+    draw_clipped(&mut chart, &c.board, c.y, board, Some((7, 4)))?;
     Ok(())
+}
+
+/// The legend above the panels; the mark of a curve leaving the axis is
+/// explained only when a curve does.
+fn legend(panels: &[Curves<'_>]) -> Vec<Entry> {
+    let mut entries = vec![
+        band_entry(),
+        Entry::new(Swatch::Line(DESIGN, 2), "design (f64)"),
+        Entry::new(Swatch::Dashed(BOARD, 1), "board (Delta, f32)"),
+    ];
+    if panels.iter().any(Curves::leaves) {
+        entries.push(Entry::new(
+            Swatch::Leaves(DESIGN),
+            "the curve leaves the axis here (continues beyond it)",
+        ));
+    }
+    entries
 }
 
 /// Gain, phase and group delay of design and board along the sweep, as
@@ -63,12 +82,13 @@ fn curves(report: &FilterReport, sweep: &Sweep) -> [Curves<'static>; 3] {
             .filter(|(_, y)| y.is_finite())
             .collect()
     };
-    let gain = |r: &[Response]| {
-        pair(
-            r.iter()
-                .map(|p| p.magnitude_db.clamp(GAIN_FLOOR_DB, GAIN_CEILING_DB))
-                .collect(),
-        )
+    // A zero of the response (−∞ dB) stays in, to be drawn as leaving.
+    let gain = |r: &[Response]| -> Curve {
+        f.iter()
+            .zip(r)
+            .map(|(&hz, p)| (hz, p.magnitude_db))
+            .filter(|(_, y)| !y.is_nan())
+            .collect()
     };
     let defined = |sections: &[Biquad<f64>], ys: Vec<f64>| -> Curve {
         pair(
@@ -107,7 +127,6 @@ fn curves(report: &FilterReport, sweep: &Sweep) -> [Curves<'static>; 3] {
             design: gain(&sweep.design),
             board: gain(&sweep.board),
             y: (GAIN_FLOOR_DB, GAIN_CEILING_DB),
-            legend: true,
         },
         Curves {
             title: "phase (unwrapped)",
@@ -115,7 +134,6 @@ fn curves(report: &FilterReport, sweep: &Sweep) -> [Curves<'static>; 3] {
             design: phase_d,
             board: phase_b,
             y: phase_y,
-            legend: false,
         },
         Curves {
             title: "group delay",
@@ -123,7 +141,6 @@ fn curves(report: &FilterReport, sweep: &Sweep) -> [Curves<'static>; 3] {
             design: delay_d,
             board: delay_b,
             y: delay_y,
-            legend: false,
         },
     ]
 }
@@ -149,8 +166,21 @@ pub fn render_svg(report: &FilterReport) -> Result<String, PlotError> {
         "plethwire filter: {} at {rate} Hz",
         report.spec.describe_stages()
     );
-    svg((WIDTH, HEIGHT), |root| {
+    let entries = legend(&panels);
+    // The report's warnings at the figure's foot, below the panels.
+    let findings: Vec<Remark> = report
+        .warnings
+        .iter()
+        .map(|w| Remark {
+            level: Level::Warning,
+            text: w.clone(),
+        })
+        .collect();
+    let height = HEIGHT + remarks_height(&findings, WIDTH);
+    svg((WIDTH, height), |root| {
         let body = titled(root, &title, TITLE_CHARS_PER_LINE)?;
+        let body = legend_strip(&body, &entries)?;
+        let body = remarks_strip(&body, &findings)?;
         for (area, c) in body.split_evenly((3, 1)).iter().zip(panels) {
             draw_panel(area, x, &corners, c)?;
         }
@@ -162,3 +192,7 @@ pub fn render_svg(report: &FilterReport) -> Result<String, PlotError> {
 pub fn write_svg(report: &FilterReport, path: &Path) -> Result<(), PlotError> {
     write_svg_file(path, render_svg(report))
 }
+
+#[cfg(test)]
+#[path = "plot_tests.rs"]
+mod tests;

@@ -39,6 +39,7 @@ mod findings;
 mod led;
 pub mod limits;
 mod nodes;
+mod phase;
 mod plot;
 mod quantity;
 mod render;

@@ -32,23 +32,15 @@ pub struct ResponseRow {
     pub analog_v_per_ua: f64,
     /// Analog gain relative to mid-band, dB.
     pub analog_db: f64,
-    /// Analog phase, degrees in (−180, 180].
+    /// Analog phase, degrees, unwrapped along frequency from 0.05 Hz
+    /// where it lies in (−180, 180]: the phase the plot draws.
     pub analog_phase_deg: f64,
     /// Analog and digital together, relative to mid-band, dB; `None` at
     /// or above Nyquist.
     pub with_digital_db: Option<f64>,
-    /// Their phase, degrees in (−180, 180]; `None` at or above Nyquist.
+    /// Their phase, unwrapped as the analog phase is; `None` at or above
+    /// Nyquist.
     pub with_digital_phase_deg: Option<f64>,
-}
-
-/// An angle in degrees brought into (−180, 180].
-pub(crate) fn wrap_deg(d: f64) -> f64 {
-    let w = d - 360.0 * (d / 360.0).round();
-    if w <= -180.0 {
-        w + 360.0
-    } else {
-        w
-    }
 }
 
 /// The whole report.
@@ -238,10 +230,11 @@ fn table(chain: &Chain, digital: &DigitalFilter) -> Vec<ResponseRow> {
     freqs.dedup();
     let nyquist = digital.rate_hz / 2.0;
     let mid = chain.midband_v_per_a.abs();
+    let phase = super::phase::phase_track(chain, digital, &freqs);
     freqs
         .into_iter()
-        .map(|f| {
-            let analog_phase = chain.transfer.phase_deg(f);
+        .zip(phase)
+        .map(|(f, (analog_phase, with_digital_phase))| {
             let digital_response = (f < nyquist).then(|| {
                 plethwire_dsp::response::response(digital.design.sections(), f, digital.rate_hz)
             });
@@ -250,25 +243,10 @@ fn table(chain: &Chain, digital: &DigitalFilter) -> Vec<ResponseRow> {
                 bpm: bpm(f),
                 analog_v_per_ua: chain.transfer.magnitude(f) * 1e-6,
                 analog_db: 20.0 * (chain.transfer.magnitude(f) / mid).log10(),
-                analog_phase_deg: wrap_deg(analog_phase),
+                analog_phase_deg: analog_phase,
                 with_digital_db: digital_response.map(|r| chain.relative_db(f) + r.magnitude_db),
-                with_digital_phase_deg: digital_response
-                    .map(|r| wrap_deg(analog_phase + r.phase_rad.to_degrees())),
+                with_digital_phase_deg: with_digital_phase,
             }
         })
         .collect()
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn angles_wrap_into_a_half_open_turn() {
-        assert_eq!(wrap_deg(190.0), -170.0);
-        assert_eq!(wrap_deg(-180.0), 180.0);
-        assert_eq!(wrap_deg(180.0), 180.0);
-        assert_eq!(wrap_deg(-45.0), -45.0);
-        assert_eq!(wrap_deg(725.0), 5.0);
-    }
 }

@@ -46,11 +46,86 @@ pub fn range_of(values: impl Iterator<Item = f64>, pad: f64, fallback: (f64, f64
     (lo - room, hi + room)
 }
 
+/// Units that stay on the line of the number before them.
+const UNITS: [&str; 27] = [
+    "Hz", "kHz", "mHz", "MHz", "dB", "V", "mV", "µV", "A", "mA", "µA", "nA", "pA", "s", "ms", "µs",
+    "min", "bpm", "%", "°", "Ω", "kΩ", "MΩ", "F", "µF", "nF", "pF",
+];
+
+/// Whether `rest` (the text after a space) starts with one of [`UNITS`]
+/// as a whole word.
+pub(crate) fn starts_with_unit(rest: &str) -> bool {
+    let word: String = rest
+        .chars()
+        .take_while(|c| c.is_alphabetic() || matches!(c, '%' | '°'))
+        .collect();
+    // "%" and "°" stand alone even with letters after them ("%good").
+    let word = match word.chars().next() {
+        Some(c @ ('%' | '°')) => c.to_string(),
+        _ => word,
+    };
+    UNITS.contains(&word.as_str())
+}
+
+/// `text` with each plain space between a number and its unit made a
+/// no-break space (U+00A0), so neither a title's wrapping nor a browser
+/// can put them on different lines: "at 250 Hz", "−23 V/µA", "12 s".
+/// Only the text counts, so the space after `<span>4.0</span>` in markup
+/// is kept together with its `s` too; tags are copied as they are and the
+/// insides of `<style>` are left alone.
+pub fn units_kept(text: &str) -> String {
+    let mut out = String::with_capacity(text.len() + 16);
+    let mut last_text_char: Option<char> = None;
+    let mut in_tag = false;
+    let mut in_style = false;
+    for (i, c) in text.char_indices() {
+        if in_tag {
+            in_tag = c != '>';
+            out.push(c);
+            continue;
+        }
+        match c {
+            '<' => {
+                in_tag = true;
+                let tag = &text[i..];
+                if tag.starts_with("<style") {
+                    in_style = true;
+                } else if tag.starts_with("</style") {
+                    in_style = false;
+                }
+                out.push(c);
+            }
+            ' ' if !in_style
+                && last_text_char.is_some_and(|p| p.is_ascii_digit())
+                && starts_with_unit(text_after_tags(&text[i + 1..])) =>
+            {
+                out.push('\u{a0}');
+                last_text_char = Some('\u{a0}');
+            }
+            _ => {
+                out.push(c);
+                last_text_char = Some(c);
+            }
+        }
+    }
+    out
+}
+
+/// `s` from its first character outside a tag on.
+fn text_after_tags(mut s: &str) -> &str {
+    while let Some(rest) = s.strip_prefix('<') {
+        s = rest.split_once('>').map_or("", |(_, after)| after);
+    }
+    s
+}
+
 /// Words of `text` in lines of at most `width` characters (a longer word
-/// gets a line of its own).
+/// gets a line of its own). Only plain spaces break a line: a number and
+/// its unit ([`units_kept`]) stay together.
 pub fn wrap_words(text: &str, width: usize) -> Vec<String> {
     let mut lines: Vec<String> = Vec::new();
-    for word in text.split_whitespace() {
+    let kept = units_kept(text);
+    for word in kept.split([' ', '\t', '\n']).filter(|w| !w.is_empty()) {
         match lines.last_mut() {
             Some(line) if line.chars().count() + 1 + word.chars().count() <= width => {
                 line.push(' ');
@@ -104,5 +179,33 @@ mod tests {
         assert_eq!(wrap_words("a bb ccc", 4), ["a bb", "ccc"]);
         assert_eq!(wrap_words("abcdef g", 3), ["abcdef", "g"]);
         assert_eq!(wrap_words("short", 90), ["short"]);
+    }
+
+    #[test]
+    fn a_number_and_its_unit_stay_on_one_line() {
+        assert_eq!(
+            wrap_words("notch 50 Hz (Q 30) at 250 Hz", 26),
+            ["notch 50\u{a0}Hz (Q 30) at", "250\u{a0}Hz"]
+        );
+        assert_eq!(
+            wrap_words("mid-band -23 V/µA; digital", 13),
+            ["mid-band", "-23\u{a0}V/µA;", "digital"]
+        );
+        assert_eq!(
+            units_kept("12 s of 3 beats, 5 %"),
+            "12\u{a0}s of 3 beats, 5\u{a0}%"
+        );
+        assert_eq!(units_kept("2 seconds"), "2 seconds");
+    }
+
+    #[test]
+    fn markup_keeps_its_tags_and_style() {
+        let page = r#"<style>a { margin: 0 0 2px; } p { x: 1 s; }</style><p><span v="1 s">4.0</span> <small>ms</small></p>"#;
+        let kept = units_kept(page);
+        assert!(kept.starts_with(r#"<style>a { margin: 0 0 2px; } p { x: 1 s; }</style>"#));
+        assert!(
+            kept.ends_with("<span v=\"1 s\">4.0</span>\u{a0}<small>ms</small></p>"),
+            "{kept}"
+        );
     }
 }

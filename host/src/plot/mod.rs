@@ -6,17 +6,24 @@
 //! and a colour or a label means the same thing on each.
 
 pub mod axis;
+pub mod clip;
+pub mod legend;
 pub mod panel;
+#[cfg(test)]
+pub(crate) mod svg_check;
 pub mod sweep;
 pub mod theme;
 
-pub use axis::{fixed, hz_label, range_of, ticks, wrap_words};
+pub use axis::{fixed, hz_label, range_of, ticks, units_kept, wrap_words};
+pub use clip::{clip, draw_clipped, Clipped, Edge};
+pub use legend::{band_entry, legend_strip, remarks_strip, Entry, Level, Remark, Swatch};
 pub use panel::{
-    draw_band_and_marks, draw_legend, draw_marks, frequency_chart, legend_line, sheet_panel, Area,
-    Frame, Layout, LogPanelChart, HEART_BAND_HZ,
+    draw_band_and_marks, draw_marks, frequency_chart, sheet_panel, Area, Frame, Layout,
+    LogPanelChart, HEART_BAND_HZ,
 };
 pub use sweep::{
-    axis_range_hz, log_frequencies, phase_near_deg, unwrapped_phase_deg, Sweep, SWEEP_POINTS,
+    axis_range_hz, log_frequencies, phase_near_deg, phase_track_deg, unwrapped_phase_deg, wrap_deg,
+    Sweep, SWEEP_POINTS,
 };
 pub use theme::{css, mesh_colours, rgb, Rgb};
 

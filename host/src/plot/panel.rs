@@ -1,13 +1,14 @@
 //! Frequency-response panels: a logarithmic frequency axis against a
-//! linear one, the heart band, marked frequencies and the legend, the same
-//! on every Bode and response plot.
+//! linear one, the heart band and marked frequencies, the same on every
+//! Bode and response plot (their legend goes beside them, see
+//! [`super::legend`]).
 
 use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use super::axis::{hz_label, ticks};
-use super::theme::{mesh_colours, rgb, BAND, CAPTION_FONT, FONT, GUIDE, LEGEND_FRAME, PAPER};
+use super::theme::{mesh_colours, rgb, BAND, CAPTION_FONT, FONT, GUIDE};
 use super::DrawFailure;
 
 /// Heart rates of 30 to 220 beats per minute, Hz.
@@ -102,8 +103,8 @@ pub fn sheet_panel<'a, 'b>(
     Ok(chart)
 }
 
-/// Shade the heart band (clipped to the x range `x`) with its legend entry,
-/// and draw a dashed line at each of `marks` inside it, over the y range
+/// Shade the heart band (clipped to the x range `x`; its legend entry is
+/// [`super::legend::band_entry`]) and draw a dashed line at each of `marks` inside it, over the y range
 /// `y`.
 pub fn draw_band_and_marks(
     chart: &mut LogPanelChart<'_, '_>,
@@ -113,18 +114,10 @@ pub fn draw_band_and_marks(
 ) -> Result<(), DrawFailure> {
     let (band_lo, band_hi) = (HEART_BAND_HZ.0.max(x.0), HEART_BAND_HZ.1.min(x.1));
     if band_lo < band_hi {
-        chart
-            .draw_series(std::iter::once(Rectangle::new(
-                [(band_lo, y.0), (band_hi, y.1)],
-                rgb(BAND).mix(0.13).filled(),
-            )))?
-            .label("heart band 0.5-3.7 Hz (30-220 bpm)")
-            .legend(|(px, py)| {
-                Rectangle::new(
-                    [(px, py - 5), (px + 22, py + 5)],
-                    rgb(BAND).mix(0.3).filled(),
-                )
-            });
+        chart.draw_series(std::iter::once(Rectangle::new(
+            [(band_lo, y.0), (band_hi, y.1)],
+            rgb(BAND).mix(0.13).filled(),
+        )))?;
     }
     draw_marks(chart, x, y, marks, 3)
 }
@@ -146,21 +139,5 @@ pub fn draw_marks(
             rgb(GUIDE).stroke_width(1),
         ))?;
     }
-    Ok(())
-}
-
-/// A legend entry: a short line in `style`.
-pub fn legend_line(style: ShapeStyle) -> impl Fn((i32, i32)) -> PathElement<(i32, i32)> {
-    move |(px, py)| PathElement::new([(px, py), (px + 22, py)], style)
-}
-
-/// The legend box, lower left.
-pub fn draw_legend<'a, 'b: 'a>(chart: &mut LogPanelChart<'a, 'b>) -> Result<(), DrawFailure> {
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::LowerLeft)
-        .background_style(rgb(PAPER).mix(0.85))
-        .border_style(rgb(LEGEND_FRAME))
-        .draw()?;
     Ok(())
 }

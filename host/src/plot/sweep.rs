@@ -88,6 +88,64 @@ pub fn unwrapped_phase_deg(points: &[Response]) -> Vec<f64> {
     out
 }
 
+/// An angle in degrees brought into (−180, 180].
+pub fn wrap_deg(d: f64) -> f64 {
+    let w = d - 360.0 * (d / 360.0).round();
+    if w <= -180.0 {
+        w + 360.0
+    } else {
+        w
+    }
+}
+
+/// Phase of an analog response alone, and with a digital cascade after it
+/// below the cascade's Nyquist, at each of `freqs`, degrees: followed along
+/// `grid` (ascending, Hz) and `freqs` merged, from the lowest frequency,
+/// where each starts within (−180, 180], without jumps of whole turns.
+/// `analog_deg` must be continuous in frequency (a sum of factor angles);
+/// the cascade's phase is unwrapped with [`unwrapped_phase_deg`]. A table
+/// and a plot that both take their phase from here show the same numbers.
+pub fn phase_track_deg(
+    grid: &[f64],
+    freqs: &[f64],
+    analog_deg: impl Fn(f64) -> f64,
+    (sections, rate_hz): (&[Biquad<f64>], f64),
+) -> Vec<(f64, Option<f64>)> {
+    let mut all: Vec<f64> = grid
+        .iter()
+        .chain(freqs)
+        .copied()
+        .filter(|f| f.is_finite() && *f > 0.0)
+        .collect();
+    all.sort_by(f64::total_cmp);
+    all.dedup();
+    let raw: Vec<f64> = all.iter().map(|&f| analog_deg(f)).collect();
+    let turns = |first: f64| first - wrap_deg(first);
+    let analog_shift = raw.first().map_or(0.0, |&p| turns(p));
+    let top = rate_hz / 2.0 * (1.0 - 1e-4);
+    let below = all.iter().take_while(|&&f| f < top).count();
+    let responses: Vec<Response> = all[..below]
+        .iter()
+        .map(|&f| response(sections, f, rate_hz))
+        .collect();
+    let digital = unwrapped_phase_deg(&responses);
+    let combined_shift = digital
+        .first()
+        .zip(raw.first())
+        .map_or(0.0, |(d, a)| turns(a - analog_shift + d));
+    freqs
+        .iter()
+        .map(|&f| {
+            let i = all.binary_search_by(|g| g.total_cmp(&f)).ok();
+            let analog = i.map_or(f64::NAN, |i| raw[i] - analog_shift);
+            let combined = i
+                .filter(|&i| i < below)
+                .map(|i| analog + digital[i] - combined_shift);
+            (analog, combined)
+        })
+        .collect()
+}
+
 /// The phase of `points` in degrees, each shifted by whole turns to lie
 /// within half a turn of `reference_deg`. The board's cascade is drawn this
 /// way against the design: near a notch, rounding can move a zero from on
@@ -143,6 +201,31 @@ mod tests {
         assert_eq!(with.frequencies_hz.len(), SWEEP_POINTS + 1);
         assert!(with.frequencies_hz.contains(&10.0));
         assert!(with.frequencies_hz.windows(2).all(|w| w[0] < w[1]));
+    }
+
+    #[test]
+    fn angles_wrap_into_a_half_open_turn() {
+        assert_eq!(wrap_deg(190.0), -170.0);
+        assert_eq!(wrap_deg(-180.0), 180.0);
+        assert_eq!(wrap_deg(180.0), 180.0);
+        assert_eq!(wrap_deg(-45.0), -45.0);
+        assert_eq!(wrap_deg(725.0), 5.0);
+    }
+
+    #[test]
+    fn a_track_starts_within_a_turn_and_agrees_on_any_grid() {
+        let d = butterworth_lowpass(2, 10.0, 100.0).unwrap();
+        // An inverting stage with a pole at 1 Hz: 180° − atan(f).
+        let analog = |f: f64| 180.0 - f.atan().to_degrees() + 360.0;
+        let fine = log_frequencies(0.1, 40.0, 600, &[]);
+        let coarse = [0.1, 1.0, 10.0, 40.0, 60.0];
+        let a = phase_track_deg(&fine, &coarse, analog, (d.sections(), 100.0));
+        let b = phase_track_deg(&fine[..300], &coarse, analog, (d.sections(), 100.0));
+        assert_eq!(a, b);
+        assert!((a[0].0 - wrap_deg(analog(0.1))).abs() < 1e-9, "{a:?}");
+        assert!(a[0].0 > -180.0 && a[0].0 <= 180.0);
+        assert_eq!(a[4].1, None, "60 Hz is above Nyquist");
+        assert!(a[3].1.unwrap() < a[0].1.unwrap());
     }
 
     #[test]

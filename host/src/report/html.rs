@@ -57,6 +57,8 @@ pub enum Mark {
     Triangle,
     /// A filled block (a span or band).
     Block,
+    /// A triangle pointing down: where a curve leaves the axis below.
+    Leaves,
 }
 
 fn swatch(mark: Mark, c: Rgb) -> String {
@@ -72,6 +74,7 @@ fn swatch(mark: Mark, c: Rgb) -> String {
         }
         Mark::Triangle => format!(r#"<path d="M3 13L8 3L13 13Z" fill="{c}"/>"#),
         Mark::Block => format!(r#"<rect x="1" y="3" width="14" height="10" fill="{c}"/>"#),
+        Mark::Leaves => format!(r#"<path d="M3 4L13 4L8 12Z" fill="{c}"/>"#),
     };
     format!(
         r#"<svg class="swatch" width="16" height="16" viewBox="0 0 16 16" aria-hidden="true">{shape}</svg>"#

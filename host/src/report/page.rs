@@ -1,16 +1,18 @@
 //! The page: header of key figures, the sections in order (those around
 //! a figure are in `views`), the tables of HRV and score, the cautions.
+//! The header's navigation lists the sections the page has, and its cards
+//! the headline figures it has (a score only with a reference).
 
 use super::band::BandPass;
 use super::excerpt::Excerpt;
 use super::figures::Figures;
 use super::html::{count, escape, fig, table, STYLE};
-use super::sections::{section, SECTIONS};
+use super::sections::{heading, section};
 use super::views::{
     excerpt_section, filter_section, poincare_section, quality_section, trend_sections,
 };
 use super::ReportInput;
-use crate::plot::PlotError;
+use crate::plot::{units_kept, PlotError};
 
 fn card(label: &str, value: String) -> String {
     format!("<div><dt>{}</dt><dd>{value}</dd></div>", escape(label))
@@ -80,31 +82,57 @@ fn summary_cards(f: &Figures) -> Vec<String> {
             ),
         ),
     ];
-    if let Some(s) = &f.score {
-        if s.f1_percent.is_some() {
-            cards.push(card(
-                "F1 against reference",
-                format!("{} <small>%</small>", fig("f1_percent", s.f1_percent, 2)),
-            ));
-        }
+    cards.extend(score_cards(f));
+    cards
+}
+
+/// The score's cards: the same figures `plethwire report` prints against
+/// the reference, each when there is one.
+fn score_cards(f: &Figures) -> Vec<String> {
+    let Some(s) = &f.score else {
+        return Vec::new();
+    };
+    let mut cards = Vec::new();
+    if s.f1_percent.is_some() {
+        cards.push(card(
+            "F1 against reference",
+            format!("{} <small>%</small>", fig("f1_percent", s.f1_percent, 2)),
+        ));
+    }
+    if s.hr_mae_bpm.is_some() {
+        cards.push(card(
+            "heart-rate error against reference",
+            format!(
+                "{} <small>bpm (MAE)</small>",
+                fig("hr_mae_bpm", s.hr_mae_bpm, 2)
+            ),
+        ));
     }
     cards
 }
 
-fn header(input: &ReportInput<'_>, f: &Figures) -> String {
+/// The header: title, input line, cards, and links to the sections
+/// `rendered` (ids, in page order).
+fn header(input: &ReportInput<'_>, f: &Figures, rendered: &[&str]) -> String {
     let cards = summary_cards(f);
     let units = input
         .units
         .map(|u| format!(" ({})", escape(u)))
         .unwrap_or_default();
-    let nav: String = SECTIONS
+    let nav: String = rendered
         .iter()
-        .map(|(id, h)| format!(r##"<a href="#{id}">{h}</a>"##))
+        .map(|id| format!(r##"<a href="#{id}">{}</a>"##, heading(id)))
         .collect();
+    let no_score = if f.score.is_none() {
+        "<p class=\"sub\">No reference beats or heart-rate series were given or found beside the \
+         record, so the page has no score.</p>\n"
+    } else {
+        ""
+    };
     format!(
         "<header id=\"summary\">\n<h1><span data-figure=\"record\">{name}</span><span class=\"tool\">plethwire report</span></h1>\n\
          <p class=\"sub\">signal <span data-figure=\"signal\">{signal}</span>{units}; input: {} samples replaced (not a number), {} at the rails, {} filter restarts</p>\n\
-         <dl class=\"cards\">{}</dl>\n<nav>{nav}</nav>\n</header>\n",
+         {no_score}<dl class=\"cards\">{}</dl>\n<nav>{nav}</nav>\n</header>\n",
         count("replaced_samples", Some(f.rejected_samples as usize)),
         count("clipped_samples", Some(f.clipped_samples as usize)),
         count("restarts", Some(f.restarts as usize)),
@@ -144,12 +172,10 @@ fn hrv_section(f: &Figures) -> String {
         ),
     )
 }
-fn score_section(input: &ReportInput<'_>, f: &Figures) -> String {
+/// The score against the reference; none without one.
+fn score_section(input: &ReportInput<'_>, f: &Figures) -> Option<String> {
     let (Some(s), Some(r)) = (&f.score, input.reference) else {
-        return section(
-            "score",
-            "<p>No reference: no reference beats or heart-rate series were given or found beside the record.</p>",
-        );
+        return None;
     };
     let mut rows: Vec<(&str, String)> = Vec::new();
     if s.reference_beats.is_some() {
@@ -182,7 +208,7 @@ fn score_section(input: &ReportInput<'_>, f: &Figures) -> String {
         ));
         rows.push(("seconds compared", count("hr_seconds", s.hr_seconds)));
     }
-    section(
+    Some(section(
         "score",
         &format!(
             "<div class=\"row\">{}\n<p class=\"note\">Beats match one to one within ±150 ms, closest pairs first \
@@ -191,7 +217,7 @@ fn score_section(input: &ReportInput<'_>, f: &Figures) -> String {
              seconds without a reference value or before the first report are left out.</p></div>",
             table(&rows)
         ),
-    )
+    ))
 }
 
 const CAUTIONS: &str = "<footer id=\"cautions\">\n<p><strong>plethwire is not a medical device.</strong> This report \
@@ -206,23 +232,28 @@ pub fn page(
     band: &BandPass,
 ) -> Result<String, PlotError> {
     let body = [
-        excerpt_section(input, f, e, band)?,
-        trend_sections(input)?,
-        poincare_section(input, f)?,
-        quality_section(input, f)?,
-        hrv_section(f),
-        filter_section(input, f, band)?,
+        Some(excerpt_section(input, f, e, band)?),
+        Some(trend_sections(input)?),
+        Some(poincare_section(input, f)?),
+        Some(quality_section(input, f)?),
+        Some(hrv_section(f)),
+        Some(filter_section(input, f, band)?),
         score_section(input, f),
     ]
-    .concat();
-    Ok(format!(
+    .into_iter()
+    .flatten()
+    .collect::<String>();
+    let rendered = super::sections::ids_in(&body);
+    let page = format!(
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n\
          <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n\
          <title>{} · plethwire report</title>\n<style>{STYLE}</style>\n</head>\n<body>\n{}<main>\n{body}</main>\n\
          {CAUTIONS}<p>Made by plethwire {} from {} samples.</p>\n</footer>\n</body>\n</html>\n",
         escape(&f.record),
-        header(input, f),
+        header(input, f, &rendered),
         env!("CARGO_PKG_VERSION"),
         input.samples.len(),
-    ))
+    );
+    // No line breaks between a number and its unit anywhere on the page.
+    Ok(units_kept(&page))
 }

@@ -238,6 +238,10 @@ pub fn filter_section(
             ),
         ),
     ]);
+    let leaves = format!(
+        "the gain leaves the axis (below {} dB)",
+        charts::GAIN_FLOOR_DB
+    );
     let body = format!(
         "<div class=\"row\">{rows}\n<p class=\"note\">The band-pass the pipeline ran on this recording, as the board \
          computes it ({} sections in f32, coefficients as rounded) at {} Hz. Dashed: the band edges.</p></div>\n{}\n<figure>{svg}</figure>",
@@ -248,6 +252,9 @@ pub fn filter_section(
             (Mark::Block, HEART, "this record's median HR, min to max"),
             (Mark::Line, HEART, "mean of the median HR"),
             (Mark::Dashed, GUIDE, "band edges"),
+            // A band-pass's zeros at DC and Nyquist take every such curve
+            // below the axis at both ends.
+            (Mark::Leaves, LINE, &leaves),
         ])
     );
     Ok(section("filter", &body))

@@ -11,7 +11,7 @@ mod signal;
 mod trends;
 
 pub use quality::{quality_svg, state_colour};
-pub use response::response_svg;
+pub use response::{response_svg, GAIN_FLOOR_DB};
 pub use signal::{signal_svg, SignalPlot};
 pub use trends::{heart_rate_svg, poincare_svg, tachogram_svg};
 

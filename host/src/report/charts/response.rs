@@ -1,16 +1,19 @@
 //! The band-pass the pipeline ran, at the record's rate: gain and group
-//! delay against frequency, with this record's heart rates shaded.
+//! delay against frequency, with this record's heart rates shaded. A gain
+//! below the axis is drawn as leaving it, not along the floor.
 
 use super::render;
 use crate::plot::theme::{HEART, LINE, WIDTH};
-use crate::plot::{draw_marks, frequency_chart, range_of, rgb, Area, Drawn, Frame, Layout};
+use crate::plot::{
+    draw_clipped, draw_marks, frequency_chart, range_of, rgb, Area, Drawn, Frame, Layout,
+};
 use crate::plot::{PlotError, Sweep};
 use crate::report::band::BandPass;
 use plotters::prelude::*;
 
 const HEIGHT: u32 = 520;
-/// Gains below this are drawn at it.
-const GAIN_FLOOR_DB: f64 = -60.0;
+/// The gain axis's lower end; the curve leaves the axis below it.
+pub const GAIN_FLOOR_DB: f64 = -60.0;
 
 /// The record's heart rates as frequencies, Hz: lowest, mean, highest.
 pub type HeartBand = Option<(f64, f64, f64)>;
@@ -38,7 +41,13 @@ fn panel(
         ))?;
     }
     draw_marks(&mut chart, x, y, &[band.low_hz, band.high_hz], 4)?;
-    chart.draw_series(LineSeries::new(curve, rgb(LINE).stroke_width(2)))?;
+    draw_clipped(
+        &mut chart,
+        &curve,
+        y,
+        (rgb(LINE).stroke_width(2), LINE),
+        None,
+    )?;
     Ok(())
 }
 
@@ -54,8 +63,8 @@ pub fn response_svg(band: &BandPass, heart: HeartBand) -> Result<String, PlotErr
     let gain: Vec<(f64, f64)> = f
         .iter()
         .zip(&sweep.board)
-        .map(|(&hz, r)| (hz, r.magnitude_db.max(GAIN_FLOOR_DB)))
-        .filter(|p| p.1.is_finite())
+        .map(|(&hz, r)| (hz, r.magnitude_db))
+        .filter(|p| !p.1.is_nan())
         .collect();
     let delay: Vec<(f64, f64)> = f
         .iter()
@@ -80,4 +89,33 @@ pub fn response_svg(band: &BandPass, heart: HeartBand) -> Result<String, PlotErr
         panel(&top, gain, frame("gain (dB)", (GAIN_FLOOR_DB, 5.0)), marks)?;
         panel(&bottom, delay, frame("group delay (ms)", delay_y), marks)
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::plot::svg_check::{curves, run_along_bottom};
+    use plethwire_dsp::pipeline::Config;
+
+    #[test]
+    fn the_gain_leaves_the_axis_marked_instead_of_lying_on_the_floor() {
+        let band = BandPass::new(&Config::new(125.0)).unwrap();
+        let svg = response_svg(&band, None).unwrap();
+        let doc = roxmltree::Document::parse(&svg).unwrap();
+        let marks = doc
+            .descendants()
+            .filter(|n| n.has_tag_name("polygon"))
+            .count();
+        // Below the axis towards DC and towards Nyquist.
+        assert_eq!(marks, 2, "{marks} marks");
+        let gain: Vec<_> = curves(&svg, 20)
+            .into_iter()
+            .filter(|c| c.iter().all(|p| p.1 < f64::from(HEIGHT) / 2.0))
+            .collect();
+        assert_eq!(gain.len(), 1, "one piece of gain curve");
+        assert!(
+            run_along_bottom(&gain[0]) < 3,
+            "the gain runs along the floor"
+        );
+    }
 }
