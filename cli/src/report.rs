@@ -192,7 +192,7 @@ impl ReportArgs {
             require_reference_beats(&base, annotator)?;
         }
         let reference: Option<Reference> =
-            Reference::load(&base, &refs).map_err(Failure::refused)?;
+            Reference::load(&base, &refs, rec.signal.fs).map_err(Failure::refused)?;
         let input = ReportInput {
             name: &rec.name,
             signal: &rec.signal.name,

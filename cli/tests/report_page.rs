@@ -363,7 +363,7 @@ fn shared_recordings_report_their_score() {
         let config = Config::new(rec.signal.fs as f32);
         let run = replay(&rec.signal.samples, config).unwrap();
         let refs = References::default();
-        let reference = Reference::load(&rec.path, &refs)
+        let reference = Reference::load(&rec.path, &refs, rec.signal.fs)
             .unwrap()
             .expect("a reference");
         let mut input = ReportInput::new(&rec.name, &rec.signal.samples, config, &run);

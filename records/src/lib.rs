@@ -41,8 +41,8 @@ pub use rr::read_rr_intervals;
 pub use wfdb_annotation::{
     annotation_path, code_for_symbol, decode_annotation_file, decode_annotations,
     encode_annotation_file, encode_annotations, read_annotation_file, read_annotations,
-    read_annotations_at, symbol_for_code, write_annotation_file, write_annotations, Annotation,
-    AnnotationFile, EncodeError, EncodeProblem, NORMAL,
+    read_annotations_at, read_annotations_in_samples, symbol_for_code, write_annotation_file,
+    write_annotations, Annotation, AnnotationFile, EncodeError, EncodeProblem, NORMAL,
 };
 pub use wfdb_format::{FormatProblem, SignalFormat};
 pub use wfdb_header::{

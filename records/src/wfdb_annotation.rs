@@ -26,7 +26,7 @@ use super::error::{Error, ErrorKind, Result};
 mod resolution;
 pub use resolution::{
     decode_annotation_file, encode_annotation_file, read_annotation_file, read_annotations_at,
-    write_annotation_file, AnnotationFile,
+    read_annotations_in_samples, write_annotation_file, AnnotationFile,
 };
 
 const SKIP: u16 = 59;

@@ -89,7 +89,9 @@ fn capnobase(runs: &[Run], base: &[BaselinePeaks]) {
     let mut rows = Vec::new();
     let mut filtered = Vec::new();
     for (run, b) in runs.iter().zip(base) {
-        let reference = reference_beats(&run.rec.path, "peak").unwrap().unwrap();
+        let reference = reference_beats(&run.rec.path, "peak", run.rec.signal.fs)
+            .unwrap()
+            .unwrap();
         let fs = run.rec.signal.fs;
         rows.push(BeatsRow::score(
             &run.rec.name,

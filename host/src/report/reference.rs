@@ -25,9 +25,10 @@ pub struct Reference {
 impl Reference {
     /// What lies beside the record at `record` (path without extension):
     /// `<record>.<annotator>` and `<record><rate_suffix>` as `refs` names
-    /// them. `None` when neither exists.
-    pub fn load(record: &Path, refs: &References) -> Result<Option<Self>, ReplayError> {
-        let beats = reference_beats(record, &refs.annotator)?;
+    /// them, beats in samples of the signal sampled at `fs`. `None` when
+    /// neither exists.
+    pub fn load(record: &Path, refs: &References, fs: f64) -> Result<Option<Self>, ReplayError> {
+        let beats = reference_beats(record, &refs.annotator, fs)?;
         let rate = reference_rate(record, refs)?;
         if beats.is_none() && rate.is_none() {
             return Ok(None);

@@ -68,7 +68,7 @@ impl RecordReferences {
         // A CSV recording's references sit beside it under its stem.
         let base = record_base(&rec.path);
         Ok(Self {
-            beats: reference_beats(&base, &refs.annotator)?,
+            beats: reference_beats(&base, &refs.annotator, rec.signal.fs)?,
             windows: reference_windows(&base, &refs.window_suffix)?,
             rate: reference_rate(&base, refs)?,
             strap_rr_ms: strap_intervals(&rec.path, &refs.strap_suffix)?,

@@ -7,7 +7,8 @@ use crate::ecg::EcgReference;
 use crate::output_guard::record_base;
 use crate::replay::{Recording, ReplayError};
 use plethwire_records::{
-    annotation_path, read_annotations, read_numerics, read_rr_intervals, read_wfdb_signal,
+    annotation_path, read_annotations_in_samples, read_numerics, read_rr_intervals,
+    read_wfdb_signal,
 };
 use std::path::{Path, PathBuf};
 
@@ -106,14 +107,20 @@ pub fn strap_intervals(path: &Path, suffix: &str) -> Result<Option<Vec<f64>>, Re
 
 /// Reference beats of the record at `record` (path without
 /// extension): the beat annotations of `<record>.<annotator>` as sample
-/// indices, or `None` when that file does not exist.
-pub fn reference_beats(record: &Path, annotator: &str) -> Result<Option<Vec<u64>>, ReplayError> {
+/// indices of the scored signal, sampled at `fs` (a signal with several
+/// samples per frame counts its own samples, not frames), or `None` when
+/// that file does not exist.
+pub fn reference_beats(
+    record: &Path,
+    annotator: &str,
+    fs: f64,
+) -> Result<Option<Vec<u64>>, ReplayError> {
     let ann = annotation_path(record, annotator);
     if !ann.exists() {
         return Ok(None);
     }
     Ok(Some(
-        read_annotations(&ann)?
+        read_annotations_in_samples(&ann, fs)?
             .iter()
             .filter(|a| a.is_beat())
             .map(|a| a.sample.max(0) as u64)

@@ -99,6 +99,23 @@ pub fn read_annotations_at(
     Ok(read_annotation_file(path)?.at_rate(frame_rate, fs))
 }
 
+/// Read the annotation file at `path` with times in samples of a signal
+/// sampled at `fs`: the stored times count the ticks of the file's note, or
+/// frames of the record whose header sits beside the file, or (with neither,
+/// as beside a CSV recording) samples at `fs` already. A signal with several
+/// samples per frame thus gets its references in its own samples.
+pub fn read_annotations_in_samples(path: impl AsRef<Path>, fs: f64) -> Result<Vec<Annotation>> {
+    let path = path.as_ref();
+    let file = read_annotation_file(path)?;
+    let header_path = path.with_extension("hea");
+    let frame_rate = if header_path.is_file() {
+        Header::read(&header_path)?.fs
+    } else {
+        fs
+    };
+    Ok(file.at_rate(frame_rate, fs))
+}
+
 /// [`super::read_annotations`]: times in frames of the record beside the file.
 pub(super) fn read_in_frames(path: &Path) -> Result<Vec<Annotation>> {
     let file = read_annotation_file(path)?;
