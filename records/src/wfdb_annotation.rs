@@ -15,6 +15,7 @@
 use std::path::{Path, PathBuf};
 
 use super::error::{Error, ErrorKind, Result};
+use super::input::read_all;
 
 const SKIP: u16 = 59;
 const NUM: u16 = 60;
@@ -117,10 +118,15 @@ pub fn annotation_path(record: &Path, annotator: &str) -> PathBuf {
     PathBuf::from(name)
 }
 
-/// Read the annotation file at `path`.
+/// Largest annotation file read: 32 million annotations at least, years
+/// of beats, where each decoded annotation takes some 50 bytes of memory.
+pub const MAX_ANNOTATION_BYTES: u64 = 64 << 20;
+
+/// Read the annotation file at `path` (a regular file of at most
+/// [`MAX_ANNOTATION_BYTES`]).
 pub fn read_annotations(path: impl AsRef<Path>) -> Result<Vec<Annotation>> {
     let path = path.as_ref();
-    let bytes = std::fs::read(path).map_err(|e| Error::from_io(path, "read", &e))?;
+    let bytes = read_all(path, "annotation file", MAX_ANNOTATION_BYTES)?;
     decode_annotations(&bytes).map_err(|kind| Error::new(path, kind))
 }
 
