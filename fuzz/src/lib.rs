@@ -1,13 +1,18 @@
 //! What each fuzz target does with one input; the targets in
-//! `fuzz_targets/` only hand the fuzzer's bytes to these.
+//! `fuzz_targets/` only hand the fuzzer's bytes to these. Each case file
+//! is also included by the regression test of the crate it exercises.
 
 #[path = "records_cases.rs"]
 pub mod records_cases;
 
-use plethwire::frontend::{human_report, Draft, FrontendReport};
-use plethwire_dsp::wire::{
-    cobs_decode, crc32, decode_frame, encode_frame, Decoder, Frame, MAX_FRAME, MAX_RAW_FRAME,
-};
+#[path = "frontend_case.rs"]
+mod frontend_case;
+#[path = "wire_case.rs"]
+mod wire_case;
+
+pub use frontend_case::frontend_file;
+pub use wire_case::wire_decoder;
+
 use std::path::PathBuf;
 
 /// A folder of this process's own for the cases that read files (in
@@ -21,67 +26,4 @@ pub fn scratch_dir() -> PathBuf {
     let dir = base.join(format!("plethwire-fuzz-{}", std::process::id()));
     std::fs::create_dir_all(&dir).expect("make the scratch folder");
     dir
-}
-
-/// The circuit file of `plethwire frontend`: parsed, resolved, analysed
-/// and written out as text, as the command does.
-pub fn frontend_file(data: &[u8]) {
-    let Ok(text) = std::str::from_utf8(data) else {
-        return;
-    };
-    let draft = match Draft::from_toml(text) {
-        Ok(d) => d,
-        Err(e) => {
-            assert!(!e.to_string().contains('\n'), "{e}");
-            return;
-        }
-    };
-    let circuit = match draft.resolve() {
-        Ok(c) => c,
-        Err(e) => {
-            assert!(!e.to_string().contains('\n'), "{e}");
-            return;
-        }
-    };
-    if let Ok(report) = FrontendReport::build(&circuit) {
-        let _ = human_report(&report);
-    }
-}
-
-/// The wire: the bytes through the streaming decoder; then the bytes as
-/// a frame's body with its CRC appended (random bytes would never pass
-/// the CRC), through the decoder. A frame that decodes encodes back to
-/// the same frame.
-pub fn wire_decoder(data: &[u8]) {
-    let mut decoder = Decoder::new();
-    for &b in data {
-        if let Some(Ok(frame)) = decoder.push(b) {
-            round_trip(&frame);
-        }
-    }
-    let mut raw = data[..data.len().min(MAX_RAW_FRAME)].to_vec();
-    raw.extend(crc32(&raw).to_le_bytes());
-    if let Ok(frame) = decode_frame(&raw) {
-        round_trip(&frame);
-    }
-    let mut buf = data.to_vec();
-    let len = buf.len();
-    let _ = cobs_decode(&mut buf, len);
-}
-
-/// Encode `frame`, decode that and encode again: the same bytes come back
-/// (bytes, not frames, are compared: a NaN sample is not equal to itself).
-fn round_trip(frame: &Frame) {
-    let mut first = [0u8; MAX_FRAME];
-    let Ok(n) = encode_frame(frame.seq, &frame.message, &mut first) else {
-        return;
-    };
-    let mut back = Decoder::new();
-    let again = first[..n].iter().find_map(|&b| back.push(b));
-    let Some(Ok(again)) = again else {
-        panic!("an encoded frame does not decode: {again:?}");
-    };
-    let mut second = [0u8; MAX_FRAME];
-    let m = encode_frame(again.seq, &again.message, &mut second).expect("encode again");
-    assert_eq!(first[..n], second[..m], "a decoded frame does not round-trip");
 }

@@ -15,7 +15,10 @@ const RECORD: &str = "r";
 /// Check that `error` reads as one line, and hand it back.
 fn one_line(error: Error) -> Error {
     let text = error.to_string();
-    assert!(!text.contains('\n'), "message of more than one line: {text:?}");
+    assert!(
+        !text.contains('\n'),
+        "message of more than one line: {text:?}"
+    );
     error
 }
 
@@ -26,7 +29,10 @@ pub fn header(data: &[u8]) -> Option<Error> {
         Ok(h) => {
             // What we write must read back.
             let again = Header::parse(&h.to_text(), Path::new("again.hea"));
-            assert!(again.is_ok(), "written header does not read back: {again:?}");
+            assert!(
+                again.is_ok(),
+                "written header does not read back: {again:?}"
+            );
             None
         }
         Err(e) => Some(one_line(e)),
@@ -96,9 +102,7 @@ pub fn annotation(data: &[u8]) -> Option<ErrorKind> {
 /// The CSV readers on `data`: its first byte picks the options, the rest
 /// is the file, written as `dir/f.csv`.
 pub fn csv(data: &[u8], dir: &Path) -> Option<Error> {
-    let Some((&pick, text)) = data.split_first() else {
-        return None;
-    };
+    let (&pick, text) = data.split_first()?;
     let path = dir.join("f.csv");
     std::fs::write(&path, text).expect("write the CSV file");
     let time = if pick & 0x40 != 0 {
@@ -115,7 +119,8 @@ pub fn csv(data: &[u8], dir: &Path) -> Option<Error> {
     };
     options.header = pick & 1 != 0;
     options.empty_as_nan = pick & 8 != 0;
-    options.time_unit = [TimeUnit::S, TimeUnit::Ms, TimeUnit::Us, TimeUnit::S][(pick >> 4 & 3) as usize];
+    options.time_unit =
+        [TimeUnit::S, TimeUnit::Ms, TimeUnit::Us, TimeUnit::S][(pick >> 4 & 3) as usize];
     let columns = if pick & 0x80 != 0 {
         vec![ColumnRef::Index(1), ColumnRef::Index(2)]
     } else {

@@ -259,7 +259,7 @@ impl fmt::Display for ErrorKind {
             ),
             ErrorKind::OutsideFolder { file_name } => write!(
                 f,
-                "signal file {} leads out of the record's folder; refused unless files outside it are allowed",
+                "signal file {} leads out of the record's folder; refused unless reading outside it is allowed (plethwire: --allow-outside-signal-files)",
                 quoted(file_name)
             ),
         }

@@ -85,6 +85,12 @@ fn number<T: std::str::FromStr>(text: &str, field: &'static str) -> Result<T, Fi
     text.parse::<T>().map_err(|_| malformed(field, text))
 }
 
+/// A number of frames, at most [`limits::MAX_FRAMES`].
+fn frames(text: &str, field: &'static str) -> Result<u64, FieldError> {
+    let n = number::<u64>(text, field)?;
+    limits::at_most(n, limits::MAX_FRAMES, field, "at most 1e15 frames")
+}
+
 /// A finite positive frequency.
 fn frequency(text: &str, field: &'static str) -> Result<f64, FieldError> {
     let v: f64 = number(text, field)?;
@@ -154,16 +160,7 @@ pub(super) fn parse_record_line(line: &str) -> Result<(Header, usize), FieldErro
         }
     }
     let samples = match fields.get(3) {
-        Some(s) => {
-            let n = number::<u64>(s, "number of samples")?;
-            Some(limits::at_most(
-                n,
-                limits::MAX_FRAMES,
-                "number of samples",
-                "at most 1e15 frames",
-            )?)
-            .filter(|&n| n > 0)
-        }
+        Some(s) => Some(frames(s, "number of samples")?).filter(|&n| n > 0),
         None => None,
     };
     let base_time = fields.get(4).map(|t| time::parse_time(t)).transpose()?;
@@ -193,12 +190,7 @@ pub(super) fn parse_segment_line(line: &str) -> Result<SegmentSpec, FieldError> 
     }
     Ok(SegmentSpec {
         name: fields[0].to_string(),
-        samples: limits::at_most(
-            number(fields[1], "segment length")?,
-            limits::MAX_FRAMES,
-            "segment length",
-            "at most 1e15 frames",
-        )?,
+        samples: frames(fields[1], "segment length")?,
     })
 }
 
