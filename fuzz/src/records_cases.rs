@@ -62,10 +62,12 @@ pub fn signal(data: &[u8], dir: &Path) -> Option<Error> {
         Ok(h) => h.signals.iter().map(|s| s.file_name.clone()).collect(),
         Err(_) => Vec::new(),
     };
-    let written: Vec<&String> = names.iter().filter(|n| plain_name(n)).collect();
-    for name in &written {
-        std::fs::write(dir.join(name), dat).expect("write a signal file");
-    }
+    // A name the system refuses (too long, say) is left unwritten: the
+    // reader then meets a missing file.
+    let written: Vec<&String> = names
+        .iter()
+        .filter(|n| plain_name(n) && std::fs::write(dir.join(n), dat).is_ok())
+        .collect();
     let result = read_record(&dir.join(RECORD));
     for name in written {
         let _ = std::fs::remove_file(dir.join(name));

@@ -224,6 +224,8 @@ pub fn read_csv_signals(
             ),
         ));
     }
+    // The time column, if any, and the rate given: the samples' own, or
+    // the grid's when resampling.
     let (time, grid) = match &options.rate {
         Rate::Given(fs) => (None, Some(positive_rate(path, "sample rate", *fs)?)),
         Rate::FromTime(t) => (Some(t), None),
