@@ -2,8 +2,9 @@
 //! each is refused with exit 1 and one line, never a hang or a panic.
 //! Recordings here are invented in a temp folder (a synthetic pulse).
 
-use plethwire_records::{write_record, NewSignal};
-use plethwire_synth::{generate, HrSchedule, SynthOptions};
+mod common;
+
+use common::synthetic_record;
 use std::path::Path;
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
@@ -44,24 +45,6 @@ fn refused(cwd: &Path, args: &[&str], says: &str) {
     assert!(stderr.contains(says), "{args:?}: {stderr}");
 }
 
-/// A 20 s, 72 bpm record in format 16 named `name` in `dir`.
-fn make_record(dir: &Path, name: &str) {
-    let s = generate(&SynthOptions {
-        sample_rate_hz: 125.0,
-        duration_s: 20.0,
-        hr: HrSchedule::constant(72.0),
-        ..SynthOptions::default()
-    })
-    .unwrap();
-    let digital: Vec<i32> = s
-        .samples
-        .iter()
-        .map(|&v| (v * 1000.0).round() as i32)
-        .collect();
-    let sig = NewSignal::new("PLETH", "NU", 1000.0, 0);
-    write_record(dir, name, 125.0, &[sig], &[digital]).unwrap();
-}
-
 #[test]
 fn fifo_folder_and_huge_count_are_one_line_refusals() {
     let dir = tempfile::tempdir().unwrap();
@@ -82,7 +65,7 @@ fn fifo_folder_and_huge_count_are_one_line_refusals() {
         &["replay", d.join("folder").to_str().unwrap()],
         "is a folder, not a WFDB record",
     );
-    make_record(d, "huge");
+    synthetic_record(d, "huge", 20.0);
     let hea = d.join("huge.hea");
     let text = std::fs::read_to_string(&hea).unwrap();
     let first = text.lines().next().unwrap();
@@ -103,7 +86,7 @@ fn fifo_folder_and_huge_count_are_one_line_refusals() {
 fn signal_files_outside_the_folder_need_the_flag() {
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
-    make_record(d, "pulse");
+    synthetic_record(d, "pulse", 20.0);
     let inner = d.join("elsewhere");
     std::fs::create_dir(&inner).unwrap();
     let text = std::fs::read_to_string(d.join("pulse.hea")).unwrap();

@@ -78,3 +78,22 @@ pub fn table_rows(report: &str) -> Vec<[Option<f64>; 7]> {
         })
         .collect()
 }
+
+/// A `seconds` long, 72 bpm synthetic pulse (`plethwire_synth`) written as
+/// WFDB record `name` in `dir`, format 16 at 125 Hz, signal `PLETH`.
+pub fn synthetic_record(dir: &Path, name: &str, seconds: f64) {
+    let s = plethwire_synth::generate(&plethwire_synth::SynthOptions {
+        sample_rate_hz: 125.0,
+        duration_s: seconds,
+        hr: plethwire_synth::HrSchedule::constant(72.0),
+        ..plethwire_synth::SynthOptions::default()
+    })
+    .unwrap();
+    let digital: Vec<i32> = s
+        .samples
+        .iter()
+        .map(|&v| (v * 1000.0).round() as i32)
+        .collect();
+    let sig = plethwire_records::NewSignal::new("PLETH", "NU", 1000.0, 0);
+    plethwire_records::write_record(dir, name, 125.0, &[sig], &[digital]).unwrap();
+}
