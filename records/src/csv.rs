@@ -26,7 +26,7 @@ mod time_base;
 
 pub use table::MAX_ROWS;
 pub(crate) use table::{parse_cell, Table};
-pub use time_base::MAX_TIME_S;
+pub use time_base::{MAX_GRID_SAMPLES_PER_ROW, MAX_TIME_S};
 
 use super::error::{Error, ErrorKind, Result, UnknownTimeUnit};
 use super::resample::{ResampleReport, DEFAULT_MAX_GAP_S};

@@ -8,6 +8,10 @@ use crate::error::{Error, ErrorKind, Result};
 use crate::resample::{median_rate, Resampler};
 use std::path::Path;
 
+/// Most grid samples resampling makes for each row of the file: a camera
+/// at 1 frame a second put on a 1000 Hz grid.
+pub const MAX_GRID_SAMPLES_PER_ROW: f64 = 1000.0;
+
 /// Largest time, in seconds from zero, a time cell may hold: over 30 000
 /// years, past any clock a recording carries (Unix time in microseconds
 /// is about 1.7e9 s), and far from where f64 steps lose the sample period.
@@ -71,11 +75,17 @@ pub(super) fn on_time_base(
     let seconds: Vec<f64> = times.iter().map(|&(_, t)| t).collect();
     let fs = grid.unwrap_or_else(|| median_rate(&seconds));
     let span = seconds[seconds.len() - 1] - seconds[0];
-    if span * fs > MAX_GRID_SAMPLES {
+    // Bounded by the rows there are too: three rows spread over days
+    // must not fill a grid of tens of millions of samples.
+    let per_row = seconds.len() as f64 * MAX_GRID_SAMPLES_PER_ROW;
+    if span * fs > MAX_GRID_SAMPLES || span * fs > per_row {
         return Err(Error::new(
             path,
             ErrorKind::Invalid(format!(
-                "a grid at {fs:.6} Hz over {span} s would hold more than {MAX_GRID_SAMPLES} samples"
+                "a grid at {fs:.6} Hz over {span} s would hold {:.0} samples for {} rows, more than {} (at most {MAX_GRID_SAMPLES_PER_ROW} a row, {MAX_GRID_SAMPLES} in all)",
+                span * fs,
+                seconds.len(),
+                per_row.min(MAX_GRID_SAMPLES),
             )),
         ));
     }
