@@ -7,6 +7,7 @@ use plethwire_dsp::pipeline::{Config, DetectorKind};
 
 use plethwire::motion::parse_motion_names;
 use plethwire::replay::{Polarity, Source};
+use plethwire_records::RecordOptions;
 
 /// Which way the pulse points, as named on the command line.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -100,6 +101,11 @@ pub struct PipelineOpts {
     /// count as clipped) [default: found from flat tops at the extremes].
     #[arg(long, value_name = "LOW:HIGH", value_parser = values::signal_rails, allow_negative_numbers = true)]
     pub rails: Option<(f32, f32)>,
+
+    /// WFDB only: read signal files that the header names outside the
+    /// record's folder (`../x`, an absolute path) [default: refused].
+    #[arg(long)]
+    pub allow_outside_signal_files: bool,
 }
 
 /// The accelerometer of the commands that replay recordings on the PC.
@@ -127,6 +133,10 @@ impl PipelineOpts {
                 PolarityName::Down => Polarity::Down,
             },
             motion: None,
+            record_options: RecordOptions {
+                allow_outside_folder: self.allow_outside_signal_files,
+                ..RecordOptions::default()
+            },
         }
     }
 

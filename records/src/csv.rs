@@ -24,7 +24,9 @@ use std::path::Path;
 mod table;
 mod time_base;
 
+pub use table::MAX_ROWS;
 pub(crate) use table::{parse_cell, Table};
+pub use time_base::{MAX_GRID_SAMPLES_PER_ROW, MAX_TIME_S};
 
 use super::error::{Error, ErrorKind, Result, UnknownTimeUnit};
 use super::resample::{ResampleReport, DEFAULT_MAX_GAP_S};
@@ -200,13 +202,14 @@ pub fn read_csv_signal(path: impl AsRef<Path>, options: &CsvSignalOptions) -> Re
 /// The header names of the CSV file at `path` (its first non-blank line).
 pub fn csv_column_names(path: impl AsRef<Path>) -> Result<Vec<String>> {
     let path = path.as_ref();
-    let table = Table::read(path, true)?;
+    let table = Table::open(path, true)?;
     Ok(table.names.unwrap_or_default())
 }
 
 /// Read `columns` of the CSV file at `path` (in place of
 /// `options.column`) on one time base: every column is resampled onto the
-/// same grid when the times are uneven.
+/// same grid when the times are uneven. The file is read a line at a
+/// time and reading stops at the first error.
 pub fn read_csv_signals(
     path: impl AsRef<Path>,
     columns: &[ColumnRef],
@@ -221,43 +224,65 @@ pub fn read_csv_signals(
             ),
         ));
     }
-    let table = Table::read(path, options.header)?;
+    // The time column, if any, and the rate given: the samples' own, or
+    // the grid's when resampling.
+    let (time, grid) = match &options.rate {
+        Rate::Given(fs) => (None, Some(positive_rate(path, "sample rate", *fs)?)),
+        Rate::FromTime(t) => (Some(t), None),
+        Rate::Resample { time, fs } => (Some(time), Some(positive_rate(path, "grid rate", *fs)?)),
+    };
+    let mut table = Table::open(path, options.header)?;
     let cols = columns
         .iter()
         .map(|c| table.find(path, c))
         .collect::<Result<Vec<usize>>>()?;
-    if table.rows.is_empty() {
+    let time_col = time.map(|t| table.find(path, t)).transpose()?;
+    let mut values: Vec<Vec<f64>> = vec![Vec::new(); cols.len()];
+    let mut times = Vec::new();
+    let mut rows = 0usize;
+    while let Some((no, cells)) = table.next_row(path)? {
+        rows += 1;
+        for (column, &col) in values.iter_mut().zip(&cols) {
+            column.push(value_cell(
+                path,
+                &table,
+                no,
+                col,
+                &cells[col],
+                options.empty_as_nan,
+            )?);
+        }
+        if let Some(tc) = time_col {
+            times.push((
+                no,
+                time_base::time_cell(path, &table, no, tc, &cells[tc], options)?,
+            ));
+        }
+    }
+    if rows == 0 {
         return Err(Error::new(path, ErrorKind::Syntax("no data rows".into())));
     }
-    let mut values: Vec<Vec<f64>> = Vec::with_capacity(cols.len());
-    for &col in &cols {
-        values.push(read_values(path, &table, col, options.empty_as_nan)?);
+    match time_col {
+        None => Ok(CsvSignals {
+            signals: named(&table, &cols, values, grid.unwrap_or(0.0)),
+            time: None,
+        }),
+        Some(tc) => {
+            time_base::on_time_base(path, &table, &cols, values, (tc, &times), grid, options)
+        }
     }
-    let (time_col, grid) = match &options.rate {
-        Rate::Given(fs) => {
-            if !(fs.is_finite() && *fs > 0.0) {
-                return Err(Error::new(
-                    path,
-                    ErrorKind::Invalid(format!("sample rate {fs} must be above 0")),
-                ));
-            }
-            return Ok(CsvSignals {
-                signals: named(&table, &cols, values, *fs),
-                time: None,
-            });
-        }
-        Rate::FromTime(t) => (t, None),
-        Rate::Resample { time, fs } => {
-            if !(fs.is_finite() && *fs > 0.0) {
-                return Err(Error::new(
-                    path,
-                    ErrorKind::Invalid(format!("grid rate {fs} must be above 0")),
-                ));
-            }
-            (time, Some(*fs))
-        }
-    };
-    time_base::on_time_base(path, &table, &cols, values, time_col, grid, options)
+}
+
+/// `fs` when it is a finite number above 0; `what` names it in the error.
+fn positive_rate(path: &Path, what: &str, fs: f64) -> Result<f64> {
+    if fs.is_finite() && fs > 0.0 {
+        Ok(fs)
+    } else {
+        Err(Error::new(
+            path,
+            ErrorKind::Invalid(format!("{what} {fs} must be above 0")),
+        ))
+    }
 }
 
 /// The error for a cell of a number column that is not a number.
@@ -272,26 +297,25 @@ pub(super) fn not_number(path: &Path, table: &Table, no: usize, col: usize, text
     .at_line(no)
 }
 
-/// The numbers of column `col`.
-fn read_values(path: &Path, table: &Table, col: usize, empty_as_nan: bool) -> Result<Vec<f64>> {
-    let mut samples = Vec::with_capacity(table.rows.len());
-    for (no, cells) in &table.rows {
-        let text = &cells[col];
-        let v = match parse_cell(text) {
-            Ok(Some(v)) => v,
-            Ok(None) if empty_as_nan => f64::NAN,
-            Ok(None) => {
-                return Err(Error::new(
-                    path,
-                    ErrorKind::Invalid(format!("column {:?}: empty cell", table.name(col))),
-                )
-                .at_line(*no))
-            }
-            Err(()) => return Err(not_number(path, table, *no, col, text)),
-        };
-        samples.push(v);
+/// The number in cell `text` of value column `col` on line `no`.
+fn value_cell(
+    path: &Path,
+    table: &Table,
+    no: usize,
+    col: usize,
+    text: &str,
+    empty_as_nan: bool,
+) -> Result<f64> {
+    match parse_cell(text) {
+        Ok(Some(v)) => Ok(v),
+        Ok(None) if empty_as_nan => Ok(f64::NAN),
+        Ok(None) => Err(Error::new(
+            path,
+            ErrorKind::Invalid(format!("column {:?}: empty cell", table.name(col))),
+        )
+        .at_line(no)),
+        Err(()) => Err(not_number(path, table, no, col, text)),
     }
-    Ok(samples)
 }
 
 /// Columns `cols` with their `values` as signals at `fs`.

@@ -71,6 +71,68 @@ pub enum ErrorKind {
     },
     /// The data handed to a writer, or asked of a reader, cannot be honoured.
     Invalid(String),
+    /// The path is not a regular file (a folder, a FIFO, a device, a
+    /// socket): refused before anything is read from it.
+    NotRegular(FileKind),
+    /// A folder was given where a WFDB record was expected.
+    FolderNotRecord,
+    /// The file is larger than any file of its kind needs to be.
+    TooLarge {
+        /// What the file is, e.g. `"header"`.
+        what: &'static str,
+        /// Its size in bytes.
+        bytes: u64,
+        /// The most this reader takes.
+        limit: u64,
+    },
+    /// More samples (or rows) than a reader loads at once.
+    TooManySamples {
+        /// The samples (or rows) the file would give.
+        samples: u64,
+        /// The most the reader loads.
+        limit: u64,
+    },
+    /// A field holds a value that makes no physical sense.
+    Implausible {
+        /// The field, e.g. `"ADC gain"`.
+        field: &'static str,
+        /// The value as the file gives it.
+        value: String,
+        /// What a plausible value is.
+        expected: String,
+    },
+    /// A header's signal file name leads out of the record's folder.
+    OutsideFolder {
+        /// The file name as the header gives it.
+        file_name: String,
+    },
+}
+
+/// What a path that is not a regular file is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum FileKind {
+    /// A folder (directory).
+    Folder,
+    /// A named pipe, which would block a reader until someone writes.
+    Fifo,
+    /// A character or block device (`/dev/zero` would never end).
+    Device,
+    /// A socket.
+    Socket,
+    /// Anything else that is not a regular file.
+    Other,
+}
+
+impl fmt::Display for FileKind {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(match self {
+            FileKind::Folder => "a folder",
+            FileKind::Fifo => "a named pipe (FIFO)",
+            FileKind::Device => "a device",
+            FileKind::Socket => "a socket",
+            FileKind::Other => "not a regular file",
+        })
+    }
 }
 
 impl Error {
@@ -171,6 +233,35 @@ impl fmt::Display for ErrorKind {
             ErrorKind::NotANumber { column, text } => {
                 write!(f, "column {}: {} is not a number", quoted(column), quoted(text))
             }
+            ErrorKind::NotRegular(kind) => {
+                write!(f, "is {kind}, not a regular file; refused before reading")
+            }
+            ErrorKind::FolderNotRecord => write!(
+                f,
+                "is a folder, not a WFDB record; name a record in it (FOLDER/NAME or FOLDER/NAME.hea)"
+            ),
+            ErrorKind::TooLarge { what, bytes, limit } => write!(
+                f,
+                "{bytes} bytes is larger than any {what} needs (at most {limit} are read)"
+            ),
+            ErrorKind::TooManySamples { samples, limit } => write!(
+                f,
+                "{samples} samples is more than the {limit} these readers load at once"
+            ),
+            ErrorKind::Implausible {
+                field,
+                value,
+                expected,
+            } => write!(
+                f,
+                "{field} {} makes no physical sense ({expected})",
+                quoted(value)
+            ),
+            ErrorKind::OutsideFolder { file_name } => write!(
+                f,
+                "signal file {} leads out of the record's folder; refused unless reading outside it is allowed (plethwire: --allow-outside-signal-files)",
+                quoted(file_name)
+            ),
         }
     }
 }

@@ -19,6 +19,7 @@
 
 mod csv;
 mod error;
+mod input;
 mod numerics;
 pub mod resample;
 mod rr;
@@ -33,22 +34,25 @@ pub(crate) mod test_support;
 
 pub use csv::{
     csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignal, CsvSignalOptions,
-    CsvSignals, Rate, TimeBase, TimeUnit,
+    CsvSignals, Rate, TimeBase, TimeUnit, MAX_GRID_SAMPLES_PER_ROW, MAX_ROWS, MAX_TIME_S,
 };
-pub use error::{Error, ErrorKind, Result, UnknownTimeUnit};
+pub use error::{Error, ErrorKind, FileKind, Result, UnknownTimeUnit};
+pub use input::MAX_LINE_BYTES;
 pub use numerics::{read_numerics, Numerics};
 pub use rr::read_rr_intervals;
 pub use wfdb_annotation::{
     annotation_path, code_for_symbol, decode_annotation_file, decode_annotations,
     encode_annotation_file, encode_annotations, read_annotation_file, read_annotations,
     read_annotations_at, read_annotations_in_samples, symbol_for_code, write_annotation_file,
-    write_annotations, Annotation, AnnotationFile, EncodeError, EncodeProblem, NORMAL,
+    write_annotations, Annotation, AnnotationFile, EncodeError, EncodeProblem,
+    MAX_ANNOTATION_BYTES, NORMAL,
 };
 pub use wfdb_format::{FormatProblem, SignalFormat};
 pub use wfdb_header::{
     BaseDate, BaseTime, Header, SegmentSpec, SignalSpec, DEFAULT_FS, DEFAULT_GAIN, DEFAULT_UNITS,
+    MAX_HEADER_BYTES,
 };
-pub use wfdb_signal::{checksum, Record};
+pub use wfdb_signal::{checksum, Record, RecordOptions, MAX_SAMPLES};
 pub use wfdb_write::{write_record, NewSignal, RecordWriter};
 
 /// The signal picked when the caller names none: the photoplethysmogram,

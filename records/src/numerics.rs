@@ -47,14 +47,14 @@ impl Numerics {
 /// Read the numerics table at `path`.
 pub fn read_numerics(path: impl AsRef<Path>) -> Result<Numerics> {
     let path = path.as_ref();
-    let table = Table::read(path, true)?;
+    let mut table = Table::open(path, true)?;
     let names = table.names.clone().unwrap_or_default();
     let Some((time_name, names)) = names.split_first() else {
         return Err(Error::new(path, ErrorKind::Syntax("no header line".into())));
     };
-    let mut time_s = Vec::with_capacity(table.rows.len());
-    let mut values = vec![Vec::with_capacity(table.rows.len()); names.len()];
-    for (no, cells) in &table.rows {
+    let mut time_s = Vec::new();
+    let mut values = vec![Vec::new(); names.len()];
+    while let Some((no, cells)) = table.next_row(path)? {
         let bad = |i: usize| {
             Error::new(
                 path,
@@ -63,7 +63,7 @@ pub fn read_numerics(path: impl AsRef<Path>) -> Result<Numerics> {
                     text: cells[i].clone(),
                 },
             )
-            .at_line(*no)
+            .at_line(no)
         };
         let t = match parse_cell(&cells[0]) {
             Ok(Some(t)) if t.is_finite() => t,
@@ -73,7 +73,7 @@ pub fn read_numerics(path: impl AsRef<Path>) -> Result<Numerics> {
             if t <= prev {
                 return Err(Error::syntax(
                     path,
-                    *no,
+                    no,
                     format!("time {t} does not follow {prev}"),
                 ));
             }

@@ -5,28 +5,23 @@
 use std::path::Path;
 
 use super::error::{quoted, Error, ErrorKind, Result};
+use super::input::Lines;
 
 /// Read the R-R intervals (ms) in the file at `path`. A file with no
 /// interval, or a line that is not a number above 0 ms, is an error naming
 /// the file (and the line).
 pub fn read_rr_intervals(path: impl AsRef<Path>) -> Result<Vec<f64>> {
     let path = path.as_ref();
-    let bytes = std::fs::read(path).map_err(|e| Error::from_io(path, "read", &e))?;
-    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes);
-    let text = std::str::from_utf8(bytes)
-        .map_err(|_| Error::new(path, ErrorKind::Syntax("not UTF-8 text".into())))?;
+    let mut lines = Lines::open(path)?;
     let mut out = Vec::new();
-    for (i, line) in text.lines().enumerate() {
+    while let Some((no, line)) = lines.next_line()? {
         let cell = line.trim();
-        if cell.is_empty() {
-            continue;
-        }
         match cell.parse::<f64>() {
             Ok(v) if v.is_finite() && v > 0.0 => out.push(v),
             _ => {
                 return Err(Error::syntax(
                     path,
-                    i + 1,
+                    no,
                     format!("{} is not an interval in ms", quoted(cell)),
                 ))
             }

@@ -135,6 +135,10 @@ pub fn annotation_path(record: &Path, annotator: &str) -> PathBuf {
     PathBuf::from(name)
 }
 
+/// Largest annotation file read: 32 million annotations at least, years
+/// of beats, where each decoded annotation takes some 50 bytes of memory.
+pub const MAX_ANNOTATION_BYTES: u64 = 64 << 20;
+
 /// Read the annotation file at `path`, times in frames of the record.
 ///
 /// A file whose time-resolution note differs from the frame rate of the

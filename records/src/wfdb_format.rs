@@ -114,19 +114,23 @@ impl SignalFormat {
     /// Bytes holding the first `samples` samples of the stream. Packed
     /// formats end on the last byte that still holds a bit of the last
     /// sample (format 310 needs the whole 4-byte group once it holds two).
+    /// A count whose bytes pass `u64::MAX` gives `u64::MAX`.
     pub fn bytes_for(self, samples: u64) -> u64 {
-        match self {
-            SignalFormat::Diff8 | SignalFormat::Fmt80 => samples,
-            SignalFormat::Fmt16 | SignalFormat::Fmt61 | SignalFormat::Fmt160 => samples * 2,
-            SignalFormat::Fmt24 => samples * 3,
-            SignalFormat::Fmt32 => samples * 4,
-            SignalFormat::Fmt212 => (samples * 3).div_ceil(2),
-            SignalFormat::Fmt310 => match samples % 3 {
-                2 => samples.div_ceil(3) * 4,
-                _ => (samples * 4).div_ceil(3),
+        // In u128, so no count overflows; more than u64 holds saturates.
+        let n = u128::from(samples);
+        let bytes = match self {
+            SignalFormat::Diff8 | SignalFormat::Fmt80 => n,
+            SignalFormat::Fmt16 | SignalFormat::Fmt61 | SignalFormat::Fmt160 => n * 2,
+            SignalFormat::Fmt24 => n * 3,
+            SignalFormat::Fmt32 => n * 4,
+            SignalFormat::Fmt212 => (n * 3).div_ceil(2),
+            SignalFormat::Fmt310 => match n % 3 {
+                2 => n.div_ceil(3) * 4,
+                _ => (n * 4).div_ceil(3),
             },
-            SignalFormat::Fmt311 => (samples * 4).div_ceil(3),
-        }
+            SignalFormat::Fmt311 => (n * 4).div_ceil(3),
+        };
+        u64::try_from(bytes).unwrap_or(u64::MAX)
     }
 
     /// The largest number of whole samples that `bytes` bytes hold.
@@ -137,8 +141,8 @@ impl SignalFormat {
             SignalFormat::Fmt16 | SignalFormat::Fmt61 | SignalFormat::Fmt160 => bytes / 2,
             SignalFormat::Fmt24 => bytes / 3,
             SignalFormat::Fmt32 => bytes / 4,
-            SignalFormat::Fmt212 => bytes * 2 / 3 + 1,
-            SignalFormat::Fmt310 | SignalFormat::Fmt311 => bytes * 3 / 4 + 1,
+            SignalFormat::Fmt212 => bytes / 3 * 2 + 2,
+            SignalFormat::Fmt310 | SignalFormat::Fmt311 => bytes / 4 * 3 + 3,
         };
         while n > 0 && self.bytes_for(n) > bytes {
             n -= 1;

@@ -10,9 +10,12 @@ use std::fmt::Write as _;
 use std::path::Path;
 
 use super::error::{Error, ErrorKind, Result};
+use super::input::read_all;
 use super::wfdb_format::SignalFormat;
 
 mod fields;
+mod limits;
+mod time;
 use fields::{parse_record_line, parse_segment_line, parse_signal_line, LineError};
 
 /// Sampling frequency assumed when the record line gives none (header(5)).
@@ -21,6 +24,10 @@ pub const DEFAULT_FS: f64 = 250.0;
 pub const DEFAULT_GAIN: f64 = 200.0;
 /// Physical units assumed when a signal line gives none (header(5)).
 pub const DEFAULT_UNITS: &str = "mV";
+
+/// Largest header file read: room for the 100 000 signal lines a header
+/// may have, and long comments.
+pub const MAX_HEADER_BYTES: u64 = 16 << 20;
 
 /// A parsed header.
 #[derive(Debug, Clone, PartialEq)]
@@ -120,9 +127,10 @@ pub struct BaseDate {
 }
 
 impl Header {
-    /// Read and parse the header file at `path`.
+    /// Read and parse the header file at `path` (a regular file of at
+    /// most [`MAX_HEADER_BYTES`]).
     pub fn read(path: &Path) -> Result<Header> {
-        let bytes = std::fs::read(path).map_err(|e| Error::from_io(path, "read", &e))?;
+        let bytes = read_all(path, "header", MAX_HEADER_BYTES)?;
         if bytes.is_empty() {
             return Err(Error::new(path, ErrorKind::Empty));
         }
@@ -150,7 +158,7 @@ impl Header {
             ));
         };
         let (mut header, n_sig) = parse_record_line(record_line)
-            .map_err(|e| Error::syntax(path, record_line_no, e.to_string()))?;
+            .map_err(|e| Error::new(path, e.into_kind()).at_line(record_line_no))?;
         header.comments = comments;
         let body = &lines[1..];
         let wanted = header.segments.unwrap_or(n_sig);
@@ -177,12 +185,12 @@ impl Header {
         }
         for &(no, line) in body {
             if header.segments.is_some() {
-                let seg =
-                    parse_segment_line(line).map_err(|e| Error::syntax(path, no, e.to_string()))?;
+                let seg = parse_segment_line(line)
+                    .map_err(|e| Error::new(path, e.into_kind()).at_line(no))?;
                 header.segment_specs.push(seg);
             } else {
                 let sig = parse_signal_line(line).map_err(|e| match e {
-                    LineError::Syntax(e) => Error::syntax(path, no, e.to_string()),
+                    LineError::Syntax(e) => Error::new(path, e.into_kind()).at_line(no),
                     LineError::Format(kind) => Error::new(path, kind).at_line(no),
                 })?;
                 header.signals.push(sig);

@@ -8,14 +8,18 @@
 use std::path::{Path, PathBuf};
 
 use super::error::{Error, ErrorKind, Result};
+use super::input::{read_span, regular_size};
 use super::wfdb_format::{undo_differences, SignalFormat};
 use super::wfdb_header::{Header, SignalSpec};
 use super::{LoadedSignal, DEFAULT_SIGNAL};
 
 mod group;
+mod open;
 mod segments;
 
 use group::{check_length, Group};
+use open::{check_skews, header_path_of};
+pub use open::{RecordOptions, MAX_SAMPLES};
 use segments::Segments;
 
 /// An opened WFDB record. Opening reads the header and checks that every
@@ -29,45 +33,47 @@ pub struct Record {
     groups: Vec<Group>,
     /// The segments of a multi-segment record (`groups` is then empty).
     segments: Option<Box<Segments>>,
-}
-
-/// `dir/name` for `dir/name`, `dir/name.hea` or `dir/name.`: the header
-/// path and the folder the signal file names are relative to.
-fn header_path_of(path: &Path) -> (PathBuf, PathBuf) {
-    let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
-    let is_hea = path.extension().is_some_and(|e| e == "hea");
-    let header = if is_hea {
-        path.to_path_buf()
-    } else {
-        let mut name = path.as_os_str().to_os_string();
-        name.push(".hea");
-        PathBuf::from(name)
-    };
-    (header, dir)
+    options: RecordOptions,
 }
 
 impl Record {
-    /// Open the record at `path`, given as `dir/name` or `dir/name.hea`.
+    /// Open the record at `path`, given as `dir/name` or `dir/name.hea`,
+    /// with the default [`RecordOptions`].
     pub fn open(path: impl AsRef<Path>) -> Result<Record> {
-        let (header_path, dir) = header_path_of(path.as_ref());
+        Record::open_with(path, &RecordOptions::default())
+    }
+
+    /// Open the record at `path` (`dir/name` or `dir/name.hea`) with `options`.
+    pub fn open_with(path: impl AsRef<Path>, options: &RecordOptions) -> Result<Record> {
+        let (header_path, dir) = header_path_of(path.as_ref())?;
         let header = Header::read(&header_path)?;
-        Record::from_header(header, header_path, dir)
+        Record::from_header_with(header, header_path, dir, options)
     }
 
     /// Build a record from an already parsed header whose signal files lie
-    /// in `dir`. A multi-segment header opens its segments, which are then
-    /// read as one record; its signals are those of its layout header or
-    /// (fixed layout) its first segment.
+    /// in `dir`, with the default [`RecordOptions`].
     pub fn from_header(header: Header, header_path: PathBuf, dir: PathBuf) -> Result<Record> {
+        Record::from_header_with(header, header_path, dir, &RecordOptions::default())
+    }
+
+    /// [`from_header`](Self::from_header) with `options`. Signal files are
+    /// looked at, not read: each must be a regular file long enough for
+    /// the header's sample count. A multi-segment header opens its
+    /// segments, which are then read as one record; its signals are those
+    /// of its layout header or (fixed layout) its first segment.
+    pub fn from_header_with(
+        header: Header,
+        header_path: PathBuf,
+        dir: PathBuf,
+        options: &RecordOptions,
+    ) -> Result<Record> {
         if header.segments.is_some() {
-            return Segments::open(header, header_path, dir);
+            return Segments::open(header, header_path, dir, options);
         }
-        let groups = Group::of_header(&header, &header_path, &dir)?;
+        let groups = Group::of_header(&header, &header_path, &dir, options)?;
         let mut frames = header.samples;
         for g in &groups {
-            let size = std::fs::metadata(&g.path)
-                .map_err(|e| Error::from_io(&g.path, "read", &e))?
-                .len();
+            let size = regular_size(&g.path)?;
             let per_frame = g.frame_samples(&header);
             match frames {
                 Some(n) => check_length(g, size, n, per_frame)?,
@@ -78,13 +84,16 @@ impl Record {
                 }
             }
         }
+        let frames = frames.unwrap_or(0);
+        check_skews(&header, &header_path, frames)?;
         Ok(Record {
             header_path,
             dir,
             header,
-            frames: frames.unwrap_or(0),
+            frames,
             groups,
             segments: None,
+            options: options.clone(),
         })
     }
 
@@ -305,16 +314,33 @@ impl Record {
         Ok(out)
     }
 
+    /// Samples to read from the file of `g`: refused above the limit of
+    /// [`RecordOptions::max_samples`] before any memory is taken.
+    fn sample_count(&self, g: &Group, per_frame: u64) -> Result<u64> {
+        let limit = self.options.max_samples;
+        match self.frames.checked_mul(per_frame) {
+            Some(n) if n <= limit => Ok(n),
+            n => Err(Error::new(
+                &g.path,
+                ErrorKind::TooManySamples {
+                    samples: n.unwrap_or(u64::MAX),
+                    limit,
+                },
+            )),
+        }
+    }
+
     /// Read one signal file and split it into its signals' samples as
     /// stored (skew not applied).
     fn read_group_stored(&self, g: &Group) -> Result<Vec<Vec<i32>>> {
-        let bytes = std::fs::read(&g.path).map_err(|e| Error::from_io(&g.path, "read", &e))?;
         let per_frame = g.frame_samples(&self.header);
+        let count = self.sample_count(g, per_frame)?;
+        // Only the bytes the samples use, whatever the file holds beyond.
+        let bytes = read_span(&g.path, g.byte_offset, g.format.bytes_for(count))?;
         // Checked again: the file may have changed since the record was opened.
-        check_length(g, bytes.len() as u64, self.frames, per_frame)?;
-        let count = self.frames * per_frame;
-        let data = &bytes[g.byte_offset as usize..];
-        let mut stream = g.format.decode(data, count as usize);
+        let size = g.byte_offset.saturating_add(bytes.len() as u64);
+        check_length(g, size, self.frames, per_frame)?;
+        let mut stream = g.format.decode(&bytes, count as usize);
         let slots: Vec<usize> = g
             .signals
             .iter()

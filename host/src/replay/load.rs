@@ -7,7 +7,7 @@ use plethwire_dsp::pipeline::{check_sample_rate, MAX_RATE_HZ, MIN_RATE_HZ};
 use plethwire_records::resample::ResampleReport;
 use plethwire_records::{
     csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignalOptions, LoadedSignal,
-    Rate, Record, TimeUnit,
+    Rate, Record, RecordOptions, TimeUnit,
 };
 use serde::Serialize;
 use std::path::{Path, PathBuf};
@@ -35,6 +35,9 @@ pub struct Source {
     /// Accelerometer signals (x, y, z in g) of the same recording, as the
     /// pipeline's motion reference ([`crate::motion`]); `None`: none.
     pub motion: Option<[String; 3]>,
+    /// WFDB: how the record is opened (signal files outside its folder are
+    /// refused unless these allow them).
+    pub record_options: RecordOptions,
 }
 
 /// Which way a pulse points in the recorded signal.
@@ -151,7 +154,7 @@ fn load_as_recorded(path: &Path, source: &Source) -> Result<Recording, ReplayErr
     } else {
         path.to_path_buf()
     };
-    let opened = Record::open(&record)?;
+    let opened = Record::open_with(&record, &source.record_options)?;
     let (signal, channel) = match wanted_signals(source.signal.as_deref()) {
         Wanted::One(name) => (opened.load_signal(name)?, None),
         Wanted::Among(names) => {

@@ -1,67 +1,88 @@
 //! The rows of a CSV file split into cells (RFC 4180, one record a line),
-//! and the number in a cell.
+//! read one line at a time, and the number in a cell.
 
 use super::ColumnRef;
 use crate::error::{Error, ErrorKind, Result};
+use crate::input::Lines;
 use std::path::Path;
 
-/// The rows of a CSV file, split into cells.
+/// Most data rows a CSV file may hold: as many as a resampling grid
+/// (`MAX_GRID_SAMPLES`), days of samples at any usual rate.
+pub const MAX_ROWS: u64 = 100_000_000;
+
+/// A CSV file being read: its header, then its rows one at a time.
 pub(crate) struct Table {
     /// Header cells, when the file has a header.
     pub(crate) names: Option<Vec<String>>,
-    /// (1-based line number, cells) of each data row; blank lines are skipped.
-    pub(crate) rows: Vec<(usize, Vec<String>)>,
+    /// Cells in every row: the header's, else the first row's.
+    width: usize,
+    lines: Lines,
+    /// The first row, read ahead to learn the width of a file without header.
+    ahead: Option<(usize, Vec<String>)>,
+    rows: u64,
 }
 
 impl Table {
-    /// Read `path`; with `header`, its first non-blank line names the columns.
-    pub(crate) fn read(path: &Path, header: bool) -> Result<Table> {
-        let bytes = std::fs::read(path).map_err(|e| Error::from_io(path, "read", &e))?;
-        let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes);
-        if bytes.iter().all(|b| b.is_ascii_whitespace()) {
+    /// Open `path` and read its first non-blank line: with `header`, the
+    /// names of the columns, else the first row.
+    pub(crate) fn open(path: &Path, header: bool) -> Result<Table> {
+        let mut lines = Lines::open(path)?;
+        let Some((no, text)) = lines.next_line()? else {
             return Err(Error::new(path, ErrorKind::Empty));
-        }
-        let mut names = None;
-        let mut rows = Vec::new();
-        for (i, raw) in bytes.split(|&b| b == b'\n').enumerate() {
-            let no = i + 1;
-            let text =
-                std::str::from_utf8(raw).map_err(|_| Error::syntax(path, no, "not UTF-8 text"))?;
-            let text = text.strip_suffix('\r').unwrap_or(text);
-            if text.trim().is_empty() {
-                continue;
-            }
-            let cells = split_line(text, path, no)?;
-            if header && names.is_none() {
-                names = Some(cells);
-                continue;
-            }
-            let width = match &names {
-                Some(n) => Some(n.len()),
-                None => rows.first().map(|(_, r): &(usize, Vec<String>)| r.len()),
-            };
-            if let Some(w) = width {
-                if cells.len() != w {
+        };
+        let cells = split_line(text, path, no)?;
+        let width = cells.len();
+        let (names, ahead) = if header {
+            (Some(cells), None)
+        } else {
+            (None, Some((no, cells)))
+        };
+        Ok(Table {
+            names,
+            width,
+            lines,
+            ahead,
+            rows: 0,
+        })
+    }
+
+    /// The next data row as (1-based line number, cells); blank lines are
+    /// skipped, a row of another width is an error.
+    pub(crate) fn next_row(&mut self, path: &Path) -> Result<Option<(usize, Vec<String>)>> {
+        let row = match self.ahead.take() {
+            Some(row) => row,
+            None => {
+                let Some((no, text)) = self.lines.next_line()? else {
+                    return Ok(None);
+                };
+                let cells = split_line(text, path, no)?;
+                if cells.len() != self.width {
                     return Err(Error::syntax(
                         path,
                         no,
-                        format!("{} fields, expected {w}", cells.len()),
+                        format!("{} fields, expected {}", cells.len(), self.width),
                     ));
                 }
+                (no, cells)
             }
-            rows.push((no, cells));
+        };
+        self.rows += 1;
+        if self.rows > MAX_ROWS {
+            return Err(Error::new(
+                path,
+                ErrorKind::TooManySamples {
+                    samples: self.rows,
+                    limit: MAX_ROWS,
+                },
+            )
+            .at_line(row.0));
         }
-        Ok(Table { names, rows })
+        Ok(Some(row))
     }
 
     /// Position of `column`, or an error listing the columns there are.
     pub(crate) fn find(&self, path: &Path, column: &ColumnRef) -> Result<usize> {
-        let width = self
-            .names
-            .as_ref()
-            .map(Vec::len)
-            .or_else(|| self.rows.first().map(|(_, r)| r.len()))
-            .unwrap_or(0);
+        let width = self.width;
         let found = match column {
             ColumnRef::Index(i) => Some(*i).filter(|&i| i < width),
             ColumnRef::Name(n) => self

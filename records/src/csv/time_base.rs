@@ -3,32 +3,63 @@
 
 use super::table::{parse_cell, Table};
 use super::MAX_GRID_SAMPLES;
-use super::{named, not_number, ColumnRef, CsvSignalOptions, CsvSignals, TimeBase, TimeUnit};
+use super::{named, not_number, CsvSignalOptions, CsvSignals, TimeBase, TimeUnit};
 use crate::error::{Error, ErrorKind, Result};
 use crate::resample::{median_rate, Resampler};
 use std::path::Path;
 
+/// Most grid samples resampling makes for each row of the file: a camera
+/// at 1 frame a second put on a 1000 Hz grid.
+pub const MAX_GRID_SAMPLES_PER_ROW: f64 = 1000.0;
+
+/// Largest time, in seconds from zero, a time cell may hold: over 30 000
+/// years, past any clock a recording carries (Unix time in microseconds
+/// is about 1.7e9 s), and far from where f64 steps lose the sample period.
+pub const MAX_TIME_S: f64 = 1e12;
+
+/// The time, in seconds, in cell `text` of time column `col` on line `no`.
+pub(super) fn time_cell(
+    path: &Path,
+    table: &Table,
+    no: usize,
+    col: usize,
+    text: &str,
+    options: &CsvSignalOptions,
+) -> Result<f64> {
+    match parse_cell(text) {
+        Ok(Some(t)) if t.is_finite() => {
+            let seconds = t * options.time_unit.seconds();
+            if seconds.abs() > MAX_TIME_S {
+                return Err(Error::new(
+                    path,
+                    ErrorKind::Implausible {
+                        field: "time",
+                        value: text.to_string(),
+                        expected: format!("times lie within {MAX_TIME_S:e} s of zero"),
+                    },
+                )
+                .at_line(no));
+            }
+            Ok(seconds)
+        }
+        _ => Err(not_number(path, table, no, col, text)),
+    }
+}
+
 /// Columns `cols` of `table` with their `values` on the time base of
-/// column `time_col`: the rows' own rate when the times are uniform (and no
-/// `grid` rate is asked for), else resampled onto a uniform grid.
+/// column `tc`, whose times are (line, seconds) pairs: the rows' own
+/// rate when the times are uniform (and no `grid` rate is asked for),
+/// else resampled onto a uniform grid.
 pub(super) fn on_time_base(
     path: &Path,
     table: &Table,
     cols: &[usize],
     values: Vec<Vec<f64>>,
-    time_col: &ColumnRef,
+    (tc, times): (usize, &[(usize, f64)]),
     grid: Option<f64>,
     options: &CsvSignalOptions,
 ) -> Result<CsvSignals> {
-    let tc = table.find(path, time_col)?;
-    let mut times = Vec::with_capacity(table.rows.len());
-    for (no, cells) in &table.rows {
-        match parse_cell(&cells[tc]) {
-            Ok(Some(t)) if t.is_finite() => times.push((*no, t * options.time_unit.seconds())),
-            _ => return Err(not_number(path, table, *no, tc, &cells[tc])),
-        }
-    }
-    let fit = time_fit(path, &table.name(tc), &times)?;
+    let fit = time_fit(path, &table.name(tc), times)?;
     let uniform = fit.max_deviation <= options.tolerance;
     if uniform && grid.is_none() {
         let base = TimeBase {
@@ -44,11 +75,17 @@ pub(super) fn on_time_base(
     let seconds: Vec<f64> = times.iter().map(|&(_, t)| t).collect();
     let fs = grid.unwrap_or_else(|| median_rate(&seconds));
     let span = seconds[seconds.len() - 1] - seconds[0];
-    if span * fs > MAX_GRID_SAMPLES {
+    // Bounded by the rows there are too: three rows spread over days
+    // must not fill a grid of tens of millions of samples.
+    let per_row = seconds.len() as f64 * MAX_GRID_SAMPLES_PER_ROW;
+    if span * fs > MAX_GRID_SAMPLES || span * fs > per_row {
         return Err(Error::new(
             path,
             ErrorKind::Invalid(format!(
-                "a grid at {fs:.6} Hz over {span} s would hold more than {MAX_GRID_SAMPLES} samples"
+                "a grid at {fs:.6} Hz over {span} s would hold {:.0} samples for {} rows, more than {} (at most {MAX_GRID_SAMPLES_PER_ROW} a row, {MAX_GRID_SAMPLES} in all)",
+                span * fs,
+                seconds.len(),
+                per_row.min(MAX_GRID_SAMPLES),
             )),
         ));
     }
@@ -108,6 +145,13 @@ fn time_fit(path: &Path, column: &str, times: &[(usize, f64)]) -> Result<TimeBas
         skk += dk * dk;
     }
     let period = skt / skk;
+    if !(period.is_finite() && period > 0.0 && (1.0 / period).is_finite()) {
+        return Err(in_column(format!(
+            "times from {} s to {} s give no finite sample rate",
+            times[0].1,
+            times[times.len() - 1].1
+        )));
+    }
     let grid_start = t_mean - period * k_mean;
     let worst = times
         .iter()

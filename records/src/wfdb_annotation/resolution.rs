@@ -11,8 +11,12 @@
 
 use std::path::Path;
 
-use super::{decode_entries, encode_entries, put, Annotation, EncodeError, EncodeProblem, NOTE};
+use super::{
+    decode_entries, encode_entries, put, Annotation, EncodeError, EncodeProblem,
+    MAX_ANNOTATION_BYTES, NOTE,
+};
 use crate::error::{Error, ErrorKind, Result};
+use crate::input::read_all;
 use crate::wfdb_header::Header;
 
 /// The aux text that starts the note, up to the rate.
@@ -85,7 +89,7 @@ fn parse_rate(text: &str) -> std::result::Result<f64, ErrorKind> {
 /// Read the annotation file at `path` as stored (see [`AnnotationFile`]).
 pub fn read_annotation_file(path: impl AsRef<Path>) -> Result<AnnotationFile> {
     let path = path.as_ref();
-    let bytes = std::fs::read(path).map_err(|e| Error::from_io(path, "read", &e))?;
+    let bytes = read_all(path, "annotation file", MAX_ANNOTATION_BYTES)?;
     decode_annotation_file(&bytes).map_err(|kind| Error::new(path, kind))
 }
 

@@ -1,8 +1,7 @@
 //! The fields of header lines, one parser each (header(5)).
 
-use super::{
-    BaseDate, BaseTime, Header, SegmentSpec, SignalSpec, DEFAULT_FS, DEFAULT_GAIN, DEFAULT_UNITS,
-};
+use super::{limits, time};
+use super::{Header, SegmentSpec, SignalSpec, DEFAULT_FS, DEFAULT_GAIN, DEFAULT_UNITS};
 use crate::error::{quoted, ErrorKind};
 use crate::wfdb_format::{FormatProblem, SignalFormat};
 
@@ -34,10 +33,35 @@ pub(super) enum FieldError {
     NoFormat,
     #[error("implausible samples per frame {0}")]
     TooManySamplesPerFrame(u32),
+    /// A value that reads but makes no physical sense.
+    #[error("{field} {} makes no physical sense ({expected})", quoted(.text))]
+    Implausible {
+        field: &'static str,
+        text: String,
+        expected: &'static str,
+    },
+}
+
+impl FieldError {
+    /// The error as one of the crate's [`ErrorKind`]s.
+    pub(super) fn into_kind(self) -> ErrorKind {
+        match self {
+            FieldError::Implausible {
+                field,
+                text,
+                expected,
+            } => ErrorKind::Implausible {
+                field,
+                value: text,
+                expected: expected.to_string(),
+            },
+            other => ErrorKind::Syntax(other.to_string()),
+        }
+    }
 }
 
 /// `text` as the field `field` that it fails to be.
-fn malformed(field: &'static str, text: &str) -> FieldError {
+pub(super) fn malformed(field: &'static str, text: &str) -> FieldError {
     FieldError::Malformed {
         field,
         text: text.to_owned(),
@@ -61,17 +85,23 @@ fn number<T: std::str::FromStr>(text: &str, field: &'static str) -> Result<T, Fi
     text.parse::<T>().map_err(|_| malformed(field, text))
 }
 
+/// A number of frames, at most [`limits::MAX_FRAMES`].
+fn frames(text: &str, field: &'static str) -> Result<u64, FieldError> {
+    let n = number::<u64>(text, field)?;
+    limits::at_most(n, limits::MAX_FRAMES, field, "at most 1e15 frames")
+}
+
 /// A finite positive frequency.
 fn frequency(text: &str, field: &'static str) -> Result<f64, FieldError> {
     let v: f64 = number(text, field)?;
-    if v.is_finite() && v > 0.0 {
-        Ok(v)
-    } else {
-        Err(FieldError::NotAboveZero {
+    if !(v.is_finite() && v > 0.0) {
+        return Err(FieldError::NotAboveZero {
             field,
             text: text.to_owned(),
-        })
+        });
     }
+    limits::frequency(v, field, text)?;
+    Ok(v)
 }
 
 /// The record line: `name[/segments] signals [fs[/counter[(base)]] [samples [time [date]]]]`.
@@ -130,11 +160,11 @@ pub(super) fn parse_record_line(line: &str) -> Result<(Header, usize), FieldErro
         }
     }
     let samples = match fields.get(3) {
-        Some(s) => Some(number::<u64>(s, "number of samples")?).filter(|&n| n > 0),
+        Some(s) => Some(frames(s, "number of samples")?).filter(|&n| n > 0),
         None => None,
     };
-    let base_time = fields.get(4).map(|t| parse_time(t)).transpose()?;
-    let base_date = fields.get(5).map(|d| parse_date(d)).transpose()?;
+    let base_time = fields.get(4).map(|t| time::parse_time(t)).transpose()?;
+    let base_date = fields.get(5).map(|d| time::parse_date(d)).transpose()?;
     let header = Header {
         record_name: name.to_string(),
         segments,
@@ -152,71 +182,6 @@ pub(super) fn parse_record_line(line: &str) -> Result<(Header, usize), FieldErro
     Ok((header, n_sig))
 }
 
-/// `HH:MM:SS`, `MM:SS` or `SS`, seconds with an optional fraction.
-fn parse_time(text: &str) -> Result<BaseTime, FieldError> {
-    let bad = || malformed("base time", text);
-    let parts: Vec<&str> = text.split(':').collect();
-    if parts.len() > 3 {
-        return Err(bad());
-    }
-    let int = |s: &str, max: u32| -> Result<u32, FieldError> {
-        if s.is_empty() || s.len() > 2 || !s.bytes().all(|b| b.is_ascii_digit()) {
-            return Err(bad());
-        }
-        let v: u32 = s.parse().map_err(|_| bad())?;
-        if v > max {
-            return Err(bad());
-        }
-        Ok(v)
-    };
-    let secs_text = parts[parts.len() - 1];
-    let (whole, frac) = secs_text.split_once('.').unwrap_or((secs_text, ""));
-    let whole = int(whole, 59)?;
-    if !frac.bytes().all(|b| b.is_ascii_digit()) || frac.len() > 6 {
-        return Err(bad());
-    }
-    let seconds = if frac.is_empty() {
-        whole as f64
-    } else {
-        format!("{whole}.{frac}").parse().map_err(|_| bad())?
-    };
-    let minutes = if parts.len() >= 2 {
-        int(parts[parts.len() - 2], 59)?
-    } else {
-        0
-    };
-    let hours = if parts.len() == 3 {
-        int(parts[0], 23)?
-    } else {
-        0
-    };
-    Ok(BaseTime {
-        hours,
-        minutes,
-        seconds,
-    })
-}
-
-/// `DD/MM/YYYY`.
-fn parse_date(text: &str) -> Result<BaseDate, FieldError> {
-    let bad = || malformed("base date", text);
-    let parts: Vec<&str> = text.split('/').collect();
-    if parts.len() != 3
-        || parts
-            .iter()
-            .any(|p| p.is_empty() || !p.bytes().all(|b| b.is_ascii_digit()))
-    {
-        return Err(bad());
-    }
-    let day: u32 = parts[0].parse().map_err(|_| bad())?;
-    let month: u32 = parts[1].parse().map_err(|_| bad())?;
-    let year: u32 = parts[2].parse().map_err(|_| bad())?;
-    if !(1..=31).contains(&day) || !(1..=12).contains(&month) || parts[2].len() > 4 {
-        return Err(bad());
-    }
-    Ok(BaseDate { day, month, year })
-}
-
 /// A segment line: `name samples`.
 pub(super) fn parse_segment_line(line: &str) -> Result<SegmentSpec, FieldError> {
     let fields: Vec<&str> = line.split_whitespace().collect();
@@ -225,7 +190,7 @@ pub(super) fn parse_segment_line(line: &str) -> Result<SegmentSpec, FieldError> 
     }
     Ok(SegmentSpec {
         name: fields[0].to_string(),
-        samples: number(fields[1], "segment length")?,
+        samples: frames(fields[1], "segment length")?,
     })
 }
 
@@ -270,6 +235,12 @@ pub(super) fn parse_signal_line(line: &str) -> Result<SignalSpec, LineError> {
         Some(t) => number::<u32>(t, "ADC resolution")?,
         None => format.default_resolution(),
     };
+    limits::at_most(
+        adc_resolution.into(),
+        limits::MAX_RESOLUTION_BITS.into(),
+        "ADC resolution",
+        "at most 32 bits",
+    )?;
     let adc_zero = match take() {
         Some(t) => number::<i32>(t, "ADC zero")?,
         None => 0,
@@ -386,6 +357,7 @@ fn parse_gain_field(text: &str) -> Result<GainField, FieldError> {
         return Err(malformed("ADC gain", gain_text));
     }
     let gain = if gain == 0.0 { DEFAULT_GAIN } else { gain };
+    limits::gain(gain, gain_text)?;
     Ok(GainField {
         gain,
         baseline,

@@ -4,6 +4,7 @@
 use super::super::error::{Error, ErrorKind, Result};
 use super::super::wfdb_format::SignalFormat;
 use super::super::wfdb_header::Header;
+use super::open::{leads_out, RecordOptions};
 use std::path::{Path, PathBuf};
 
 /// The signals stored in one file.
@@ -26,11 +27,25 @@ impl Group {
     }
 
     /// The signal files of `header` (read from `header_path`, files in
-    /// `dir`), each with its signals; refuses null signals and signals of
-    /// one file on lines that are not consecutive.
-    pub(super) fn of_header(header: &Header, header_path: &Path, dir: &Path) -> Result<Vec<Group>> {
+    /// `dir`), each with its signals; refuses null signals, signals of
+    /// one file on lines that are not consecutive, and (unless `options`
+    /// allow it) file names that lead out of `dir`.
+    pub(super) fn of_header(
+        header: &Header,
+        header_path: &Path,
+        dir: &Path,
+        options: &RecordOptions,
+    ) -> Result<Vec<Group>> {
         let mut groups: Vec<Group> = Vec::new();
         for (i, spec) in header.signals.iter().enumerate() {
+            if !options.allow_outside_folder && leads_out(&spec.file_name) {
+                return Err(Error::new(
+                    header_path,
+                    ErrorKind::OutsideFolder {
+                        file_name: spec.file_name.clone(),
+                    },
+                ));
+            }
             if spec.file_name == "~" {
                 return Err(Error::new(
                     header_path,

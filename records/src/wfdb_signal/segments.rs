@@ -19,7 +19,7 @@
 
 use std::path::{Path, PathBuf};
 
-use super::Record;
+use super::{Record, RecordOptions};
 use crate::error::{Error, ErrorKind, Result};
 use crate::wfdb_header::{Header, SignalSpec};
 
@@ -45,8 +45,14 @@ const NULL: &str = "~";
 
 impl Segments {
     /// Open the multi-segment record whose master header is `header`
-    /// (read from `header_path`, segments in `dir`).
-    pub(crate) fn open(mut header: Header, header_path: PathBuf, dir: PathBuf) -> Result<Record> {
+    /// (read from `header_path`, segments in `dir`), each segment opened
+    /// with `options`.
+    pub(crate) fn open(
+        mut header: Header,
+        header_path: PathBuf,
+        dir: PathBuf,
+        options: &RecordOptions,
+    ) -> Result<Record> {
         let bad = |m: String| Error::new(&header_path, ErrorKind::Invalid(m));
         let specs = header.segment_specs.clone();
         let variable = specs.first().is_some_and(|s| s.samples == 0);
@@ -73,7 +79,14 @@ impl Segments {
             let record = match (seg.name.as_str(), variable && k == 0) {
                 (NULL, _) => None,
                 (_, true) => None,
-                (name, false) => Some(open_segment(&dir, name, seg.samples, &header, &bad)?),
+                (name, false) => Some(open_segment(
+                    &dir,
+                    name,
+                    seg.samples,
+                    &header,
+                    options,
+                    &bad,
+                )?),
             };
             opened.push(record);
         }
@@ -110,7 +123,11 @@ impl Segments {
                 map,
             });
         }
-        let frames: u64 = parts.iter().map(|p| p.frames).sum();
+        // Checked: each length is bounded, their sum need not be.
+        let frames = parts
+            .iter()
+            .try_fold(0u64, |sum, p| sum.checked_add(p.frames))
+            .ok_or_else(|| bad("the segments' lengths add up past any record".into()))?;
         if let Some(stated) = header.samples.filter(|&n| n != frames) {
             return Err(bad(format!(
                 "the record line says {stated} frames, the segments hold {frames}"
@@ -124,6 +141,7 @@ impl Segments {
             frames,
             groups: Vec::new(),
             segments: Some(Box::new(Segments { parts })),
+            options: options.clone(),
         })
     }
 
@@ -131,7 +149,17 @@ impl Segments {
     pub(crate) fn read_digital(&self, rec: &Record, index: usize) -> Result<Vec<i32>> {
         let spec = self.signal(rec, index)?;
         let spf = spec.samples_per_frame as usize;
-        let mut out = Vec::with_capacity(rec.len() * spf);
+        let total = (rec.len() as u64).saturating_mul(spf as u64);
+        if total > rec.options.max_samples {
+            return Err(Error::new(
+                &rec.header_path,
+                ErrorKind::TooManySamples {
+                    samples: total,
+                    limit: rec.options.max_samples,
+                },
+            ));
+        }
+        let mut out = Vec::with_capacity(total as usize);
         for part in &self.parts {
             let n = part.frames as usize * spf;
             match (&part.record, part.map[index]) {
@@ -217,6 +245,7 @@ fn open_segment(
     name: &str,
     frames: u64,
     master: &Header,
+    options: &RecordOptions,
     bad: &dyn Fn(String) -> Error,
 ) -> Result<Record> {
     let path = dir.join(name);
@@ -226,7 +255,12 @@ fn open_segment(
             "segment {name} is itself a multi-segment record"
         )));
     }
-    let record = Record::from_header(header, dir.join(format!("{name}.hea")), dir.to_path_buf())?;
+    let record = Record::from_header_with(
+        header,
+        dir.join(format!("{name}.hea")),
+        dir.to_path_buf(),
+        options,
+    )?;
     if record.fs() != master.fs {
         return Err(bad(format!(
             "segment {name} runs at {} frames per second, the record at {}",
