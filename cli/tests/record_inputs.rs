@@ -116,3 +116,40 @@ fn signal_files_outside_the_folder_need_the_flag() {
     );
     assert_eq!(code, 0, "{stderr}");
 }
+
+#[test]
+fn the_flag_reaches_the_ecg_a_score_reads_from_the_same_record() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let s = plethwire_synth::generate(&plethwire_synth::SynthOptions {
+        sample_rate_hz: 125.0,
+        duration_s: 20.0,
+        ..plethwire_synth::SynthOptions::default()
+    })
+    .unwrap();
+    let wave: Vec<i32> = s.samples.iter().map(|&v| (v * 1000.0) as i32).collect();
+    let signals = [
+        plethwire_records::NewSignal::new("PLETH", "NU", 1000.0, 0),
+        plethwire_records::NewSignal::new("II", "mV", 1000.0, 0),
+    ];
+    plethwire_records::write_record(d, "two", 125.0, &signals, &[wave.clone(), wave]).unwrap();
+    let inner = d.join("elsewhere");
+    std::fs::create_dir(&inner).unwrap();
+    let text = std::fs::read_to_string(d.join("two.hea")).unwrap();
+    std::fs::write(inner.join("two.hea"), text.replace("two.dat", "../two.dat")).unwrap();
+    let record = inner.join("two");
+    let args = [
+        "score",
+        record.to_str().unwrap(),
+        "--ecg",
+        "II",
+        "--allow-outside-signal-files",
+    ];
+    // The pulse stands in for the ECG, so the score may refuse it as an
+    // ECG; it must not refuse to open the file the flag allowed.
+    let (_, out, err) = plethwire(d, &args);
+    assert!(
+        !err.contains("leads out of the record's folder"),
+        "{err}\n{out}"
+    );
+}

@@ -13,6 +13,7 @@ use super::error::{Error, ErrorKind, Result};
 use super::input::read_all;
 use super::wfdb_format::SignalFormat;
 
+mod field_error;
 mod fields;
 mod limits;
 mod time;

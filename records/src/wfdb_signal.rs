@@ -16,11 +16,13 @@ use super::{LoadedSignal, DEFAULT_SIGNAL};
 mod group;
 mod open;
 mod segments;
+mod skew;
 
 use group::{check_length, Group};
 use open::{check_skews, header_path_of};
 pub use open::{RecordOptions, MAX_SAMPLES};
 use segments::Segments;
+use skew::apply_skew;
 
 /// An opened WFDB record. Opening reads the header and checks that every
 /// signal file exists and is long enough; samples are read on request.
@@ -367,28 +369,6 @@ impl Record {
         }
         Ok(out)
     }
-}
-
-/// Shift a skewed signal back into line: its sample for frame `n` was
-/// stored in frame `n + skew`. Frames past the end of the file become the
-/// invalid-sample value, as Python wfdb's `rdrecord` does.
-fn apply_skew(samples: &mut Vec<i32>, spec: &SignalSpec, path: &Path) -> Result<()> {
-    let shift = (spec.skew as usize * spec.samples_per_frame as usize).min(samples.len());
-    if shift == 0 {
-        return Ok(());
-    }
-    let Some(fill) = spec.format.invalid_value() else {
-        return Err(Error::new(
-            path,
-            ErrorKind::Unsupported(
-                "skew in format 8, which has no invalid-sample value for the frames past the end"
-                    .into(),
-            ),
-        ));
-    };
-    samples.drain(..shift);
-    samples.extend(std::iter::repeat_n(fill, shift));
-    Ok(())
 }
 
 /// The 16-bit checksum of a signal, as header(5) defines it: the sum of

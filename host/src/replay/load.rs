@@ -90,6 +90,9 @@ pub struct Recording {
     pub input: InputInfo,
     /// The accelerometer, when one was asked for.
     pub motion: Option<MotionSignals>,
+    /// How the record was opened; the same for any other signal read from
+    /// it (an ECG reference).
+    pub record_options: RecordOptions,
 }
 
 /// A recording that could not be loaded, replayed or scored; one line.
@@ -179,6 +182,7 @@ fn load_as_recorded(path: &Path, source: &Source) -> Result<Recording, ReplayErr
             ..InputInfo::default()
         },
         motion,
+        record_options: source.record_options.clone(),
     })
 }
 
@@ -300,6 +304,7 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
         signal,
         input,
         motion,
+        record_options: source.record_options.clone(),
     })
 }
 

@@ -238,6 +238,7 @@ mod ecg_tests {
             },
             input: Default::default(),
             motion: None,
+            record_options: Default::default(),
         };
         let run = replay(&samples, Config::new(100.0)).unwrap();
         let e = ecg_score(&rec, &run, "II").unwrap_err().to_string();

@@ -7,8 +7,7 @@ use crate::ecg::EcgReference;
 use crate::output_guard::record_base;
 use crate::replay::{Recording, ReplayError};
 use plethwire_records::{
-    annotation_path, read_annotations_in_samples, read_numerics, read_rr_intervals,
-    read_wfdb_signal,
+    annotation_path, read_annotations_in_samples, read_numerics, read_rr_intervals, Record,
 };
 use std::path::{Path, PathBuf};
 
@@ -185,7 +184,7 @@ pub fn load_ecg(rec: &Recording, name: &str) -> Result<EcgReference, ReplayError
             rec.path.display()
         )));
     }
-    let ecg = read_wfdb_signal(&rec.path, Some(name))?;
+    let ecg = Record::open_with(&rec.path, &rec.record_options)?.load_signal(Some(name))?;
     if ecg.fs != rec.signal.fs {
         return Err(ReplayError::Refused(format!(
             "{}: ECG signal '{name}' is at {} Hz, the pulse signal '{}' at {} Hz; they must be the same",

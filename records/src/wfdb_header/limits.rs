@@ -1,6 +1,6 @@
 //! The ranges outside which a header's values make no physical sense.
 
-use super::fields::FieldError;
+use super::field_error::FieldError;
 
 /// Lowest and highest sampling or counter frequency taken, Hz: a frame in
 /// 12 days to a gigahertz, beyond any recording.

@@ -1,6 +1,6 @@
 //! The base time and date fields of a record line (header(5)).
 
-use super::fields::{malformed, FieldError};
+use super::field_error::{malformed, FieldError};
 use super::{BaseDate, BaseTime};
 
 /// `HH:MM:SS`, `MM:SS` or `SS`, seconds with an optional fraction.

@@ -21,7 +21,7 @@ use std::path::{Path, PathBuf};
 
 use super::{Record, RecordOptions};
 use crate::error::{Error, ErrorKind, Result};
-use crate::wfdb_header::{Header, SignalSpec};
+use crate::wfdb_header::{Header, SegmentSpec, SignalSpec};
 
 /// The segments of a multi-segment record, in order.
 #[derive(Debug, Clone)]
@@ -58,24 +58,7 @@ impl Segments {
         let variable = specs.first().is_some_and(|s| s.samples == 0);
         let mut opened = Vec::with_capacity(specs.len());
         for (k, seg) in specs.iter().enumerate() {
-            let valid = seg.name == NULL
-                || !seg.name.is_empty()
-                    && seg
-                        .name
-                        .chars()
-                        .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-');
-            if !valid {
-                return Err(bad(format!(
-                    "segment name {:?} is neither a record name nor \"~\"",
-                    seg.name
-                )));
-            }
-            if seg.samples == 0 && !(variable && k == 0) {
-                return Err(bad(format!(
-                    "segment {k} ({}) has length 0; only the first (the layout) may",
-                    seg.name
-                )));
-            }
+            check_segment(k, seg, variable, &bad)?;
             let record = match (seg.name.as_str(), variable && k == 0) {
                 (NULL, _) => None,
                 (_, true) => None,
@@ -235,6 +218,35 @@ impl Segments {
     fn refuse(&self, rec: &Record, message: String) -> Error {
         Error::new(rec.header_path(), ErrorKind::Invalid(message))
     }
+}
+
+/// Segment `k` of the master header: a record name or `~`, and a length
+/// of 0 only for the layout (first) segment of a variable layout.
+fn check_segment(
+    k: usize,
+    seg: &SegmentSpec,
+    variable: bool,
+    bad: &dyn Fn(String) -> Error,
+) -> Result<()> {
+    let valid = seg.name == NULL
+        || !seg.name.is_empty()
+            && seg
+                .name
+                .chars()
+                .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-');
+    if !valid {
+        return Err(bad(format!(
+            "segment name {:?} is neither a record name nor \"~\"",
+            seg.name
+        )));
+    }
+    if seg.samples == 0 && !(variable && k == 0) {
+        return Err(bad(format!(
+            "segment {k} ({}) has length 0; only the first (the layout) may",
+            seg.name
+        )));
+    }
+    Ok(())
 }
 
 /// Open segment `name` of a record whose master header is `master`; it
