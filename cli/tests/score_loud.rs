@@ -100,12 +100,12 @@ fn a_record_given_twice_counts_once_and_json_has_the_figures() {
     let r = &v1["records"][0]["beats"];
     let fn_ = v1["records"][0]["reference_beats"].as_f64().unwrap() - tp;
     for (key, want) in [
-        ("sensitivity", tp / (tp + fn_)),
-        ("positive_predictivity", tp / (tp + fp)),
-        ("f1", 2.0 * tp / (2.0 * tp + fp + fn_)),
+        ("se_percent", 100.0 * tp / (tp + fn_)),
+        ("ppv_percent", 100.0 * tp / (tp + fp)),
+        ("f1_percent", 200.0 * tp / (2.0 * tp + fp + fn_)),
     ] {
         let got = p[key].as_f64().unwrap_or_else(|| panic!("no {key} in {p}"));
-        assert!((got - want).abs() < 1e-12, "{key}: {got} vs {want}");
+        assert!((got - want).abs() < 1e-9, "{key}: {got} vs {want}");
         assert_eq!(r[key], p[key], "{key}");
     }
     // The peaks' mean absolute error against the reference beats, ms:
@@ -136,11 +136,11 @@ fn json_heart_rate_has_its_mean_absolute_error() {
     assert_eq!(code, 0, "{err}");
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     let h = &v["pooled_heart_rate"];
-    let mae = h["mae_bpm"]
+    let mae = h["hr_mae_bpm"]
         .as_f64()
-        .unwrap_or_else(|| panic!("no mae_bpm: {h}"));
+        .unwrap_or_else(|| panic!("no hr_mae_bpm: {h}"));
     let want = h["abs_sum"].as_f64().unwrap() / h["count"].as_f64().unwrap();
     assert!((mae - want).abs() < 1e-12, "{mae} vs {want}");
     assert!((1.0..4.0).contains(&mae), "{mae}");
-    assert_eq!(v["records"][0]["heart_rate"]["mae_bpm"], h["mae_bpm"]);
+    assert_eq!(v["records"][0]["heart_rate"]["hr_mae_bpm"], h["hr_mae_bpm"]);
 }

@@ -65,7 +65,7 @@ fn windows_of_a_steady_pulse_agree_with_its_rate() {
     assert_eq!(good["windows"], 14);
     assert_eq!(good["coverage"], 1.0, "{good}");
     assert_eq!(good["within_share"], 1.0, "{good}");
-    assert!(good["mae_bpm"].as_f64().unwrap() < 3.0, "{good}");
+    assert!(good["hr_mae_bpm"].as_f64().unwrap() < 3.0, "{good}");
     assert_eq!(v["pooled_windows"]["all"]["windows"], 14);
 
     let (code, out, err) = plethwire(&["score", rec, "--window-suffix", ".off.csv", "--json"]);

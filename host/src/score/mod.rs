@@ -13,12 +13,12 @@ pub use crate::matching::{match_beats, match_pairs, MatchCounts, MATCH_WINDOW_S}
 struct CountsWithFigures<'a> {
     #[serde(flatten)]
     counts: &'a MatchCounts,
-    /// Se = TP / (TP + FN), a fraction; `null` with no reference beat.
-    sensitivity: Option<f64>,
-    /// +P = TP / (TP + FP), a fraction; `null` with no detected beat.
-    positive_predictivity: Option<f64>,
-    /// F1 = 2TP / (2TP + FP + FN), a fraction.
-    f1: Option<f64>,
+    /// Se = TP / (TP + FN), in percent; `null` with no reference beat.
+    se_percent: Option<f64>,
+    /// +P = TP / (TP + FP), in percent; `null` with no detected beat.
+    ppv_percent: Option<f64>,
+    /// F1 = 2TP / (2TP + FP + FN), in percent.
+    f1_percent: Option<f64>,
 }
 
 /// Serialize beat counts with their sensitivity, positive predictivity
@@ -31,15 +31,15 @@ pub fn counts_with_figures<S: Serializer>(
         .as_ref()
         .map(|c| CountsWithFigures {
             counts: c,
-            sensitivity: c.se(),
-            positive_predictivity: c.ppv(),
-            f1: c.f1(),
+            se_percent: c.se().map(|v| 100.0 * v),
+            ppv_percent: c.ppv().map(|v| 100.0 * v),
+            f1_percent: c.f1().map(|v| 100.0 * v),
         })
         .serialize(s)
 }
 
 /// Heart-rate agreement with a reference series (JSON: its sums and
-/// `mae_bpm`, the mean absolute error).
+/// `hr_mae_bpm`, the mean absolute error; the names the report uses).
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct RateError {
     /// Sum of absolute differences, bpm.
@@ -54,12 +54,12 @@ impl Serialize for RateError {
         struct Shown {
             abs_sum: f64,
             count: usize,
-            mae_bpm: Option<f64>,
+            hr_mae_bpm: Option<f64>,
         }
         Shown {
             abs_sum: self.abs_sum,
             count: self.count,
-            mae_bpm: self.mae(),
+            hr_mae_bpm: self.mae(),
         }
         .serialize(s)
     }

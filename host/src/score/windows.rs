@@ -151,7 +151,7 @@ fn median(v: &mut [f64]) -> f64 {
 }
 
 /// Window figures of one beat list (or several pooled). In JSON the
-/// counts come with `coverage`, `within_share` (0 to 1) and `mae_bpm`.
+/// counts come with `coverage`, `within_share` (0 to 1) and `hr_mae_bpm`.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct WindowScore {
     /// Reference windows.
@@ -196,7 +196,7 @@ impl Serialize for WindowScore {
         st.serialize_field("abs_sum", &self.abs_sum)?;
         st.serialize_field("coverage", &self.coverage())?;
         st.serialize_field("within_share", &self.within_share())?;
-        st.serialize_field("mae_bpm", &self.mae())?;
+        st.serialize_field("hr_mae_bpm", &self.mae())?;
         st.end()
     }
 }
@@ -287,7 +287,7 @@ mod tests {
         assert_eq!(s.within_share(), Some(0.5));
         let json = serde_json::to_value(s).unwrap();
         assert_eq!(json["within_share"], 0.5);
-        assert_eq!(json["mae_bpm"], 10.0);
+        assert_eq!(json["hr_mae_bpm"], 10.0);
     }
 
     #[test]
