@@ -3,8 +3,8 @@
 //! (a synthetic 72 bpm pulse, `plethwire_synth`, after Tang et al. 2020,
 //! Sci Rep 10:13883) in a temp folder, never a copy of shared data.
 
-use plethwire_records::{write_record, NewSignal};
-use plethwire_synth::{generate, HrSchedule, SynthOptions};
+mod common;
+
 use std::path::Path;
 use std::process::Command;
 
@@ -22,20 +22,7 @@ fn plethwire(args: &[&str]) -> (i32, String, String) {
 
 /// A 40 s, 72 bpm record named `name` in `dir`.
 fn make_record(dir: &Path, name: &str) {
-    let s = generate(&SynthOptions {
-        sample_rate_hz: 125.0,
-        duration_s: 40.0,
-        hr: HrSchedule::constant(72.0),
-        ..SynthOptions::default()
-    })
-    .unwrap();
-    let digital: Vec<i32> = s
-        .samples
-        .iter()
-        .map(|&v| (v * 1000.0).round() as i32)
-        .collect();
-    let sig = NewSignal::new("PLETH", "NU", 1000.0, 0);
-    write_record(dir, name, 125.0, &[sig], &[digital]).unwrap();
+    common::synthetic_record(dir, name, 40.0, 72.0, false);
 }
 
 /// 8 s windows every 2 s from 4 s on, every one saying `bpm`.

@@ -12,28 +12,14 @@ use plethwire::listen::{BeatSeen, Event, Screen, Settings, Sink, StateSeen};
 use plethwire::vocabulary::state_words;
 use plethwire_checks::{build_emulated_firmware, need, needs, qemu};
 use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, SignalState, StateEvent};
-use plethwire_records::{annotation_path, write_annotations, write_record, Annotation, NewSignal};
-use plethwire_synth::{generate, HrSchedule, SynthOptions};
+use plethwire_records::{annotation_path, write_annotations, Annotation};
 use serde_json::Value;
 use std::path::Path;
 
 /// A 30 s, 72 bpm record `ride` in `dir`, its true peaks as `ride.truth`
 /// and a reference heart rate once a second as `riden.csv`.
 fn make_ride(dir: &Path) {
-    let s = generate(&SynthOptions {
-        sample_rate_hz: 125.0,
-        duration_s: 30.0,
-        hr: HrSchedule::constant(72.0),
-        ..SynthOptions::default()
-    })
-    .unwrap();
-    let digital: Vec<i32> = s
-        .samples
-        .iter()
-        .map(|&v| (v * 1000.0).round() as i32)
-        .collect();
-    let sig = NewSignal::new("PLETH", "NU", 1000.0, 0);
-    write_record(dir, "ride", 125.0, &[sig], &[digital]).unwrap();
+    let s = common::synthetic_pulse(dir, "ride", 30.0, 72.0);
     let truth: Vec<Annotation> = s
         .beats
         .iter()

@@ -89,18 +89,15 @@ pub fn run_in(cwd: &Path, args: &[&str]) -> (i32, String, String) {
     )
 }
 
-/// A synthetic record `name` in `dir` (format 16, 125 Hz, `seconds` at
-/// `bpm`; a scenario of our own, `plethwire_synth`); with `truth`, the
-/// generator's beats as `<name>.peak`, as a real record's expert
-/// reference. Returns the record's path.
-pub fn synthetic_record(
+/// A synthetic pulse written as record `name` in `dir` (format 16,
+/// 125 Hz, `seconds` at `bpm`, signal `PLETH`; a scenario of our own,
+/// `plethwire_synth`). Returns what was generated, its beats included.
+pub fn synthetic_pulse(
     dir: &Path,
     name: &str,
     seconds: f64,
     bpm: f64,
-    truth: bool,
-) -> std::path::PathBuf {
-    use plethwire_records::write_record;
+) -> plethwire_synth::Synthetic {
     let s = plethwire_synth::generate(&plethwire_synth::SynthOptions {
         sample_rate_hz: 125.0,
         duration_s: seconds,
@@ -114,7 +111,21 @@ pub fn synthetic_record(
         .map(|&v| (v * 1000.0).round() as i32)
         .collect();
     let sig = plethwire_records::NewSignal::new("PLETH", "NU", 1000.0, 0);
-    write_record(dir, name, 125.0, &[sig], &[digital]).unwrap();
+    plethwire_records::write_record(dir, name, 125.0, &[sig], &[digital]).unwrap();
+    s
+}
+
+/// [`synthetic_pulse`] as record `name`; with `truth`, the generator's
+/// beats as `<name>.peak`, as a real record's expert reference. Returns
+/// the record's path.
+pub fn synthetic_record(
+    dir: &Path,
+    name: &str,
+    seconds: f64,
+    bpm: f64,
+    truth: bool,
+) -> std::path::PathBuf {
+    let s = synthetic_pulse(dir, name, seconds, bpm);
     if truth {
         write_truth(dir, name, &s);
     }
