@@ -128,7 +128,7 @@ impl Timeline {
 
     /// How many samples past its latest the board can have got in
     /// `elapsed` (PC time since the last placed frame): its rate (or the
-    /// fastest) with [`CLOCK_MARGIN`], plus [`LONG_SLACK_S`].
+    /// fastest) with `CLOCK_MARGIN`, plus `LONG_SLACK_S`.
     pub fn reach(&self, elapsed: Duration) -> u64 {
         let hz = self.rate.unwrap_or(FASTEST_HZ);
         let counted = (elapsed.as_secs_f64() * hz * CLOCK_MARGIN).ceil();

@@ -19,7 +19,7 @@ pub enum Swatch {
     Dashed(Rgb, u32),
     /// A filled block of this colour and opacity.
     Block(Rgb, f64),
-    /// The mark of a curve leaving the axis ([`super::clip`]).
+    /// The mark of a curve leaving the axis ([`mod@super::clip`]).
     Leaves(Rgb),
 }
 
