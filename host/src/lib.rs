@@ -12,10 +12,12 @@
 //! Running recordings through the firmware on the emulated board: [`emulate`].
 //! A replay as one self-contained HTML page: [`report`].
 //! The analog front end's budget, LED to ADC: [`frontend`].
+//! Bring-up checks of a new sensor from blocks of samples: [`bringup`].
 //! The words for verdicts, flags and states on the terminal: [`vocabulary`];
 //! file readers' messages in the user's words: [`messages`].
 #![deny(missing_docs)]
 
+pub mod bringup;
 pub mod channel;
 pub mod ecg;
 pub mod emulate;
