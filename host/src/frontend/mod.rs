@@ -31,6 +31,7 @@
 //! # Ok::<(), plethwire::frontend::FrontendError>(())
 //! ```
 
+pub mod advice;
 mod band;
 mod budget;
 mod circuit;
