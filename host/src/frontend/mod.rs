@@ -7,7 +7,8 @@
 //! transimpedance, whether it passes the heart band, the swing of a pulse
 //! against the ADC range and the rails, the ADC step in photocurrent, a
 //! sample rate and the digital band-pass to follow; [`human_report`] and
-//! [`write_svg`] render it.
+//! [`write_svg`] render it. [`advice`] turns levels measured at the ADC
+//! into a single part change, checked through the same model.
 //!
 //! ```
 //! use plethwire::frontend::{Draft, FrontendReport};
@@ -31,6 +32,7 @@
 //! # Ok::<(), plethwire::frontend::FrontendError>(())
 //! ```
 
+pub mod advice;
 mod band;
 mod budget;
 mod circuit;
