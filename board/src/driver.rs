@@ -84,6 +84,11 @@ impl BoardConfig {
     }
 }
 
+/// Bits of an ADC whose full scale is `full_scale` counts (4095: 12).
+fn adc_bits(full_scale: u16) -> u8 {
+    (16 - full_scale.leading_zeros()) as u8
+}
+
 /// The peripherals a board drives, behind embedded-hal traits.
 #[derive(Debug)]
 pub struct Hardware<L, P, A, D> {
@@ -207,6 +212,7 @@ where
                 firmware_version: config.firmware_version,
                 sample_rate_hz: rate,
                 options: config.options,
+                adc_bits: adc_bits(config.adc_full_scale),
             },
             full_scale: config.adc_full_scale,
             invert: config.invert,
@@ -320,6 +326,8 @@ where
         Status {
             led_drive: self.exposure.drive_u16(),
             dc_level: self.exposure.dc_level(),
+            ambient_level: 0.0,
+            measured: Status::MEASURED_LED_DRIVE | Status::MEASURED_DC_LEVEL,
             clipped_samples: u32_of(c.clipped),
             adc_overruns: u32_of(c.missed_ticks + c.adc_errors + c.led_errors),
             dropped_frames: self.queue.dropped(),

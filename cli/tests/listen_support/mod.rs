@@ -137,6 +137,7 @@ pub fn hello() -> Message {
             rails: Some(RAILS),
             ..Options::default()
         },
+        adc_bits: 12,
     })
 }
 
@@ -155,6 +156,7 @@ pub fn block(first: u64) -> Message {
     let mut b = SampleBlock {
         first_index: first,
         count: 16,
+        stride: 1,
         raw: [0.0; 16],
         filtered: [0.0; 16],
     };
@@ -194,6 +196,8 @@ pub fn status(led: u16) -> Message {
     Message::Status(Status {
         led_drive: led,
         dc_level: 0.48,
+        ambient_level: 0.02,
+        measured: Status::MEASURED_ALL,
         clipped_samples: 3,
         adc_overruns: 1,
         dropped_frames: 0,

@@ -149,6 +149,7 @@ pub fn run<F: FeedSource, S: FrameSink, P: Push>(
         firmware_version: FIRMWARE_VERSION,
         sample_rate_hz: header.config.sample_rate_hz,
         options: header.config.options,
+        adc_bits: 0,
     }))?;
     let mut bytes = [0u8; 4];
     for _ in 0..header.samples {
@@ -175,6 +176,8 @@ pub fn run<F: FeedSource, S: FrameSink, P: Push>(
     out.send(&Message::Status(Status {
         led_drive: 0,
         dc_level: 0.0,
+        ambient_level: 0.0,
+        measured: 0,
         clipped_samples: saturate(pipeline.clipped_samples()),
         adc_overruns: 0,
         dropped_frames: 0,

@@ -221,6 +221,7 @@ mod tests {
                 firmware_version: [0, 1, 0],
                 sample_rate_hz: 125.0,
                 options: Options::default(),
+                adc_bits: 0,
             }),
             Message::State(StateEvent {
                 state: SignalState::Good,
@@ -231,6 +232,8 @@ mod tests {
             Message::Status(Status {
                 led_drive: 0,
                 dc_level: 0.0,
+                ambient_level: 0.0,
+                measured: 0,
                 clipped_samples: 3,
                 adc_overruns: 0,
                 dropped_frames: 0,

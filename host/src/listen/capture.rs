@@ -92,6 +92,7 @@ mod tests {
         Message::Samples(SampleBlock {
             first_index: first,
             count: 16,
+            stride: 1,
             raw: [2000.0; 16],
             filtered: [0.0; 16],
         })
@@ -119,6 +120,7 @@ mod tests {
                 rails: Some((0.0, 4095.0)),
                 ..Options::default()
             },
+            adc_bits: 12,
         });
         let mut enc = Encoder::new();
         let t0 = Instant::now();

@@ -22,8 +22,9 @@
 //! ```
 //! use plethwire::listen::{Event, Session};
 //! use plethwire_dsp::wire::{Encoder, Message, Status, MAX_FRAME};
-//! let status = Status { led_drive: 30_000, dc_level: 0.5, clipped_samples: 0,
-//!     adc_overruns: 0, dropped_frames: 0, rejected_samples: 0 };
+//! let status = Status { led_drive: 30_000, dc_level: 0.5, ambient_level: 0.01,
+//!     measured: Status::MEASURED_ALL, clipped_samples: 0, adc_overruns: 0,
+//!     dropped_frames: 0, rejected_samples: 0 };
 //! let mut buf = [0u8; MAX_FRAME];
 //! let mut bytes = vec![0x55, 0x13, 0x00]; // line noise first
 //! bytes.extend(Encoder::new().encode(&Message::Status(status), &mut buf).unwrap());

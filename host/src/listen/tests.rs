@@ -64,6 +64,7 @@ pub(super) fn hello(rails: Option<(f32, f32)>) -> Message {
             rails,
             ..Options::default()
         },
+        adc_bits: 12,
     })
 }
 
@@ -86,6 +87,7 @@ pub(super) fn block(first: u64) -> Message {
     let mut b = SampleBlock {
         first_index: first,
         count: 16,
+        stride: 1,
         raw: [0.0; 16],
         filtered: [0.0; 16],
     };

@@ -104,6 +104,7 @@ fn payload(message: &Message, w: &mut Writer<'_>) -> Result<(), EncodeError> {
             w.u8(flag);
             w.f32(lo);
             w.f32(hi);
+            w.u8(h.adc_bits);
         }
         Message::Beat(b) => {
             let present = u8::from(b.onset_index.is_some())
@@ -129,6 +130,8 @@ fn payload(message: &Message, w: &mut Writer<'_>) -> Result<(), EncodeError> {
         Message::Status(s) => {
             w.u16(s.led_drive);
             w.f32(s.dc_level);
+            w.f32(s.ambient_level);
+            w.u8(s.measured);
             w.u32(s.clipped_samples);
             w.u32(s.adc_overruns);
             w.u32(s.dropped_frames);
@@ -139,8 +142,12 @@ fn payload(message: &Message, w: &mut Writer<'_>) -> Result<(), EncodeError> {
             if n == 0 || n > SAMPLES_PER_BLOCK {
                 return Err(EncodeError::BadSampleCount);
             }
+            if s.stride == 0 {
+                return Err(EncodeError::BadStride);
+            }
             w.u64(s.first_index);
             w.u8(s.count);
+            w.u8(s.stride);
             for i in 0..n {
                 w.f32(s.raw[i]);
                 w.f32(s.filtered[i]);
@@ -182,7 +189,8 @@ pub enum Refusal {
     TooShort,
     /// The CRC does not match.
     Crc,
-    /// A format version this decoder does not know.
+    /// A format version this decoder does not know (the frame's first
+    /// byte; [`super::DecodeStats`] keeps the last one seen).
     Version,
     /// A message type this decoder does not know.
     Kind,
@@ -206,9 +214,11 @@ fn decode_payload(kind: u8, r: &mut Reader<'_>) -> Option<Message> {
                 1 => Some((lo, hi)),
                 _ => return None,
             };
+            let adc_bits = r.u8()?;
             Message::Hello(Hello {
                 firmware_version,
                 sample_rate_hz,
+                adc_bits,
                 options: Options {
                     detector,
                     band_low_hz,
@@ -248,19 +258,31 @@ fn decode_payload(kind: u8, r: &mut Reader<'_>) -> Option<Message> {
             previous: state_from(r.u8()?)?,
             at: r.u64()?,
         }),
-        4 => Message::Status(Status {
-            led_drive: r.u16()?,
-            dc_level: r.f32()?,
-            clipped_samples: r.u32()?,
-            adc_overruns: r.u32()?,
-            dropped_frames: r.u32()?,
-            rejected_samples: r.u32()?,
-        }),
+        4 => {
+            let led_drive = r.u16()?;
+            let dc_level = r.f32()?;
+            let ambient_level = r.f32()?;
+            let measured = r.u8()?;
+            if measured & !Status::MEASURED_ALL != 0 {
+                return None;
+            }
+            Message::Status(Status {
+                led_drive,
+                dc_level,
+                ambient_level,
+                measured,
+                clipped_samples: r.u32()?,
+                adc_overruns: r.u32()?,
+                dropped_frames: r.u32()?,
+                rejected_samples: r.u32()?,
+            })
+        }
         5 => {
             let first_index = r.u64()?;
             let count = r.u8()?;
+            let stride = r.u8()?;
             let n = count as usize;
-            if n == 0 || n > SAMPLES_PER_BLOCK {
+            if n == 0 || n > SAMPLES_PER_BLOCK || stride == 0 {
                 return None;
             }
             let mut raw = [0.0; SAMPLES_PER_BLOCK];
@@ -272,6 +294,7 @@ fn decode_payload(kind: u8, r: &mut Reader<'_>) -> Option<Message> {
             Message::Samples(SampleBlock {
                 first_index,
                 count,
+                stride,
                 raw,
                 filtered,
             })

@@ -30,6 +30,13 @@ pub struct DecodeStats {
     pub dropped_bytes: u64,
     /// Frames missing between good frames, from their sequence numbers.
     pub lost_frames: u64,
+    /// Every byte fed, delimiters and idle line included.
+    pub bytes: u64,
+    /// Of the damaged frames, those with an intact CRC but another format
+    /// version: a board whose firmware speaks another version.
+    pub foreign_version: u64,
+    /// The format version of the last such frame.
+    pub last_foreign_version: Option<u8>,
 }
 
 /// Streaming frame decoder with a fixed buffer.
@@ -62,6 +69,9 @@ impl Decoder {
                 crc_errors: 0,
                 dropped_bytes: 0,
                 lost_frames: 0,
+                bytes: 0,
+                foreign_version: 0,
+                last_foreign_version: None,
             },
         }
     }
@@ -83,6 +93,7 @@ impl Decoder {
     /// were not one) comes out at each delimiter. Repeated delimiters are
     /// idle line, not errors.
     pub fn push(&mut self, byte: u8) -> Option<Result<Frame, FrameError>> {
+        self.stats.bytes += 1;
         if byte != 0 {
             if self.len < self.buf.len() {
                 self.buf[self.len] = byte;
@@ -117,7 +128,14 @@ impl Decoder {
                 self.stats.frames += 1;
                 Some(Ok(frame))
             }
-            Err(r) => Some(Err(self.damage(len, FrameError::Refused(r)))),
+            Err(r) => {
+                if r == Refusal::Version {
+                    // The CRC held, so the first byte is the sender's version.
+                    self.stats.foreign_version += 1;
+                    self.stats.last_foreign_version = Some(self.buf[0]);
+                }
+                Some(Err(self.damage(len, FrameError::Refused(r))))
+            }
         }
     }
 

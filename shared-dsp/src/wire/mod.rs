@@ -7,8 +7,9 @@
 //! use plethwire_dsp::wire::{Decoder, Encoder, Message, Status, MAX_FRAME};
 //! let mut enc = Encoder::new();
 //! let mut buf = [0u8; MAX_FRAME];
-//! let status = Status { led_drive: 30_000, dc_level: 0.52, clipped_samples: 0,
-//!     adc_overruns: 0, dropped_frames: 0, rejected_samples: 0 };
+//! let status = Status { led_drive: 30_000, dc_level: 0.52, ambient_level: 0.01,
+//!     measured: Status::MEASURED_ALL, clipped_samples: 0, adc_overruns: 0,
+//!     dropped_frames: 0, rejected_samples: 0 };
 //! let bytes = enc.encode(&Message::Status(status), &mut buf).unwrap().to_vec();
 //! let mut dec = Decoder::new();
 //! let frame = bytes.iter().find_map(|&b| dec.push(b)).unwrap().unwrap();
@@ -28,11 +29,12 @@ pub use decoder::{DecodeStats, Decoder, FrameError};
 use crate::pipeline::{BeatEvent, Options, StateEvent};
 
 /// Version of this format, the first byte of every frame.
-pub const FORMAT_VERSION: u8 = 1;
+pub const FORMAT_VERSION: u8 = 2;
 /// Samples carried by one [`SampleBlock`].
 pub const SAMPLES_PER_BLOCK: usize = 16;
-/// Bytes of the largest frame before COBS: header 4, payload, CRC 4.
-pub const MAX_RAW_FRAME: usize = 4 + 9 + 8 * SAMPLES_PER_BLOCK + 4;
+/// Bytes of the largest frame before COBS: header 4, payload (a full
+/// sample block), CRC 4.
+pub const MAX_RAW_FRAME: usize = 4 + 10 + 8 * SAMPLES_PER_BLOCK + 4;
 /// Bytes of the largest frame on the wire, COBS overhead and delimiter
 /// included; size transmit buffers with it.
 pub const MAX_FRAME: usize = max_encoded_len(MAX_RAW_FRAME) + 1;
@@ -48,6 +50,9 @@ pub struct Hello {
     pub sample_rate_hz: f32,
     /// The pipeline's options.
     pub options: Options,
+    /// Bits of the board's ADC; 0 when the samples come from no real ADC
+    /// (the emulated board fed a recording).
+    pub adc_bits: u8,
 }
 
 /// The board's health, sent periodically and whenever the LED drive
@@ -59,6 +64,13 @@ pub struct Status {
     pub led_drive: u16,
     /// DC level of the LED-on reading, as a fraction of ADC full scale.
     pub dc_level: f32,
+    /// The LED-off (ambient) reading's slow average, as a fraction of ADC
+    /// full scale.
+    pub ambient_level: f32,
+    /// Which of `led_drive`, `dc_level` and `ambient_level` were measured
+    /// ([`Status::MEASURED_LED_DRIVE`] and its siblings); a field whose bit
+    /// is clear is sent as 0 and means "not measured".
+    pub measured: u8,
     /// Samples at the ADC rails so far.
     pub clipped_samples: u32,
     /// Sample ticks missed or ADC reads failed so far.
@@ -69,7 +81,34 @@ pub struct Status {
     pub rejected_samples: u32,
 }
 
-/// A run of consecutive samples, raw and band-passed, for plotting.
+impl Status {
+    /// `measured` bit 0: `led_drive` is the board's.
+    pub const MEASURED_LED_DRIVE: u8 = 1 << 0;
+    /// `measured` bit 1: `dc_level` was measured.
+    pub const MEASURED_DC_LEVEL: u8 = 1 << 1;
+    /// `measured` bit 2: `ambient_level` was measured.
+    pub const MEASURED_AMBIENT_LEVEL: u8 = 1 << 2;
+    /// Every `measured` bit this version defines; others must be 0.
+    pub const MEASURED_ALL: u8 = 0b111;
+
+    /// The LED drive, if measured.
+    pub fn led_drive_measured(&self) -> Option<u16> {
+        (self.measured & Self::MEASURED_LED_DRIVE != 0).then_some(self.led_drive)
+    }
+
+    /// The DC level, if measured.
+    pub fn dc_level_measured(&self) -> Option<f32> {
+        (self.measured & Self::MEASURED_DC_LEVEL != 0).then_some(self.dc_level)
+    }
+
+    /// The ambient level, if measured.
+    pub fn ambient_level_measured(&self) -> Option<f32> {
+        (self.measured & Self::MEASURED_AMBIENT_LEVEL != 0).then_some(self.ambient_level)
+    }
+}
+
+/// A run of input samples taken every `stride`-th sample, raw and
+/// band-passed, for plotting and bring-up checks.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SampleBlock {
@@ -77,9 +116,15 @@ pub struct SampleBlock {
     pub first_index: u64,
     /// Samples used (1 to [`SAMPLES_PER_BLOCK`]).
     pub count: u8,
-    /// Raw samples, input units.
+    /// Input samples from one block sample to the next (at least 1):
+    /// sample `i` is input sample `first_index + i * stride`.
+    pub stride: u8,
+    /// The pipeline's input at each sample, exactly as pushed (on a real
+    /// board the ambient-cancelled, inverted reading in ADC counts).
     pub raw: [f32; SAMPLES_PER_BLOCK],
-    /// Band-passed samples.
+    /// The band-passed value the detector saw most recently at each
+    /// sample (it runs at the detector's rate, so it is held between
+    /// detector samples).
     pub filtered: [f32; SAMPLES_PER_BLOCK],
 }
 
@@ -127,11 +172,16 @@ pub struct Frame {
 pub enum EncodeError {
     /// A sample block's count is 0 or above [`SAMPLES_PER_BLOCK`].
     BadSampleCount,
+    /// A sample block's stride is 0.
+    BadStride,
 }
 
 impl core::fmt::Display for EncodeError {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
-        f.write_str("a sample block must hold 1 to 16 samples")
+        f.write_str(match self {
+            Self::BadSampleCount => "a sample block must hold 1 to 16 samples",
+            Self::BadStride => "a sample block's stride must be at least 1",
+        })
     }
 }
 
