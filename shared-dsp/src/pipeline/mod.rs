@@ -180,6 +180,15 @@ impl Pipeline {
         self.config.sample_rate_hz / self.conditioning.decimation() as f32
     }
 
+    /// The band-passed value the detector saw most recently (0 before its
+    /// first sample). The detector runs at [`Self::detector_rate_hz`], so
+    /// between its samples this holds the last one. Read from the ring
+    /// the pipeline keeps anyway: it adds nothing to [`Self::push`].
+    #[inline]
+    pub fn band_passed(&self) -> f32 {
+        self.traces.banded.at(0)
+    }
+
     /// Times the filters restarted after a step in the input.
     pub fn restarts(&self) -> u64 {
         self.band.restarts()

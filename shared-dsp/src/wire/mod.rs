@@ -20,11 +20,13 @@ mod cobs;
 mod codec;
 mod crc;
 mod decoder;
+mod tap;
 
 pub use cobs::{decode_in_place as cobs_decode, encode as cobs_encode, max_encoded_len};
 pub use codec::{decode_frame, encode_frame, Refusal};
 pub use crc::crc32;
 pub use decoder::{DecodeStats, Decoder, FrameError};
+pub use tap::{sample_stride, SampleTap, FULL_RATE_LIMIT_HZ};
 
 use crate::pipeline::{BeatEvent, Options, StateEvent};
 
