@@ -2,8 +2,11 @@
 //! beat pipeline, exposure kept in range, and the results queued as frames.
 //!
 //! Frames, in `plethwire_dsp::wire`'s format: `Hello` at [`Board::start`];
-//! `State` and `Beat` whenever the pipeline reports one; `Status` every
-//! [`BoardConfig::status_period_s`] and after every change of LED drive.
+//! `State` and `Beat` whenever the pipeline reports one, then `Samples`
+//! when a sample's push fills a block of 16 (every input at up to 500 Hz,
+//! every `wire::sample_stride`-th above: raw the value pushed, filtered
+//! the band-passed value); `Status` every [`BoardConfig::status_period_s`]
+//! and after every change of LED drive.
 //!
 //! A sample that could not be taken (a missed tick, a failed conversion)
 //! still takes its place in the pipeline, as a non-finite value: the
@@ -16,7 +19,7 @@ use embedded_hal::digital::OutputPin;
 use embedded_hal::pwm::SetDutyCycle;
 use plethwire_dsp::pipeline::PipelineError;
 use plethwire_dsp::pipeline::{BeatEvent, Config, Options, Pipeline, StateEvent};
-use plethwire_dsp::wire::{Encoder, Hello, Message, Status, MAX_FRAME};
+use plethwire_dsp::wire::{sample_stride, Encoder, Hello, Message, SampleTap, Status, MAX_FRAME};
 
 use crate::ambient::{AmbientCanceller, AmbientSample, SampleError, DEFAULT_SETTLE_NS};
 use crate::exposure::{DriveChange, Exposure, ExposureConfig};
@@ -26,8 +29,9 @@ use crate::PhotoSampler;
 
 /// Default seconds between periodic status frames.
 pub const STATUS_PERIOD_S: u32 = 2;
-/// Default transmit queue, bytes: nine beat frames, or 44 ms of a
-/// 115200 baud line.
+/// Default transmit queue, bytes: three full sample blocks, or 44 ms of
+/// a 115200 baud line (which drains a block, 13 ms of it, long before the
+/// next is due: 64 ms at 250 Hz, 32 ms at 500 Hz and above).
 pub const DEFAULT_QUEUE_BYTES: usize = 512;
 
 /// How a board samples and reports.
@@ -154,6 +158,7 @@ pub struct TickReport {
 pub struct Board<L, P, A, D, const Q: usize = DEFAULT_QUEUE_BYTES> {
     hw: Hardware<L, P, A, D>,
     pipeline: Pipeline,
+    tap: SampleTap,
     canceller: AmbientCanceller,
     exposure: Exposure,
     schedule: Schedule,
@@ -203,6 +208,7 @@ where
         Ok(Self {
             hw,
             pipeline,
+            tap: SampleTap::new(sample_stride(rate)),
             canceller: AmbientCanceller::new(config.settle_ns),
             exposure,
             schedule,
@@ -257,6 +263,7 @@ where
             Ok(s) => {
                 self.counters.samples += 1;
                 self.ambient = s.ambient();
+                self.exposure.observe_ambient(s.off);
                 if s.clipped(self.full_scale) {
                     self.counters.clipped += 1;
                 }
@@ -304,6 +311,9 @@ where
             self.send(&Message::Beat(b));
             report.beat = Some(b);
         }
+        if let Some(block) = self.tap.push(x, &self.pipeline) {
+            self.send(&Message::Samples(block));
+        }
     }
 
     /// Encode and queue; a full queue drops the frame, but its sequence
@@ -319,15 +329,30 @@ where
     }
 
     /// The health counters as the wire format sends them. `adc_overruns`
-    /// counts every lost sample: missed ticks and failed conversions.
+    /// counts every lost sample: missed ticks and failed conversions. The
+    /// DC and ambient levels are marked measured from the first reading
+    /// on.
     pub fn status(&self) -> Status {
         let c = &self.counters;
         let u32_of = |v: u64| u32::try_from(v).unwrap_or(u32::MAX);
+        let e = &self.exposure;
+        let ambient = e.ambient_level();
+        let measured = Status::MEASURED_LED_DRIVE
+            | if e.dc_measured() {
+                Status::MEASURED_DC_LEVEL
+            } else {
+                0
+            }
+            | if ambient.is_some() {
+                Status::MEASURED_AMBIENT_LEVEL
+            } else {
+                0
+            };
         Status {
-            led_drive: self.exposure.drive_u16(),
-            dc_level: self.exposure.dc_level(),
-            ambient_level: 0.0,
-            measured: Status::MEASURED_LED_DRIVE | Status::MEASURED_DC_LEVEL,
+            led_drive: e.drive_u16(),
+            dc_level: e.dc_level(),
+            ambient_level: ambient.unwrap_or(0.0),
+            measured,
             clipped_samples: u32_of(c.clipped),
             adc_overruns: u32_of(c.missed_ticks + c.adc_errors + c.led_errors),
             dropped_frames: self.queue.dropped(),
@@ -350,7 +375,8 @@ where
         self.counters
     }
 
-    /// The last LED-off reading: the ambient light level, ADC counts.
+    /// The last LED-off reading: the ambient light level, ADC counts (its
+    /// slow average is [`Exposure::ambient_level`]).
     pub fn ambient(&self) -> u16 {
         self.ambient
     }

@@ -97,6 +97,7 @@ pub struct Exposure {
     duty: u16,
     alpha: f32,
     dc: Option<f32>,
+    ambient: Option<f32>,
     hold: u32,
     since_change: u32,
     correcting: Option<Direction>,
@@ -126,6 +127,7 @@ impl Exposure {
             duty,
             alpha: 1.0 - libm::expf(-1.0 / samples(config.dc_tau_s)),
             dc: None,
+            ambient: None,
             hold: libm::ceilf(samples(config.hold_s)) as u32,
             since_change: 0,
             correcting: None,
@@ -151,6 +153,28 @@ impl Exposure {
     /// The DC level, fraction of full scale (0 before the first reading).
     pub fn dc_level(&self) -> f32 {
         self.dc.unwrap_or(0.0)
+    }
+
+    /// Has a DC level been measured (a first LED-on reading taken)?
+    pub fn dc_measured(&self) -> bool {
+        self.dc.is_some()
+    }
+
+    /// The ambient level: the LED-off reading's average with the DC
+    /// level's time constant, fraction of full scale; `None` before the
+    /// first reading.
+    pub fn ambient_level(&self) -> Option<f32> {
+        self.ambient
+    }
+
+    /// Take one LED-off (ambient) reading into the ambient average. It
+    /// does not steer the drive.
+    pub fn observe_ambient(&mut self, off: u16) {
+        let x = f32::from(off) / self.full_scale;
+        self.ambient = Some(match self.ambient {
+            Some(a) => a + self.alpha * (x - a),
+            None => x,
+        });
     }
 
     /// Take one LED-on reading; returns the change of drive it calls for,
@@ -379,5 +403,25 @@ mod tests {
         }
         let expected = 0.5 - 0.4 * (1.0 - (-1.0f32).exp());
         assert!((e.dc_level() - expected).abs() < 2e-3, "{}", e.dc_level());
+    }
+
+    #[test]
+    fn ambient_level_is_the_same_slow_average_of_the_led_off_reading() {
+        let mut e = controller(0.25);
+        assert_eq!(e.ambient_level(), None);
+        e.observe_ambient(reading(0.05));
+        assert!((e.ambient_level().unwrap() - 0.05).abs() < 1e-3);
+        // One time constant after a step to 0.25: 1 − 1/e of the way.
+        for _ in 0..25 {
+            e.observe_ambient(reading(0.25));
+        }
+        let expected = 0.05 + 0.2 * (1.0 - (-1.0f32).exp());
+        let got = e.ambient_level().unwrap();
+        assert!((got - expected).abs() < 2e-3, "{got}");
+        // It never steers: the drive and the DC level are untouched.
+        assert_eq!(
+            (e.duty(), e.dc_measured()),
+            (controller(0.25).duty(), false)
+        );
     }
 }

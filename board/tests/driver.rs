@@ -8,7 +8,7 @@ use embedded_hal_mock::eh1::delay::{CheckedDelay, NoopDelay, Transaction as Dela
 use embedded_hal_mock::eh1::digital::{Mock as PinMock, State, Transaction as PinTx};
 use embedded_hal_mock::eh1::pwm::{Mock as PwmMock, Transaction as PwmTx};
 use plethwire_board::{Board, BoardConfig, Hardware, PhotoSampler};
-use plethwire_dsp::wire::{Message, Status};
+use plethwire_dsp::wire::{Decoder, Message, Status};
 
 const TICK_HZ: u64 = 1_000_000;
 
@@ -203,7 +203,8 @@ fn a_full_queue_drops_frames_and_counts_them() {
     };
     let mut config = BoardConfig::new(250, TICK_HZ);
     config.status_period_s = 1;
-    // Hello (39 bytes) and a status (32) do not both fit in 64.
+    // Hello (40 bytes) and a status (37) do not both fit in 64, and a
+    // sample block (148) never does.
     let mut board: Board<_, _, _, _, 64> = Board::new(config, hw).unwrap();
     board.start(0);
     assert_eq!(board.queue().dropped(), 1);
@@ -222,11 +223,28 @@ fn a_full_queue_drops_frames_and_counts_them() {
     let k = board.queue_mut().pop_into(&mut buf);
     bytes.extend_from_slice(&buf[..k]);
     run(&mut board, 250, &mut bytes);
-    let (messages, dec) = decode(&bytes);
+    let (messages, _) = decode(&bytes);
     assert!(matches!(messages[0], Message::Hello(_)));
-    let last = *statuses(&messages).last().unwrap();
-    assert_eq!(last.dropped_frames, board.queue().dropped());
-    assert_eq!(dec.stats().lost_frames, u64::from(dropped));
+    // Every frame dropped before the last status is a gap in the sequence
+    // numbers before it, and that status carries their count.
+    let mut dec = Decoder::new();
+    let frames: Vec<_> = bytes.iter().filter_map(|&b| dec.push(b)?.ok()).collect();
+    let (at, last) = frames
+        .iter()
+        .enumerate()
+        .filter_map(|(i, f)| match f.message {
+            Message::Status(s) => Some((i, (f.seq, s))),
+            _ => None,
+        })
+        .last()
+        .unwrap();
+    let (seq, status) = last;
+    assert_eq!(u32::from(seq) - at as u32, status.dropped_frames);
+    assert!(
+        status.dropped_frames > dropped,
+        "the blocks of the last second"
+    );
+    assert_eq!(board.status().dropped_frames, board.queue().dropped());
 }
 
 #[test]

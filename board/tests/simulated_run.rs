@@ -10,8 +10,8 @@ use std::rc::Rc;
 use common::{decode, Adc, Drive, Finger, Led};
 use embedded_hal_mock::eh1::delay::NoopDelay;
 use plethwire_board::{Board, BoardConfig, DriveChange, Hardware};
-use plethwire_dsp::pipeline::{BeatEvent, SignalState};
-use plethwire_dsp::wire::Message;
+use plethwire_dsp::pipeline::{BeatEvent, Config, Pipeline, SignalState};
+use plethwire_dsp::wire::{Message, Status};
 
 const RATE: u32 = 250;
 const TICK_HZ: u64 = 1_000_000;
@@ -37,6 +37,10 @@ struct Run {
     bytes: Vec<u8>,
     beats: Vec<BeatEvent>,
     changes: Vec<DriveChange>,
+    /// The value pushed at each tick: `−(on − off)`, ADC counts.
+    pushed: Vec<f32>,
+    /// The most bytes the transmit queue held after a tick.
+    most_queued: usize,
 }
 
 /// Run for `seconds`, sending at most `line_bytes_per_tick` (a 115200
@@ -46,6 +50,8 @@ fn run(board: &mut BenchBoard, finger: &Rc<RefCell<Finger>>, seconds: u32) -> Ru
         bytes: Vec::new(),
         beats: Vec::new(),
         changes: Vec::new(),
+        pushed: Vec::new(),
+        most_queued: 0,
     };
     let mut line = [0u8; 46];
     board.start(0);
@@ -54,6 +60,9 @@ fn run(board: &mut BenchBoard, finger: &Rc<RefCell<Finger>>, seconds: u32) -> Ru
         let report = board.tick(board.deadline());
         r.beats.extend(report.beat);
         r.changes.extend(report.drive);
+        let s = report.sample.expect("the finger never fails a reading");
+        r.pushed.push(-(s.value() as f32));
+        r.most_queued = r.most_queued.max(board.queue().len());
         let n = board.queue_mut().pop_into(&mut line);
         r.bytes.extend_from_slice(&line[..n]);
     }
@@ -153,4 +162,74 @@ fn sent_after(messages: &[Message], seconds: f64) -> Vec<BeatEvent> {
         .into_iter()
         .filter(|b| b.peak_index as f64 / 250.0 > seconds)
         .collect()
+}
+
+#[test]
+fn at_250_hz_a_115200_baud_line_carries_every_sample_and_drops_nothing() {
+    let finger = Finger::new(5000.0);
+    let mut board = board(&finger, 0.25);
+    let seconds = 60;
+    let r = run(&mut board, &finger, seconds);
+    let (messages, dec) = decode(&r.bytes);
+    let stats = dec.stats();
+    assert_eq!((stats.damaged, stats.lost_frames), (0, 0));
+    assert_eq!(board.queue().dropped(), 0);
+    assert_eq!(board.status().dropped_frames, 0);
+    // The line: 46 bytes a tick is 11 520 B/s, 115200 baud at 8N1 (ten
+    // bits a byte, common practice). Every byte counted by the decoder.
+    let per_s = stats.bytes as f64 / f64::from(seconds);
+    assert_eq!(stats.bytes, r.bytes.len() as u64);
+    let share = per_s / 11_520.0;
+    println!(
+        "{per_s:.0} B/s on the line, {:.1} % of 115200 baud",
+        share * 100.0
+    );
+    assert!(share < 0.70, "{per_s} B/s: less than 30 % headroom");
+    // docs/wire-format.md: about 2.4 kB/s at 250 Hz, blocks and beats.
+    assert!((2300.0..2600.0).contains(&per_s), "{per_s} B/s");
+    assert!(
+        r.most_queued < 512,
+        "the queue filled up: {}",
+        r.most_queued
+    );
+    // Every input sample is in the blocks, in order, exactly as pushed,
+    // with the band-passed value of a pipeline fed the same values.
+    let mut pipeline = Pipeline::new(Config {
+        sample_rate_hz: 250.0,
+        options: board.pipeline().config().options,
+    })
+    .unwrap();
+    let mut next = 0u64;
+    for m in &messages {
+        let Message::Samples(b) = m else { continue };
+        assert_eq!((b.first_index, b.stride, b.count), (next, 1, 16));
+        for i in 0..16 {
+            let x = r.pushed[next as usize + i];
+            pipeline.push(x);
+            assert_eq!(b.raw[i].to_bits(), x.to_bits());
+            assert_eq!(b.filtered[i].to_bits(), pipeline.band_passed().to_bits());
+        }
+        next += 16;
+    }
+    // All but the block the last 4 samples of 15 000 leave open.
+    assert_eq!(next, 250 * 60 / 16 * 16);
+    // Status: drive, DC and ambient measured; the room's 300 counts of
+    // light (common::Finger) of 4095.
+    let last = messages
+        .iter()
+        .rev()
+        .find_map(|m| match m {
+            Message::Status(s) => Some(*s),
+            _ => None,
+        })
+        .unwrap();
+    assert_eq!(last.measured, Status::MEASURED_ALL);
+    assert!(
+        (last.ambient_level - 300.0 / 4095.0).abs() < 0.01,
+        "{last:?}"
+    );
+    match messages[0] {
+        Message::Hello(h) => assert_eq!(h.adc_bits, 12),
+        ref m => panic!("first frame {m:?}"),
+    }
 }

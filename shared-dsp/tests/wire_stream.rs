@@ -252,14 +252,20 @@ fn frames_of_another_version_are_counted_as_foreign_and_damaged() {
     for &b in &frame_of_version(1, 4, 22, 0x40) {
         dec.push(b);
     }
-    assert_eq!((dec.stats().foreign_version, dec.stats().crc_errors), (3, 1));
+    assert_eq!(
+        (dec.stats().foreign_version, dec.stats().crc_errors),
+        (3, 1)
+    );
 }
 
 #[test]
 fn every_byte_fed_is_counted_idle_line_included() {
     let mut dec = Decoder::new();
     let mut buf = [0u8; MAX_FRAME];
-    let frame = Encoder::new().encode(&message(4, 3), &mut buf).unwrap().to_vec();
+    let frame = Encoder::new()
+        .encode(&message(4, 3), &mut buf)
+        .unwrap()
+        .to_vec();
     for &b in [0u8, 0, 0].iter().chain(&frame).chain(&[0x55, 0x55]) {
         dec.push(b);
     }
@@ -304,7 +310,10 @@ fn the_largest_frame_is_a_full_sample_block() {
         filtered: [f32::from_bits(0x0101_0101); SAMPLES_PER_BLOCK],
     };
     let mut buf = [0u8; MAX_FRAME];
-    let n = Encoder::new().encode(&Message::Samples(block), &mut buf).unwrap().len();
+    let n = Encoder::new()
+        .encode(&Message::Samples(block), &mut buf)
+        .unwrap()
+        .len();
     assert!(n <= MAX_FRAME);
     // 4 header + 10 + 16 × 8 + 4 CRC.
     assert_eq!(MAX_RAW_FRAME, 146);

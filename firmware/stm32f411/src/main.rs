@@ -53,8 +53,9 @@ use photo::Photo;
 /// Samples per second.
 const SAMPLE_RATE_HZ: u32 = 250;
 /// USART1 baud rate: 100 MHz / 115200 divides to 54.25 exactly, and every
-/// USB serial adapter takes it. Beats, states and status need well under
-/// 1 kB/s of its 11.5 kB/s.
+/// USB serial adapter takes it. Sample blocks, beats, states and status
+/// need about 2.4 kB/s of its 11.5 kB/s at 250 Hz (docs/wire-format.md,
+/// "Bandwidth").
 const BAUD: u32 = 115_200;
 /// LED drive PWM frequency: far above the front end's band, and 5000 steps
 /// of duty from TIM3's 100 MHz clock.
