@@ -295,8 +295,12 @@ fn found_lines(summary: &Summary, truth: &MatchCounts) -> Vec<String> {
 /// The line that says how the emulated board did.
 fn board_line(board: &BoardOutcome) -> String {
     match board {
-        BoardOutcome::Agreed { beats, states } => format!(
-            "  emulated board (QEMU, Cortex-M4F): the same {beats} beats and {states} state changes, bit for bit"
+        BoardOutcome::Agreed {
+            beats,
+            states,
+            blocks,
+        } => format!(
+            "  emulated board (QEMU, Cortex-M4F): the same {beats} beats, {states} state changes and {blocks} sample blocks, bit for bit"
         ),
         BoardOutcome::Disagreed(d) => format!("  emulated board DISAGREES with the host: {d}"),
         BoardOutcome::NotRun(why) => format!("  emulated board not run: {why}"),

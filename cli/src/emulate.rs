@@ -14,11 +14,12 @@ use plethwire_dsp::wire::{Frame, Message};
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
 use plethwire::emulate::{
-    compare, find_qemu, Agreement, Disagreement, Emulation, Firmware, FirmwareSearch, Link,
-    PerfReport, Session,
+    compare, find_qemu, Agreement, BoardEvents, Disagreement, Emulation, Firmware, FirmwareSearch,
+    Link, PerfReport, Session,
 };
 use plethwire::replay::{
-    load, replay, write_recording_beats, Recording, Replay, Summary, DEFAULT_ANNOTATOR,
+    load, replay, sample_blocks, write_recording_beats, Recording, Replay, Summary,
+    DEFAULT_ANNOTATOR,
 };
 use plethwire_records::annotation_path;
 
@@ -178,16 +179,24 @@ impl EmulateArgs {
             return Err(Failure::output(e));
         }
         session.verify().map_err(Failure::refused)?;
-        let host = replay(samples, config).map_err(|e| {
+        let cannot = |e| {
             Failure::refused(format!(
                 "{}: cannot run the pipeline: {e}",
                 self.record.display()
             ))
-        })?;
+        };
+        let host = replay(samples, config).map_err(cannot)?;
+        let host_blocks = sample_blocks(samples, config).map_err(cannot)?;
         let board = session.to_replay();
         let ann =
             write_recording_beats(&dir, &rec, &self.annotator, &board).map_err(Failure::refused)?;
-        let agreement = compare(&board.beats, &board.states, &host);
+        let blocks = session.blocks();
+        let events = BoardEvents {
+            beats: &board.beats,
+            states: &board.states,
+            blocks: &blocks,
+        };
+        let agreement = compare(events, &host, &host_blocks);
         let text = if self.json {
             json_report(
                 &rec.name,
@@ -276,10 +285,11 @@ fn summary(
     );
     if let Some(a) = agreement {
         t += &format!(
-            "  host replay identical, bit for bit: {} beats, {} state change{}\n",
+            "  host replay identical, bit for bit: {} beats, {} state change{}, {} sample blocks\n",
             a.beats,
             a.states,
-            if a.states == 1 { "" } else { "s" }
+            if a.states == 1 { "" } else { "s" },
+            a.blocks
         );
     }
     if let Some(p) = &session.perf {

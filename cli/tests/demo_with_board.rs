@@ -26,4 +26,5 @@ fn the_demo_ride_agrees_on_the_emulated_board() {
     let agreed = &v["board"]["agreed"];
     assert!(agreed.is_object(), "{}", v["board"]);
     assert_eq!(agreed["beats"], v["summary"]["beats"]);
+    assert!(agreed["blocks"].as_u64().unwrap_or(0) > 0, "{agreed}");
 }

@@ -37,7 +37,7 @@ fn whole_record_matches(relative: &str, at_least_beats: usize) {
     eprintln!(
         "{relative}: {} samples, {beats} beats and {} state changes identical, {} frames",
         samples.len(),
-        host.states.len(),
+        host.replay.states.len(),
         session.frames.len()
     );
 }

@@ -5,9 +5,10 @@
 use std::path::PathBuf;
 use std::time::Duration;
 
-use plethwire::emulate::{Emulation, Link, Session};
-use plethwire::replay::{load, replay, Recording, Replay, Source};
+use plethwire::emulate::{block_difference, Emulation, Link, Session};
+use plethwire::replay::{load, replay, sample_blocks, Recording, Replay, Source};
 use plethwire_dsp::pipeline::{BeatEvent, Config};
+use plethwire_dsp::wire::SampleBlock;
 
 use crate::{
     build_emulated_firmware, firmware_target_installed, need, needs, qemu, shared_data_dir,
@@ -53,9 +54,19 @@ pub fn default_config(rec: &Recording) -> Config {
     Config::new(rec.signal.fs as f32)
 }
 
+/// What the host computes from the samples: the replay's events and the
+/// sample blocks the board should send.
+#[derive(Debug, Clone)]
+pub struct Host {
+    /// Beats, state changes, counters.
+    pub replay: Replay,
+    /// `plethwire::replay::sample_blocks`.
+    pub blocks: Vec<SampleBlock>,
+}
+
 /// Run `samples` on the board and on the host; panics on any failure of the
 /// run or of the stream. Returns both.
-pub fn run_both(e: &Emulation, samples: &[f64], config: Config) -> (Session, Replay) {
+pub fn run_both(e: &Emulation, samples: &[f64], config: Config) -> (Session, Host) {
     let mut seen = 0usize;
     let session = e
         .run(samples, config, &mut |_| seen += 1)
@@ -65,7 +76,10 @@ pub fn run_both(e: &Emulation, samples: &[f64], config: Config) -> (Session, Rep
         session.frames.len(),
         "every frame reaches the callback"
     );
-    let host = replay(samples, config).expect("host replay");
+    let host = Host {
+        replay: replay(samples, config).expect("host replay"),
+        blocks: sample_blocks(samples, config).expect("host sample blocks"),
+    };
     (session, host)
 }
 
@@ -97,9 +111,11 @@ fn beat_bits(b: &BeatEvent) -> BeatBits {
     )
 }
 
-/// The stream is whole, and the board's beats and state changes equal the
-/// host's field by field, bit for bit. Returns the number of beats.
-pub fn assert_identical(label: &str, session: &Session, host: &Replay) -> usize {
+/// The stream is whole, and the board's beats, state changes and sample
+/// blocks equal the host's field by field, bit for bit (every sample of
+/// every block, raw and band-passed). Returns the number of beats.
+pub fn assert_identical(label: &str, session: &Session, both: &Host) -> usize {
+    let host = &both.replay;
     if let Err(e) = session.verify() {
         panic!("{label}: {e}");
     }
@@ -133,6 +149,27 @@ pub fn assert_identical(label: &str, session: &Session, host: &Replay) -> usize 
         ),
         (host.rejected, host.clipped),
         "{label}: the board's counters"
+    );
+    let blocks = session.blocks();
+    for (i, (b, h)) in blocks.iter().zip(&both.blocks).enumerate() {
+        if let Some((field, board, host)) = block_difference(b, h) {
+            panic!(
+                "{label}: sample block {i} (from input sample {}) differs in {field}: \
+                 board {board}, host {host}",
+                h.first_index
+            );
+        }
+    }
+    assert_eq!(blocks.len(), both.blocks.len(), "{label}: sample blocks");
+    // Guards against two empty lists: every sample fed is in a block.
+    let covered: u64 = blocks
+        .iter()
+        .map(|b| u64::from(b.count) * u64::from(b.stride))
+        .sum();
+    assert!(
+        covered >= session.samples_fed && covered < session.samples_fed + 16 * 2,
+        "{label}: blocks cover {covered} of {} samples",
+        session.samples_fed
     );
     beats.len()
 }

@@ -9,8 +9,10 @@
 pub mod live;
 pub mod scenario;
 
-use plethwire::emulate::{compare, find_qemu, Emulation, Firmware, FirmwareError, Link};
-use plethwire::replay::{Replay, Summary};
+use plethwire::emulate::{
+    compare, find_qemu, BoardEvents, Emulation, Firmware, FirmwareError, Link,
+};
+use plethwire::replay::{sample_blocks, Replay, Summary};
 use plethwire::report::{self, Reference, ReportInput};
 use plethwire::score::{match_beats, MatchCounts, MATCH_WINDOW_S};
 use plethwire::vocabulary::state_change_words;
@@ -35,6 +37,8 @@ pub enum BoardOutcome {
         beats: usize,
         /// State changes compared.
         states: usize,
+        /// Sample blocks compared.
+        blocks: usize,
     },
     /// It ran and disagreed; the first difference.
     Disagreed(String),
@@ -165,14 +169,27 @@ pub fn run_board(
         count_instructions: false,
         timeout: Some(Duration::from_secs(120)),
     };
+    let host_blocks = match sample_blocks(samples, config) {
+        Ok(b) => b,
+        Err(e) => return BoardOutcome::NotRun(format!("the pipeline refuses the ride: {e}")),
+    };
     match emu.run(samples, config, &mut |_| {}) {
-        Ok(session) => match compare(&session.beats(), &session.states(), host) {
-            Ok(_) => BoardOutcome::Agreed {
-                beats: host.beats.len(),
-                states: host.states.len(),
-            },
-            Err(d) => BoardOutcome::Disagreed(d.to_string()),
-        },
+        Ok(session) => {
+            let (beats, states, blocks) = (session.beats(), session.states(), session.blocks());
+            let board = BoardEvents {
+                beats: &beats,
+                states: &states,
+                blocks: &blocks,
+            };
+            match compare(board, host, &host_blocks) {
+                Ok(a) => BoardOutcome::Agreed {
+                    beats: a.beats,
+                    states: a.states,
+                    blocks: a.blocks,
+                },
+                Err(d) => BoardOutcome::Disagreed(d.to_string()),
+            }
+        }
         Err(e) => BoardOutcome::NotRun(format!("the emulated board could not run: {e}")),
     }
 }

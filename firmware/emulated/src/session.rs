@@ -4,15 +4,16 @@
 //! `Pipeline` built from the feed's `Config`, `push` once per sample in
 //! order, `finish` at the end, beats closed by `finish` reported only when
 //! their peak lies within the recording. Frames: a hello first, then per
-//! sample its state change and then its beat, then the beats `finish`
-//! closed, then one status.
+//! sample its state change, its beat, and the sample block it fills
+//! (`wire::SampleTap` at `wire::sample_stride`), then the last block,
+//! partly filled, then the beats `finish` closed, then one status.
 
 use core::fmt;
 
 use plethwire_dsp::feed::{FeedError, FeedHeader, FEED_HEADER_LEN};
 use plethwire_dsp::pipeline::PipelineError;
 use plethwire_dsp::pipeline::{Output, Pipeline};
-use plethwire_dsp::wire::{Encoder, Hello, Message, Status, MAX_FRAME};
+use plethwire_dsp::wire::{sample_stride, Encoder, Hello, Message, SampleTap, Status, MAX_FRAME};
 
 use crate::semihost::HostError;
 
@@ -122,7 +123,8 @@ struct Framer<'a, S: FrameSink> {
 impl<S: FrameSink> Framer<'_, S> {
     fn send(&mut self, message: &Message) -> Result<(), RunError> {
         let mut buf = [0u8; MAX_FRAME];
-        // Only sample blocks can fail to encode, and none are sent.
+        // Only sample blocks can fail to encode, and the tap fills them
+        // with 1 to 16 samples at a stride of at least 1.
         if let Ok(frame) = self.encoder.encode(message, &mut buf) {
             self.sink.send(frame)?;
         }
@@ -151,16 +153,26 @@ pub fn run<F: FeedSource, S: FrameSink, P: Push>(
         options: header.config.options,
         adc_bits: 0,
     }))?;
+    let mut tap = SampleTap::new(sample_stride(header.config.sample_rate_hz));
     let mut bytes = [0u8; 4];
     for _ in 0..header.samples {
         source.read_exact(&mut bytes)?;
-        let o = pusher.push(&mut pipeline, f32::from_le_bytes(bytes));
+        let x = f32::from_le_bytes(bytes);
+        let o = pusher.push(&mut pipeline, x);
         if let Some(s) = o.state {
             out.send(&Message::State(s))?;
         }
         if let Some(b) = o.beat {
             out.send(&Message::Beat(b))?;
         }
+        if let Some(block) = tap.push(x, &pipeline) {
+            out.send(&Message::Samples(block))?;
+        }
+    }
+    // Before `finish`: the values it feeds to close the beats are not
+    // samples of the recording.
+    if let Some(block) = tap.flush() {
+        out.send(&Message::Samples(block))?;
     }
     let mut failed = None;
     pipeline.finish(|b| {

@@ -1,6 +1,7 @@
-//! The board's events against the host's, bit for bit.
+//! The board's events and sample blocks against the host's, bit for bit.
 
 use plethwire_dsp::pipeline::{BeatEvent, StateEvent};
+use plethwire_dsp::wire::SampleBlock;
 
 use crate::replay::Replay;
 
@@ -45,6 +46,28 @@ pub enum Disagreement {
         /// State changes from the host.
         host: usize,
     },
+    /// A sample block differs in a field or a sample.
+    #[error("sample block {index} (from input sample {first_index}) differs in {field}: board {board}, host {host}")]
+    Block {
+        /// Its place in both lists.
+        index: usize,
+        /// The host's block's first input sample.
+        first_index: u64,
+        /// The first field that differs (`raw[3]`: its fourth raw sample).
+        field: String,
+        /// The board's value (floats with their bit pattern).
+        board: String,
+        /// The host's value.
+        host: String,
+    },
+    /// The lists of sample blocks have different lengths.
+    #[error("the board sent {board} sample blocks, the host replay made {host}")]
+    BlockCount {
+        /// Blocks from the board.
+        board: usize,
+        /// Blocks from the host.
+        host: usize,
+    },
 }
 
 /// How far two event lists agree.
@@ -54,6 +77,19 @@ pub struct Agreement {
     pub beats: usize,
     /// State changes compared.
     pub states: usize,
+    /// Sample blocks compared.
+    pub blocks: usize,
+}
+
+/// What the board sent, to hold against the host replay.
+#[derive(Debug, Clone, Copy)]
+pub struct BoardEvents<'a> {
+    /// Beats, in the order sent.
+    pub beats: &'a [BeatEvent],
+    /// State changes, in the order sent.
+    pub states: &'a [StateEvent],
+    /// Sample blocks, in the order sent.
+    pub blocks: &'a [SampleBlock],
 }
 
 /// `Some(bits)` of an optional float, so `None` and every value (also
@@ -82,13 +118,40 @@ pub fn beat_difference(a: &BeatEvent, b: &BeatEvent) -> Option<&'static str> {
     checks.iter().find(|(_, same)| !same).map(|(name, _)| *name)
 }
 
-/// Do the board's beats and states equal the host replay's, bit for bit?
-/// The error names the first difference in one line.
+/// The first field (or sample) in which blocks `a` (the board's) and `b`
+/// differ, with both values; floats are compared as bit patterns.
+pub fn block_difference(a: &SampleBlock, b: &SampleBlock) -> Option<(String, String, String)> {
+    let head =
+        |name: &str, x: u64, y: u64| (x != y).then(|| (name.into(), x.to_string(), y.to_string()));
+    let found = head("first_index", a.first_index, b.first_index)
+        .or_else(|| head("count", a.count.into(), b.count.into()))
+        .or_else(|| head("stride", a.stride.into(), b.stride.into()));
+    if found.is_some() {
+        return found;
+    }
+    let shown = |v: f32| format!("{v:?} (0x{:08x})", v.to_bits());
+    let n = usize::from(a.count).min(a.raw.len());
+    (0..n).find_map(|i| {
+        [
+            ("raw", a.raw[i], b.raw[i]),
+            ("filtered", a.filtered[i], b.filtered[i]),
+        ]
+        .into_iter()
+        .find(|(_, x, y)| x.to_bits() != y.to_bits())
+        .map(|(name, x, y)| (format!("{name}[{i}]"), shown(x), shown(y)))
+    })
+}
+
+/// Do the board's beats, states and sample blocks equal the host
+/// replay's (`host` and `host_blocks`, from
+/// [`crate::replay::sample_blocks`]), bit for bit? The error names the
+/// first difference in one line.
 pub fn compare(
-    board_beats: &[BeatEvent],
-    board_states: &[StateEvent],
+    board: BoardEvents<'_>,
     host: &Replay,
+    host_blocks: &[SampleBlock],
 ) -> Result<Agreement, Disagreement> {
+    let (board_beats, board_states) = (board.beats, board.states);
     for (index, (b, h)) in board_beats.iter().zip(&host.beats).enumerate() {
         if let Some(field) = beat_difference(b, h) {
             return Err(Disagreement::Beat {
@@ -120,10 +183,33 @@ pub fn compare(
             host: host.states.len(),
         });
     }
+    compare_blocks(board.blocks, host_blocks)?;
     Ok(Agreement {
         beats: board_beats.len(),
         states: board_states.len(),
+        blocks: board.blocks.len(),
     })
+}
+
+fn compare_blocks(board: &[SampleBlock], host: &[SampleBlock]) -> Result<(), Disagreement> {
+    for (index, (b, h)) in board.iter().zip(host).enumerate() {
+        if let Some((field, board, host)) = block_difference(b, h) {
+            return Err(Disagreement::Block {
+                index,
+                first_index: h.first_index,
+                field,
+                board,
+                host,
+            });
+        }
+    }
+    if board.len() != host.len() {
+        return Err(Disagreement::BlockCount {
+            board: board.len(),
+            host: host.len(),
+        });
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -172,6 +258,18 @@ mod tests {
         assert_eq!(beat_difference(&a, &a), None);
     }
 
+    fn events<'a>(
+        beats: &'a [BeatEvent],
+        states: &'a [StateEvent],
+        blocks: &'a [SampleBlock],
+    ) -> BoardEvents<'a> {
+        BoardEvents {
+            beats,
+            states,
+            blocks,
+        }
+    }
+
     #[test]
     fn lists_must_agree_in_length_and_order() {
         let s = StateEvent {
@@ -180,20 +278,69 @@ mod tests {
             at: 30,
         };
         let host = replay(vec![beat(), beat()], vec![s]);
+        let two = [beat(), beat()];
         assert_eq!(
-            compare(&[beat(), beat()], &[s], &host),
+            compare(events(&two, &[s], &[]), &host, &[]),
             Ok(Agreement {
                 beats: 2,
-                states: 1
+                states: 1,
+                blocks: 0
             })
         );
-        assert!(compare(&[beat()], &[s], &host)
+        assert!(compare(events(&[beat()], &[s], &[]), &host, &[])
             .unwrap_err()
             .to_string()
             .contains("the board sent 1 beats, the host replay found 2"));
-        assert!(compare(&[beat(), beat()], &[], &host).is_err());
+        assert!(compare(events(&two, &[], &[]), &host, &[]).is_err());
         let mut late = s;
         late.at = 31;
-        assert!(compare(&[beat(), beat()], &[late], &host).is_err());
+        assert!(compare(events(&two, &[late], &[]), &host, &[]).is_err());
+    }
+
+    fn block(first_index: u64) -> SampleBlock {
+        let mut b = SampleBlock {
+            first_index,
+            count: 16,
+            stride: 1,
+            raw: [0.0; 16],
+            filtered: [0.0; 16],
+        };
+        for i in 0..16 {
+            b.raw[i] = (first_index + i as u64) as f32;
+            b.filtered[i] = -0.5 * i as f32;
+        }
+        b
+    }
+
+    #[test]
+    fn every_sample_of_every_block_is_compared_bit_for_bit() {
+        let host = replay(vec![], vec![]);
+        let blocks = [block(0), block(16)];
+        let agreed = compare(events(&[], &[], &blocks), &host, &blocks).unwrap();
+        assert_eq!(agreed.blocks, 2);
+        let mut other = blocks;
+        other[1].filtered[7] = f32::from_bits(other[1].filtered[7].to_bits() + 1);
+        let e = compare(events(&[], &[], &other), &host, &blocks).unwrap_err();
+        assert!(
+            e.to_string()
+                .starts_with("sample block 1 (from input sample 16) differs in filtered[7]"),
+            "{e}"
+        );
+        let mut zero = blocks;
+        // −0.5 × 0 is −0.0 there; +0.0 is another bit pattern.
+        zero[0].filtered[0] = 0.0;
+        assert!(compare(events(&[], &[], &zero), &host, &blocks).is_err());
+        let mut strided = blocks;
+        strided[0].stride = 2;
+        let e = compare(events(&[], &[], &strided), &host, &blocks).unwrap_err();
+        assert!(
+            e.to_string().contains("differs in stride: board 2, host 1"),
+            "{e}"
+        );
+        let e = compare(events(&[], &[], &blocks[..1]), &host, &blocks).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "the board sent 1 sample blocks, the host replay made 2"
+        );
     }
 }

@@ -29,7 +29,9 @@ pub use board::{
     runner_args, BuildError, BUILD_HINT, FIRMWARE_ELF, FIRMWARE_PROGRAM, FIRMWARE_TARGET,
     ICOUNT_ARGS, MACHINE_ARGS, SEMIHOSTING,
 };
-pub use compare::{beat_difference, compare, Agreement, Disagreement};
+pub use compare::{
+    beat_difference, block_difference, compare, Agreement, BoardEvents, Disagreement,
+};
 pub use elf::{check_elf, ElfProblem, EMULATED_FLASH};
 pub use firmware::{Firmware, FirmwareError, FirmwareSearch, FIRMWARE_VAR, SOURCE_VAR};
 pub use perf::{parse as parse_perf, PerfError, PerfReport};

@@ -2,7 +2,9 @@
 //! the checks that the stream is whole.
 
 use plethwire_dsp::pipeline::{BeatEvent, StateEvent};
-use plethwire_dsp::wire::{DecodeStats, Decoder, Frame, FrameError, Hello, Message, Status};
+use plethwire_dsp::wire::{
+    DecodeStats, Decoder, Frame, FrameError, Hello, Message, SampleBlock, Status,
+};
 
 use super::perf::PerfReport;
 use crate::replay::Replay;
@@ -30,7 +32,8 @@ pub enum StreamError {
         /// The number it carries.
         seq: u16,
     },
-    /// A frame other than a beat or a state sits inside the session.
+    /// A frame other than a beat, a state or a sample block sits inside
+    /// the session.
     #[error("frame {frame} is a {kind:?} inside the session")]
     Misplaced {
         /// The frame's place.
@@ -127,6 +130,17 @@ impl Session {
             .collect()
     }
 
+    /// Every sample block, in the order sent.
+    pub fn blocks(&self) -> Vec<SampleBlock> {
+        self.frames
+            .iter()
+            .filter_map(|f| match f.message {
+                Message::Samples(b) => Some(b),
+                _ => None,
+            })
+            .collect()
+    }
+
     /// Every state change, in the order sent.
     pub fn states(&self) -> Vec<StateEvent> {
         self.frames
@@ -140,8 +154,8 @@ impl Session {
 
     /// Is the stream whole? Nothing damaged or lost, sequence numbers
     /// counting from 0 without a gap, a hello first, a status last, and
-    /// only beats and states between them. The error names the first
-    /// problem.
+    /// only beats, states and sample blocks between them. The error names
+    /// the first problem.
     pub fn verify(&self) -> Result<(), StreamError> {
         let s = &self.stats;
         if s.damaged > 0 || s.lost_frames > 0 || !self.damaged.is_empty() {
@@ -161,7 +175,11 @@ impl Session {
                 });
             }
             let inner = i > 0 && i + 1 < self.frames.len();
-            if inner && !matches!(f.message, Message::Beat(_) | Message::State(_)) {
+            let inside = matches!(
+                f.message,
+                Message::Beat(_) | Message::State(_) | Message::Samples(_)
+            );
+            if inner && !inside {
                 return Err(StreamError::Misplaced {
                     frame: i,
                     kind: f.message.kind(),

@@ -2,6 +2,7 @@
 //! writing what it found.
 
 mod beats;
+mod blocks;
 mod load;
 mod summary;
 #[cfg(test)]
@@ -10,6 +11,7 @@ mod tests;
 pub use beats::{
     beat_rows, beats_csv, write_beat_annotations, write_recording_beats, BeatRow, BEATS_CSV_HEADER,
 };
+pub use blocks::sample_blocks;
 pub use load::{load, InputInfo, Polarity, Recording, ReplayError, Source};
 pub use summary::{HrvSummary, RateSummary, Summary};
 
