@@ -23,6 +23,8 @@ pub struct HelloFields {
     pub hr_window_s: f32,
     /// ADC rails `[low, high]` in input units, when the board knows them.
     pub rails: Option<[f32; 2]>,
+    /// Bits of the board's ADC (0: no real ADC, e.g. the emulated board).
+    pub adc_bits: u8,
 }
 
 impl From<&Hello> for HelloFields {
@@ -36,6 +38,7 @@ impl From<&Hello> for HelloFields {
             band_high_hz: h.options.band_high_hz,
             hr_window_s: h.options.hr_window_s,
             rails: h.options.rails.map(|(lo, hi)| [lo, hi]),
+            adc_bits: h.adc_bits,
         }
     }
 }
@@ -49,6 +52,12 @@ pub struct StatusFields {
     pub led_drive_code: u16,
     /// DC level of the LED-on reading, fraction of ADC full scale.
     pub dc_level: f32,
+    /// The LED-off reading's slow average, fraction of ADC full scale;
+    /// absent when the board did not measure it.
+    pub ambient_level: Option<f32>,
+    /// Which of `led_drive`, `dc_level`, `ambient_level` the board
+    /// measured (the others are 0 on the wire).
+    pub measured: Vec<&'static str>,
     /// Samples at the ADC rails since power-up.
     pub clipped_samples: u32,
     /// Missed sample ticks or failed ADC reads since power-up.
@@ -66,6 +75,16 @@ impl From<&Status> for StatusFields {
             led_drive: f32::from(s.led_drive) / 65_535.0,
             led_drive_code: s.led_drive,
             dc_level: s.dc_level,
+            ambient_level: s.ambient_level_measured(),
+            measured: [
+                (Status::MEASURED_LED_DRIVE, "led_drive"),
+                (Status::MEASURED_DC_LEVEL, "dc_level"),
+                (Status::MEASURED_AMBIENT_LEVEL, "ambient_level"),
+            ]
+            .into_iter()
+            .filter(|(bit, _)| s.measured & bit != 0)
+            .map(|(_, name)| name)
+            .collect(),
             clipped_samples: s.clipped_samples,
             adc_overruns: s.adc_overruns,
             dropped_frames: s.dropped_frames,
@@ -87,6 +106,12 @@ pub struct LinkFields {
     pub dropped_bytes: u64,
     /// Frames missing by their sequence numbers.
     pub lost_frames: u64,
+    /// Bytes read from the port.
+    pub bytes: u64,
+    /// Of the damaged, frames of another wire format version.
+    pub foreign_version: u64,
+    /// The version of the last of them.
+    pub last_foreign_version: Option<u8>,
 }
 
 impl From<DecodeStats> for LinkFields {
@@ -97,6 +122,9 @@ impl From<DecodeStats> for LinkFields {
             crc_errors: s.crc_errors,
             dropped_bytes: s.dropped_bytes,
             lost_frames: s.lost_frames,
+            bytes: s.bytes,
+            foreign_version: s.foreign_version,
+            last_foreign_version: s.last_foreign_version,
         }
     }
 }

@@ -55,6 +55,8 @@ mod timeline;
 mod tests;
 #[cfg(test)]
 mod tests_jumps;
+#[cfg(test)]
+mod tests_wire2;
 
 pub use beat_file::BeatFile;
 pub use capture::Capture;
@@ -63,9 +65,9 @@ pub use event::{BeatSeen, Counts, Event, Progress, Sink, StateSeen};
 pub use fields::{HelloFields, LinkFields, StatusFields};
 pub use link::{run, Connector, Ending, ListenError, NeverCause, Settings};
 pub use port::{PortLink, SerialConnector, READ_TIMEOUT};
-pub use recorder::{session_files, Recorder, SampleCounts, Written, SCALE_AFTER_S};
+pub use recorder::{nearest, session_files, Recorder, SampleCounts, Written, SCALE_AFTER_S};
 pub use scale::{Scale, ScaleSource, INVALID};
 pub use screen::{Screen, CAUTION};
-pub use session::{Session, LINK_EVERY, QUIET_AFTER};
+pub use session::{foreign_version_message, Session, LINK_EVERY, QUIET_AFTER};
 pub use summary::{summary_path, Setup, Summary, FLUSH_EVERY, RUNNING, SUMMARY_FORMAT};
 pub use timeline::{Timeline, LONG_SLACK_S, MAX_GAP_S, RESTART_SLACK};

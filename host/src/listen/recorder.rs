@@ -7,11 +7,25 @@
 //! reach, and every sum here is checked besides, so no value from the wire
 //! makes a writer loop or a sum wrap.
 //!
+//! A board above 500 Hz sends every `stride`-th sample (wire format 2,
+//! `docs/wire-format.md`). The record then runs at `rate / stride`: its
+//! sample `k` is the board's sample `k · stride` (counted from the
+//! record's start), and the annotations are written in the record's
+//! samples too: every sample and every beat's peak goes to the record
+//! sample nearest its time ([`nearest`], ties down), so a beat's time
+//! (sample over the record's rate) stays the board's within half a record
+//! sample, and a beat sits on the very sample that holds its peak. The
+//! stride is fixed once per recording, at the hello (`wire::sample_stride`
+//! of its rate, the rule boards follow) or else at the first block's own;
+//! beats that come before either wait for it. A block of a finer stride
+//! than the record's lands two samples on one record sample: the second
+//! counts as repeated.
+//!
 //! [`Recorder::flush`] brings the files up to date while the session runs:
 //! the samples flushed and a header that counts them (see
 //! [`RecordWriter::checkpoint`]), the beats appended ([`BeatFile`]).
 
-use plethwire_dsp::wire::SampleBlock;
+use plethwire_dsp::wire::{sample_stride, SampleBlock};
 use serde::Serialize;
 use std::io;
 use std::path::{Path, PathBuf};
@@ -48,6 +62,14 @@ pub struct SampleCounts {
     pub far_off: u64,
 }
 
+/// The record sample nearest board sample `at` (counted from the
+/// record's start) when the record keeps every `stride`-th: `at / stride`
+/// rounded to the nearest, ties down.
+pub fn nearest(at: u64, stride: u64) -> u64 {
+    let stride = stride.max(1);
+    at / stride + u64::from(2 * (at % stride) > stride)
+}
+
 /// What [`Recorder::finish`] wrote.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Written {
@@ -63,8 +85,11 @@ pub struct Written {
     pub record: Option<PathBuf>,
     /// Frames (samples per signal) in the record, gap fill included.
     pub record_samples: u64,
-    /// The record's sample rate, Hz.
+    /// The record's sample rate, Hz: the board's over the stride.
     pub rate_hz: Option<f64>,
+    /// Board samples per record sample (1 unless the board sent every
+    /// `stride`-th sample).
+    pub stride: u64,
     /// The scale the samples were stored with.
     pub scale: Option<Scale>,
     /// What became of the samples.
@@ -86,7 +111,12 @@ pub struct Recorder {
     beats_far_off: u64,
     /// The furthest record sample taken so far (beats and samples).
     horizon: u64,
+    /// The board's sample rate.
     rate: Option<f64>,
+    /// Board samples per record sample, once fixed.
+    stride: Option<u64>,
+    /// Beats (board samples) that came before the stride was fixed.
+    pending_beats: Vec<u64>,
     pending: Vec<(i64, SampleBlock)>,
     pending_samples: u64,
     open: Option<Open>,
@@ -123,6 +153,8 @@ impl Recorder {
             beats_far_off: 0,
             horizon: 0,
             rate: None,
+            stride: None,
+            pending_beats: Vec::new(),
             pending: Vec::new(),
             pending_samples: 0,
             open: None,
@@ -141,12 +173,35 @@ impl Recorder {
         Ok(())
     }
 
-    /// Samples that make the longest gap filled.
-    fn max_gap(&self) -> u64 {
-        (MAX_GAP_S * self.rate.unwrap_or(FASTEST_HZ)).ceil() as u64
+    /// The record's rate: the board's over the stride.
+    fn record_rate(&self) -> Option<f64> {
+        Some(self.rate? / self.stride.unwrap_or(1) as f64)
     }
 
+    /// Record samples that make the longest gap filled.
+    fn max_gap(&self) -> u64 {
+        (MAX_GAP_S * self.record_rate().unwrap_or(FASTEST_HZ)).ceil() as u64
+    }
+
+    /// Fix the record's stride (once), and place the beats that waited.
+    fn fix_stride(&mut self, stride: u64) {
+        if self.stride.is_some() {
+            return;
+        }
+        self.stride = Some(stride.max(1));
+        for peak in std::mem::take(&mut self.pending_beats) {
+            self.beat(peak);
+        }
+    }
+
+    /// A beat at board sample `peak`, annotated at the record's sample
+    /// nearest to it.
     fn beat(&mut self, peak: u64) {
+        let Some(stride) = self.stride else {
+            self.pending_beats.push(peak);
+            return;
+        };
+        let peak = nearest(peak, stride);
         if peak > self.horizon.saturating_add(self.max_gap()) {
             self.beats_far_off += 1;
             return;
@@ -156,10 +211,12 @@ impl Recorder {
     }
 
     fn samples(&mut self, start: i64, block: SampleBlock, rate_hz: f64) -> io::Result<()> {
-        let rate = *self.rate.get_or_insert(rate_hz);
+        self.rate.get_or_insert(rate_hz);
+        self.fix_stride(u64::from(block.stride));
         if self.open.is_none() {
             self.pending.push((start, block));
             self.pending_samples += u64::from(block.count);
+            let rate = self.record_rate().unwrap_or(rate_hz);
             let enough = self.pending_samples as f64 >= SCALE_AFTER_S * rate;
             if self.rails.is_some() || enough {
                 self.start_record()?;
@@ -170,7 +227,7 @@ impl Recorder {
     }
 
     fn start_record(&mut self) -> io::Result<()> {
-        let Some(rate) = self.rate else {
+        let Some(rate) = self.record_rate() else {
             return Ok(());
         };
         let scale = self.rails.unwrap_or_else(|| {
@@ -202,18 +259,20 @@ impl Recorder {
 
     fn write_block(&mut self, start: i64, block: &SampleBlock) -> io::Result<()> {
         let max_gap = self.max_gap();
+        let stride = self.stride.unwrap_or(1);
         let Some(open) = self.open.as_mut() else {
             return Ok(());
         };
         let c = &mut self.counts;
         let mut horizon = self.horizon;
         for i in 0..usize::from(block.count).min(block.raw.len()) {
-            let at = match start.checked_add(i as i64) {
+            // Board sample, then record sample.
+            let at = match start.checked_add(i as i64 * i64::from(block.stride)) {
                 Some(at) if at < 0 => {
                     c.before_record += 1;
                     continue;
                 }
-                Some(at) => at as u64,
+                Some(at) => nearest(at as u64, stride),
                 None => {
                     c.far_off += 1;
                     continue;
@@ -266,7 +325,8 @@ impl Recorder {
                 .as_ref()
                 .map(|_| self.dir.join(format!("{}.hea", self.name))),
             record_samples: self.open.as_ref().map_or(0, |o| o.writer.frames()),
-            rate_hz: self.rate,
+            rate_hz: self.record_rate(),
+            stride: self.stride.unwrap_or(1),
             scale: self.open.as_ref().map(|o| o.scale),
             samples: self.counts,
         }
@@ -274,6 +334,8 @@ impl Recorder {
 
     /// Write what is still open: the record's header, the annotations.
     pub fn finish(mut self) -> io::Result<Written> {
+        // No hello and no samples: the beats are in board samples.
+        self.fix_stride(1);
         if self.open.is_none() && !self.pending.is_empty() {
             self.start_record()?;
         }
@@ -286,6 +348,7 @@ impl Sink for Recorder {
     fn event(&mut self, event: &Event) -> io::Result<()> {
         match event {
             Event::Hello(h) => {
+                self.fix_stride(u64::from(sample_stride(h.sample_rate_hz)));
                 if let Some((lo, hi)) = h.options.rails {
                     self.rails = self.rails.or(Scale::from_rails(lo, hi));
                 }

@@ -1,7 +1,10 @@
 //! Bytes in, events out: the decoder, the board-to-record timeline and the
 //! session's counts, with no port and no files attached.
 
-use plethwire_dsp::wire::{DecodeStats, Decoder, Frame, Hello, Message, SampleBlock, Status};
+use plethwire_dsp::wire::{
+    DecodeStats, Decoder, Frame, FrameError, Hello, Message, Refusal, SampleBlock, Status,
+    FORMAT_VERSION,
+};
 use std::io;
 use std::time::{Duration, Instant, SystemTime};
 
@@ -40,6 +43,8 @@ pub struct Session {
     placed_at: Option<(Instant, SystemTime)>,
     held: Option<Held>,
     told_implausible: bool,
+    /// The foreign wire format version last told about.
+    told_foreign: Option<u8>,
 }
 
 impl Session {
@@ -65,6 +70,7 @@ impl Session {
             placed_at: None,
             held: None,
             told_implausible: false,
+            told_foreign: None,
         }
     }
 
@@ -86,10 +92,14 @@ impl Session {
     /// Decode `bytes` and report what they held.
     pub fn feed(&mut self, bytes: &[u8], now: Instant, sink: &mut dyn Sink) -> io::Result<()> {
         for &b in bytes {
-            if let Some(Ok(frame)) = self.decoder.push(b) {
-                self.last_good = Some(now);
-                self.told_quiet = false;
-                self.frame(frame, now, sink)?;
+            match self.decoder.push(b) {
+                Some(Ok(frame)) => {
+                    self.last_good = Some(now);
+                    self.told_quiet = false;
+                    self.frame(frame, now, sink)?;
+                }
+                Some(Err(FrameError::Refused(Refusal::Version))) => self.foreign(sink)?,
+                _ => {}
             }
         }
         // Bytes that never decode (a wrong baud rate) are silence too.
@@ -151,6 +161,19 @@ impl Session {
     /// Wall-clock times of the first and last good frame.
     pub fn frame_times(&self) -> (Option<SystemTime>, Option<SystemTime>) {
         (self.first_frame, self.last_frame)
+    }
+
+    /// A frame of another wire format version (counted as damaged by the
+    /// decoder): say so once per version, in words that say what to do.
+    fn foreign(&mut self, sink: &mut dyn Sink) -> io::Result<()> {
+        let Some(v) = self.decoder.stats().last_foreign_version else {
+            return Ok(());
+        };
+        if self.told_foreign == Some(v) {
+            return Ok(());
+        }
+        self.told_foreign = Some(v);
+        sink.event(&Event::Notice(foreign_version_message(v)))
     }
 
     fn report_link(&mut self, now: Instant, sink: &mut dyn Sink) -> io::Result<()> {
@@ -290,4 +313,17 @@ impl Session {
         }
         Ok(())
     }
+}
+
+/// What to tell a user whose board speaks wire format `version`.
+pub fn foreign_version_message(version: u8) -> String {
+    let update = if version < FORMAT_VERSION {
+        "update the board's firmware"
+    } else {
+        "update plethwire"
+    };
+    format!(
+        "the board speaks wire format version {version}; this plethwire reads version \
+         {FORMAT_VERSION}: {update}"
+    )
 }

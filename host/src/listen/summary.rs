@@ -77,8 +77,13 @@ pub struct Summary {
     pub beats_before_record: u64,
     /// Beats further past the record than any gap it fills (not annotated).
     pub beats_far_off: u64,
-    /// The record's sample rate, Hz (the board's is under `board`).
+    /// The record's sample rate, Hz (the board's is under `board`): the
+    /// board's over `record_stride`.
     pub record_rate_hz: Option<f64>,
+    /// Board samples per record sample: 1, or the stride of a board that
+    /// sends every `stride`-th sample (the annotations count record
+    /// samples too).
+    pub record_stride: u64,
     /// Samples per signal in the record, gaps included.
     pub record_samples: u64,
     /// The record's length, s.
@@ -121,6 +126,7 @@ impl Summary {
             beats_before_record: w.beats_before_record,
             beats_far_off: w.beats_far_off,
             record_rate_hz: w.rate_hz,
+            record_stride: w.stride,
             record_samples: w.record_samples,
             record_seconds: w
                 .rate_hz
