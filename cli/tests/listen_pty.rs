@@ -155,6 +155,11 @@ fn noisy_stream_is_shown_as_json_lines_and_recorded_exactly() {
     assert_eq!(last_status["link"]["damaged"], 3);
     assert_eq!(last_status["link"]["lost_frames"], 1);
     assert_eq!(last_status["adc_overruns"], 1);
+    assert_eq!(
+        last_status["measured"],
+        serde_json::json!(["led_drive", "dc_level", "ambient_level"])
+    );
+    assert_eq!(last_status["ambient_level"], 0.02);
     assert!(events(&lines, "link").any(|v| v["damaged"].as_u64() > Some(0)));
     assert_eq!(events(&lines, "lost").count(), 1);
 
@@ -166,6 +171,11 @@ fn noisy_stream_is_shown_as_json_lines_and_recorded_exactly() {
     assert_eq!(summary["link"]["frames"], 57);
     assert_eq!(summary["link"]["damaged"], 3);
     assert_eq!(summary["samples"]["missing"], 16);
+    // Every byte the board sent: 50 sample frames of 148 bytes and more.
+    let bytes = summary["link"]["bytes"].as_u64().unwrap();
+    assert!((50 * 148..50 * 148 + 2000).contains(&bytes), "{bytes}");
+    assert_eq!(summary["link"]["foreign_version"], 0);
+    assert_eq!(summary["record_stride"], 1);
 
     check_files(&out, "bench", 320..336);
     let file = std::fs::read_to_string(out.join("bench.session.json")).unwrap();
@@ -173,6 +183,7 @@ fn noisy_stream_is_shown_as_json_lines_and_recorded_exactly() {
     assert_eq!(&saved, summary);
     assert_eq!(saved["board"]["firmware"], "0.4.2");
     assert_eq!(saved["board"]["rails"], serde_json::json!([0.0, 4095.0]));
+    assert_eq!(saved["board"]["adc_bits"], 12);
     assert_eq!(saved["counts"]["beats"], 4);
     assert_eq!(saved["beats_annotated"], 4);
     assert_eq!(saved["record_samples"], 800);
@@ -291,4 +302,45 @@ fn a_time_limit_ends_a_quiet_session_with_empty_files() {
     // The pty was open all along: the clock ended the session, not a loss.
     assert_eq!(end["summary"]["counts"]["losses"], 0);
     drop(board);
+}
+
+#[test]
+fn a_board_of_wire_format_1_gets_one_plain_notice_and_listen_goes_on() {
+    let dir = tempfile::tempdir().unwrap();
+    let port = dir.path().join("board");
+    let mut board = Board::new(&port);
+    board.plug_in();
+    let out = dir.path().to_str().unwrap();
+    let mut l = Listener::start(&[
+        "--port",
+        port.to_str().unwrap(),
+        "--out",
+        out,
+        "--name",
+        "old",
+        "--json",
+    ]);
+    l.wait_for("the port open", |s| json(s)["event"] == "opened");
+    for seq in 0..30 {
+        board.raw(&foreign_status(1, seq));
+    }
+    // Then a board of our version: still read.
+    board.send(&hello());
+    l.wait_for("the hello", |s| json(s)["event"] == "hello");
+    board.unplug();
+    let (code, lines, err) = l.finish();
+    assert!(code.success(), "{code:?} {err}");
+    let lines: Vec<Value> = lines.iter().map(|l| json(l)).collect();
+    let notices: Vec<&Value> = events(&lines, "notice").collect();
+    assert_eq!(notices.len(), 1, "{notices:?}");
+    assert_eq!(
+        notices[0]["text"],
+        "the board speaks wire format version 1; this plethwire reads version 2: \
+         update the board's firmware"
+    );
+    let link = &lines.last().unwrap()["summary"]["link"];
+    assert_eq!(link["damaged"], 30);
+    assert_eq!(link["foreign_version"], 30);
+    assert_eq!(link["last_foreign_version"], 1);
+    assert_eq!(link["frames"], 1);
 }

@@ -13,7 +13,9 @@ use nix::pty::{grantpt, posix_openpt, ptsname_r, unlockpt, PtyMaster};
 use nix::sys::stat::Mode;
 use nix::sys::termios::{cfmakeraw, tcgetattr, tcsetattr, SetArg};
 use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, Options, SignalState, StateEvent};
-use plethwire_dsp::wire::{Encoder, Hello, Message, SampleBlock, Status, MAX_FRAME};
+use plethwire_dsp::wire::{
+    cobs_encode, crc32, max_encoded_len, Encoder, Hello, Message, SampleBlock, Status, MAX_FRAME,
+};
 use std::io::{BufRead, BufReader, ErrorKind, Read, Write};
 use std::os::fd::OwnedFd;
 use std::path::{Path, PathBuf};
@@ -126,6 +128,20 @@ impl Board {
         let bytes = self.frame(m);
         self.raw(&bytes);
     }
+}
+
+/// A status frame as a board of wire format `version` sends it (version
+/// 1's 22-byte payload, all zero), its CRC intact, on the wire.
+pub fn foreign_status(version: u8, seq: u16) -> Vec<u8> {
+    let mut raw = vec![version, 4];
+    raw.extend(seq.to_le_bytes());
+    raw.resize(4 + 22, 0);
+    raw.extend(crc32(&raw).to_le_bytes());
+    let mut out = vec![0u8; max_encoded_len(raw.len())];
+    let n = cobs_encode(&raw, &mut out).unwrap();
+    out.truncate(n);
+    out.push(0);
+    out
 }
 
 /// The hello of the pretend board.
