@@ -232,11 +232,11 @@ fn a_full_queue_drops_frames_and_counts_them() {
     let (at, last) = frames
         .iter()
         .enumerate()
-        .filter_map(|(i, f)| match f.message {
+        .rev()
+        .find_map(|(i, f)| match f.message {
             Message::Status(s) => Some((i, (f.seq, s))),
             _ => None,
         })
-        .last()
         .unwrap();
     let (seq, status) = last;
     assert_eq!(u32::from(seq) - at as u32, status.dropped_frames);

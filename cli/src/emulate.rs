@@ -8,7 +8,7 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use plethwire::vocabulary::{state_change_words, verdict_words, HR, MEDIAN_HR};
-use plethwire_dsp::pipeline::{BeatEvent, StateEvent};
+use plethwire_dsp::pipeline::{BeatEvent, Config, StateEvent};
 use plethwire_dsp::wire::{Frame, Message};
 
 use super::pipeline_opts::PipelineOpts;
@@ -179,24 +179,10 @@ impl EmulateArgs {
             return Err(Failure::output(e));
         }
         session.verify().map_err(Failure::refused)?;
-        let cannot = |e| {
-            Failure::refused(format!(
-                "{}: cannot run the pipeline: {e}",
-                self.record.display()
-            ))
-        };
-        let host = replay(samples, config).map_err(cannot)?;
-        let host_blocks = sample_blocks(samples, config).map_err(cannot)?;
         let board = session.to_replay();
+        let agreement = self.against_host(samples, config, &session, &board)?;
         let ann =
             write_recording_beats(&dir, &rec, &self.annotator, &board).map_err(Failure::refused)?;
-        let blocks = session.blocks();
-        let events = BoardEvents {
-            beats: &board.beats,
-            states: &board.states,
-            blocks: &blocks,
-        };
-        let agreement = compare(events, &host, &host_blocks);
         let text = if self.json {
             json_report(
                 &rec.name,
@@ -216,6 +202,32 @@ impl EmulateArgs {
                 "the board's events differ from the host replay: {e}"
             ))
         })
+    }
+
+    /// The board's beats, states (in `board`) and sample blocks (in
+    /// `session`) against the host replay of the same samples.
+    fn against_host(
+        &self,
+        samples: &[f64],
+        config: Config,
+        session: &Session,
+        board: &Replay,
+    ) -> Result<Result<Agreement, Disagreement>, Failure> {
+        let cannot = |e| {
+            Failure::refused(format!(
+                "{}: cannot run the pipeline: {e}",
+                self.record.display()
+            ))
+        };
+        let host = replay(samples, config).map_err(cannot)?;
+        let host_blocks = sample_blocks(samples, config).map_err(cannot)?;
+        let blocks = session.blocks();
+        let events = BoardEvents {
+            beats: &board.beats,
+            states: &board.states,
+            blocks: &blocks,
+        };
+        Ok(compare(events, &host, &host_blocks))
     }
 
     /// The folder for the annotation file of `rec`, once nothing is in

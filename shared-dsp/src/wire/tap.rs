@@ -14,7 +14,7 @@ pub const FULL_RATE_LIMIT_HZ: f32 = 500.0;
 pub fn sample_stride(sample_rate_hz: f32) -> u8 {
     let s = libm::ceilf(sample_rate_hz / FULL_RATE_LIMIT_HZ);
     // A non-finite or tiny rate (refused by the pipeline anyway) gives 1.
-    if s >= 1.0 && s <= 255.0 {
+    if (1.0..=255.0).contains(&s) {
         s as u8
     } else if s > 255.0 {
         255
