@@ -46,7 +46,9 @@ fn span(message: &Message, t: &Timeline) -> Option<(u64, u64)> {
             if usize::from(s.count) > SAMPLES_PER_BLOCK {
                 return None;
             }
-            let last = s.first_index.checked_add(u64::from(s.count.max(1)) - 1)?;
+            // Sample i is board sample first_index + i · stride.
+            let steps = (u64::from(s.count.max(1)) - 1) * u64::from(s.stride.max(1));
+            let last = s.first_index.checked_add(steps)?;
             Some((s.first_index, last))
         }
         Message::Hello(_) | Message::Status(_) => None,
