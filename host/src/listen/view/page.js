@@ -88,7 +88,8 @@
         text(li.querySelector('.cname'), c.name.replace(/_/g, ' '));
         box.appendChild(li);
       }
-      const verdict = typeof c.verdict === 'string' ? c.verdict : '';
+      // The contract's names have underscores; a report in words is taken too.
+      const verdict = typeof c.verdict === 'string' ? c.verdict.replace(/ /g, '_') : '';
       li.dataset.verdict = verdict;
       text(li.querySelector('.cval'), num(c.value) ? Number(c.value.toPrecision(3)).toString() : '');
       text(li.querySelector('.cverdict'), verdict.replace(/_/g, ' '));
@@ -156,7 +157,8 @@
     const now = performance.now();
     S.times.push(now);
     while (S.times.length && S.times[0] < now - 2000) S.times.shift();
-    text($('stream'), 'live · ' + (S.times.length / 2).toFixed(1) + ' updates/s');
+    const n = S.times.length, span = (S.times[n - 1] - S.times[0]) / 1000;
+    text($('stream'), n > 2 && span > 0 ? 'live · ' + ((n - 1) / span).toFixed(1) + ' updates/s' : 'live');
     if (!S.paused) draw();
   }
 
@@ -205,11 +207,13 @@
       const span = WINDOW_S * S.rate;
       const newest = S.pts[S.pts.length - 1][0], left = newest - span;
       ctx.strokeStyle = colour('--rule'); ctx.fillStyle = colour('--muted'); ctx.lineWidth = 1;
+      ctx.setLineDash([2, 4]);
       for (let s = Math.ceil(left / S.rate); s <= Math.floor(newest / S.rate); s++) {
         const x = x0 + (s * S.rate - left) / span * width;
         ctx.beginPath(); ctx.moveTo(x, 0); ctx.lineTo(x, h - axis); ctx.stroke();
         ctx.fillText(s + ' s', x + 3, h - 6);
       }
+      ctx.setLineDash([]);
       ctx.beginPath(); ctx.moveTo(x0, laneH); ctx.lineTo(x0 + width, laneH); ctx.stroke();
       const a = lane(ctx, S.pts, 1, 0, laneH, left, span, x0, width, colour('--input'));
       const b = lane(ctx, S.pts, 2, laneH, laneH, left, span, x0, width, colour('--bandpass'));
@@ -219,8 +223,7 @@
         const x = x0 + (beat.peak - left) / span * width;
         const good = beat.verdict === 'good';
         ctx.strokeStyle = colour('--beat'); ctx.fillStyle = colour('--beat');
-        ctx.globalAlpha = 0.25; ctx.beginPath(); ctx.moveTo(x, 4); ctx.lineTo(x, h - axis); ctx.stroke();
-        ctx.globalAlpha = 1;
+        ctx.lineWidth = 1.5;
         for (const [k, f] of [[1, a.y], [2, b.y]]) {
           const v = valueAt(beat.peak, k);
           if (v === null) continue;
