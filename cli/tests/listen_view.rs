@@ -97,11 +97,26 @@ fn the_page_follows_the_board_and_the_recording_stays_exact() {
     let out = dir.path().join("rec");
     let mut board = Board::new(&port);
     board.plug_in();
-    let args = ["--port", port.to_str().unwrap(), "--out", out.to_str().unwrap()];
-    let more = ["--name", "bench", "--wait", "5", "--view", "--view-port", "0"];
+    let args = [
+        "--port",
+        port.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    let more = [
+        "--name",
+        "bench",
+        "--wait",
+        "5",
+        "--view",
+        "--view-port",
+        "0",
+    ];
     let (mut child, err) = spawn(&[&args[..], &more].concat());
     let line = err.recv_timeout(PATIENCE).expect("the live view's address");
-    let url = line.strip_prefix("live view: http://127.0.0.1:").expect(&line);
+    let url = line
+        .strip_prefix("live view: http://127.0.0.1:")
+        .expect(&line);
     let web: u16 = url.strip_suffix('/').unwrap().parse().unwrap();
 
     let page = get(web, "/");
@@ -130,7 +145,10 @@ fn the_page_follows_the_board_and_the_recording_stays_exact() {
     // A second page starts full.
     let snap = Stream::open(web).next();
     assert_eq!(snap["snapshot"], true);
-    assert_eq!(snap["samples"].as_array().unwrap().len(), (16 * BLOCKS) as usize);
+    assert_eq!(
+        snap["samples"].as_array().unwrap().len(),
+        (16 * BLOCKS) as usize
+    );
     assert_eq!(snap["beats"][0]["median_hr_bpm"], 72.5);
     // Unplugged, then back.
     board.unplug();
@@ -163,7 +181,14 @@ fn a_taken_view_port_is_one_line_and_exit_status_1() {
     let held = TcpListener::bind((Ipv4Addr::LOCALHOST, 0)).unwrap();
     let taken = held.local_addr().unwrap().port().to_string();
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))
-        .args(["listen", "--port", "/dev/no-such-board", "--view", "--view-port", &taken])
+        .args([
+            "listen",
+            "--port",
+            "/dev/no-such-board",
+            "--view",
+            "--view-port",
+            &taken,
+        ])
         .arg("--out")
         .arg(dir.path())
         .stdin(Stdio::null())
@@ -191,7 +216,13 @@ fn the_help_tells_of_the_page_and_a_view_port_needs_the_view() {
         .output()
         .unwrap();
     let help = String::from_utf8_lossy(&help.stdout);
-    for words in ["--view", "--view-port", "127.0.0.1", "IEC 62471", "USB isolator"] {
+    for words in [
+        "--view",
+        "--view-port",
+        "127.0.0.1",
+        "IEC 62471",
+        "USB isolator",
+    ] {
         assert!(help.contains(words), "help lacks {words}:\n{help}");
     }
     let out = Command::new(env!("CARGO_BIN_EXE_plethwire"))

@@ -35,26 +35,40 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         dc_level: 2300.0,
         wander_amplitude: 6.0,
         noise_sd: 1.5,
-        finger_off: vec![FingerOff { start_s: 40.0, duration_s: 5.0 }],
+        finger_off: vec![FingerOff {
+            start_s: 40.0,
+            duration_s: 5.0,
+        }],
         finger_off_level: 120.0,
         finger_off_noise_sd: 2.0,
         ..SynthOptions::default()
     })?;
+    let view = View::start(port)?;
+    eprintln!("live view: {}", view.url());
+    feed(&view, &signal.samples)
+}
+
+/// Runs `samples` through the pipeline at their own pace onto the page.
+fn feed(view: &View, samples: &[f32]) -> Result<(), Box<dyn std::error::Error>> {
     let mut config = Config::new(RATE as f32);
     config.options.rails = Some((0.0, FULL as f32));
     let mut pipeline = Pipeline::new(config)?;
-    let mut band: Cascade<Df2t<f32>, 4> =
-        butterworth_bandpass(2, 0.5, 8.0, RATE)?.cascade()?;
-    let view = View::start(port)?;
-    eprintln!("live view: {}", view.url());
+    let mut band: Cascade<Df2t<f32>, 4> = butterworth_bandpass(2, 0.5, 8.0, RATE)?.cascade()?;
     let mut sink = view.sink();
     let mut link = DecodeStats::default();
-    sink.event(&Event::Opened { port: "pretend-board".into(), again_after: None })?;
-    let hello = Hello { firmware_version: [0, 0, 0], sample_rate_hz: RATE as f32, options: config.options };
+    sink.event(&Event::Opened {
+        port: "pretend-board".into(),
+        again_after: None,
+    })?;
+    let hello = Hello {
+        firmware_version: [0, 0, 0],
+        sample_rate_hz: RATE as f32,
+        options: config.options,
+    };
     send(&mut sink, &mut link, Event::Hello(hello))?;
     let started = Instant::now();
     let mut amplitudes = Vec::new();
-    for (b, chunk) in signal.samples.chunks(SAMPLES_PER_BLOCK).enumerate() {
+    for (b, chunk) in samples.chunks(SAMPLES_PER_BLOCK).enumerate() {
         let first = (b * SAMPLES_PER_BLOCK) as u64;
         let mut block = sample_block(first, chunk.len());
         for (i, &x) in chunk.iter().enumerate() {
@@ -63,22 +77,41 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
             let out = pipeline.push(x);
             if let Some(beat) = out.beat {
                 amplitudes.push(f64::from(beat.amplitude));
-                let seen = BeatSeen { beat, peak: Some(beat.peak_index), time_s: Some(beat.peak_index as f64 / RATE) };
+                let seen = BeatSeen {
+                    beat,
+                    peak: Some(beat.peak_index),
+                    time_s: Some(beat.peak_index as f64 / RATE),
+                };
                 send(&mut sink, &mut link, Event::Beat(seen))?;
             }
             if let Some(change) = out.state {
-                let seen = StateSeen { change, sample: Some(change.at), time_s: Some(change.at as f64 / RATE) };
+                let seen = StateSeen {
+                    change,
+                    sample: Some(change.at),
+                    time_s: Some(change.at as f64 / RATE),
+                };
                 send(&mut sink, &mut link, Event::State(seen))?;
             }
         }
-        let e = Event::Samples { start: first as i64, block, rate_hz: RATE };
+        let e = Event::Samples {
+            start: first as i64,
+            block,
+            rate_hz: RATE,
+        };
         send(&mut sink, &mut link, e)?;
         let end = first as usize + chunk.len();
         if end % (RATE as usize) < SAMPLES_PER_BLOCK {
-            let recent = &signal.samples[end.saturating_sub(10 * RATE as usize)..end];
+            let recent = &samples[end.saturating_sub(10 * RATE as usize)..end];
             let status = demo_status(recent, pipeline.clipped_samples() as u32);
             let counters = link;
-            send(&mut sink, &mut link, Event::Status { status, link: counters })?;
+            send(
+                &mut sink,
+                &mut link,
+                Event::Status {
+                    status,
+                    link: counters,
+                },
+            )?;
             let tail = &amplitudes[amplitudes.len().saturating_sub(8)..];
             // Too short a block for the spectrum in the first seconds.
             if let Ok(r) = report(recent, tail, status) {
@@ -125,7 +158,11 @@ fn check(name: &str, c: &Check) -> Value {
 }
 
 /// The checks over the last seconds of input, as the live page takes them.
-fn report(recent: &[f32], amplitudes: &[f64], status: Status) -> Result<Value, bringup::BringupError> {
+fn report(
+    recent: &[f32],
+    amplitudes: &[f64],
+    status: Status,
+) -> Result<Value, bringup::BringupError> {
     let x: Vec<f64> = recent.iter().map(|&v| f64::from(v)).collect();
     let block = Block::new(&x, RATE, AdcRange::new(0.0, FULL, 1.0)?)?;
     let clipping = bringup::clipping::clipped_share(&block);
@@ -137,14 +174,22 @@ fn report(recent: &[f32], amplitudes: &[f64], status: Status) -> Result<Value, b
     ];
     // The worse of the 50 and 60 Hz lines stands for both here.
     let hum = bringup::hum::mains_hum(&block)?;
-    if let Some(h) = hum.iter().max_by(|a, b| a.check.value.partial_cmp(&b.check.value).unwrap_or(std::cmp::Ordering::Equal)) {
+    if let Some(h) = hum.iter().max_by(|a, b| {
+        a.check
+            .value
+            .partial_cmp(&b.check.value)
+            .unwrap_or(std::cmp::Ordering::Equal)
+    }) {
         checks.push(check("hum", &h.check));
     }
     for name in ["ambient", "settling"] {
-        checks.push(json!({"name": name, "value": null, "verdict": "not_measurable",
-            "message": "the pretend board of this example has no LED"}));
+        checks.push(
+            json!({"name": name, "value": null, "verdict": "not_measurable",
+            "message": "the pretend board of this example has no LED"}),
+        );
     }
-    let pulse = (!amplitudes.is_empty()).then(|| amplitudes.iter().sum::<f64>() / amplitudes.len() as f64);
+    let pulse =
+        (!amplitudes.is_empty()).then(|| amplitudes.iter().sum::<f64>() / amplitudes.len() as f64);
     Ok(json!({
         "checks": checks,
         "gauges": {

@@ -112,7 +112,13 @@ pub fn refusal(w: &mut impl Write, route: Route) -> io::Result<()> {
             "plethwire live view: there is the page at / and its events at /events, nothing else.",
         ),
     };
-    whole(w, status, "text/plain; charset=utf-8", extra, &format!("{text}\n"))
+    whole(
+        w,
+        status,
+        "text/plain; charset=utf-8",
+        extra,
+        &format!("{text}\n"),
+    )
 }
 
 /// Writes the refusal of one more stream than we serve.

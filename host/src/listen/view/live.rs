@@ -244,7 +244,10 @@ fn newest<T: Clone>(ring: &VecDeque<T>, n: u64) -> Vec<T> {
 }
 
 fn empty_gauges() -> Map<String, Value> {
-    GAUGES.iter().map(|g| (g.to_string(), Value::Null)).collect()
+    GAUGES
+        .iter()
+        .map(|g| (g.to_string(), Value::Null))
+        .collect()
 }
 
 /// `x` as JSON with the digits an `f32` needs (0.52, not 0.519999980926).

@@ -145,7 +145,8 @@ fn send_all(shared: &Shared, cursor: super::live::Cursor, last: bool) -> super::
         news.notices.push(ENDED.into());
     }
     let news = news.event_text();
-    all.open.retain_mut(|s| s.write_all(news.as_bytes()).is_ok());
+    all.open
+        .retain_mut(|s| s.write_all(news.as_bytes()).is_ok());
     if let Some(snapshot) = snapshot {
         let mut snapshot = snapshot;
         if last {

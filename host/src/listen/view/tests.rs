@@ -193,9 +193,18 @@ fn the_page_holds_the_cautions_and_every_contract_element_and_nothing_from_outsi
     let answer = get(&view, "/");
     let (head, body) = answer.split_once("\r\n\r\n").unwrap();
     assert!(head.starts_with("HTTP/1.1 200 OK\r\n"), "{head}");
-    assert!(head.contains("Content-Type: text/html; charset=utf-8"), "{head}");
-    assert!(head.contains("Content-Security-Policy: default-src 'none'"), "{head}");
-    assert!(head.contains(&format!("Content-Length: {}", body.len())), "{head}");
+    assert!(
+        head.contains("Content-Type: text/html; charset=utf-8"),
+        "{head}"
+    );
+    assert!(
+        head.contains("Content-Security-Policy: default-src 'none'"),
+        "{head}"
+    );
+    assert!(
+        head.contains(&format!("Content-Length: {}", body.len())),
+        "{head}"
+    );
     for caution in [
         "Not a medical device",
         "IEC 62471",
@@ -212,7 +221,10 @@ fn the_page_holds_the_cautions_and_every_contract_element_and_nothing_from_outsi
         assert!(body.contains(&format!("id=\"{id}\"")), "no #{id}");
     }
     for g in super::GAUGES {
-        assert!(body.contains(&format!("data-gauge=\"{g}\"")), "no gauge {g}");
+        assert!(
+            body.contains(&format!("data-gauge=\"{g}\"")),
+            "no gauge {g}"
+        );
     }
     for c in [
         "perfusion",
@@ -223,7 +235,10 @@ fn the_page_holds_the_cautions_and_every_contract_element_and_nothing_from_outsi
         "ambient",
         "settling",
     ] {
-        assert!(body.contains(&format!("data-check=\"{c}\"")), "no check {c}");
+        assert!(
+            body.contains(&format!("data-check=\"{c}\"")),
+            "no check {c}"
+        );
     }
     // Style and script are inside; nothing names another site.
     assert!(!body.contains("/*STYLE*/") && !body.contains("/*SCRIPT*/"));
@@ -243,7 +258,10 @@ fn the_stream_carries_samples_beats_and_the_rest_after_a_feed() {
     feed_session(&mut view.sink());
     let mut samples = Vec::new();
     let m = events.until("status", &mut samples);
-    assert_eq!(m["link"], json!({"frames": 40, "damaged": 2, "lost": 1, "crc_errors": 0}));
+    assert_eq!(
+        m["link"],
+        json!({"frames": 40, "damaged": 2, "lost": 1, "crc_errors": 0})
+    );
     assert_eq!(m["gauges"]["dc"], 0.52);
     assert_eq!(m["gauges"]["pulse_codes"], Value::Null);
     while samples.len() < 500 {
@@ -262,7 +280,10 @@ fn the_stream_carries_samples_beats_and_the_rest_after_a_feed() {
     assert_eq!(snap["state"], "good");
     assert_eq!(snap["rate_hz"], RATE);
     assert_eq!(snap["hello"]["firmware"], "0.4.1");
-    assert_eq!(snap["board"], json!({"connected": true, "quiet": false, "port": "/dev/ttyTEST"}));
+    assert_eq!(
+        snap["board"],
+        json!({"connected": true, "quiet": false, "port": "/dev/ttyTEST"})
+    );
 }
 
 #[test]
@@ -319,7 +340,10 @@ fn it_listens_on_loopback_only_and_refuses_a_taken_port() {
     let taken = held.local_addr().unwrap().port();
     match View::start(taken) {
         Err(e @ ViewError::InUse { .. }) => {
-            assert_eq!(e.to_string(), format!("127.0.0.1:{taken} is already in use by another program"));
+            assert_eq!(
+                e.to_string(),
+                format!("127.0.0.1:{taken} is already in use by another program")
+            );
         }
         other => panic!("{:?}", other.map(|v| v.url())),
     }
@@ -334,7 +358,10 @@ fn other_paths_methods_and_hosts_are_refused_politely() {
     assert!(answer.ends_with("nothing else.\n"), "{answer}");
     let post = format!("POST / HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nContent-Length: 0\r\n\r\n");
     let answer = request(&view, &post);
-    assert!(answer.starts_with("HTTP/1.1 405 Method Not Allowed\r\n"), "{answer}");
+    assert!(
+        answer.starts_with("HTTP/1.1 405 Method Not Allowed\r\n"),
+        "{answer}"
+    );
     assert!(answer.contains("\r\nAllow: GET\r\n"), "{answer}");
     let rebound = "GET / HTTP/1.1\r\nHost: pulse.example:80\r\n\r\n";
     assert!(request(&view, rebound).starts_with("HTTP/1.1 403 Forbidden\r\n"));
@@ -377,7 +404,11 @@ fn the_state_sends_only_news_and_a_report_replaces_the_gauges() {
     assert_eq!(m["checks"], report["checks"]);
     assert_eq!(m["advice"], report["advice"]);
     assert_eq!(m["gauges"]["pulse_codes"], 310.0);
-    assert_eq!(m["gauges"]["dc"], Value::Null, "the report's gauges, not the status's");
+    assert_eq!(
+        m["gauges"]["dc"],
+        Value::Null,
+        "the report's gauges, not the status's"
+    );
     // From now on a status no longer overwrites the report's gauges.
     let c2 = live.cursor();
     live.status((&status(0.5)).into());
@@ -395,9 +426,18 @@ fn unplugging_and_replugging_show_on_the_board() {
     let mut events = Events::open(view);
     events.next().unwrap();
     let steps = [
-        Event::Opened { port: port.clone(), again_after: None },
-        Event::Lost { port: port.clone(), reason: "device gone".into() },
-        Event::Opened { port: port.clone(), again_after: Some(Duration::from_secs(2)) },
+        Event::Opened {
+            port: port.clone(),
+            again_after: None,
+        },
+        Event::Lost {
+            port: port.clone(),
+            reason: "device gone".into(),
+        },
+        Event::Opened {
+            port: port.clone(),
+            again_after: Some(Duration::from_secs(2)),
+        },
     ];
     let mut seen = Vec::new();
     for e in &steps {
