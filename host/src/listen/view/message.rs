@@ -77,7 +77,10 @@ pub struct Message {
     /// The board's latest status.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub status: Option<StatusFields>,
-    /// Bring-up gauges by name; `null` for one not known.
+    /// Bring-up gauges by name ([`super::GAUGES`]); `null` for one not
+    /// known. `pulse_codes` is in ADC codes, every other one a fraction
+    /// (0 to 1) of the ADC's full scale or, for `led_drive`, of full drive;
+    /// the page draws them as bars so.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub gauges: Option<Value>,
     /// The live checks, as their report gives them.

@@ -164,11 +164,17 @@
 
   // The waveform: input above, band-passed below, each scaled to its own
   // lane; the newest sample at the right edge.
+  // Scaled to the 1st to 99th percentile of what is shown, so a step (a
+  // finger put back) does not flatten the pulses; the rest is clipped to
+  // the lane.
   function lane(ctx, pts, k, top, height, left, span, x0, width, stroke) {
-    let lo = Infinity, hi = -Infinity;
-    for (const p of pts) if (num(p[k])) { lo = Math.min(lo, p[k]); hi = Math.max(hi, p[k]); }
-    if (lo === Infinity) return { drawn: 0, y: () => null };
+    const vs = [];
+    for (const p of pts) if (num(p[k])) vs.push(p[k]);
+    if (!vs.length) return { drawn: 0, y: () => null };
+    vs.sort((a, b) => a - b);
+    let lo = vs[Math.floor(0.01 * (vs.length - 1))], hi = vs[Math.ceil(0.99 * (vs.length - 1))];
     if (hi - lo < 1e-9) { hi += 0.5; lo -= 0.5; }
+    ctx.save(); ctx.beginPath(); ctx.rect(0, top, x0 * 2 + width, height); ctx.clip();
     const m = 8;
     const y = (v) => top + m + (1 - (v - lo) / (hi - lo)) * (height - 2 * m);
     const x = (i) => x0 + (i - left) / span * width;
@@ -180,7 +186,9 @@
       pen = true; drawn++;
     }
     ctx.stroke();
-    return { drawn, y };
+    ctx.restore();
+    const m2 = 4;
+    return { drawn, y: (v) => Math.min(Math.max(y(v), top + m2), top + height - m2) };
   }
 
   function valueAt(index, k) {
@@ -232,9 +240,12 @@
         }
         marks++;
       }
-      ctx.fillStyle = colour('--muted');
-      ctx.fillText('input', x0 + 4, 14);
-      ctx.fillText('band-passed', x0 + 4, laneH + 14);
+      for (const [label, y] of [['input', 4], ['band-passed', laneH + 4]]) {
+        ctx.fillStyle = colour('--card');
+        ctx.fillRect(x0, y, ctx.measureText(label).width + 8, 15);
+        ctx.fillStyle = colour('--muted');
+        ctx.fillText(label, x0 + 4, y + 11);
+      }
     } else {
       ctx.fillStyle = colour('--muted');
       ctx.fillText('waiting for samples from the board…', x0 + 4, h / 2);

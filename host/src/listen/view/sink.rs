@@ -27,8 +27,11 @@ impl ViewSink {
         Self { live }
     }
 
-    /// Shows a live-checks report (`checks`, `gauges`, `advice`: any it
-    /// holds) on the page; a value that is no JSON object changes nothing.
+    /// Shows a live-checks report on the page: any of `checks` (a list of
+    /// `{name, value, verdict, message}`), `gauges` (an object by gauge
+    /// name, units as [`super::Message::gauges`] says) and `advice` (a list
+    /// of lines) it holds; a value that is no JSON object changes nothing.
+    /// Once a report has given gauges, the status no longer does.
     pub fn set_checks<T: serde::Serialize>(&self, report: &T) {
         if let Ok(v) = serde_json::to_value(report) {
             lock(&self.live).report(&v);
