@@ -447,3 +447,15 @@ fn unplugging_and_replugging_show_on_the_board() {
     }
     assert_eq!(seen, [true, false, true]);
 }
+
+#[test]
+fn a_message_comes_every_tick_even_with_no_news() {
+    let view = View::start(0).unwrap();
+    let mut events = Events::open(&view);
+    assert_eq!(events.next().unwrap()["snapshot"], true);
+    // Nothing fed: each tick still sends one, empty, so the page can tell
+    // a quiet board from a dead server.
+    for _ in 0..3 {
+        assert_eq!(events.next().unwrap(), json!({}));
+    }
+}
