@@ -10,6 +10,7 @@ use std::sync::Once;
 use std::time::{Duration, SystemTime};
 
 use super::Failure;
+use plethwire::listen::view::{View, ViewError, ViewSink};
 use plethwire::listen::{
     record_name, run, session_files, Capture, Ending, Event, ListenError, NeverCause, Progress,
     Recorder, Screen, SerialConnector, Session, Settings, Setup, Sink,
@@ -19,10 +20,14 @@ use plethwire::replay::DEFAULT_ANNOTATOR;
 const EXAMPLES: &str = "\
 Cautions: plethwire is not a medical device and not for diagnosis. While
 someone is wired to the sensor, power it from a battery or connect it
-through a USB isolator (IEC 60601-1 practice).
+through a USB isolator (IEC 60601-1 practice). Keep the infrared LED within
+the eye-safety limits of IEC 62471. Local rules and qualified practice
+decide.
 
 Examples:
   plethwire listen --port /dev/ttyACM0
+  plethwire listen --port /dev/ttyACM0 --view        # and open http://127.0.0.1:8750/
+  plethwire listen --port /dev/ttyACM0 --view --view-port 0   # any free port, printed
   plethwire listen --port /dev/serial/by-id/usb-board --out recordings --name finger_rest
   plethwire listen --port /dev/ttyUSB0 --baud 230400 --seconds 300 --json > session.jsonl
 
@@ -34,8 +39,13 @@ killed, the laptop shut) keeps all but its last second; they are finished
 on Ctrl-C, when --seconds are up, or when the port is gone for longer than
 --wait. Unplugging is survived: the same path is tried every 0.5 s and the
 recording goes on.
-Exit status: 0 recorded, 1 the port never opened or the files could not be
-written, 2 the command line could not be understood.";
+--view serves a live page on this computer only (127.0.0.1): the waveform,
+beats, heart rate, signal state, bring-up gauges and link counters, with
+the cautions; its address is printed on standard error. The recording is
+the same with or without it; reload it or open it twice as you like.
+Exit status: 0 recorded, 1 the port never opened, the files could not be
+written or the --view-port is taken, 2 the command line could not be
+understood.";
 
 /// Options of `plethwire listen`.
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -74,6 +84,14 @@ pub struct ListenArgs {
     /// Print JSON Lines (one object per event) instead of text.
     #[arg(long)]
     pub json: bool,
+
+    /// Also show the session live in a browser, on 127.0.0.1 only.
+    #[arg(long)]
+    pub view: bool,
+
+    /// Port of the live page (with --view); 0: any free port.
+    #[arg(long, value_name = "N", default_value_t = 8750, requires = "view")]
+    pub view_port: u16,
 }
 
 fn parse_name(s: &str) -> Result<String, String> {
@@ -115,9 +133,11 @@ fn want_colour(json: bool) -> bool {
         && std::env::var("TERM").map_or(true, |t| t != "dumb")
 }
 
-/// Events to the recorder first, then the screen; remembers which failed.
+/// Events to the recorder first, then the live page (which never fails),
+/// then the screen; remembers which failed.
 struct Tee<'a, 'b> {
     capture: &'a mut Capture,
+    view: Option<ViewSink>,
     screen: &'a mut Screen<'b>,
     screen_failed: bool,
 }
@@ -125,6 +145,9 @@ struct Tee<'a, 'b> {
 impl Sink for Tee<'_, '_> {
     fn event(&mut self, event: &Event) -> io::Result<()> {
         self.capture.event(event)?;
+        if let Some(v) = &mut self.view {
+            v.event(event)?;
+        }
         self.screen
             .event(event)
             .inspect_err(|_| self.screen_failed = true)
@@ -161,6 +184,7 @@ impl ListenArgs {
                 f.display()
             )));
         }
+        let view = self.start_view()?;
         install_stop_handler()?;
         let settings = self.settings();
         let setup = Setup {
@@ -185,6 +209,7 @@ impl ListenArgs {
         };
         let mut tee = Tee {
             capture: &mut capture,
+            view: view.as_ref().map(View::sink),
             screen: &mut screen,
             screen_failed: false,
         };
@@ -208,6 +233,21 @@ impl ListenArgs {
             return Err(f);
         }
         screen.end(&summary).map_err(Failure::output)
+    }
+
+    /// The live page, serving before the port is opened.
+    fn start_view(&self) -> Result<Option<View>, Failure> {
+        if !self.view {
+            return Ok(None);
+        }
+        let view = View::start(self.view_port).map_err(|e| match e {
+            ViewError::InUse { .. } => Failure::refused(format!(
+                "live view: {e}; choose another --view-port (0: any free port)"
+            )),
+            e => Failure::refused(format!("live view: {e}")),
+        })?;
+        eprintln!("live view: {}", view.url());
+        Ok(Some(view))
     }
 
     fn never_opened(&self, e: ListenError) -> Failure {

@@ -18,6 +18,8 @@
 //!   at most the last second.
 //! * [`Screen`] shows events as text lines or JSON lines.
 //! * [`SerialConnector`] is the real serial port.
+//! * [`view`] is the live page on 127.0.0.1 (`listen --view`), one more
+//!   sink.
 //!
 //! ```
 //! use plethwire::listen::{Event, Session};
@@ -50,6 +52,7 @@ mod session;
 mod summary;
 mod text;
 mod timeline;
+pub mod view;
 
 #[cfg(test)]
 mod tests;
