@@ -63,6 +63,7 @@ fn feed(view: &View, samples: &[f32]) -> Result<(), Box<dyn std::error::Error>> 
     let hello = Hello {
         firmware_version: [0, 0, 0],
         sample_rate_hz: RATE as f32,
+        adc_bits: 12,
         options: config.options,
     };
     send(&mut sink, &mut link, Event::Hello(hello))?;
@@ -135,6 +136,7 @@ fn sample_block(first: u64, count: usize) -> SampleBlock {
     SampleBlock {
         first_index: first,
         count: count as u8,
+        stride: 1,
         raw: [0.0; SAMPLES_PER_BLOCK],
         filtered: [0.0; SAMPLES_PER_BLOCK],
     }
@@ -150,6 +152,8 @@ fn demo_status(recent: &[f32], clipped: u32) -> Status {
         adc_overruns: 0,
         dropped_frames: 0,
         rejected_samples: 0,
+        ambient_level: 0.0,
+        measured: Status::MEASURED_LED_DRIVE | Status::MEASURED_DC_LEVEL,
     }
 }
 

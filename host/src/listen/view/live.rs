@@ -132,8 +132,16 @@ impl Live {
     pub fn status(&mut self, status: StatusFields) {
         if !self.gauges_reported {
             let mut g = empty_gauges();
-            g.insert("dc".into(), number(status.dc_level));
-            g.insert("led_drive".into(), number(status.led_drive));
+            let has = |name| status.measured.contains(&name);
+            if has("dc_level") {
+                g.insert("dc".into(), number(status.dc_level));
+            }
+            if has("led_drive") {
+                g.insert("led_drive".into(), number(status.led_drive));
+            }
+            if let Some(ambient) = status.ambient_level {
+                g.insert("ambient".into(), number(ambient));
+            }
             stamp!(self, gauges, Some(Value::Object(g)));
         }
         stamp!(self, status, Some(status));

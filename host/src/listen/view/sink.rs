@@ -123,8 +123,8 @@ fn counts(s: &DecodeStats) -> LinkCounts {
 }
 
 /// Input samples from one block sample to the next.
-fn stride(_block: &SampleBlock) -> i64 {
-    1
+fn stride(block: &SampleBlock) -> i64 {
+    i64::from(block.stride.max(1))
 }
 
 /// A block's samples with their record sample numbers: sample `i` is at

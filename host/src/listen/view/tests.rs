@@ -21,6 +21,7 @@ fn block(first: u64, count: usize, value: impl Fn(u64) -> f32) -> SampleBlock {
     let mut b = SampleBlock {
         first_index: first,
         count: count as u8,
+        stride: 1,
         raw: [0.0; SAMPLES_PER_BLOCK],
         filtered: [0.0; SAMPLES_PER_BLOCK],
     };
@@ -39,6 +40,8 @@ fn status(dc_level: f32) -> Status {
         adc_overruns: 0,
         dropped_frames: 0,
         rejected_samples: 0,
+        ambient_level: 0.0,
+        measured: Status::MEASURED_ALL,
     }
 }
 
@@ -46,6 +49,7 @@ fn hello() -> Hello {
     Hello {
         firmware_version: [0, 4, 1],
         sample_rate_hz: RATE as f32,
+        adc_bits: 12,
         options: Options::default(),
     }
 }
