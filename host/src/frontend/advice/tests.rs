@@ -14,11 +14,7 @@ fn fingerclip() -> Circuit {
 }
 
 fn measured(dc_share: f64, pulse_share: f64) -> Measured {
-    Measured {
-        dc_share,
-        pulse_share,
-        max_drive_ma: None,
-    }
+    Measured::levels(dc_share, pulse_share)
 }
 
 #[test]
@@ -126,15 +122,18 @@ fn a_brighter_led_beyond_its_rating_is_refused() {
         (s.headroom_v - (3.3 - 2.78 - 0.01815)).abs() < 1e-9,
         "{s:?}"
     );
-    // No rating but the board's most drive at 40 mA: the same 47 Ω refused.
+    // No rating, the board at a quarter of full drive and capped at half:
+    // 0.5 × 20 mA = 10 mA is the most it drives now; 47 Ω runs 0.25 ×
+    // 2 V / 47 Ω = 10.6 mA: refused. 220k keeps 0.25 × 20 = 5 mA.
     let mut m = measured(0.5, 0.005);
-    m.max_drive_ma = Some(40.0);
+    (m.led_drive, m.max_drive) = (Some(0.25), Some(0.5));
     let a = advise(&tia_100k(""), &m).unwrap();
     assert_eq!(
         a.refused[0].reason,
-        "LED current 42.6 mA is above the board's most drive 40 mA"
+        "LED current 10.6 mA is above the board's most drive 10 mA"
     );
-    assert!(a.suggestions.iter().all(|s| s.led_ma <= 40.0));
+    assert_eq!(a.suggestions[0].to_ohm, 220e3);
+    assert!((a.suggestions[0].led_ma - 5.0).abs() < 1e-9);
 }
 
 #[test]
@@ -246,8 +245,14 @@ fn inputs_that_do_not_fit_name_the_parameter() {
         "pulse_share is NaN: it must be a share of the ADC range, 0 to 1"
     );
     let mut m = measured(0.5, 0.01);
-    m.max_drive_ma = Some(0.0);
-    assert_eq!(advise(&c, &m), Err(AdviceError::MaxDrive(0.0)));
+    m.max_drive = Some(0.0);
+    assert_eq!(
+        advise(&c, &m),
+        Err(AdviceError::Drive {
+            parameter: "max_drive",
+            value: 0.0
+        })
+    );
     // AC-coupled to a 1.65 V bias: 50 %; 80 % cannot come from it.
     let e = advise(&c, &measured(0.8, 0.01)).unwrap_err();
     assert!(

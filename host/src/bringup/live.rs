@@ -1,0 +1,337 @@
+//! The bring-up checks, live: fed what `plethwire listen` decodes (the
+//! hello, the sample blocks, the status frames), [`LiveChecks`] keeps the
+//! last [`WINDOW_S`] of input samples and the LED drive's history, and
+//! once every [`REPORT_EVERY_S`] of samples gives a [`Report`]: the seven
+//! checks, the gauges and, with a circuit file, the advice that names the
+//! part (`frontend::advice`).
+//!
+//! The ADC range is decided from what the board says, never guessed
+//! ([`report`]): a real ADC of `adc_bits` bits reads the ambient-cancelled
+//! input `−(on − off)` in codes from 0 to 2^bits − 1; the emulated board
+//! (no ADC, a recording fed through it) has only the hello's rails, and
+//! with none the checks that need a range say they cannot be made.
+//!
+//! Time is the board's sample numbers, not the wall clock, so a report
+//! comes once a second of input at the live rate and the same stream
+//! always gives the same reports.
+
+mod fit;
+mod report;
+#[cfg(test)]
+mod tests;
+
+pub use fit::{circuit_mismatch, MISMATCH_NOTE};
+pub use report::{CheckLine, Gauges, Report, CHECK_NAMES};
+
+use std::collections::VecDeque;
+
+use crate::frontend::Circuit;
+use crate::listen::Event;
+use plethwire_dsp::wire::{Hello, SampleBlock, Status};
+
+/// Seconds of samples the checks look back on.
+pub const WINDOW_S: f64 = 10.0;
+/// Seconds of samples between two reports.
+pub const REPORT_EVERY_S: f64 = 1.0;
+/// A gap in the samples (lost frames) up to this long is bridged by
+/// holding the last value; a longer one starts the window afresh.
+pub const BRIDGE_S: f64 = 1.0;
+/// Status bit of a measured LED drive (wire format version 2).
+pub const MEASURED_LED_DRIVE: u8 = 0;
+/// Status bit of a measured DC level.
+pub const MEASURED_DC_LEVEL: u8 = 1;
+/// Status bit of a measured ambient (LED-off) level.
+pub const MEASURED_AMBIENT: u8 = 2;
+
+/// What the board's hello says about its input.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct BoardInfo {
+    /// Input sample rate, Hz.
+    pub rate_hz: Option<f64>,
+    /// The input's rails `(low, high)` in input units, when known.
+    pub rails: Option<(f64, f64)>,
+    /// Bits of its ADC: `Some(0)` no ADC (the emulated board), `None` not
+    /// said (a board of wire format version 1).
+    pub adc_bits: Option<u8>,
+}
+
+impl BoardInfo {
+    /// From a hello.
+    pub fn of(h: &Hello) -> BoardInfo {
+        BoardInfo {
+            rate_hz: Some(f64::from(h.sample_rate_hz)),
+            rails: h
+                .options
+                .rails
+                .map(|(lo, hi)| (f64::from(lo), f64::from(hi))),
+            adc_bits: adc_bits(h),
+        }
+    }
+}
+
+/// What one status frame measured; `None` where the board did not
+/// measure it.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct Levels {
+    /// LED drive, share of full drive (0 to 1).
+    pub led_drive: Option<f64>,
+    /// DC level of the LED-on reading, share of ADC full scale.
+    pub dc_level: Option<f64>,
+    /// The LED-off reading's slow average, share of ADC full scale.
+    pub ambient_level: Option<f64>,
+}
+
+impl Levels {
+    /// From a status frame, each field only where its measured bit is set.
+    pub fn of(s: &Status) -> Levels {
+        let when = |bit, v: f64| measured(s, bit).then_some(v);
+        Levels {
+            led_drive: when(MEASURED_LED_DRIVE, f64::from(s.led_drive) / 65_535.0),
+            dc_level: when(MEASURED_DC_LEVEL, f64::from(s.dc_level)),
+            ambient_level: when(MEASURED_AMBIENT, ambient_level(s)),
+        }
+    }
+}
+
+// The fields wire format version 2 adds, read here only, so its merge
+// changes one line each (the shared contract of issue 11).
+
+/// The hello's ADC width; version 1 does not say it.
+fn adc_bits(_h: &Hello) -> Option<u8> {
+    None
+}
+
+/// Input samples between two block samples; version 1 sends every one.
+fn stride(_b: &SampleBlock) -> u64 {
+    1
+}
+
+/// Whether the status measured a field; version 1 always sends the LED
+/// drive and DC level, never the ambient level.
+fn measured(_s: &Status, bit: u8) -> bool {
+    bit != MEASURED_AMBIENT
+}
+
+/// The status's ambient level; version 1 has none.
+fn ambient_level(_s: &Status) -> f64 {
+    0.0
+}
+
+/// The samples of the last [`WINDOW_S`], at the block rate.
+#[derive(Clone, Debug, Default)]
+struct Window {
+    raw: VecDeque<f64>,
+    /// Input sample number after the newest sample, and the stride.
+    next: Option<(i64, u64)>,
+    rate_hz: f64,
+}
+
+impl Window {
+    fn capacity(&self, stride: u64) -> usize {
+        (WINDOW_S * self.rate_hz / stride as f64).ceil() as usize
+    }
+
+    /// Adds `raw` from input sample `start`, every `stride`-th input
+    /// sample; bridges short gaps, starts afresh after long ones, a
+    /// restart or a new rate.
+    fn push(&mut self, start: i64, raw: &[f32], stride: u64, rate_hz: f64) {
+        let bridge = (BRIDGE_S * rate_hz) as i64;
+        match self.next {
+            Some((next, s)) if s == stride && rate_hz == self.rate_hz => {
+                let gap = start - next;
+                if !(0..=bridge).contains(&gap) {
+                    self.raw.clear();
+                } else if let Some(&last) = self.raw.back() {
+                    let held = gap as u64 / stride;
+                    self.raw.extend(std::iter::repeat_n(last, held as usize));
+                }
+            }
+            _ => self.raw.clear(),
+        }
+        self.rate_hz = rate_hz;
+        for &v in raw {
+            // A non-finite sample is held at the last good one, as the
+            // pipeline does.
+            let v = f64::from(v);
+            match (v.is_finite(), self.raw.back()) {
+                (true, _) => self.raw.push_back(v),
+                (false, Some(&last)) => self.raw.push_back(last),
+                (false, None) => {}
+            }
+        }
+        let end = start + (raw.len() as u64 * stride) as i64;
+        self.next = Some((end, stride));
+        let cap = self.capacity(stride);
+        while self.raw.len() > cap {
+            self.raw.pop_front();
+        }
+    }
+
+    /// The block rate, Hz.
+    fn block_rate(&self) -> f64 {
+        self.rate_hz / self.next.map_or(1, |(_, s)| s) as f64
+    }
+}
+
+/// One LED drive seen, at an input sample number.
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct DriveSeen {
+    at: i64,
+    drive: f64,
+}
+
+/// The live checks of one listening session.
+#[derive(Debug)]
+pub struct LiveChecks {
+    board: BoardInfo,
+    window: Window,
+    levels: Option<Levels>,
+    /// The drive's changes (and the first drive seen), oldest first.
+    drives: Vec<DriveSeen>,
+    circuit: Option<Circuit>,
+    max_drive: Option<f64>,
+    next_report: Option<i64>,
+    latest: Option<Report>,
+}
+
+impl LiveChecks {
+    /// Checks with no circuit: no advice.
+    pub fn new() -> LiveChecks {
+        LiveChecks {
+            board: BoardInfo::default(),
+            window: Window::default(),
+            levels: None,
+            drives: Vec::new(),
+            circuit: None,
+            max_drive: None,
+            next_report: None,
+            latest: None,
+        }
+    }
+
+    /// Checks that give advice through `circuit` (the circuit file), with
+    /// the board's cap on its LED drive, share of full drive
+    /// (`ExposureConfig::max_drive`), when known.
+    pub fn with_circuit(circuit: Circuit, max_drive: Option<f64>) -> LiveChecks {
+        LiveChecks {
+            circuit: Some(circuit),
+            max_drive,
+            ..LiveChecks::new()
+        }
+    }
+
+    /// Takes one event of `listen`; returns a report when one is due.
+    pub fn event(&mut self, event: &Event) -> Option<Report> {
+        match event {
+            Event::Hello(h) => {
+                self.board(BoardInfo::of(h));
+                None
+            }
+            Event::Status { status, .. } => {
+                self.status(Levels::of(status));
+                None
+            }
+            Event::Samples {
+                start,
+                block,
+                rate_hz,
+            } => {
+                let n = usize::from(block.count).min(block.raw.len());
+                self.samples(*start, &block.raw[..n], stride(block), *rate_hz)
+            }
+            _ => None,
+        }
+    }
+
+    /// What the board's hello said.
+    pub fn board(&mut self, info: BoardInfo) {
+        self.board = info;
+    }
+
+    /// What a status frame measured, at the newest sample.
+    pub fn status(&mut self, levels: Levels) {
+        if let Some(drive) = levels.led_drive {
+            let at = self.window.next.map_or(0, |(at, _)| at);
+            if self.drives.last().is_none_or(|d| d.drive != drive) {
+                self.drives.push(DriveSeen { at, drive });
+            }
+            // Only the change before the window and those in it matter.
+            let from = at - (WINDOW_S * self.window.rate_hz) as i64;
+            let old = self.drives.iter().filter(|d| d.at < from).count();
+            self.drives.drain(..old.saturating_sub(1));
+        }
+        self.levels = Some(levels);
+    }
+
+    /// Input samples `raw` from record sample `start`, one every `stride`
+    /// input samples at `rate_hz`; returns a report when one is due.
+    pub fn samples(&mut self, start: i64, raw: &[f32], stride: u64, rate_hz: f64) -> Option<Report> {
+        if raw.is_empty() || !(rate_hz > 0.0) {
+            return None;
+        }
+        let stride = stride.max(1);
+        self.window.push(start, raw, stride, rate_hz);
+        let (end, _) = self.window.next?;
+        let every = (REPORT_EVERY_S * rate_hz).round() as i64;
+        let due = *self.next_report.get_or_insert(start + every);
+        if end < due && end >= due - 2 * every {
+            return None;
+        }
+        self.next_report = Some(end + every);
+        let report = self.report(end);
+        self.latest = Some(report.clone());
+        Some(report)
+    }
+
+    /// The latest report, if any.
+    pub fn latest(&self) -> Option<&Report> {
+        self.latest.as_ref()
+    }
+
+    fn report(&self, end: i64) -> Report {
+        let samples: Vec<f64> = self.window.raw.iter().copied().collect();
+        let rate = self.window.block_rate();
+        let facts = report::Facts {
+            samples: &samples,
+            rate_hz: rate,
+            end_s: end as f64 / self.window.rate_hz,
+            board: self.board,
+            levels: self.levels.unwrap_or_default(),
+            settling: self.settling_series(end, rate),
+        };
+        let mut r = Report::of(&facts);
+        if let Some(c) = &self.circuit {
+            r.advice = fit::advice(c, &self.board, &r.gauges, self.max_drive);
+            r.mismatch = circuit_mismatch(c, &self.board);
+        }
+        r
+    }
+
+    /// The LED drive held between the status frames, at the block rate,
+    /// from the first drive seen (or the window's start) to `end`.
+    fn settling_series(&self, end: i64, rate: f64) -> Vec<f64> {
+        let Some(first) = self.drives.first() else {
+            return Vec::new();
+        };
+        let step = (self.window.rate_hz / rate).max(1.0) as i64;
+        let from = first
+            .at
+            .max(end - (WINDOW_S * self.window.rate_hz) as i64 - step);
+        let mut k = 0;
+        (0..=(end - from) / step)
+            .map(|i| {
+                let at = from + i * step;
+                while k + 1 < self.drives.len() && self.drives[k + 1].at <= at {
+                    k += 1;
+                }
+                self.drives[k].drive
+            })
+            .collect()
+    }
+}
+
+impl Default for LiveChecks {
+    fn default() -> Self {
+        LiveChecks::new()
+    }
+}
