@@ -14,6 +14,8 @@ use plethwire::listen::{
     record_name, run, session_files, Capture, Ending, Event, ListenError, NeverCause, Progress,
     Recorder, Screen, SerialConnector, Session, Settings, Setup, Sink,
 };
+use plethwire::bringup::live::LiveChecks;
+use plethwire::frontend::Draft;
 use plethwire::replay::DEFAULT_ANNOTATOR;
 
 const EXAMPLES: &str = "\
@@ -25,6 +27,13 @@ Examples:
   plethwire listen --port /dev/ttyACM0
   plethwire listen --port /dev/serial/by-id/usb-board --out recordings --name finger_rest
   plethwire listen --port /dev/ttyUSB0 --baud 230400 --seconds 300 --json > session.jsonl
+  plethwire listen --port /dev/ttyACM0 --circuit examples/frontend-fingerclip.toml --max-drive 0.5
+
+Once a second the bring-up checks run over the last 10 s of samples
+(perfusion, pulse bits, SNR, hum, clipping, ambient, settling); text shows
+them when a verdict changes and every 10 s, --json as `checks` lines. With
+--circuit they go through the front-end model and name the part to change,
+never above the LED's rating or the board's --max-drive.
 
 Writes, in --out: NAME.pwire (WFDB annotations, symbol N at each beat's
 peak), NAME.hea/NAME.dat (format-16 WFDB record of the raw and filtered
@@ -74,6 +83,21 @@ pub struct ListenArgs {
     /// Print JSON Lines (one object per event) instead of text.
     #[arg(long)]
     pub json: bool,
+
+    /// Circuit file (as `plethwire frontend` reads) for advice that names the part to change.
+    #[arg(long, value_name = "FILE")]
+    pub circuit: Option<PathBuf>,
+
+    /// The board's cap on its LED drive, share of full drive (its ExposureConfig::max_drive).
+    #[arg(long, value_name = "SHARE", requires = "circuit", value_parser = parse_share)]
+    pub max_drive: Option<f64>,
+}
+
+fn parse_share(s: &str) -> Result<f64, String> {
+    match s.parse::<f64>() {
+        Ok(v) if v > 0.0 && v <= 1.0 => Ok(v),
+        _ => Err("expected a share of full drive, above 0 and at most 1, such as 0.5".into()),
+    }
 }
 
 fn parse_name(s: &str) -> Result<String, String> {
@@ -115,18 +139,22 @@ fn want_colour(json: bool) -> bool {
         && std::env::var("TERM").map_or(true, |t| t != "dumb")
 }
 
-/// Events to the recorder first, then the screen; remembers which failed.
+/// Events to the recorder first, then the screen and the live checks
+/// (their reports to the screen); remembers which failed.
 struct Tee<'a, 'b> {
     capture: &'a mut Capture,
     screen: &'a mut Screen<'b>,
+    checks: LiveChecks,
     screen_failed: bool,
 }
 
 impl Sink for Tee<'_, '_> {
     fn event(&mut self, event: &Event) -> io::Result<()> {
         self.capture.event(event)?;
+        let report = self.checks.event(event);
         self.screen
             .event(event)
+            .and_then(|()| report.map_or(Ok(()), |r| self.screen.checks(&r)))
             .inspect_err(|_| self.screen_failed = true)
     }
 
@@ -136,6 +164,17 @@ impl Sink for Tee<'_, '_> {
 }
 
 impl ListenArgs {
+    /// The live checks, through the circuit file when one is given.
+    fn live_checks(&self) -> Result<LiveChecks, Failure> {
+        let Some(path) = &self.circuit else {
+            return Ok(LiveChecks::new());
+        };
+        let circuit = Draft::load(path)
+            .and_then(|d| d.resolve())
+            .map_err(Failure::refused)?;
+        Ok(LiveChecks::with_circuit(circuit, self.max_drive))
+    }
+
     fn settings(&self) -> Settings {
         Settings {
             retry_every: Duration::from_millis(500),
@@ -161,6 +200,7 @@ impl ListenArgs {
                 f.display()
             )));
         }
+        let checks = self.live_checks()?;
         install_stop_handler()?;
         let settings = self.settings();
         let setup = Setup {
@@ -186,6 +226,7 @@ impl ListenArgs {
         let mut tee = Tee {
             capture: &mut capture,
             screen: &mut screen,
+            checks,
             screen_failed: false,
         };
         let result = run(&mut connector, &mut session, &mut tee, &settings, &STOP);

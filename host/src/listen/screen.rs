@@ -10,6 +10,20 @@ use super::json;
 use super::link::Settings;
 use super::summary::{Setup, Summary};
 use super::text::{self, Look};
+use crate::bringup::live::Report;
+use crate::bringup::Verdict;
+
+/// The text view prints the live checks when a verdict changes, and
+/// otherwise at most this often (s of samples).
+pub const CHECKS_EVERY_S: f64 = 10.0;
+
+/// What the text view last printed of the live checks.
+#[derive(Debug, Default)]
+struct ChecksShown {
+    verdicts: Vec<Verdict>,
+    at_s: Option<f64>,
+    mismatch: Option<String>,
+}
 
 /// The cautions, as printed at the start of every session.
 pub const CAUTION: [&str; 2] = [
@@ -22,6 +36,7 @@ pub struct Screen<'a> {
     out: &'a mut dyn Write,
     json: bool,
     look: Look,
+    shown: ChecksShown,
 }
 
 #[derive(Serialize)]
@@ -50,6 +65,7 @@ impl<'a> Screen<'a> {
                 retry_every_s: settings.retry_every.as_secs_f64(),
                 give_up_after_s: settings.give_up_after.as_secs_f64(),
             },
+            shown: ChecksShown::default(),
         }
     }
 
@@ -84,6 +100,37 @@ impl<'a> Screen<'a> {
             setup.port,
             setup.baud
         ))
+    }
+
+    /// A report of the live checks: in JSON every one, in text a compact
+    /// line and the advice when a verdict changed or [`CHECKS_EVERY_S`]
+    /// have passed; a circuit file that does not fit the board is said
+    /// once, as a note.
+    pub fn checks(&mut self, r: &Report) -> io::Result<()> {
+        if r.mismatch.is_some() && r.mismatch != self.shown.mismatch {
+            self.shown.mismatch = r.mismatch.clone();
+            self.event(&Event::Notice(r.mismatch.clone().unwrap_or_default()))?;
+        }
+        if self.json {
+            return match json::checks(r) {
+                Some(line) => self.put(&line),
+                None => Ok(()),
+            };
+        }
+        let verdicts: Vec<Verdict> = r.checks.iter().map(|c| c.verdict).collect();
+        let due = self.shown.at_s.is_none_or(|at| {
+            !(at..at + CHECKS_EVERY_S).contains(&r.time_s) || verdicts != self.shown.verdicts
+        });
+        if !due {
+            return Ok(());
+        }
+        self.shown.verdicts = verdicts;
+        self.shown.at_s = Some(r.time_s);
+        self.put(&text::checks(r, &self.look))?;
+        for a in &r.advice {
+            self.put(&format!("advice   {a}"))?;
+        }
+        Ok(())
     }
 
     /// The end of the session: its summary.

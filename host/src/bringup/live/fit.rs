@@ -56,7 +56,11 @@ pub(super) fn advice(
         dc_share: dc.clamp(0.0, 1.0),
         pulse_share: pulse.clamp(0.0, 1.0),
         clipped_share: g.clipped.unwrap_or(0.0).clamp(0.0, 1.0),
-        led_drive: g.led_drive.filter(|d| *d > 0.0 && *d <= 1.0),
+        led_drive: g.led_drive.filter(|d| *d > 0.0 && *d <= 1.0).map(|d| match max_drive {
+            // A board at its cap reports it rounded to 1/65535.
+            Some(max) if d > max && d - max <= 1.0 / 65_535.0 => max,
+            _ => d,
+        }),
         max_drive,
     };
     let a = match advise(circuit, &m) {
