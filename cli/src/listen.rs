@@ -10,12 +10,12 @@ use std::sync::Once;
 use std::time::{Duration, SystemTime};
 
 use super::Failure;
+use plethwire::bringup::live::LiveChecks;
+use plethwire::frontend::Draft;
 use plethwire::listen::{
     record_name, run, session_files, Capture, Ending, Event, ListenError, NeverCause, Progress,
     Recorder, Screen, SerialConnector, Session, Settings, Setup, Sink,
 };
-use plethwire::bringup::live::LiveChecks;
-use plethwire::frontend::Draft;
 use plethwire::replay::DEFAULT_ANNOTATOR;
 
 const EXAMPLES: &str = "\

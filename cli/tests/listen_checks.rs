@@ -104,7 +104,15 @@ fn json_checks_carry_the_seven_checks_gauges_and_advice() {
         .collect();
     assert_eq!(
         names,
-        ["perfusion", "pulse_bits", "snr", "hum", "clipping", "ambient", "settling"]
+        [
+            "perfusion",
+            "pulse_bits",
+            "snr",
+            "hum",
+            "clipping",
+            "ambient",
+            "settling"
+        ]
     );
     let verdict = |name: &str| {
         last["checks"]
@@ -153,7 +161,10 @@ fn a_circuit_of_another_adc_width_is_warned_once_and_gives_no_advice() {
     let checks: Vec<&Value> = values.iter().filter(|v| v["event"] == "checks").collect();
     assert!(!checks.is_empty());
     for c in checks {
-        assert_eq!(c["advice"], serde_json::json!([format!("no advice: {why}")]));
+        assert_eq!(
+            c["advice"],
+            serde_json::json!([format!("no advice: {why}")])
+        );
         assert_eq!(c["mismatch"], why);
     }
 }
@@ -169,13 +180,14 @@ fn text_shows_a_checks_line_and_the_advice() {
     // at 2 s).
     assert!(!checks.is_empty() && checks.len() < 8, "{text}");
     assert!(
-        checks[0].contains("pulse bits 4.6 borderline") && checks[0].contains("ambient - not measurable"),
+        checks[0].contains("pulse bits 4.6 borderline")
+            && checks[0].contains("ambient - not measurable"),
         "{text}"
     );
     assert!(
-        lines
-            .iter()
-            .any(|l| l.starts_with("advice   pulse is 0.6 % of the ADC range: stage 2 feedback resistor 22 kΩ → 39 kΩ")),
+        lines.iter().any(|l| l.starts_with(
+            "advice   pulse is 0.6 % of the ADC range: stage 2 feedback resistor 22 kΩ → 39 kΩ"
+        )),
         "{text}"
     );
 }

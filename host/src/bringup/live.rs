@@ -6,7 +6,7 @@
 //! part (`frontend::advice`).
 //!
 //! The ADC range is decided from what the board says, never guessed
-//! ([`report`]): a real ADC of `adc_bits` bits reads the ambient-cancelled
+//! (`report.rs`): a real ADC of `adc_bits` bits reads the ambient-cancelled
 //! input `−(on − off)` in codes from 0 to 2^bits − 1; the emulated board
 //! (no ADC, a recording fed through it) has only the hello's rails, and
 //! with none the checks that need a range say they cannot be made.
@@ -265,8 +265,14 @@ impl LiveChecks {
 
     /// Input samples `raw` from record sample `start`, one every `stride`
     /// input samples at `rate_hz`; returns a report when one is due.
-    pub fn samples(&mut self, start: i64, raw: &[f32], stride: u64, rate_hz: f64) -> Option<Report> {
-        if raw.is_empty() || !(rate_hz > 0.0) {
+    pub fn samples(
+        &mut self,
+        start: i64,
+        raw: &[f32],
+        stride: u64,
+        rate_hz: f64,
+    ) -> Option<Report> {
+        if raw.is_empty() || !rate_hz.is_finite() || rate_hz <= 0.0 {
             return None;
         }
         let stride = stride.max(1);

@@ -240,7 +240,8 @@ fn band_bins_and_parseval_equal_the_whole_periodogram() {
         let x: Vec<f64> = (0..n)
             .map(|i| {
                 let t = i as f64 / 50.0;
-                3.0 + (2.0 * PI * 1.1 * t).sin() + 0.3 * (2.0 * PI * 7.0 * t).cos()
+                3.0 + (2.0 * PI * 1.1 * t).sin()
+                    + 0.3 * (2.0 * PI * 7.0 * t).cos()
                     + 0.01 * ((i * 7919) % 13) as f64
             })
             .collect();

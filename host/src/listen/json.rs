@@ -3,8 +3,8 @@
 use serde::Serialize;
 
 use super::event::Event;
-use crate::bringup::live::Report;
 use super::fields::{HelloFields, LinkFields, StatusFields};
+use crate::bringup::live::Report;
 use crate::vocabulary::flag_list;
 
 #[derive(Serialize)]

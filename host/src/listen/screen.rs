@@ -199,3 +199,53 @@ impl Sink for Screen<'_> {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::bringup::live::{BoardInfo, LiveChecks};
+
+    #[test]
+    fn text_shows_checks_on_a_change_and_every_10_s_json_every_report() {
+        // 25 s of a steady pulse on a board whose rails are known: the
+        // verdicts change as the 8 s of the spectral checks fill and when
+        // the window holds only the flat line that follows 12 s of pulse;
+        // otherwise a line every 10 s. Reports come every 256 samples.
+        let mut live = LiveChecks::new();
+        live.board(BoardInfo {
+            rate_hz: Some(250.0),
+            rails: Some((0.0, 4095.0)),
+            adc_bits: None,
+        });
+        let mut reports = Vec::new();
+        for b in (0..25 * 250).step_by(16) {
+            let raw: Vec<f32> = (b..b + 16)
+                .map(|i| {
+                    let pulse = if i < 12 * 250 { 300.0 } else { 0.0 };
+                    (2000.0 + pulse * (i as f64 * 0.03).sin()).round() as f32
+                })
+                .collect();
+            reports.extend(live.samples(b as i64, &raw, 1, 250.0));
+        }
+        let shown = |json: bool| {
+            let mut out = Vec::new();
+            let mut screen = Screen::new(&mut out, json, false, &Settings::default());
+            for r in &reports {
+                screen.checks(r).unwrap();
+            }
+            drop(screen);
+            String::from_utf8(out).unwrap()
+        };
+        assert_eq!(shown(true).lines().count(), reports.len());
+        let text = shown(false);
+        let times: Vec<f64> = text
+            .lines()
+            .map(|l| l.split_whitespace().nth(1).unwrap().parse().unwrap())
+            .collect();
+        // 1 s first; 8.2 s the SNR and hum (clear); 18.4 s the first
+        // report 10 s on; by 22.5 s the window is flat: trouble.
+        assert_eq!(&times[..3], &[1.0, 8.2, 18.4], "{text}");
+        assert!(times.len() < reports.len() / 2, "{text}");
+        assert!(text.contains("trouble"), "{text}");
+    }
+}

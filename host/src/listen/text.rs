@@ -125,15 +125,20 @@ pub fn checks(r: &Report, look: &Look) -> String {
         .iter()
         .map(|c| {
             let (scale, decimals, u) = unit(c.name);
-            let value = c.value.map_or("-".to_string(), |v| format!("{:.decimals$}{u}", v * scale));
+            let value = c
+                .value
+                .map_or("-".to_string(), |v| format!("{:.decimals$}{u}", v * scale));
             format!("{} {value} {}", words(c.name), c.verdict.name())
         })
         .collect();
-    let tone = r.checks.iter().fold(Tone::Plain, |t, c| match (t, c.verdict) {
-        (_, Verdict::Trouble) | (Tone::Bad, _) => Tone::Bad,
-        (_, Verdict::Borderline) | (Tone::Warn, _) => Tone::Warn,
-        (t, _) => t,
-    });
+    let tone = r
+        .checks
+        .iter()
+        .fold(Tone::Plain, |t, c| match (t, c.verdict) {
+            (_, Verdict::Trouble) | (Tone::Bad, _) => Tone::Bad,
+            (_, Verdict::Borderline) | (Tone::Warn, _) => Tone::Warn,
+            (t, _) => t,
+        });
     paint(
         look,
         tone,

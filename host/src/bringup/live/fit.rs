@@ -49,18 +49,22 @@ pub(super) fn advice(
         return vec![format!("no advice: {why}")];
     }
     let (Some(dc), Some(pulse)) = (g.dc, g.pulse_share) else {
-        return vec!["no advice: the DC level and the pulse against the ADC range are not known"
-            .to_string()];
+        return vec![
+            "no advice: the DC level and the pulse against the ADC range are not known".to_string(),
+        ];
     };
     let m = Measured {
         dc_share: dc.clamp(0.0, 1.0),
         pulse_share: pulse.clamp(0.0, 1.0),
         clipped_share: g.clipped.unwrap_or(0.0).clamp(0.0, 1.0),
-        led_drive: g.led_drive.filter(|d| *d > 0.0 && *d <= 1.0).map(|d| match max_drive {
-            // A board at its cap reports it rounded to 1/65535.
-            Some(max) if d > max && d - max <= 1.0 / 65_535.0 => max,
-            _ => d,
-        }),
+        led_drive: g
+            .led_drive
+            .filter(|d| *d > 0.0 && *d <= 1.0)
+            .map(|d| match max_drive {
+                // A board at its cap reports it rounded to 1/65535.
+                Some(max) if d > max && d - max <= 1.0 / 65_535.0 => max,
+                _ => d,
+            }),
         max_drive,
     };
     let a = match advise(circuit, &m) {
@@ -75,13 +79,10 @@ pub(super) fn advice(
             m.dc_share * 100.0
         ));
     }
-    lines.extend(a.refused.iter().map(|r| {
-        format!(
-            "not {} → {}: {}",
-            r.part,
-            si(r.to_ohm, "Ω"),
-            r.reason
-        )
-    }));
+    lines.extend(
+        a.refused
+            .iter()
+            .map(|r| format!("not {} → {}: {}", r.part, si(r.to_ohm, "Ω"), r.reason)),
+    );
     lines
 }

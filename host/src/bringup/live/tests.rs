@@ -130,7 +130,10 @@ fn a_bench_board_with_a_weak_pulse_and_some_hum() {
     let codes = g.pulse_codes.unwrap();
     assert!((24.5..=29.6).contains(&codes), "{codes}");
     assert!((g.pulse_share.unwrap() - codes / 4095.0).abs() < 1e-12);
-    assert_eq!((g.dc, g.ambient, g.led_drive), (Some(0.5), Some(0.02), Some(0.4)));
+    assert_eq!(
+        (g.dc, g.ambient, g.led_drive),
+        (Some(0.5), Some(0.02), Some(0.4))
+    );
     assert_eq!(r.range, "12-bit ADC, 0 to 4095 codes");
     assert!(r.advice.is_empty() && r.mismatch.is_none());
 }
@@ -141,11 +144,18 @@ fn reports_come_once_a_second_and_spectra_wait_for_8_s() {
     c.board(bench(12));
     let reports = feed(&mut c, 0, 10.0, &pulse(2000.0, 200.0));
     // Blocks end every 16 samples; one ends at or after every 250.
-    assert_eq!(reports.len(), 9, "{:?}", reports.iter().map(|r| r.time_s).collect::<Vec<_>>());
+    assert_eq!(
+        reports.len(),
+        9,
+        "{:?}",
+        reports.iter().map(|r| r.time_s).collect::<Vec<_>>()
+    );
     assert!((reports[0].time_s - 256.0 / RATE).abs() < 1e-12);
     let early = &reports[2];
     assert_eq!(check(early, "snr").verdict, Verdict::NotMeasurable);
-    assert!(check(early, "snr").message.starts_with("needs 8 s of samples, has 3.1 s"));
+    assert!(check(early, "snr")
+        .message
+        .starts_with("needs 8 s of samples, has 3.1 s"));
     assert_eq!(check(&reports[8], "snr").verdict, Verdict::Clear);
     // No status yet: nothing known of the LED.
     assert_eq!(check(early, "settling").verdict, Verdict::NotMeasurable);
@@ -159,7 +169,9 @@ fn a_drive_that_just_changed_is_still_settling() {
     c.status(levels(0.25, 0.5, None));
     feed(&mut c, 0, 9.0, &pulse(2000.0, 200.0));
     c.status(levels(0.3125, 0.5, None));
-    let r = feed(&mut c, 2256, 1.5, &pulse(2000.0, 200.0)).pop().unwrap();
+    let r = feed(&mut c, 2256, 1.5, &pulse(2000.0, 200.0))
+        .pop()
+        .unwrap();
     // The change at sample 2256, the report at 2560: 1.216 s.
     let s = check(&r, "settling");
     assert_eq!(s.verdict, Verdict::Borderline, "{s:?}");
@@ -201,7 +213,9 @@ fn listen_events_of_wire_format_1_feed_the_checks() {
     let f = pulse(2000.0, 100.0);
     let mut last = None;
     for b in (0..3000u64).step_by(16).filter(|b| *b != 1600) {
-        let raw: Vec<f32> = (b..b + 16).map(|i| f(i as f64 / RATE).round() as f32).collect();
+        let raw: Vec<f32> = (b..b + 16)
+            .map(|i| f(i as f64 / RATE).round() as f32)
+            .collect();
         let e = Event::Samples {
             start: b as i64,
             block: sample_block(b, &raw),
@@ -212,7 +226,9 @@ fn listen_events_of_wire_format_1_feed_the_checks() {
     let r = last.unwrap();
     assert_eq!(c.latest(), Some(&r));
     assert!((r.window_s - WINDOW_S).abs() < 1e-9, "{}", r.window_s);
-    assert!(r.range.starts_with("the board's rails 0 to 4095 (the board does not say its ADC width)"));
+    assert!(r
+        .range
+        .starts_with("the board's rails 0 to 4095 (the board does not say its ADC width)"));
     // Whole codes: one step is 1, so 100 codes are 6.6 bits.
     let bits = check(&r, "pulse_bits").value.unwrap();
     assert!((bits - 100f64.log2()).abs() < 0.01, "{bits}");
@@ -249,7 +265,9 @@ fn a_small_pulse_asks_for_a_larger_feedback_resistor() {
     let mut c = LiveChecks::with_circuit(tia_100k("rated_ma = 30"), None);
     c.board(bench(12));
     c.status(levels(0.5, 0.5, Some(0.01)));
-    let r = feed(&mut c, 0, 10.0, &pulse(2000.0, 0.005 * 4095.0)).pop().unwrap();
+    let r = feed(&mut c, 0, 10.0, &pulse(2000.0, 0.005 * 4095.0))
+        .pop()
+        .unwrap();
     assert_eq!(
         r.advice,
         [
@@ -270,8 +288,13 @@ fn the_boards_max_drive_is_a_limit_in_ma() {
     let mut c = LiveChecks::with_circuit(tia_100k(""), Some(0.5));
     c.board(bench(12));
     c.status(levels(0.25, 0.5, None));
-    let r = feed(&mut c, 0, 10.0, &pulse(2000.0, 0.005 * 4095.0)).pop().unwrap();
-    assert!(r.advice[0].contains("100 kΩ → 220 kΩ") && r.advice[0].contains("LED 5 mA"), "{r:#?}");
+    let r = feed(&mut c, 0, 10.0, &pulse(2000.0, 0.005 * 4095.0))
+        .pop()
+        .unwrap();
+    assert!(
+        r.advice[0].contains("100 kΩ → 220 kΩ") && r.advice[0].contains("LED 5 mA"),
+        "{r:#?}"
+    );
     assert_eq!(
         r.advice[1],
         "not LED resistor → 47 Ω: LED current 10.6 mA is above the board's most drive 10 mA"
@@ -287,7 +310,9 @@ fn a_high_dc_asks_for_a_larger_led_resistor() {
     // 8.2k (12k, nearer, raises the DC): ×0.82, DC 75.4 %.
     let mut c = LiveChecks::with_circuit(phototransistor(), None);
     c.board(emulated_volts());
-    let r = feed(&mut c, 0, 10.0, &pulse(0.92 * 3.3, 0.03 * 3.3)).pop().unwrap();
+    let r = feed(&mut c, 0, 10.0, &pulse(0.92 * 3.3, 0.03 * 3.3))
+        .pop()
+        .unwrap();
     assert_eq!(r.advice.len(), 2, "{r:#?}");
     assert!(
         r.advice[0].starts_with(
@@ -306,7 +331,9 @@ fn a_pulse_near_the_rails_asks_for_less_gain() {
     // ×0.82. Both inside, both less light into the same gain.
     let mut c = LiveChecks::with_circuit(phototransistor(), None);
     c.board(emulated_volts());
-    let r = feed(&mut c, 0, 10.0, &pulse(0.6 * 3.3, 0.75 * 3.3)).pop().unwrap();
+    let r = feed(&mut c, 0, 10.0, &pulse(0.6 * 3.3, 0.75 * 3.3))
+        .pop()
+        .unwrap();
     assert!(
         r.advice[0].starts_with(
             "pulse is 75 % of the ADC range and reaches within 5.0 % of a rail: LED resistor \
