@@ -191,3 +191,30 @@ fn text_shows_a_checks_line_and_the_advice() {
         "{text}"
     );
 }
+
+#[test]
+fn a_bad_max_drive_or_circuit_file_is_refused_before_listening() {
+    let dir = tempfile::tempdir().unwrap();
+    let port = dir.path().join("no_board");
+    let run = |extra: &[&str]| {
+        std::process::Command::new(env!("CARGO_BIN_EXE_plethwire"))
+            .args(["listen", "--port", port.to_str().unwrap(), "--wait", "0"])
+            .args(extra)
+            .current_dir(dir.path())
+            .output()
+            .unwrap()
+    };
+    let circuit = example();
+    let bad = run(&["--circuit", circuit.to_str().unwrap(), "--max-drive", "1.5"]);
+    assert_eq!(bad.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&bad.stderr);
+    assert!(
+        err.contains("expected a share of full drive, above 0 and at most 1"),
+        "{err}"
+    );
+    let missing = dir.path().join("none.toml");
+    let gone = run(&["--circuit", missing.to_str().unwrap()]);
+    assert_eq!(gone.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&gone.stderr);
+    assert!(err.contains("none.toml"), "{err}");
+}

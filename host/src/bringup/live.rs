@@ -303,6 +303,7 @@ impl LiveChecks {
             end_s: end as f64 / self.window.rate_hz,
             board: self.board,
             levels: self.levels.unwrap_or_default(),
+            status_seen: self.levels.is_some(),
             settling: self.settling_series(end, rate),
         };
         let mut r = Report::of(&facts);

@@ -83,6 +83,8 @@ pub(super) struct Facts<'a> {
     pub end_s: f64,
     pub board: BoardInfo,
     pub levels: Levels,
+    /// Whether any status frame came.
+    pub status_seen: bool,
     /// The LED drive at each sample from the first one seen.
     pub settling: Vec<f64>,
 }
@@ -216,7 +218,7 @@ fn checks(f: &Facts, block: &Block, no_range: Option<&String>, g: &mut Gauges) -
         hum(block),
         clipping,
         ambient(&f.levels),
-        settling(&f.settling, f.rate_hz),
+        settling(&f.settling, f.rate_hz, f.status_seen),
     ]
 }
 
@@ -264,12 +266,14 @@ fn ambient(levels: &Levels) -> CheckLine {
     }
 }
 
-fn settling(series: &[f64], rate_hz: f64) -> CheckLine {
+fn settling(series: &[f64], rate_hz: f64, status_seen: bool) -> CheckLine {
     let Ok(s) = drive_settling(series, rate_hz, 0.0) else {
-        return not_measurable(
-            "settling",
-            "no LED drive from the board's status yet".into(),
-        );
+        let why = if status_seen {
+            "the board does not measure its LED drive"
+        } else {
+            "no status from the board yet"
+        };
+        return not_measurable("settling", why.into());
     };
     let steady = series.windows(2).all(|w| w[0] == w[1]);
     if !s.settled && steady {

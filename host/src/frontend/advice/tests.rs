@@ -260,3 +260,44 @@ fn inputs_that_do_not_fit_name_the_parameter() {
         "{e}"
     );
 }
+
+#[test]
+fn a_clipped_pulse_asks_for_less_light() {
+    // The DC-coupled 10 kΩ phototransistor: DC 60 %, a measured pulse of
+    // 30 % but 2 % of samples clipped, so the pulse is taken as reaching
+    // the nearer rail: 2 × (1 − 0.6) = 80 %, from 20 % to 100 %. LED
+    // 100 Ω → 120 Ω scales it by 100/120: 66.7 % about a DC of 50 %,
+    // 16.7 % to 83.3 %, inside 5 % of both ends.
+    let c = resolve(
+        r#"
+        [led]
+        supply_v = 3.3
+        forward_v = 1.35
+        resistor = "100"
+        [detector]
+        kind = "phototransistor"
+        load = "10k"
+        load_at = "emitter"
+        [adc]
+        reference_v = 3.3
+        [rails]
+        low_v = 0.0
+        high_v = 3.3
+        "#,
+    );
+    let mut m = measured(0.6, 0.3);
+    m.clipped_share = 0.02;
+    let a = advise(&c, &m).unwrap();
+    assert!(
+        matches!(a.problems[..], [Problem::PulseLarge(s)] if (s - 0.8).abs() < 1e-12),
+        "{a:?}"
+    );
+    let s = &a.suggestions[0];
+    assert_eq!((s.part.as_str(), s.to_ohm), ("LED resistor", 120.0));
+    assert!((s.pulse_share - 0.8 / 1.2).abs() < 1e-9 && (s.dc_share - 0.5).abs() < 1e-9);
+    assert!(a.lines()[0].starts_with(
+        "pulse is 80 % of the ADC range and reaches within 5.0 % of a rail: LED resistor"
+    ));
+    // Unclipped, the same 30 % about 60 % (45 % to 75 %) is fine.
+    assert!(advise(&c, &measured(0.6, 0.3)).unwrap().problems.is_empty());
+}
