@@ -79,6 +79,8 @@ pub struct Levels {
     pub dc_level: Option<f64>,
     /// The LED-off reading's slow average, share of ADC full scale.
     pub ambient_level: Option<f64>,
+    /// Readings at the ADC's rails since the board started.
+    pub clipped_samples: Option<u32>,
 }
 
 impl Levels {
@@ -89,6 +91,7 @@ impl Levels {
             led_drive: when(MEASURED_LED_DRIVE, f64::from(s.led_drive) / 65_535.0),
             dc_level: when(MEASURED_DC_LEVEL, f64::from(s.dc_level)),
             ambient_level: when(MEASURED_AMBIENT, ambient_level(s)),
+            clipped_samples: Some(s.clipped_samples),
         }
     }
 }
@@ -180,6 +183,12 @@ struct DriveSeen {
     drive: f64,
 }
 
+/// Keeps the entries from the last one before `from` on.
+fn keep_from<T>(list: &mut Vec<T>, from: i64, at: impl Fn(&T) -> i64) {
+    let old = list.iter().filter(|d| at(d) < from).count();
+    list.drain(..old.saturating_sub(1));
+}
+
 /// The live checks of one listening session.
 #[derive(Debug)]
 pub struct LiveChecks {
@@ -188,6 +197,8 @@ pub struct LiveChecks {
     levels: Option<Levels>,
     /// The drive's changes (and the first drive seen), oldest first.
     drives: Vec<DriveSeen>,
+    /// The board's count of clipped readings at each status.
+    clip_counts: Vec<(i64, u32)>,
     circuit: Option<Circuit>,
     max_drive: Option<f64>,
     next_report: Option<i64>,
@@ -202,6 +213,7 @@ impl LiveChecks {
             window: Window::default(),
             levels: None,
             drives: Vec::new(),
+            clip_counts: Vec::new(),
             circuit: None,
             max_drive: None,
             next_report: None,
@@ -250,17 +262,32 @@ impl LiveChecks {
 
     /// What a status frame measured, at the newest sample.
     pub fn status(&mut self, levels: Levels) {
+        let at = self.window.next.map_or(0, |(at, _)| at);
+        // Only the entry before the window and those in it matter.
+        let from = at - (WINDOW_S * self.window.rate_hz) as i64;
         if let Some(drive) = levels.led_drive {
-            let at = self.window.next.map_or(0, |(at, _)| at);
             if self.drives.last().is_none_or(|d| d.drive != drive) {
                 self.drives.push(DriveSeen { at, drive });
             }
-            // Only the change before the window and those in it matter.
-            let from = at - (WINDOW_S * self.window.rate_hz) as i64;
-            let old = self.drives.iter().filter(|d| d.at < from).count();
-            self.drives.drain(..old.saturating_sub(1));
+            keep_from(&mut self.drives, from, |d| d.at);
+        }
+        if let Some(n) = levels.clipped_samples {
+            // A count that fell: the board restarted.
+            if self.clip_counts.last().is_some_and(|(_, last)| n < *last) {
+                self.clip_counts.clear();
+            }
+            self.clip_counts.push((at, n));
+            keep_from(&mut self.clip_counts, from, |c| c.0);
         }
         self.levels = Some(levels);
+    }
+
+    /// The board's clipped share over the statuses of the window, when
+    /// they span at least a second.
+    fn board_clipped(&self) -> Option<f64> {
+        let (&(a, n0), &(b, n1)) = (self.clip_counts.first()?, self.clip_counts.last()?);
+        let span = b - a;
+        (span as f64 >= self.window.rate_hz).then(|| (f64::from(n1 - n0) / span as f64).min(1.0))
     }
 
     /// Input samples `raw` from record sample `start`, one every `stride`
@@ -304,6 +331,7 @@ impl LiveChecks {
             board: self.board,
             levels: self.levels.unwrap_or_default(),
             status_seen: self.levels.is_some(),
+            board_clipped: self.board_clipped(),
             settling: self.settling_series(end, rate),
         };
         let mut r = Report::of(&facts);

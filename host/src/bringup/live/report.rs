@@ -4,7 +4,7 @@
 use serde::Serialize;
 
 use super::super::ambient::ambient_share;
-use super::super::clipping::clipped_share;
+use super::super::clipping::{clipped_share, share_check};
 use super::super::hum::mains_hum;
 use super::super::perfusion::perfusion_index;
 use super::super::pulse_bits::pulse_bits;
@@ -85,6 +85,8 @@ pub(super) struct Facts<'a> {
     pub levels: Levels,
     /// Whether any status frame came.
     pub status_seen: bool,
+    /// The clipped share the board's own count gives, when known.
+    pub board_clipped: Option<f64>,
     /// The LED drive at each sample from the first one seen.
     pub settling: Vec<f64>,
 }
@@ -206,7 +208,18 @@ fn checks(f: &Facts, block: &Block, no_range: Option<&String>, g: &mut Gauges) -
         g.pulse_share = Some(pp / span);
         g.dc = Some(((block.mean() - adc.low()) / span).clamp(0.0, 1.0));
     }
-    let clipping = ranged("clipping", &|| clipped_share(block));
+    let clipping = ranged("clipping", &|| {
+        let samples = clipped_share(block);
+        // A real ADC: a reading at a rail need not show in the
+        // ambient-cancelled difference, but the board counts it.
+        match f
+            .board_clipped
+            .filter(|_| f.board.adc_bits.is_some_and(|b| b > 0))
+        {
+            Some(share) if Some(share) > samples.value => share_check(share),
+            _ => samples,
+        }
+    });
     g.clipped = clipping.value;
     vec![
         ranged("perfusion", &|| perfusion_index(block)),

@@ -94,6 +94,7 @@ fn levels(drive: f64, dc: f64, ambient: Option<f64>) -> Levels {
         led_drive: Some(drive),
         dc_level: Some(dc),
         ambient_level: ambient,
+        clipped_samples: None,
     }
 }
 
@@ -366,4 +367,39 @@ fn a_circuit_that_does_not_match_the_board_gets_a_warning_and_no_advice() {
     );
     assert_eq!(circuit_mismatch(&tia_100k(""), &bench(12)), None);
     assert_eq!(circuit_mismatch(&tia_100k(""), &emulated_volts()), None);
+}
+
+#[test]
+fn a_real_boards_own_clip_count_outweighs_the_difference() {
+    // The LED-on reading at the top rail with the LED-off one at 100
+    // gives a difference of 3995, no rail in sight; the board counts the
+    // rail: 50 more readings over 10 s (2500 samples) are 2 %, trouble
+    // above 1 %. The emulated board's count is not taken.
+    let counted = |n| Levels {
+        clipped_samples: Some(n),
+        ..levels(0.5, 0.5, None)
+    };
+    for (board, verdict) in [
+        (bench(12), Verdict::Trouble),
+        (emulated_volts(), Verdict::Clear),
+    ] {
+        let mut c = LiveChecks::new();
+        c.board(board);
+        c.status(counted(7));
+        let dc = if board.adc_bits == Some(0) {
+            1.5
+        } else {
+            2000.0
+        };
+        feed(&mut c, 0, 9.9, &pulse(dc, 0.1 * dc));
+        c.status(counted(57));
+        let r = feed(&mut c, 2480, 0.4, &pulse(dc, 0.1 * dc)).pop().unwrap();
+        let k = check(&r, "clipping");
+        assert_eq!(k.verdict, verdict, "{k:?}");
+        if verdict == Verdict::Trouble {
+            // 50 between the statuses at samples 0 and 2480.
+            assert!((k.value.unwrap() - 50.0 / 2480.0).abs() < 1e-12, "{k:?}");
+            assert_eq!(r.gauges.clipped, k.value);
+        }
+    }
 }
