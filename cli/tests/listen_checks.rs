@@ -16,7 +16,8 @@ use std::path::{Path, PathBuf};
 const SECONDS: u64 = 12;
 
 /// The 16 samples from `first` of a weak pulse: 1.2 Hz, 24 codes peak to
-/// peak on 2048 (wire format 2 adds the block's `stride`).
+/// peak on 2048, and its band-passed trace (wire format 2 adds the
+/// block's `stride`).
 fn weak_block(first: u64) -> Message {
     let mut b = SampleBlock {
         first_index: first,
@@ -26,8 +27,11 @@ fn weak_block(first: u64) -> Message {
     };
     for i in 0..16 {
         let t = (first + i as u64) as f64 / f64::from(RATE_HZ);
-        // Whole ADC codes, as a board sends them.
-        b.raw[i] = (2048.0 + 12.0 * (2.0 * PI * 1.2 * t).sin()).round() as f32;
+        let pulse = 12.0 * (2.0 * PI * 1.2 * t).sin();
+        // Whole ADC codes, as a board sends them; the band-passed trace
+        // the pulse alone.
+        b.raw[i] = (2048.0 + pulse).round() as f32;
+        b.filtered[i] = pulse as f32;
     }
     Message::Samples(b)
 }

@@ -9,7 +9,10 @@
 //! (`report.rs`): a real ADC of `adc_bits` bits reads the ambient-cancelled
 //! input `−(on − off)` in codes from 0 to 2^bits − 1; the emulated board
 //! (no ADC, a recording fed through it) has only the hello's rails, and
-//! with none the checks that need a range say they cannot be made.
+//! with none the checks that need a range say they cannot be made. The
+//! pulse (perfusion's AC, the bits, the gauges) is the peak to peak of the
+//! band-passed trace the board sends beside the input, so the input's
+//! slow drift does not count as pulse; without that trace, the input's.
 //!
 //! Time is the board's sample numbers, not the wall clock, so a report
 //! comes once a second of input at the live rate and the same stream
@@ -120,10 +123,12 @@ fn ambient_level(_s: &Status) -> f64 {
     0.0
 }
 
-/// The samples of the last [`WINDOW_S`], at the block rate.
+/// The samples of the last [`WINDOW_S`], at the block rate: the input,
+/// and the band-passed trace while every block brought it.
 #[derive(Clone, Debug, Default)]
 struct Window {
     raw: VecDeque<f64>,
+    filtered: VecDeque<f64>,
     /// Input sample number after the newest sample, and the stride.
     next: Option<(i64, u64)>,
     rate_hz: f64,
@@ -137,42 +142,65 @@ impl Window {
     /// Adds `raw` from input sample `start`, every `stride`-th input
     /// sample; bridges short gaps, starts afresh after long ones, a
     /// restart or a new rate.
-    fn push(&mut self, start: i64, raw: &[f32], stride: u64, rate_hz: f64) {
+    fn push(&mut self, start: i64, raw: &[f32], filtered: &[f32], stride: u64, rate_hz: f64) {
         let bridge = (BRIDGE_S * rate_hz) as i64;
-        match self.next {
+        let held = match self.next {
             Some((next, s)) if s == stride && rate_hz == self.rate_hz => {
                 let gap = start - next;
-                if !(0..=bridge).contains(&gap) {
-                    self.raw.clear();
-                } else if let Some(&last) = self.raw.back() {
-                    let held = gap as u64 / stride;
-                    self.raw.extend(std::iter::repeat_n(last, held as usize));
-                }
+                (0..=bridge)
+                    .contains(&gap)
+                    .then_some((gap as u64 / stride) as usize)
             }
-            _ => self.raw.clear(),
+            _ => None,
+        };
+        if held.is_none() {
+            self.raw.clear();
+            self.filtered.clear();
         }
+        let held = held.unwrap_or(0);
         self.rate_hz = rate_hz;
-        for &v in raw {
-            // A non-finite sample is held at the last good one, as the
-            // pipeline does.
-            let v = f64::from(v);
-            match (v.is_finite(), self.raw.back()) {
-                (true, _) => self.raw.push_back(v),
-                (false, Some(&last)) => self.raw.push_back(last),
-                (false, None) => {}
-            }
+        extend(&mut self.raw, raw, held);
+        // The band-passed trace counts only once it spans the window.
+        if filtered.len() == raw.len() {
+            extend(&mut self.filtered, filtered, held);
+        } else {
+            self.filtered.clear();
         }
         let end = start + (raw.len() as u64 * stride) as i64;
         self.next = Some((end, stride));
         let cap = self.capacity(stride);
-        while self.raw.len() > cap {
-            self.raw.pop_front();
+        for ring in [&mut self.raw, &mut self.filtered] {
+            while ring.len() > cap {
+                ring.pop_front();
+            }
         }
+    }
+
+    /// The band-passed trace, when it spans the whole window.
+    fn filtered(&self) -> Option<Vec<f64>> {
+        (self.filtered.len() == self.raw.len()).then(|| self.filtered.iter().copied().collect())
     }
 
     /// The block rate, Hz.
     fn block_rate(&self) -> f64 {
         self.rate_hz / self.next.map_or(1, |(_, s)| s) as f64
+    }
+}
+
+/// Adds `values` to `ring` after `held` copies of its last value (a gap
+/// bridged); a non-finite value is held at the last good one, as the
+/// pipeline does.
+fn extend(ring: &mut VecDeque<f64>, values: &[f32], held: usize) {
+    if let Some(&last) = ring.back() {
+        ring.extend(std::iter::repeat_n(last, held));
+    }
+    for &v in values {
+        let v = f64::from(v);
+        match (v.is_finite(), ring.back()) {
+            (true, _) => ring.push_back(v),
+            (false, Some(&last)) => ring.push_back(last),
+            (false, None) => {}
+        }
     }
 }
 
@@ -249,7 +277,8 @@ impl LiveChecks {
                 rate_hz,
             } => {
                 let n = usize::from(block.count).min(block.raw.len());
-                self.samples(*start, &block.raw[..n], stride(block), *rate_hz)
+                let (raw, filtered) = (&block.raw[..n], &block.filtered[..n]);
+                self.samples_with(*start, raw, filtered, stride(block), *rate_hz)
             }
             _ => None,
         }
@@ -291,7 +320,8 @@ impl LiveChecks {
     }
 
     /// Input samples `raw` from record sample `start`, one every `stride`
-    /// input samples at `rate_hz`; returns a report when one is due.
+    /// input samples at `rate_hz`, without their band-passed trace;
+    /// returns a report when one is due.
     pub fn samples(
         &mut self,
         start: i64,
@@ -299,11 +329,25 @@ impl LiveChecks {
         stride: u64,
         rate_hz: f64,
     ) -> Option<Report> {
+        self.samples_with(start, raw, &[], stride, rate_hz)
+    }
+
+    /// As [`LiveChecks::samples`], with the band-passed trace the board
+    /// sends beside the input (`filtered`, as long as `raw`): the pulse is
+    /// then its peak to peak, free of the input's slow drift.
+    pub fn samples_with(
+        &mut self,
+        start: i64,
+        raw: &[f32],
+        filtered: &[f32],
+        stride: u64,
+        rate_hz: f64,
+    ) -> Option<Report> {
         if raw.is_empty() || !rate_hz.is_finite() || rate_hz <= 0.0 {
             return None;
         }
         let stride = stride.max(1);
-        self.window.push(start, raw, stride, rate_hz);
+        self.window.push(start, raw, filtered, stride, rate_hz);
         let (end, _) = self.window.next?;
         let every = (REPORT_EVERY_S * rate_hz).round() as i64;
         let due = *self.next_report.get_or_insert(start + every);
@@ -323,9 +367,11 @@ impl LiveChecks {
 
     fn report(&self, end: i64) -> Report {
         let samples: Vec<f64> = self.window.raw.iter().copied().collect();
+        let filtered = self.window.filtered();
         let rate = self.window.block_rate();
         let facts = report::Facts {
             samples: &samples,
+            filtered: filtered.as_deref(),
             rate_hz: rate,
             end_s: end as f64 / self.window.rate_hz,
             board: self.board,

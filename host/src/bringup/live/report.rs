@@ -6,8 +6,8 @@ use serde::Serialize;
 use super::super::ambient::ambient_share;
 use super::super::clipping::{clipped_share, share_check};
 use super::super::hum::mains_hum;
-use super::super::perfusion::perfusion_index;
-use super::super::pulse_bits::pulse_bits;
+use super::super::perfusion::perfusion_of;
+use super::super::pulse_bits::bits_of;
 use super::super::settling::drive_settling;
 use super::super::snr::{heart_snr, MIN_SECONDS};
 use super::super::{AdcRange, Block, Check, Verdict};
@@ -79,6 +79,8 @@ pub struct Report {
 /// What a report is made from.
 pub(super) struct Facts<'a> {
     pub samples: &'a [f64],
+    /// The band-passed trace over the same samples, when the board sent it.
+    pub filtered: Option<&'a [f64]>,
     pub rate_hz: f64,
     pub end_s: f64,
     pub board: BoardInfo,
@@ -200,10 +202,18 @@ fn checks(f: &Facts, block: &Block, no_range: Option<&String>, g: &mut Gauges) -
         Some(why) => not_measurable(name, why.clone()),
         None => line(name, check()),
     };
+    // The pulse: the band-passed trace's peak to peak when it came (the
+    // input's drift left out), else the input's.
+    let pp = match f.filtered {
+        Some(x) => {
+            x.iter().fold(f64::NEG_INFINITY, |a, &v| a.max(v))
+                - x.iter().fold(f64::INFINITY, |a, &v| a.min(v))
+        }
+        None => block.peak_to_peak(),
+    };
+    let adc = block.adc();
     if no_range.is_none() {
-        let adc = block.adc();
         let span = adc.high() - adc.low();
-        let pp = block.peak_to_peak();
         g.pulse_codes = Some(pp / adc.step());
         g.pulse_share = Some(pp / span);
         g.dc = Some(((block.mean() - adc.low()) / span).clamp(0.0, 1.0));
@@ -222,8 +232,8 @@ fn checks(f: &Facts, block: &Block, no_range: Option<&String>, g: &mut Gauges) -
     });
     g.clipped = clipping.value;
     vec![
-        ranged("perfusion", &|| perfusion_index(block)),
-        ranged("pulse_bits", &|| pulse_bits(block)),
+        ranged("perfusion", &|| perfusion_of(pp, block.mean() - adc.low())),
+        ranged("pulse_bits", &|| bits_of(pp, adc.step())),
         match heart_snr(block) {
             Ok(c) => line("snr", c),
             Err(_) => not_measurable("snr", too_short(block)),
