@@ -1,5 +1,6 @@
 //! The bring-up checks, live: fed what `plethwire listen` decodes (the
-//! hello, the sample blocks, the status frames), [`LiveChecks`] keeps the
+//! hello, the sample blocks, the status frames; `LiveChecks::event`, in
+//! `listen`, takes its events), [`LiveChecks`] keeps the
 //! last [`WINDOW_S`] of input samples and the LED drive's history, and
 //! once every [`REPORT_EVERY_S`] of samples gives a [`Report`]: the seven
 //! checks, the gauges and, with a circuit file, the advice that names the
@@ -28,7 +29,6 @@ pub use fit::{circuit_mismatch, MISMATCH_NOTE};
 pub use report::{CheckLine, Gauges, Report, CHECK_NAMES};
 
 use crate::frontend::Circuit;
-use crate::listen::Event;
 use plethwire_dsp::wire::{Hello, SampleBlock, Status};
 use window::Window;
 
@@ -179,28 +179,18 @@ impl LiveChecks {
         }
     }
 
-    /// Takes one event of `listen`; returns a report when one is due.
-    pub fn event(&mut self, event: &Event) -> Option<Report> {
-        match event {
-            Event::Hello(h) => {
-                self.board(BoardInfo::of(h));
-                None
-            }
-            Event::Status { status, .. } => {
-                self.status(Levels::of(status));
-                None
-            }
-            Event::Samples {
-                start,
-                block,
-                rate_hz,
-            } => {
-                let n = usize::from(block.count).min(block.raw.len());
-                let (raw, filtered) = (&block.raw[..n], &block.filtered[..n]);
-                self.samples_with(*start, raw, filtered, stride(block), *rate_hz)
-            }
-            _ => None,
-        }
+    /// A sample block as the board sent it, its first sample at record
+    /// sample `start`; returns a report when one is due. (`listen`'s
+    /// events go in through `LiveChecks::event`, in `listen`.)
+    pub fn sample_block(
+        &mut self,
+        start: i64,
+        block: &SampleBlock,
+        rate_hz: f64,
+    ) -> Option<Report> {
+        let n = usize::from(block.count).min(block.raw.len());
+        let (raw, filtered) = (&block.raw[..n], &block.filtered[..n]);
+        self.samples_with(start, raw, filtered, stride(block), rate_hz)
     }
 
     /// What the board's hello said.

@@ -36,6 +36,7 @@
 
 mod beat_file;
 mod capture;
+mod checks;
 mod clock;
 mod event;
 mod fields;

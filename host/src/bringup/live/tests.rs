@@ -6,23 +6,9 @@ use super::*;
 use crate::bringup::spectrum::GOERTZEL_STEPS;
 use crate::bringup::Verdict;
 use crate::frontend::Draft;
-use plethwire_dsp::pipeline::Options;
 use std::f64::consts::PI;
 
 const RATE: f64 = 250.0;
-
-/// A sample block as the wire carries it (wire format 2 adds `stride`).
-fn sample_block(first: u64, raw: &[f32], filtered: &[f32]) -> SampleBlock {
-    let mut b = SampleBlock {
-        first_index: first,
-        count: raw.len() as u8,
-        raw: [0.0; 16],
-        filtered: [0.0; 16],
-    };
-    b.raw[..raw.len()].copy_from_slice(raw);
-    b.filtered[..filtered.len()].copy_from_slice(filtered);
-    b
-}
 
 /// A real board: `bits`-bit ADC, rails in codes, 250 Hz.
 fn bench(bits: u8) -> BoardInfo {
@@ -196,51 +182,6 @@ fn without_width_or_rails_the_range_checks_say_so() {
     }
     assert_eq!(check(&r, "snr").verdict, Verdict::Clear);
     assert_eq!((r.gauges.dc, r.gauges.pulse_share), (None, None));
-}
-
-#[test]
-fn listen_events_of_wire_format_1_feed_the_checks() {
-    // Version 1 says no ADC width: the rails decide; a lost block is
-    // bridged, so the window stays 10 s long. The input drifts 300 codes
-    // over the 12 s; the band-passed trace beside it holds the pulse
-    // alone, 100 codes peak to peak, and that is the pulse.
-    let mut c = LiveChecks::new();
-    let hello = Hello {
-        firmware_version: [0, 4, 2],
-        sample_rate_hz: RATE as f32,
-        options: Options {
-            rails: Some((0.0, 4095.0)),
-            ..Options::default()
-        },
-    };
-    assert!(c.event(&Event::Hello(hello)).is_none());
-    let f = pulse(0.0, 100.0);
-    let drift = |t: f64| 2000.0 + 300.0 * t / 12.0;
-    let mut last = None;
-    for b in (0..3000u64).step_by(16).filter(|b| *b != 1600) {
-        let t = |i: u64| i as f64 / RATE;
-        let raw: Vec<f32> = (b..b + 16)
-            .map(|i| (drift(t(i)) + f(t(i))).round() as f32)
-            .collect();
-        let filtered: Vec<f32> = (b..b + 16).map(|i| f(t(i)) as f32).collect();
-        let e = Event::Samples {
-            start: b as i64,
-            block: sample_block(b, &raw, &filtered),
-            rate_hz: RATE,
-        };
-        last = c.event(&e).or(last);
-    }
-    let r = last.unwrap();
-    assert_eq!(c.latest(), Some(&r));
-    assert!((r.window_s - WINDOW_S).abs() < 1e-9, "{}", r.window_s);
-    assert!(r
-        .range
-        .starts_with("the board's rails 0 to 4095 (the board does not say its ADC width)"));
-    // Whole codes: one step is 1, so 100 codes are 6.6 bits (the input's
-    // own peak to peak, drift and all, is some 350).
-    let bits = check(&r, "pulse_bits").value.unwrap();
-    assert!((bits - 100f64.log2()).abs() < 0.01, "{bits}");
-    assert!((r.gauges.pulse_codes.unwrap() - 100.0).abs() < 0.01);
 }
 
 #[test]
