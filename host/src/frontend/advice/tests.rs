@@ -160,14 +160,10 @@ fn no_single_change_gives_a_plain_note() {
     );
 }
 
-#[test]
-fn a_high_dc_on_a_dc_coupled_phototransistor_asks_for_less_light() {
-    // 10 kΩ at the emitter, straight into the ADC: 0 V dark, 0.01 V per µA.
-    // DC at 92 % is 3.036 V = 303.6 µA; the pulse 3 % is 9.9 µA. LED
-    // 100 Ω → 120 Ω: ×100/120, DC 76.7 %, pulse 2.5 %, 1.95 V / 120 Ω
-    // = 16.25 mA. Load 10k → 8.2k (12k, nearer, raises the DC): ×0.82,
-    // DC 75.4 %, pulse 2.46 %.
-    let c = resolve(
+/// 10 kΩ at a phototransistor's emitter, straight into a 3.3 V ADC; LED
+/// (3.3 − 1.35) V / 100 Ω = 19.5 mA, rated 50 mA.
+fn phototransistor() -> Circuit {
+    resolve(
         r#"
         [led]
         supply_v = 3.3
@@ -184,7 +180,17 @@ fn a_high_dc_on_a_dc_coupled_phototransistor_asks_for_less_light() {
         low_v = 0.0
         high_v = 3.3
         "#,
-    );
+    )
+}
+
+#[test]
+fn a_high_dc_on_a_dc_coupled_phototransistor_asks_for_less_light() {
+    // 10 kΩ at the emitter, straight into the ADC: 0 V dark, 0.01 V per µA.
+    // DC at 92 % is 3.036 V = 303.6 µA; the pulse 3 % is 9.9 µA. LED
+    // 100 Ω → 120 Ω: ×100/120, DC 76.7 %, pulse 2.5 %, 1.95 V / 120 Ω
+    // = 16.25 mA. Load 10k → 8.2k (12k, nearer, raises the DC): ×0.82,
+    // DC 75.4 %, pulse 2.46 %.
+    let c = phototransistor();
     let a = advise(&c, &measured(0.92, 0.03)).unwrap();
     assert!(
         matches!(a.problems[..], [Problem::DcHigh(s)] if (s - 0.92).abs() < 1e-12),
@@ -268,23 +274,7 @@ fn a_clipped_pulse_asks_for_less_light() {
     // the nearer rail: 2 × (1 − 0.6) = 80 %, from 20 % to 100 %. LED
     // 100 Ω → 120 Ω scales it by 100/120: 66.7 % about a DC of 50 %,
     // 16.7 % to 83.3 %, inside 5 % of both ends.
-    let c = resolve(
-        r#"
-        [led]
-        supply_v = 3.3
-        forward_v = 1.35
-        resistor = "100"
-        [detector]
-        kind = "phototransistor"
-        load = "10k"
-        load_at = "emitter"
-        [adc]
-        reference_v = 3.3
-        [rails]
-        low_v = 0.0
-        high_v = 3.3
-        "#,
-    );
+    let c = phototransistor();
     let mut m = measured(0.6, 0.3);
     m.clipped_share = 0.02;
     let a = advise(&c, &m).unwrap();
