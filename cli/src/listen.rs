@@ -10,6 +10,8 @@ use std::sync::Once;
 use std::time::{Duration, SystemTime};
 
 use super::Failure;
+use plethwire::bringup::live::LiveChecks;
+use plethwire::frontend::Draft;
 use plethwire::listen::view::{View, ViewError, ViewSink};
 use plethwire::listen::{
     record_name, run, session_files, Capture, Ending, Event, ListenError, NeverCause, Progress,
@@ -30,6 +32,13 @@ Examples:
   plethwire listen --port /dev/ttyACM0 --view --view-port 0   # any free port, printed
   plethwire listen --port /dev/serial/by-id/usb-board --out recordings --name finger_rest
   plethwire listen --port /dev/ttyUSB0 --baud 230400 --seconds 300 --json > session.jsonl
+  plethwire listen --port /dev/ttyACM0 --circuit examples/frontend-fingerclip.toml --max-drive 0.5
+
+Once a second the bring-up checks run over the last 10 s of samples
+(perfusion, pulse bits, SNR, hum, clipping, ambient, settling); text shows
+them when a verdict changes and every 10 s, --json as `checks` lines. With
+--circuit they go through the front-end model and name the part to change,
+never above the LED's rating or the board's --max-drive.
 
 Writes, in --out: NAME.pwire (WFDB annotations, symbol N at each beat's
 peak), NAME.hea/NAME.dat (format-16 WFDB record of the raw and filtered
@@ -92,6 +101,21 @@ pub struct ListenArgs {
     /// Port of the live page (with --view); 0: any free port.
     #[arg(long, value_name = "N", default_value_t = 8750, requires = "view")]
     pub view_port: u16,
+
+    /// Circuit file (as `plethwire frontend` reads) for advice that names the part to change.
+    #[arg(long, value_name = "FILE")]
+    pub circuit: Option<PathBuf>,
+
+    /// The board's cap on its LED drive, share of full drive (its ExposureConfig::max_drive).
+    #[arg(long, value_name = "SHARE", requires = "circuit", value_parser = parse_share)]
+    pub max_drive: Option<f64>,
+}
+
+fn parse_share(s: &str) -> Result<f64, String> {
+    match s.parse::<f64>() {
+        Ok(v) if v > 0.0 && v <= 1.0 => Ok(v),
+        _ => Err("expected a share of full drive, above 0 and at most 1, such as 0.5".into()),
+    }
 }
 
 fn parse_name(s: &str) -> Result<String, String> {
@@ -134,11 +158,13 @@ fn want_colour(json: bool) -> bool {
 }
 
 /// Events to the recorder first, then the live page (which never fails),
-/// then the screen; remembers which failed.
+/// then the screen and the live checks (their reports to the screen and
+/// the page); remembers which failed.
 struct Tee<'a, 'b> {
     capture: &'a mut Capture,
     view: Option<ViewSink>,
     screen: &'a mut Screen<'b>,
+    checks: LiveChecks,
     screen_failed: bool,
 }
 
@@ -148,8 +174,13 @@ impl Sink for Tee<'_, '_> {
         if let Some(v) = &mut self.view {
             v.event(event)?;
         }
+        let report = self.checks.event(event);
+        if let (Some(v), Some(r)) = (&self.view, &report) {
+            v.set_checks(r);
+        }
         self.screen
             .event(event)
+            .and_then(|()| report.map_or(Ok(()), |r| self.screen.checks(&r)))
             .inspect_err(|_| self.screen_failed = true)
     }
 
@@ -159,6 +190,17 @@ impl Sink for Tee<'_, '_> {
 }
 
 impl ListenArgs {
+    /// The live checks, through the circuit file when one is given.
+    fn live_checks(&self) -> Result<LiveChecks, Failure> {
+        let Some(path) = &self.circuit else {
+            return Ok(LiveChecks::new());
+        };
+        let circuit = Draft::load(path)
+            .and_then(|d| d.resolve())
+            .map_err(Failure::refused)?;
+        Ok(LiveChecks::with_circuit(circuit, self.max_drive))
+    }
+
     fn settings(&self) -> Settings {
         Settings {
             retry_every: Duration::from_millis(500),
@@ -185,6 +227,7 @@ impl ListenArgs {
             )));
         }
         let view = self.start_view()?;
+        let checks = self.live_checks()?;
         install_stop_handler()?;
         let settings = self.settings();
         let setup = Setup {
@@ -211,6 +254,7 @@ impl ListenArgs {
             capture: &mut capture,
             view: view.as_ref().map(View::sink),
             screen: &mut screen,
+            checks,
             screen_failed: false,
         };
         let result = run(&mut connector, &mut session, &mut tee, &settings, &STOP);

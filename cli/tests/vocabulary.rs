@@ -8,6 +8,7 @@
 mod common;
 
 use common::plethwire;
+use plethwire::bringup::live::{BoardInfo, LiveChecks};
 use plethwire::listen::{BeatSeen, Event, Screen, Settings, Sink, StateSeen};
 use plethwire::vocabulary::state_words;
 use plethwire_checks::{build_emulated_firmware, need, needs, qemu};
@@ -150,6 +151,18 @@ fn listen_lines(json: bool) -> String {
         ] {
             screen.event(&e).unwrap();
         }
+        // A second of samples: the live checks' first report.
+        let mut live = LiveChecks::new();
+        live.board(BoardInfo {
+            rate_hz: Some(250.0),
+            rails: Some((0.0, 4095.0)),
+            adc_bits: None,
+        });
+        let raw: Vec<f32> = (0..16).map(|i| 2000.0 + i as f32).collect();
+        let report = (0..16)
+            .find_map(|b| live.samples(b * 16, &raw, 1, 250.0))
+            .unwrap();
+        screen.checks(&report).unwrap();
     }
     text(&out)
 }

@@ -15,7 +15,13 @@ pub fn clipped_share(block: &Block) -> Check {
     let (low, high) = (adc.low() + adc.step(), adc.high() - adc.step());
     let x = block.samples();
     let clipped = x.iter().filter(|&&v| v <= low || v >= high).count();
-    let share = clipped as f64 / x.len() as f64;
+    share_check(clipped as f64 / x.len() as f64)
+}
+
+/// The verdict on a clipped share counted elsewhere (a board's own count
+/// of readings at its ADC's rails, which the ambient-cancelled difference
+/// does not show).
+pub fn share_check(share: f64) -> Check {
     let (verdict, advice) = if share <= CLEAR_AT_MOST {
         (Verdict::Clear, "nothing at the rails")
     } else if share <= TROUBLE_ABOVE {

@@ -4,7 +4,9 @@
 //! ([`pulse_bits`]), heart-band signal-to-noise ([`snr`]), mains hum
 //! ([`hum`]), clipped share ([`clipping`]), ambient share of the LED-on
 //! level ([`ambient`]) and the settling of the LED drive loop
-//! ([`settling`]). The periodogram they share is in [`spectrum`].
+//! ([`settling`]). The periodogram they share is in [`spectrum`];
+//! [`live`] runs them once a second over the last 10 s of a board's
+//! samples, with the gauges and the advice of a circuit file.
 //!
 //! Every threshold is a named constant beside its check; where no source is
 //! named it is `common practice` for optical pulse front ends, a starting
@@ -13,14 +15,17 @@
 pub mod ambient;
 pub mod clipping;
 pub mod hum;
+pub mod live;
 pub mod perfusion;
 pub mod pulse_bits;
 pub mod settling;
 pub mod snr;
 pub mod spectrum;
 
-/// How a check came out, in plain words.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+/// How a check came out, in plain words; JSON writes it in snake_case
+/// (`not_measurable`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
 pub enum Verdict {
     /// Nothing to do.
     Clear,
@@ -47,7 +52,7 @@ impl Verdict {
 
 /// One check's outcome: the number (absent when it cannot be computed), the
 /// verdict and one line in plain words.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
 pub struct Check {
     /// The measured number, in the unit the check's doc names.
     pub value: Option<f64>,

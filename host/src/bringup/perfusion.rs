@@ -23,7 +23,12 @@ pub const BORDERLINE_BELOW_PERCENT: f64 = 1.0;
 /// The perfusion index in % with its verdict; not measurable when the DC
 /// level is at or below the low rail (no light, or the LED is off).
 pub fn perfusion_index(block: &Block) -> Check {
-    let dc = block.mean() - block.adc().low();
+    perfusion_of(block.peak_to_peak(), block.mean() - block.adc().low())
+}
+
+/// The perfusion index in % of a pulse `ac` peak to peak on a level `dc`
+/// above the zero-light level, both in the input's unit, with its verdict.
+pub fn perfusion_of(ac: f64, dc: f64) -> Check {
     if dc <= 0.0 {
         return Check::new(
             None,
@@ -31,7 +36,7 @@ pub fn perfusion_index(block: &Block) -> Check {
             "no DC level above the ADC's low rail: is the LED on?".to_string(),
         );
     }
-    let pi = block.peak_to_peak() / dc * 100.0;
+    let pi = ac / dc * 100.0;
     let (verdict, advice) = if pi < TROUBLE_BELOW_PERCENT {
         (
             Verdict::Trouble,

@@ -14,15 +14,20 @@ pub const BORDERLINE_BELOW_BITS: f64 = 6.0;
 /// The bits of pulse with its verdict; trouble with no number on a flat
 /// block.
 pub fn pulse_bits(block: &Block) -> Check {
-    let pp = block.peak_to_peak();
+    bits_of(block.peak_to_peak(), block.adc().step())
+}
+
+/// The bits of a pulse `pp` peak to peak against one code `step`, both in
+/// the input's unit, with its verdict.
+pub fn bits_of(pp: f64, step: f64) -> Check {
     if pp <= 0.0 {
         return Check::new(
             None,
             Verdict::Trouble,
-            "no pulse: every sample in the block is the same".to_string(),
+            "no pulse: the signal is flat".to_string(),
         );
     }
-    let codes = pp / block.adc().step();
+    let codes = pp / step;
     let bits = codes.log2();
     let (verdict, advice) = if bits < TROUBLE_BELOW_BITS {
         (Verdict::Trouble, "raise the gain or the LED current")

@@ -229,3 +229,28 @@ fn bad_parameters_are_named() {
     let err = AdcRange::new(0.0, 1.0, 0.0).unwrap_err();
     assert!(err.to_string().contains("adc step"), "{err}");
 }
+
+#[test]
+fn band_bins_and_parseval_equal_the_whole_periodogram() {
+    // The live checks' shortcut: the heart band's bins alone, and the
+    // power above DC as the mean square (Parseval's theorem), against the
+    // sums over the whole periodogram, at even and odd lengths.
+    use super::spectrum::{band_power, band_power_of, centred, power_above_dc};
+    for n in [500, 501] {
+        let x: Vec<f64> = (0..n)
+            .map(|i| {
+                let t = i as f64 / 50.0;
+                3.0 + (2.0 * PI * 1.1 * t).sin()
+                    + 0.3 * (2.0 * PI * 7.0 * t).cos()
+                    + 0.01 * ((i * 7919) % 13) as f64
+            })
+            .collect();
+        let psd = periodogram(&x, 50.0);
+        let c = centred(&x);
+        let whole = band_power(&psd, n, 50.0, 0.5, 3.7);
+        assert!((band_power_of(&c, 50.0, 0.5, 3.7) - whole).abs() < 1e-12 * whole);
+        let df = 50.0 / n as f64;
+        let above: f64 = psd.iter().skip(1).map(|p| p * df).sum();
+        assert!((power_above_dc(&c) - above).abs() < 1e-12 * above, "n {n}");
+    }
+}

@@ -4,6 +4,7 @@ use serde::Serialize;
 
 use super::event::Event;
 use super::fields::{HelloFields, LinkFields, StatusFields};
+use crate::bringup::live::Report;
 use crate::vocabulary::flag_list;
 
 #[derive(Serialize)]
@@ -57,6 +58,21 @@ enum Line<'a> {
     Restart {
         sample: u64,
     },
+}
+
+/// The live checks' report as one `"event": "checks"` line.
+pub fn checks(report: &Report) -> Option<String> {
+    #[derive(Serialize)]
+    struct Checks<'a> {
+        event: &'static str,
+        #[serde(flatten)]
+        report: &'a Report,
+    }
+    serde_json::to_string(&Checks {
+        event: "checks",
+        report,
+    })
+    .ok()
 }
 
 /// The JSON line of `event` (no newline); `None` for events that are not

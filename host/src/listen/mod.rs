@@ -39,6 +39,7 @@
 
 mod beat_file;
 mod capture;
+mod checks;
 mod clock;
 mod event;
 mod fields;
@@ -70,7 +71,7 @@ pub use link::{run, Connector, Ending, ListenError, NeverCause, Settings};
 pub use port::{PortLink, SerialConnector, READ_TIMEOUT};
 pub use recorder::{nearest, session_files, Recorder, SampleCounts, Written, SCALE_AFTER_S};
 pub use scale::{Scale, ScaleSource, INVALID};
-pub use screen::{Screen, CAUTION};
+pub use screen::{Screen, CAUTION, CHECKS_EVERY_S};
 pub use session::{foreign_version_message, Session, LINK_EVERY, QUIET_AFTER};
 pub use summary::{summary_path, Setup, Summary, FLUSH_EVERY, RUNNING, SUMMARY_FORMAT};
 pub use timeline::{Timeline, LONG_SLACK_S, MAX_GAP_S, RESTART_SLACK};

@@ -6,7 +6,9 @@ use plethwire_dsp::wire::{DecodeStats, Hello, Status};
 
 use super::event::{BeatSeen, Event, StateSeen};
 use super::fields::detector_name;
-use crate::vocabulary::{state_change_words, verdict_words, HR, MEDIAN_HR};
+use crate::bringup::live::Report;
+use crate::bringup::Verdict;
+use crate::vocabulary::{state_change_words, verdict_words, words, HR, MEDIAN_HR};
 
 /// How lines look.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -105,6 +107,43 @@ pub fn lines(event: &Event, look: &Look) -> Vec<String> {
         ),
         Event::Samples { .. } => Vec::new(),
     }
+}
+
+/// The live checks in one line, coloured by the worst verdict, each check
+/// its name, number and verdict: `checks     12.3 s  perfusion 1.35 %
+/// clear | pulse bits 4.8 borderline | ...`.
+pub fn checks(r: &Report, look: &Look) -> String {
+    let unit = |name: &str| match name {
+        "perfusion" => (1.0, 2, " %"),
+        "clipping" | "ambient" => (100.0, 1, " %"),
+        "snr" | "hum" => (1.0, 1, " dB"),
+        "settling" => (1.0, 1, " s"),
+        _ => (1.0, 1, ""),
+    };
+    let parts: Vec<String> = r
+        .checks
+        .iter()
+        .map(|c| {
+            let (scale, decimals, u) = unit(c.name);
+            let value = c
+                .value
+                .map_or("-".to_string(), |v| format!("{:.decimals$}{u}", v * scale));
+            format!("{} {value} {}", words(c.name), c.verdict.name())
+        })
+        .collect();
+    let tone = r
+        .checks
+        .iter()
+        .fold(Tone::Plain, |t, c| match (t, c.verdict) {
+            (_, Verdict::Trouble) | (Tone::Bad, _) => Tone::Bad,
+            (_, Verdict::Borderline) | (Tone::Warn, _) => Tone::Warn,
+            (t, _) => t,
+        });
+    paint(
+        look,
+        tone,
+        format!("checks {:>10.1} s  {}", r.time_s, parts.join(" | ")),
+    )
 }
 
 fn hello(h: &Hello) -> String {

@@ -9,17 +9,27 @@
 //! current, the pulse at the ADC follows the chain's mid-band gain, and
 //! the DC level follows the chain's DC gain (an AC-coupled chain keeps
 //! its bias whatever the light).
+//!
+//! The LED's current is the circuit's full-drive current, (supply −
+//! forward voltage) / resistor, times the board's drive (its PWM duty into
+//! the current source): a suggestion runs at the present drive, must stay
+//! within the board's `max_drive` at the present resistor (the most
+//! current the builder allowed), and the most the board may drive with it
+//! (full drive times `max_drive`) must stay within the LED's rating.
 
+mod limits;
 mod search;
 #[cfg(test)]
 mod tests;
 
+pub use limits::drive_ma;
 pub use search::E12;
 
 use super::circuit::Circuit;
 use super::led::LedBudget;
 use super::quantity::{si, sig3};
 use super::transfer::Chain;
+use limits::{drive_of, effective_pulse, refusal};
 use search::{candidates, predict, Part, Prediction};
 
 /// The least pulse worth having, share of the ADC range: 1 % leaves some
@@ -28,6 +38,10 @@ pub const PULSE_LEAST_SHARE: f64 = 0.01;
 /// The DC level at the ADC input should sit inside this window, share of
 /// the range, to leave room for the pulse and for drift (common practice).
 pub const DC_WINDOW: (f64, f64) = (0.10, 0.90);
+/// A pulse whose band (DC ± half the pulse) comes this close to either end
+/// of the ADC range, share of the range, leaves no room for a stronger beat
+/// or a drift (common practice).
+pub const RAIL_MARGIN: f64 = 0.05;
 /// How far an AC-coupled chain's measured DC may sit from its bias,
 /// share of the range, before the circuit file is taken not to match.
 pub const BIAS_TOLERANCE: f64 = 0.05;
@@ -39,9 +53,29 @@ pub struct Measured {
     pub dc_share: f64,
     /// The pulse, peak to peak, share of the ADC range (0 to 1).
     pub pulse_share: f64,
-    /// The most LED current the board may drive, mA, if it has a limit
-    /// below the LED's rating (its driver or its `max_drive` cap).
-    pub max_drive_ma: Option<f64>,
+    /// Share of samples at an ADC rail (0 to 1): a clipped pulse is at
+    /// least as large as the way to the nearer rail.
+    pub clipped_share: f64,
+    /// The LED drive the levels were measured at, share of full drive
+    /// (0 to 1], as the board's status reports it; `None`: not known,
+    /// taken as `max_drive` (the worst case).
+    pub led_drive: Option<f64>,
+    /// The board's cap on its LED drive, share of full drive (0 to 1]
+    /// (`ExposureConfig::max_drive`); `None`: no cap, full drive.
+    pub max_drive: Option<f64>,
+}
+
+impl Measured {
+    /// Levels with nothing clipped, the drive not known and no cap.
+    pub fn levels(dc_share: f64, pulse_share: f64) -> Measured {
+        Measured {
+            dc_share,
+            pulse_share,
+            clipped_share: 0.0,
+            led_drive: None,
+            max_drive: None,
+        }
+    }
 }
 
 /// Why there is no advice: the measurements do not fit the circuit.
@@ -55,9 +89,14 @@ pub enum AdviceError {
         /// Its value.
         value: f64,
     },
-    /// The board's most drive is not a positive current.
-    #[error("max_drive_ma is {0}: it must be a positive current in mA")]
-    MaxDrive(f64),
+    /// A drive that is not a share of full drive above 0.
+    #[error("{parameter} is {value}: it must be a share of full drive, above 0 and at most 1")]
+    Drive {
+        /// `led_drive` or `max_drive`.
+        parameter: &'static str,
+        /// Its value.
+        value: f64,
+    },
     /// A pulse was measured but the chain has no gain to carry one.
     #[error("pulse_share is {0} but the circuit's mid-band gain is zero")]
     NoGain(f64),
@@ -78,6 +117,8 @@ pub enum AdviceError {
 pub enum Problem {
     /// The pulse is below [`PULSE_LEAST_SHARE`].
     PulseSmall(f64),
+    /// The pulse comes within [`RAIL_MARGIN`] of a rail, or clipped.
+    PulseLarge(f64),
     /// The DC is above the window.
     DcHigh(f64),
     /// The DC is below the window.
@@ -89,6 +130,11 @@ impl Problem {
     pub fn describe(&self) -> String {
         match *self {
             Problem::PulseSmall(s) => format!("pulse is {} of the ADC range", pct(s)),
+            Problem::PulseLarge(s) => format!(
+                "pulse is {} of the ADC range and reaches within {} of a rail",
+                pct(s),
+                pct(RAIL_MARGIN)
+            ),
             Problem::DcHigh(s) | Problem::DcLow(s) => format!("DC sits at {} of range", pct(s)),
         }
     }
@@ -107,7 +153,7 @@ pub struct Suggestion {
     pub pulse_share: f64,
     /// The DC level it gives, share of the ADC range.
     pub dc_share: f64,
-    /// The LED current it gives, mA.
+    /// The LED current it gives at the present drive, mA.
     pub led_ma: f64,
     /// The node the part drives.
     pub node: String,
@@ -184,6 +230,10 @@ fn pct(share: f64) -> String {
 /// The advice for `circuit` given what the board measured; see the
 /// module's doc for the model.
 pub fn advise(circuit: &Circuit, m: &Measured) -> Result<Advice, AdviceError> {
+    let m = &Measured {
+        pulse_share: effective_pulse(m),
+        ..*m
+    };
     let (measured, led_ma) = calibrate(circuit, m)?;
     let now = predict(&measured, led_ma, &measured);
     let problems = problems_of(&now);
@@ -217,7 +267,7 @@ pub fn advise(circuit: &Circuit, m: &Measured) -> Result<Advice, AdviceError> {
                 None => {
                     advice
                         .suggestions
-                        .push(suggestion(circuit, part, to_ohm, &p));
+                        .push(suggestion(circuit, part, to_ohm, &p, drive_of(m)));
                     break;
                 }
             }
@@ -229,13 +279,20 @@ pub fn advise(circuit: &Circuit, m: &Measured) -> Result<Advice, AdviceError> {
 /// The circuit with its pulse set to the photocurrents that give the
 /// measured levels, and its LED current, mA.
 fn calibrate(circuit: &Circuit, m: &Measured) -> Result<(Circuit, f64), AdviceError> {
-    for (parameter, value) in [("dc_share", m.dc_share), ("pulse_share", m.pulse_share)] {
+    let shares = [
+        ("dc_share", m.dc_share),
+        ("pulse_share", m.pulse_share),
+        ("clipped_share", m.clipped_share),
+    ];
+    for (parameter, value) in shares {
         if !(0.0..=1.0).contains(&value) {
             return Err(AdviceError::Share { parameter, value });
         }
     }
-    if let Some(d) = m.max_drive_ma.filter(|d| !(d.is_finite() && *d > 0.0)) {
-        return Err(AdviceError::MaxDrive(d));
+    for (parameter, value) in [("led_drive", m.led_drive), ("max_drive", m.max_drive)] {
+        if let Some(value) = value.filter(|d| !(*d > 0.0 && *d <= 1.0)) {
+            return Err(AdviceError::Drive { parameter, value });
+        }
     }
     let range_v = circuit.adc.reference_v;
     let v_per_ua = Chain::of(circuit).midband_v_per_ua().abs();
@@ -281,8 +338,11 @@ fn calibrate(circuit: &Circuit, m: &Measured) -> Result<(Circuit, f64), AdviceEr
 /// What is wrong with the levels a prediction gives.
 fn problems_of(p: &Prediction) -> Vec<Problem> {
     let mut out = Vec::new();
+    let half = p.pulse_share / 2.0;
     if p.pulse_share < PULSE_LEAST_SHARE {
         out.push(Problem::PulseSmall(p.pulse_share));
+    } else if p.dc_share - half < RAIL_MARGIN || p.dc_share + half > 1.0 - RAIL_MARGIN {
+        out.push(Problem::PulseLarge(p.pulse_share));
     }
     if p.dc_share > DC_WINDOW.1 {
         out.push(Problem::DcHigh(p.dc_share));
@@ -292,34 +352,14 @@ fn problems_of(p: &Prediction) -> Vec<Problem> {
     out
 }
 
-/// Why the model refuses a prediction: the LED over its rating or the
-/// board's most drive, or a node beyond its rails.
-fn refusal(circuit: &Circuit, m: &Measured, p: &Prediction) -> Option<String> {
-    let over = |limit: Option<f64>, what: &str| {
-        limit.filter(|l| p.led_ma > *l).map(|l| {
-            format!(
-                "LED current {} is above {what} {}",
-                si(p.led_ma * 1e-3, "A"),
-                si(l * 1e-3, "A")
-            )
-        })
-    };
-    over(circuit.led.rated_ma, "its rated")
-        .or_else(|| over(m.max_drive_ma, "the board's most drive"))
-        .or_else(|| {
-            p.nodes.iter().find(|n| n.saturates).map(|n| {
-                format!(
-                    "the {} would go from {} V to {} V, beyond its rails",
-                    n.node,
-                    sig3(n.low_v),
-                    sig3(n.high_v)
-                )
-            })
-        })
-}
-
 /// The suggestion for a checked prediction.
-fn suggestion(circuit: &Circuit, part: Part, to_ohm: f64, p: &Prediction) -> Suggestion {
+fn suggestion(
+    circuit: &Circuit,
+    part: Part,
+    to_ohm: f64,
+    p: &Prediction,
+    drive: f64,
+) -> Suggestion {
     let node = part.node();
     let headroom_v = p
         .nodes
@@ -339,7 +379,7 @@ fn suggestion(circuit: &Circuit, part: Part, to_ohm: f64, p: &Prediction) -> Sug
         to_ohm,
         pulse_share: p.pulse_share,
         dc_share: p.dc_share,
-        led_ma: p.led_ma,
+        led_ma: p.led_ma * drive,
         node,
         headroom_v,
     }

@@ -14,11 +14,7 @@ fn fingerclip() -> Circuit {
 }
 
 fn measured(dc_share: f64, pulse_share: f64) -> Measured {
-    Measured {
-        dc_share,
-        pulse_share,
-        max_drive_ma: None,
-    }
+    Measured::levels(dc_share, pulse_share)
 }
 
 #[test]
@@ -126,15 +122,18 @@ fn a_brighter_led_beyond_its_rating_is_refused() {
         (s.headroom_v - (3.3 - 2.78 - 0.01815)).abs() < 1e-9,
         "{s:?}"
     );
-    // No rating but the board's most drive at 40 mA: the same 47 Ω refused.
+    // No rating, the board at a quarter of full drive and capped at half:
+    // 0.5 × 20 mA = 10 mA is the most it drives now; 47 Ω runs 0.25 ×
+    // 2 V / 47 Ω = 10.6 mA: refused. 220k keeps 0.25 × 20 = 5 mA.
     let mut m = measured(0.5, 0.005);
-    m.max_drive_ma = Some(40.0);
+    (m.led_drive, m.max_drive) = (Some(0.25), Some(0.5));
     let a = advise(&tia_100k(""), &m).unwrap();
     assert_eq!(
         a.refused[0].reason,
-        "LED current 42.6 mA is above the board's most drive 40 mA"
+        "LED current 10.6 mA is above the board's most drive 10 mA"
     );
-    assert!(a.suggestions.iter().all(|s| s.led_ma <= 40.0));
+    assert_eq!(a.suggestions[0].to_ohm, 220e3);
+    assert!((a.suggestions[0].led_ma - 5.0).abs() < 1e-9);
 }
 
 #[test]
@@ -161,14 +160,10 @@ fn no_single_change_gives_a_plain_note() {
     );
 }
 
-#[test]
-fn a_high_dc_on_a_dc_coupled_phototransistor_asks_for_less_light() {
-    // 10 kΩ at the emitter, straight into the ADC: 0 V dark, 0.01 V per µA.
-    // DC at 92 % is 3.036 V = 303.6 µA; the pulse 3 % is 9.9 µA. LED
-    // 100 Ω → 120 Ω: ×100/120, DC 76.7 %, pulse 2.5 %, 1.95 V / 120 Ω
-    // = 16.25 mA. Load 10k → 8.2k (12k, nearer, raises the DC): ×0.82,
-    // DC 75.4 %, pulse 2.46 %.
-    let c = resolve(
+/// 10 kΩ at a phototransistor's emitter, straight into a 3.3 V ADC; LED
+/// (3.3 − 1.35) V / 100 Ω = 19.5 mA, rated 50 mA.
+fn phototransistor() -> Circuit {
+    resolve(
         r#"
         [led]
         supply_v = 3.3
@@ -185,7 +180,17 @@ fn a_high_dc_on_a_dc_coupled_phototransistor_asks_for_less_light() {
         low_v = 0.0
         high_v = 3.3
         "#,
-    );
+    )
+}
+
+#[test]
+fn a_high_dc_on_a_dc_coupled_phototransistor_asks_for_less_light() {
+    // 10 kΩ at the emitter, straight into the ADC: 0 V dark, 0.01 V per µA.
+    // DC at 92 % is 3.036 V = 303.6 µA; the pulse 3 % is 9.9 µA. LED
+    // 100 Ω → 120 Ω: ×100/120, DC 76.7 %, pulse 2.5 %, 1.95 V / 120 Ω
+    // = 16.25 mA. Load 10k → 8.2k (12k, nearer, raises the DC): ×0.82,
+    // DC 75.4 %, pulse 2.46 %.
+    let c = phototransistor();
     let a = advise(&c, &measured(0.92, 0.03)).unwrap();
     assert!(
         matches!(a.problems[..], [Problem::DcHigh(s)] if (s - 0.92).abs() < 1e-12),
@@ -246,12 +251,43 @@ fn inputs_that_do_not_fit_name_the_parameter() {
         "pulse_share is NaN: it must be a share of the ADC range, 0 to 1"
     );
     let mut m = measured(0.5, 0.01);
-    m.max_drive_ma = Some(0.0);
-    assert_eq!(advise(&c, &m), Err(AdviceError::MaxDrive(0.0)));
+    m.max_drive = Some(0.0);
+    assert_eq!(
+        advise(&c, &m),
+        Err(AdviceError::Drive {
+            parameter: "max_drive",
+            value: 0.0
+        })
+    );
     // AC-coupled to a 1.65 V bias: 50 %; 80 % cannot come from it.
     let e = advise(&c, &measured(0.8, 0.01)).unwrap_err();
     assert!(
         matches!(e, AdviceError::DcMismatch { expected, .. } if (expected - 0.5).abs() < 1e-12),
         "{e}"
     );
+}
+
+#[test]
+fn a_clipped_pulse_asks_for_less_light() {
+    // The DC-coupled 10 kΩ phototransistor: DC 60 %, a measured pulse of
+    // 30 % but 2 % of samples clipped, so the pulse is taken as reaching
+    // the nearer rail: 2 × (1 − 0.6) = 80 %, from 20 % to 100 %. LED
+    // 100 Ω → 120 Ω scales it by 100/120: 66.7 % about a DC of 50 %,
+    // 16.7 % to 83.3 %, inside 5 % of both ends.
+    let c = phototransistor();
+    let mut m = measured(0.6, 0.3);
+    m.clipped_share = 0.02;
+    let a = advise(&c, &m).unwrap();
+    assert!(
+        matches!(a.problems[..], [Problem::PulseLarge(s)] if (s - 0.8).abs() < 1e-12),
+        "{a:?}"
+    );
+    let s = &a.suggestions[0];
+    assert_eq!((s.part.as_str(), s.to_ohm), ("LED resistor", 120.0));
+    assert!((s.pulse_share - 0.8 / 1.2).abs() < 1e-9 && (s.dc_share - 0.5).abs() < 1e-9);
+    assert!(a.lines()[0].starts_with(
+        "pulse is 80 % of the ADC range and reaches within 5.0 % of a rail: LED resistor"
+    ));
+    // Unclipped, the same 30 % about 60 % (45 % to 75 %) is fine.
+    assert!(advise(&c, &measured(0.6, 0.3)).unwrap().problems.is_empty());
 }
