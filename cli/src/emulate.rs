@@ -154,12 +154,15 @@ fn state_line(s: &StateEvent, fs: f64) -> String {
 impl EmulateArgs {
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
-        if let Some(link) = &self.serial_link {
-            return serial_link::run(self, link, out);
+        match (&self.serial_link, &self.record) {
+            (Some(link), _) => serial_link::run(self, link, out),
+            (None, Some(record)) => self.run_record(record, out),
+            (None, None) => Err(Failure::refused("a RECORD is needed without --serial-link")),
         }
-        let Some(record) = &self.record else {
-            return Err(Failure::refused("a RECORD is needed without --serial-link"));
-        };
+    }
+
+    /// Run `record` through the board and check it against the host.
+    fn run_record(&self, record: &Path, out: &mut dyn Write) -> Result<(), Failure> {
         super::replay::check_annotator(record, &self.annotator, self.force)?;
         // The cheap checks first: no point loading 8 minutes of samples
         // for a board that is not there.

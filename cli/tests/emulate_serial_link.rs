@@ -64,7 +64,10 @@ fn frames_arrive_on_the_link_and_it_vanishes_at_the_end() {
         .count();
     assert!((4..=8).contains(&beats), "{beats} beats");
     let sequences: Vec<u16> = frames.iter().map(|f| f.seq).collect();
-    assert!(sequences.windows(2).all(|w| w[1] == w[0].wrapping_add(1)), "{sequences:?}");
+    assert!(
+        sequences.windows(2).all(|w| w[1] == w[0].wrapping_add(1)),
+        "{sequences:?}"
+    );
     assert!(
         lines.iter().any(|l| l.contains("1500 samples fed")),
         "{lines:?}"
@@ -79,11 +82,16 @@ fn ctrl_c_stops_a_looping_link_and_removes_it() {
     let path = dir.path().join("board");
     let link = SerialLink::start(&elf, &path, &[]);
     let (frames, _) = read_frames(&path, |f| {
-        f.iter().filter(|f| matches!(f.message, Message::Beat(_))).count() >= 2
+        f.iter()
+            .filter(|f| matches!(f.message, Message::Beat(_)))
+            .count()
+            >= 2
     });
     assert!(matches!(frames[0].message, Message::Hello(ref h) if h.sample_rate_hz == 250.0));
     link.stop();
-    wait_until("the link is gone", || std::fs::symlink_metadata(&path).is_err());
+    wait_until("the link is gone", || {
+        std::fs::symlink_metadata(&path).is_err()
+    });
 }
 
 #[test]

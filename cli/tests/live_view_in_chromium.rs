@@ -61,7 +61,15 @@ fn line_reader(pipe: impl std::io::Read + Send + 'static) -> Receiver<String> {
 impl Listener {
     fn start(link: &Path, out: &Path) -> Self {
         let mut child = Command::new(env!("CARGO_BIN_EXE_plethwire"))
-            .args(["listen", "--view", "--view-port", "0", "--json", "--wait", "120"])
+            .args([
+                "listen",
+                "--view",
+                "--view-port",
+                "0",
+                "--json",
+                "--wait",
+                "120",
+            ])
             .arg("--port")
             .arg(link)
             .arg("--out")
@@ -84,7 +92,10 @@ impl Listener {
                 break url.trim().to_owned();
             }
         };
-        assert!(url.starts_with("http://127.0.0.1:") && url.ends_with('/'), "{url}");
+        assert!(
+            url.starts_with("http://127.0.0.1:") && url.ends_with('/'),
+            "{url}"
+        );
         Self { child, lines, url }
     }
 
@@ -124,16 +135,28 @@ struct Stream {
 }
 
 fn follow_events(url: &str) -> Arc<Mutex<Stream>> {
-    let host = url.trim_start_matches("http://").trim_end_matches('/').to_owned();
+    let host = url
+        .trim_start_matches("http://")
+        .trim_end_matches('/')
+        .to_owned();
     let mut tcp = TcpStream::connect(&host).expect("connect to the live view");
-    write!(tcp, "GET /events HTTP/1.1\r\nHost: {host}\r\nAccept: text/event-stream\r\n\r\n").unwrap();
+    write!(
+        tcp,
+        "GET /events HTTP/1.1\r\nHost: {host}\r\nAccept: text/event-stream\r\n\r\n"
+    )
+    .unwrap();
     let seen = Arc::new(Mutex::new(Stream::default()));
     let into = seen.clone();
     std::thread::spawn(move || {
         for line in BufReader::new(tcp).lines().map_while(Result::ok) {
-            let Some(data) = line.strip_prefix("data:") else { continue };
+            let Some(data) = line.strip_prefix("data:") else {
+                continue;
+            };
             let m: Value = serde_json::from_str(data.trim()).expect("a JSON message");
-            let newest = m["samples"].as_array().and_then(|s| s.last()).and_then(|p| p[0].as_i64());
+            let newest = m["samples"]
+                .as_array()
+                .and_then(|s| s.last())
+                .and_then(|p| p[0].as_i64());
             let mut s = into.lock().unwrap();
             s.messages += 1;
             if newest.is_some() {
@@ -146,12 +169,16 @@ fn follow_events(url: &str) -> Arc<Mutex<Stream>> {
 
 /// One value out of the page.
 fn read(b: &Browser, script: &str) -> Value {
-    b.execute(script, &[]).unwrap_or_else(|e| panic!("{script}: {e}"))
+    b.execute(script, &[])
+        .unwrap_or_else(|e| panic!("{script}: {e}"))
 }
 
 fn number(b: &Browser, script: &str) -> f64 {
     let v = read(b, script);
-    v.as_str().and_then(|s| s.parse().ok()).or(v.as_f64()).unwrap_or_else(|| panic!("{script}: {v}"))
+    v.as_str()
+        .and_then(|s| s.parse().ok())
+        .or(v.as_f64())
+        .unwrap_or_else(|| panic!("{script}: {v}"))
 }
 
 const POINTS: &str = "return document.getElementById('wave').dataset.points;";
@@ -159,7 +186,8 @@ const CONNECTED: &str = "return document.getElementById('board').dataset.connect
 const UPDATES: &str = "return document.body.dataset.updates;";
 const GAUGES: &str = "return Array.from(document.querySelectorAll('[data-gauge]'), \
                       g => [g.dataset.gauge, Number(g.dataset.updates)]);";
-const HR: &str = "const h = document.getElementById('hr'); return [h.dataset.bpm, h.textContent.trim()];";
+const HR: &str =
+    "const h = document.getElementById('hr'); return [h.dataset.bpm, h.textContent.trim()];";
 
 /// Poll `script` until `want` accepts its value; that value.
 fn poll(b: &Browser, what: &str, script: &str, want: impl Fn(&Value) -> bool) -> Value {
@@ -190,7 +218,9 @@ fn heart_rate_agrees(b: &Browser, listener: &Listener) -> f32 {
             return false;
         };
         seen = format!("page {bpm} ({shown}), listen {:?}", medians.last());
-        let Ok(page) = bpm.parse::<f64>() else { return false };
+        let Ok(page) = bpm.parse::<f64>() else {
+            return false;
+        };
         let agrees = medians.last() == Some(&(page as f32));
         if agrees {
             assert_eq!(shown, format!("{}", page.round()), "{seen}");
@@ -235,10 +265,12 @@ fn message_rate(b: &Browser, stream: &Mutex<Stream>) -> f64 {
 /// `$CARGO_TARGET_DIR/artefacts`, else `target/artefacts` beside this
 /// test's executable.
 fn artefacts() -> PathBuf {
-    let target = std::env::var_os("CARGO_TARGET_DIR").map(PathBuf::from).unwrap_or_else(|| {
-        let exe = std::env::current_exe().unwrap();
-        exe.ancestors().nth(3).unwrap().to_path_buf()
-    });
+    let target = std::env::var_os("CARGO_TARGET_DIR")
+        .map(PathBuf::from)
+        .unwrap_or_else(|| {
+            let exe = std::env::current_exe().unwrap();
+            exe.ancestors().nth(3).unwrap().to_path_buf()
+        });
     let dir = target.join("artefacts");
     std::fs::create_dir_all(&dir).unwrap();
     dir
@@ -261,11 +293,19 @@ fn the_live_page_shows_the_emulated_board_in_chromium() {
     let listener = Listener::start(&path, dir.path());
     let b = Browser::open(&driver, &browser_exe, (1280, 1000)).expect("a browser session");
     b.navigate(&listener.url).unwrap();
-    let cautions = read(&b, "return document.getElementById('cautions').textContent;");
+    let cautions = read(
+        &b,
+        "return document.getElementById('cautions').textContent;",
+    );
     for word in ["not a medical device", "IEC 62471", "IEC 60601-1"] {
-        assert!(cautions.as_str().unwrap().contains(word), "{word}: {cautions}");
+        assert!(
+            cautions.as_str().unwrap().contains(word),
+            "{word}: {cautions}"
+        );
     }
-    poll(&b, "waveform points", POINTS, |v| v.as_str().is_some_and(|p| p != "0"));
+    poll(&b, "waveform points", POINTS, |v| {
+        v.as_str().is_some_and(|p| p != "0")
+    });
     points_grow(&b, "the waveform's points grow");
 
     // The replug, while the 10 s window is still filling.
@@ -277,11 +317,20 @@ fn the_live_page_shows_the_emulated_board_in_chromium() {
 
     let stream = follow_events(&listener.url);
     let bpm = heart_rate_agrees(&b, &listener);
-    assert!((60.0..85.0).contains(&bpm), "a finger at 72 bpm shows {bpm}");
+    assert!(
+        (60.0..85.0).contains(&bpm),
+        "a finger at 72 bpm shows {bpm}"
+    );
     gauges_update(&b);
     let rate = message_rate(&b, &stream);
-    assert!(rate >= MESSAGES_PER_S, "{rate:.2} messages per second of stream");
-    let damaged = read(&b, "return document.getElementById('link').dataset.damaged;");
+    assert!(
+        rate >= MESSAGES_PER_S,
+        "{rate:.2} messages per second of stream"
+    );
+    let damaged = read(
+        &b,
+        "return document.getElementById('link').dataset.damaged;",
+    );
     eprintln!("link: damaged {damaged}");
 
     let png = b.screenshot().unwrap();

@@ -74,7 +74,8 @@ pub mod needs {
     pub const CHROMIUM: &str = "chromium (Debian/Ubuntu: `apt-get install chromium`; \
          or set PLETHWIRE_CHROMIUM; scripts/test-all installs it)";
     /// The WebDriver server for Chromium, for the live page's check.
-    pub const CHROMEDRIVER: &str = "chromedriver (Debian/Ubuntu: `apt-get install chromium-driver`; \
+    pub const CHROMEDRIVER: &str =
+        "chromedriver (Debian/Ubuntu: `apt-get install chromium-driver`; \
          or set PLETHWIRE_CHROMEDRIVER; scripts/test-all installs it)";
     /// The Rust standard library for the emulated firmware's target.
     pub const FIRMWARE_TARGET: &str = "the Rust target thumbv7em-none-eabihf \

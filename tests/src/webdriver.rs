@@ -95,7 +95,10 @@ fn unchunked(mut rest: &[u8]) -> Result<Vec<u8>, WebDriverError> {
     let mut body = Vec::new();
     let broken = || WebDriverError::Answer("broken chunked body".into());
     loop {
-        let at = rest.windows(2).position(|w| w == b"\r\n").ok_or_else(broken)?;
+        let at = rest
+            .windows(2)
+            .position(|w| w == b"\r\n")
+            .ok_or_else(broken)?;
         let size_text = std::str::from_utf8(&rest[..at]).map_err(|_| broken())?;
         let size_text = size_text.split(';').next().unwrap_or("").trim();
         let size = usize::from_str_radix(size_text, 16).map_err(|_| broken())?;
@@ -110,7 +113,9 @@ fn unchunked(mut rest: &[u8]) -> Result<Vec<u8>, WebDriverError> {
 
 /// Where the headers of `raw` end (after the blank line), if they have.
 fn headers_end(raw: &[u8]) -> Option<usize> {
-    raw.windows(4).position(|w| w == b"\r\n\r\n").map(|at| at + 4)
+    raw.windows(4)
+        .position(|w| w == b"\r\n\r\n")
+        .map(|at| at + 4)
 }
 
 /// The value of header `name` (lower case) in `head`.
@@ -178,9 +183,14 @@ impl Driver {
     }
 
     /// One command: `method path` with `body`; the answer's `value`.
-    pub fn call(&self, method: &str, path: &str, body: Option<&Value>) -> Result<Value, WebDriverError> {
-        let mut stream =
-            TcpStream::connect((Ipv4Addr::LOCALHOST, self.port)).map_err(io("cannot reach chromedriver"))?;
+    pub fn call(
+        &self,
+        method: &str,
+        path: &str,
+        body: Option<&Value>,
+    ) -> Result<Value, WebDriverError> {
+        let mut stream = TcpStream::connect((Ipv4Addr::LOCALHOST, self.port))
+            .map_err(io("cannot reach chromedriver"))?;
         stream
             .set_read_timeout(Some(PATIENCE))
             .map_err(io("cannot set a timeout"))?;
@@ -271,7 +281,12 @@ impl Browser {
         })
     }
 
-    fn session_call(&self, method: &str, what: &str, body: Option<&Value>) -> Result<Value, WebDriverError> {
+    fn session_call(
+        &self,
+        method: &str,
+        what: &str,
+        body: Option<&Value>,
+    ) -> Result<Value, WebDriverError> {
         let path = format!("/session/{}{what}", self.id);
         self.driver.call(method, &path, body)
     }
@@ -285,7 +300,11 @@ impl Browser {
     /// Run `script` (a function body; `arguments[i]` are `args`) in the
     /// page; what it returns.
     pub fn execute(&self, script: &str, args: &[Value]) -> Result<Value, WebDriverError> {
-        self.session_call("POST", "/execute/sync", Some(&json!({ "script": script, "args": args })))
+        self.session_call(
+            "POST",
+            "/execute/sync",
+            Some(&json!({ "script": script, "args": args })),
+        )
     }
 
     /// The visible page as PNG bytes.
@@ -300,14 +319,18 @@ impl Browser {
     /// End the session (the browser closes); also done on drop.
     pub fn close(mut self) -> Result<(), WebDriverError> {
         let id = std::mem::take(&mut self.id);
-        self.driver.call("DELETE", &format!("/session/{id}"), None).map(|_| ())
+        self.driver
+            .call("DELETE", &format!("/session/{id}"), None)
+            .map(|_| ())
     }
 }
 
 impl Drop for Browser {
     fn drop(&mut self) {
         if !self.id.is_empty() {
-            let _ = self.driver.call("DELETE", &format!("/session/{}", self.id), None);
+            let _ = self
+                .driver
+                .call("DELETE", &format!("/session/{}", self.id), None);
         }
     }
 }
@@ -325,7 +348,10 @@ pub fn base64_decoded(text: &str) -> Option<Vec<u8>> {
         } as u32)
     };
     let bytes: Vec<u8> = text.bytes().filter(|c| !c.is_ascii_whitespace()).collect();
-    let body = bytes.strip_suffix(b"==").or_else(|| bytes.strip_suffix(b"=")).unwrap_or(&bytes);
+    let body = bytes
+        .strip_suffix(b"==")
+        .or_else(|| bytes.strip_suffix(b"="))
+        .unwrap_or(&bytes);
     if bytes.len() % 4 != 0 {
         return None;
     }

@@ -74,7 +74,9 @@ fn the_client_drives_headless_chromium_on_a_page_of_our_own() {
         )
         .unwrap();
     assert_eq!(text, json!("hello42"));
-    let e = browser.execute("throw new Error('on purpose');", &[]).unwrap_err();
+    let e = browser
+        .execute("throw new Error('on purpose');", &[])
+        .unwrap_err();
     assert!(
         matches!(&e, WebDriverError::Command { error, message }
             if error == "javascript error" && message.contains("on purpose")),

@@ -8,7 +8,7 @@ use std::path::Path;
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Once;
 
-use plethwire::emulate::{find_qemu, Emulation, LinkReport, Link, PacedFeed};
+use plethwire::emulate::{find_qemu, Emulation, Link, LinkReport, PacedFeed};
 use plethwire::replay::load;
 use plethwire_dsp::pipeline::Config;
 use plethwire_synth::{generate, HrSchedule, SynthOptions};

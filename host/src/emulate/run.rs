@@ -79,7 +79,10 @@ fn check_deadline(e: &Emulation, child: &mut Child, started: Instant) -> Result<
 
 /// An exit status other than success becomes the board's last line on
 /// standard error.
-pub(super) fn judge_exit(status: ExitStatus, stderr: JoinHandle<Vec<u8>>) -> Result<(), EmulateError> {
+pub(super) fn judge_exit(
+    status: ExitStatus,
+    stderr: JoinHandle<Vec<u8>>,
+) -> Result<(), EmulateError> {
     let text = String::from_utf8_lossy(&stderr.join().unwrap_or_default()).into_owned();
     if status.success() {
         return Ok(());

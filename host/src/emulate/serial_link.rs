@@ -8,7 +8,7 @@ use std::io::Write;
 use std::path::Path;
 use std::process::{ChildStdin, Stdio};
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
-use std::sync::mpsc::RecvTimeoutError;
+use std::sync::mpsc::{Receiver, RecvTimeoutError};
 use std::thread;
 use std::time::{Duration, Instant};
 
@@ -69,7 +69,13 @@ impl LinkReport {
 /// Hand the board each sample once it is due, until the feed ends or
 /// `quit` says so. A write error means QEMU is gone, which its exit
 /// status reports.
-fn pace(mut to: ChildStdin, feed: &PacedFeed, started: Instant, quit: &dyn Fn() -> bool, fed: &AtomicU64) {
+fn pace(
+    mut to: ChildStdin,
+    feed: &PacedFeed,
+    started: Instant,
+    quit: &dyn Fn() -> bool,
+    fed: &AtomicU64,
+) {
     let total = feed.total.unwrap_or(ENDLESS);
     let header = FeedHeader {
         config: feed.config,
@@ -95,6 +101,28 @@ fn pace(mut to: ChildStdin, feed: &PacedFeed, started: Instant, quit: &dyn Fn() 
         fed.store(n, Ordering::Relaxed);
         thread::sleep(PACE);
     }
+}
+
+/// Put what the board sends on the terminal until it ends or `stop` is
+/// set; `counts` gains the bytes sent and the bytes lost.
+fn relay(
+    rx: &Receiver<Vec<u8>>,
+    pty: &mut LinkedPty,
+    stop: &AtomicBool,
+    counts: &mut (u64, u64),
+) -> Result<(), EmulateError> {
+    while !stop.load(Ordering::SeqCst) {
+        match rx.recv_timeout(POLL) {
+            Ok(bytes) => {
+                counts.0 += bytes.len() as u64;
+                counts.1 += pty.send(&bytes)?;
+            }
+            Err(RecvTimeoutError::Timeout) => {}
+            // Standard output closed: QEMU is exiting.
+            Err(RecvTimeoutError::Disconnected) => break,
+        }
+    }
+    Ok(())
 }
 
 impl Emulation {
@@ -131,32 +159,17 @@ impl Emulation {
         let fed = AtomicU64::new(0);
         let ended = AtomicBool::new(false);
         let quit = || stop.load(Ordering::SeqCst) || ended.load(Ordering::SeqCst);
-        let (mut sent, mut lost) = (0u64, 0u64);
+        let mut counts = (0u64, 0u64);
         let relayed = thread::scope(|s| {
             s.spawn(|| pace(stdin, feed, started, &quit, &fed));
-            let relayed = loop {
-                if stop.load(Ordering::SeqCst) {
-                    break Ok(());
-                }
-                match rx.recv_timeout(POLL) {
-                    Ok(bytes) => {
-                        sent += bytes.len() as u64;
-                        match pty.send(&bytes) {
-                            Ok(n) => lost += n,
-                            Err(e) => break Err(e),
-                        }
-                    }
-                    Err(RecvTimeoutError::Timeout) => {}
-                    // Standard output closed: QEMU is exiting.
-                    Err(RecvTimeoutError::Disconnected) => break Ok(()),
-                }
-            };
+            let relayed = relay(&rx, &mut pty, stop, &mut counts);
             ended.store(true, Ordering::SeqCst);
             if relayed.is_err() || stop.load(Ordering::SeqCst) {
                 let _ = child.kill();
             }
             relayed
         });
+        let (sent, lost) = counts;
         let seconds = started.elapsed().as_secs_f64();
         let status = child.wait().map_err(|source| EmulateError::Io {
             what: "cannot wait for QEMU".into(),
