@@ -183,6 +183,7 @@ fn number(b: &Browser, script: &str) -> f64 {
 
 const POINTS: &str = "return document.getElementById('wave').dataset.points;";
 const CONNECTED: &str = "return document.getElementById('board').dataset.connected;";
+const LINK_FRAMES: &str = "return document.getElementById('link').dataset.frames;";
 const UPDATES: &str = "return document.body.dataset.updates;";
 const GAUGES: &str = "return Array.from(document.querySelectorAll('[data-gauge]'), \
                       g => [g.dataset.gauge, Number(g.dataset.updates)]);";
@@ -330,11 +331,21 @@ fn the_live_page_shows_the_emulated_board_in_chromium() {
         rate >= MESSAGES_PER_S,
         "{rate:.2} messages per second of stream"
     );
+    // Made up in a 12-bit ADC's counts around 2000 of 4095 (rails in the
+    // board's hello): the DC gauge near half the range.
+    let dc = number(
+        &b,
+        "return document.querySelector('[data-gauge=dc]').dataset.value;",
+    );
+    assert!((0.4..0.6).contains(&dc), "DC at {dc} of the range");
+    poll(&b, "frames counted on the page", LINK_FRAMES, |v| {
+        v.as_str().is_some_and(|n| n != "0")
+    });
     let damaged = read(
         &b,
         "return document.getElementById('link').dataset.damaged;",
     );
-    eprintln!("link: damaged {damaged}");
+    assert_eq!(damaged, "0", "a clean link");
 
     let png = b.screenshot().unwrap();
     assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n");

@@ -24,6 +24,8 @@ const RESTING_BPM: f64 = 72.0;
 /// of its 0.25 Hz breathing wander's periods, so only the pulse's phase
 /// jumps where it joins.
 const LOOP_S: f64 = 300.0;
+/// The made-up signal's ADC range: a 12-bit converter's codes.
+const MADE_UP_RAILS: (f32, f32) = (0.0, 4095.0);
 /// The line's capacity at 115200 baud, 8N1 (10 bits a byte), bytes/s.
 const LINE_BYTES_PER_S: f64 = 11_520.0;
 
@@ -75,12 +77,19 @@ fn feed(args: &EmulateArgs) -> Result<(PacedFeed, String), Failure> {
             let rate = args.pipeline.rate.unwrap_or(DEFAULT_RATE_HZ);
             plethwire_dsp::pipeline::check_sample_rate(rate)
                 .map_err(|e| Failure::refused(format!("--rate: {e}")))?;
-            let what = format!("a made-up finger at rest ({RESTING_BPM} bpm, 12-bit ADC counts)");
+            let what = format!(
+                "a made-up finger at rest ({RESTING_BPM} bpm, 12-bit ADC counts, rails 0:4095)"
+            );
             (finger_at_rest(rate)?, rate, what)
         }
     };
     let total = args.seconds.map(|s| ((s * fs).round() as u64).max(1));
-    let config: Config = args.pipeline.config(fs);
+    let mut config: Config = args.pipeline.config(fs);
+    if args.record.is_none() && config.options.rails.is_none() {
+        // The made-up finger is in a 12-bit ADC's counts: its hello says
+        // so, and listen's checks can weigh it against the range.
+        config.options.rails = Some(MADE_UP_RAILS);
+    }
     let how_long = match args.seconds {
         Some(s) => format!("for {s} s"),
         None => "looping until Ctrl-C".into(),
