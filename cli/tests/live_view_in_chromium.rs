@@ -10,7 +10,7 @@
 //! least 10 messages per second of stream, the stream's time taken from
 //! the samples' own numbers (a second event-stream client reads them);
 //! an unplugged and replugged board shows as gone, then back, and the
-//! points come again. A screenshot is kept in
+//! points come again; a reloaded page starts with the last 10 s. A screenshot is kept in
 //! `$CARGO_TARGET_DIR/artefacts/live-view.png` (path printed). Every wait
 //! is a poll with a generous limit; nothing is timed.
 //!
@@ -346,6 +346,16 @@ fn the_live_page_shows_the_emulated_board_in_chromium() {
         "return document.getElementById('link').dataset.damaged;",
     );
     assert_eq!(damaged, "0", "a clean link");
+
+    // A reload starts full: the first message's snapshot holds the last
+    // ~10 s, so at least 8 s of points come at once.
+    b.navigate(&listener.url).unwrap();
+    poll(&b, "a reloaded page full at once", POINTS, |v| {
+        v.as_str()
+            .and_then(|p| p.parse::<f64>().ok())
+            .is_some_and(|p| p >= 8.0 * RATE_HZ)
+    });
+    poll(&b, "the heart rate after a reload", HR, |v| v[0] != "");
 
     let png = b.screenshot().unwrap();
     assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n");
