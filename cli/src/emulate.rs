@@ -41,9 +41,10 @@ against the host's replay bit for bit.
 
 With --serial-link PATH it is a serial device instead: the firmware runs in
 its UART mode, fed the samples at their own rate (a 250 Hz signal arrives
-as 250 samples a second; RECORD from its start again after its end, unless
---seconds), and what it sends appears on a pseudo-terminal linked at PATH,
-for `plethwire listen --port PATH` (with --view, the live page). Without
+as 250 samples a second; RECORD from its start again after its end, until
+Ctrl-C or --seconds), and what it sends appears on a pseudo-terminal
+linked at PATH, for `plethwire listen --port PATH` (with --view, the live
+page). Without
 RECORD it is fed a made-up finger at rest at --rate Hz (default 250). The
 link is removed when it stops: Ctrl-C, or the end of --seconds. The
 emulated board has no LED, ADC or patient: a real sensor is another
