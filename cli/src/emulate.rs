@@ -44,11 +44,10 @@ its UART mode, fed the samples at their own rate (a 250 Hz signal arrives
 as 250 samples a second; RECORD from its start again after its end, until
 Ctrl-C or --seconds), and what it sends appears on a pseudo-terminal
 linked at PATH, for `plethwire listen --port PATH` (with --view, the live
-page). Without
-RECORD it is fed a made-up finger at rest at --rate Hz (default 250). The
-link is removed when it stops: Ctrl-C, or the end of --seconds. The
-emulated board has no LED, ADC or patient: a real sensor is another
-matter. plethwire is not a medical device; look at an infrared LED only
+page). Without RECORD it is fed a made-up finger at rest at --rate Hz
+(default 250). The link is removed when it stops: Ctrl-C, or the end of
+--seconds. The emulated board has no LED, ADC or patient: a real sensor
+is another matter. plethwire is not a medical device; look at an infrared LED only
 as IEC 62471 allows; power a sensor someone is wired to from a battery or
 through a USB isolator (IEC 60601-1 practice); local rules and qualified
 practice decide.
