@@ -47,8 +47,8 @@ fn install_stop_handler() -> Result<(), Failure> {
 }
 
 /// Our bench scenario, invented: a finger resting on the sensor, in the
-/// counts of a 12-bit ADC (DC near half the range, a pulse of 80 counts,
-/// breathing wander and a little noise), at `rate` Hz.
+/// whole codes of a 12-bit ADC (DC near half the range, a pulse of 80
+/// codes, breathing wander and a little noise), at `rate` Hz.
 pub fn finger_at_rest(rate: f64) -> Result<Vec<f32>, Failure> {
     let rec = generate(&SynthOptions {
         sample_rate_hz: rate,
@@ -61,7 +61,8 @@ pub fn finger_at_rest(rate: f64) -> Result<Vec<f32>, Failure> {
         ..SynthOptions::default()
     })
     .map_err(|e| Failure::refused(format!("cannot make the signal: {e}")))?;
-    Ok(rec.samples)
+    // Whole codes, as an ADC gives them (so one step is one code).
+    Ok(rec.samples.iter().map(|x| x.round()).collect())
 }
 
 /// The feed and the words that say what it is.
