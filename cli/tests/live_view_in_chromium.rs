@@ -83,14 +83,16 @@ impl Listener {
         let lines = line_reader(child.stdout.take().unwrap());
         let errors = line_reader(child.stderr.take().unwrap());
         let deadline = Instant::now() + PATIENCE;
+        let mut said = Vec::new();
         let url = loop {
             let left = deadline.saturating_duration_since(Instant::now());
-            let line = errors
-                .recv_timeout(left)
-                .unwrap_or_else(|e| panic!("no `live view:` line on listen's stderr: {e}"));
+            let line = errors.recv_timeout(left).unwrap_or_else(|e| {
+                panic!("no `live view:` line on listen's stderr ({e}); it said: {said:#?}")
+            });
             if let Some(url) = line.strip_prefix("live view: ") {
                 break url.trim().to_owned();
             }
+            said.push(line);
         };
         assert!(
             url.starts_with("http://127.0.0.1:") && url.ends_with('/'),
