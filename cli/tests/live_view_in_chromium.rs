@@ -10,7 +10,8 @@
 //! least 10 messages per second of stream, the stream's time taken from
 //! the samples' own numbers (a second event-stream client reads them);
 //! an unplugged and replugged board shows as gone, then back, and the
-//! points come again; a reloaded page starts with the last 10 s. A screenshot is kept in
+//! points come again; a paused page keeps its picture while messages
+//! come; a reloaded page starts with the last 10 s. A screenshot is kept in
 //! `$CARGO_TARGET_DIR/artefacts/live-view.png` (path printed). Every wait
 //! is a poll with a generous limit; nothing is timed.
 //!
@@ -265,6 +266,28 @@ fn message_rate(b: &Browser, stream: &Mutex<Stream>) -> f64 {
     rate
 }
 
+/// A hash of what the waveform's canvas shows now.
+const CANVAS: &str = "const d = document.getElementById('wave').toDataURL(); let h = 0; \
+                      for (let i = 0; i < d.length; i++) h = (h * 31 + d.charCodeAt(i)) | 0; \
+                      return h;";
+const PAUSE: &str = "document.getElementById('pause').click(); \
+                     return document.getElementById('pause').getAttribute('aria-pressed');";
+
+/// Pausing freezes the drawing while messages keep coming; resuming
+/// draws again.
+fn pause_keeps_the_stream(b: &Browser) {
+    assert_eq!(read(b, PAUSE), "true");
+    let (picture, updates) = (read(b, CANVAS), number(b, UPDATES));
+    wait_until("messages while paused", || {
+        number(b, UPDATES) >= updates + 5.0
+    });
+    assert_eq!(read(b, CANVAS), picture, "the drawing changed while paused");
+    assert_eq!(read(b, PAUSE), "false");
+    wait_until("drawing again after the pause", || {
+        read(b, CANVAS) != picture
+    });
+}
+
 /// `$CARGO_TARGET_DIR/artefacts`, else `target/artefacts` beside this
 /// test's executable.
 fn artefacts() -> PathBuf {
@@ -348,6 +371,8 @@ fn the_live_page_shows_the_emulated_board_in_chromium() {
         "return document.getElementById('link').dataset.damaged;",
     );
     assert_eq!(damaged, "0", "a clean link");
+
+    pause_keeps_the_stream(&b);
 
     // A reload starts full: the first message's snapshot holds the last
     // ~10 s, so at least 8 s of points come at once.
