@@ -23,18 +23,35 @@ use plethwire::replay::{
 };
 use plethwire_records::annotation_path;
 
+mod serial_link;
+
 const EXAMPLES: &str = "\
 Examples:
   plethwire emulate ../shared/data/capnobase/cb0009 --out /tmp/beats
   plethwire emulate ../shared/data/bidmc/bidmc01 --uart --seconds 60
   plethwire emulate ../shared/data/bidmc/bidmc01 --count-instructions --quiet
   plethwire emulate ../shared/data/bidmc/bidmc01 --seconds 30 --json
+  plethwire emulate --serial-link /tmp/plethwire-board --rate 250
+  plethwire emulate ../shared/data/bidmc/bidmc01 --serial-link /tmp/plethwire-board --seconds 120
 
 Runs the firmware (firmware/emulated) in QEMU's mps2-an386 board, prints
 each beat and state change it sends, writes <record>.<annotator> (WFDB
 annotations, as `plethwire replay`, never over an existing file without
 --force) in --out (default: the current folder), and checks every event
 against the host's replay bit for bit.
+
+With --serial-link PATH it is a serial device instead: the firmware runs in
+its UART mode, fed the samples at their own rate (a 250 Hz signal arrives
+as 250 samples a second; RECORD from its start again after its end, until
+Ctrl-C or --seconds), and what it sends appears on a pseudo-terminal
+linked at PATH, for `plethwire listen --port PATH` (with --view, the live
+page). Without RECORD it is fed a made-up finger at rest at --rate Hz
+(default 250). The link is removed when it stops: Ctrl-C, or the end of
+--seconds. The emulated board has no LED, ADC or patient: a real sensor
+is another matter. plethwire is not a medical device; look at an infrared LED only
+as IEC 62471 allows; power a sensor someone is wired to from a battery or
+through a USB isolator (IEC 60601-1 practice); local rules and qualified
+practice decide.
 
 The firmware: --firmware ELF, else $PLETHWIRE_FIRMWARE, else built in the
 plethwire checkout --source DIR or $PLETHWIRE_SOURCE names, else the
@@ -48,9 +65,16 @@ be understood.";
 #[derive(Args, Debug, Clone, PartialEq)]
 #[command(after_help = EXAMPLES)]
 pub struct EmulateArgs {
-    /// WFDB record (dir/name or dir/name.hea) or CSV file.
-    #[arg(value_name = "RECORD")]
-    pub record: PathBuf,
+    /// WFDB record (dir/name or dir/name.hea) or CSV file [with
+    /// --serial-link: default a made-up finger at rest].
+    #[arg(value_name = "RECORD", required_unless_present = "serial_link")]
+    pub record: Option<PathBuf>,
+
+    /// Be a serial device: the board's UART on a pseudo-terminal linked at
+    /// PATH, fed in real time, until Ctrl-C or --seconds.
+    #[arg(long, value_name = "PATH",
+          conflicts_with_all = ["uart", "count_instructions", "json", "out", "force"])]
+    pub serial_link: Option<PathBuf>,
 
     /// Folder for the annotation file [default: the current folder].
     #[arg(long, value_name = "DIR")]
@@ -131,13 +155,22 @@ fn state_line(s: &StateEvent, fs: f64) -> String {
 impl EmulateArgs {
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
-        super::replay::check_annotator(&self.record, &self.annotator, self.force)?;
+        match (&self.serial_link, &self.record) {
+            (Some(link), _) => serial_link::run(self, link, out),
+            (None, Some(record)) => self.run_record(record, out),
+            (None, None) => Err(Failure::refused("a RECORD is needed without --serial-link")),
+        }
+    }
+
+    /// Run `record` through the board and check it against the host.
+    fn run_record(&self, record: &Path, out: &mut dyn Write) -> Result<(), Failure> {
+        super::replay::check_annotator(record, &self.annotator, self.force)?;
         // The cheap checks first: no point loading 8 minutes of samples
         // for a board that is not there.
         let firmware = self.firmware()?;
         let qemu = find_qemu().map_err(Failure::refused)?;
-        let rec = load(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
-        let dir = self.output_dir(&rec)?;
+        let rec = load(record, &self.pipeline.source()).map_err(Failure::refused)?;
+        let dir = self.output_dir(record, &rec)?;
         let fs = rec.signal.fs;
         let config = self.pipeline.config(fs);
         let n = match self.seconds {
@@ -174,13 +207,13 @@ impl EmulateArgs {
         };
         let session = emulation
             .run(samples, config, &mut show)
-            .map_err(|e| Failure::refused(format!("{}: {e}", self.record.display())))?;
+            .map_err(|e| Failure::refused(format!("{}: {e}", record.display())))?;
         if let Some(e) = failed_output {
             return Err(Failure::output(e));
         }
         session.verify().map_err(Failure::refused)?;
         let board = session.to_replay();
-        let agreement = self.against_host(samples, config, &session, &board)?;
+        let agreement = self.against_host(record, samples, config, &session, &board)?;
         let ann =
             write_recording_beats(&dir, &rec, &self.annotator, &board).map_err(Failure::refused)?;
         let text = if self.json {
@@ -208,6 +241,7 @@ impl EmulateArgs {
     /// `session`) against the host replay of the same samples.
     fn against_host(
         &self,
+        record: &Path,
         samples: &[f64],
         config: Config,
         session: &Session,
@@ -216,7 +250,7 @@ impl EmulateArgs {
         let cannot = |e| {
             Failure::refused(format!(
                 "{}: cannot run the pipeline: {e}",
-                self.record.display()
+                record.display()
             ))
         };
         let host = replay(samples, config).map_err(cannot)?;
@@ -230,12 +264,12 @@ impl EmulateArgs {
         Ok(compare(events, &host, &host_blocks))
     }
 
-    /// The folder for the annotation file of `rec`, once nothing is in
-    /// the way of that file.
-    fn output_dir(&self, rec: &Recording) -> Result<PathBuf, Failure> {
+    /// The folder for the annotation file of `rec` (read from `record`),
+    /// once nothing is in the way of that file.
+    fn output_dir(&self, record: &Path, rec: &Recording) -> Result<PathBuf, Failure> {
         let dir = super::replay::output_dir(self.out.as_deref())?;
         let file = annotation_path(&dir.join(&rec.name), &self.annotator);
-        super::replay::check_outputs(&self.record, &[file], self.force)?;
+        super::replay::check_outputs(record, &[file], self.force)?;
         Ok(dir)
     }
 

@@ -185,6 +185,9 @@ impl Sink for Tee<'_, '_> {
     }
 
     fn tick(&mut self, now: std::time::Instant, progress: &Progress) -> io::Result<()> {
+        if let Some(v) = &mut self.view {
+            v.tick(now, progress)?;
+        }
         self.capture.tick(now, progress)
     }
 }

@@ -72,6 +72,8 @@ fn usage_errors_exit_2() {
         &["emulate", "rec", "--uart", "--count-instructions"],
         &["emulate", "rec", "--annotator", "a.b", "--elf", "/no/such"],
         &["emulate"],
+        &["emulate", "--serial-link", "/tmp/x", "--uart"],
+        &["emulate", "--serial-link", "/tmp/x", "--json"],
     ] {
         let (code, _, err) = plethwire(args);
         assert_eq!(code, 2, "{args:?}: {err}");
@@ -88,6 +90,10 @@ fn help_names_the_links_and_the_default_firmware() {
         "--uart",
         "--count-instructions",
         "--seconds",
+        "--serial-link",
+        "plethwire listen --port",
+        "IEC 62471",
+        "IEC 60601-1",
         "plethwire-emulated",
     ] {
         assert!(out.contains(word), "{word} missing from:\n{out}");

@@ -30,6 +30,8 @@
 //! * `PLETHWIRE_QEMU`: `qemu-system-arm` binary to use (default: from `PATH`).
 //! * `PLETHWIRE_CHROMIUM`: Chromium binary for the browser checks
 //!   (default: `chromium`, then `chromium-browser`, from `PATH`).
+//! * `PLETHWIRE_CHROMEDRIVER`: chromedriver for the live page's check
+//!   ([`webdriver`]; default: `chromedriver` from `PATH`).
 
 pub mod accuracy;
 pub mod baseline;
@@ -37,6 +39,7 @@ pub mod beside;
 pub mod browser;
 pub mod emulation;
 pub mod selfcheck;
+pub mod webdriver;
 
 pub use baseline::{baseline_detections, baseline_peaks, BaselineInput, BaselinePeaks};
 pub use plethwire::emulate::{firmware_target_installed, FIRMWARE_TARGET};
@@ -70,6 +73,10 @@ pub mod needs {
     /// A headless browser for the pictures.
     pub const CHROMIUM: &str = "chromium (Debian/Ubuntu: `apt-get install chromium`; \
          or set PLETHWIRE_CHROMIUM; scripts/test-all installs it)";
+    /// The WebDriver server for Chromium, for the live page's check.
+    pub const CHROMEDRIVER: &str =
+        "chromedriver (Debian/Ubuntu: `apt-get install chromium-driver`; \
+         or set PLETHWIRE_CHROMEDRIVER; scripts/test-all installs it)";
     /// The Rust standard library for the emulated firmware's target.
     pub const FIRMWARE_TARGET: &str = "the Rust target thumbv7em-none-eabihf \
          (`rustup target add thumbv7em-none-eabihf`; scripts/test-all adds it)";

@@ -13,6 +13,10 @@
 //!   UART0's receive line, and the frames come out of its standard output,
 //!   as they would from a real board's serial port (about 10 kB/s).
 //!
+//! [`Emulation::serve_serial_link`] makes the board a serial device: the
+//! UART mode fed in real time, its output on a pseudo-terminal linked at a
+//! path for `plethwire listen` (`serial_link.rs`, `pty.rs`).
+//!
 //! [`compare`] then checks the board's events against
 //! [`crate::replay::replay`] bit for bit.
 
@@ -21,7 +25,9 @@ mod compare;
 mod elf;
 mod firmware;
 mod perf;
+mod pty;
 mod run;
+mod serial_link;
 mod session;
 
 pub use board::{
@@ -35,6 +41,8 @@ pub use compare::{
 pub use elf::{check_elf, ElfProblem, EMULATED_FLASH};
 pub use firmware::{Firmware, FirmwareError, FirmwareSearch, FIRMWARE_VAR, SOURCE_VAR};
 pub use perf::{parse as parse_perf, PerfError, PerfReport};
+pub use pty::LinkedPty;
+pub use serial_link::{LinkReport, PacedFeed};
 pub use session::{Session, StreamError};
 
 use std::path::PathBuf;
@@ -92,6 +100,12 @@ pub enum EmulateError {
     /// The run took longer than its timeout.
     #[error("the emulated board did not finish within {} s and was stopped", .0.as_secs())]
     Timeout(Duration),
+    /// A serial link's path is taken by something that is not a symlink.
+    #[error("{0} exists and is not a symlink; choose another path for the serial link")]
+    LinkInTheWay(PathBuf),
+    /// A serial link was given no samples to feed.
+    #[error("the serial link has no samples to feed")]
+    EmptyFeed,
     /// The perf report is unreadable.
     #[error(transparent)]
     Perf(#[from] PerfError),

@@ -31,7 +31,7 @@ fn io(what: &str) -> impl Fn(std::io::Error) -> EmulateError + '_ {
 }
 
 /// Start QEMU in `dir` with the firmware command line `args`.
-fn start(
+pub(super) fn start(
     e: &Emulation,
     dir: &Path,
     args: &[&str],
@@ -79,7 +79,10 @@ fn check_deadline(e: &Emulation, child: &mut Child, started: Instant) -> Result<
 
 /// An exit status other than success becomes the board's last line on
 /// standard error.
-fn judge_exit(status: ExitStatus, stderr: JoinHandle<Vec<u8>>) -> Result<(), EmulateError> {
+pub(super) fn judge_exit(
+    status: ExitStatus,
+    stderr: JoinHandle<Vec<u8>>,
+) -> Result<(), EmulateError> {
     let text = String::from_utf8_lossy(&stderr.join().unwrap_or_default()).into_owned();
     if status.success() {
         return Ok(());
@@ -163,7 +166,7 @@ pub(super) fn over_files(
 }
 
 /// Standard output in chunks, as it comes, on a thread of its own.
-fn chunks(mut out: impl Read + Send + 'static) -> Receiver<Vec<u8>> {
+pub(super) fn chunks(mut out: impl Read + Send + 'static) -> Receiver<Vec<u8>> {
     let (tx, rx) = mpsc::channel();
     thread::spawn(move || {
         let mut buf = [0u8; 4096];

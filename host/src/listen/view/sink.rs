@@ -8,7 +8,7 @@ use std::sync::{Arc, Mutex, MutexGuard};
 
 use super::live::Live;
 use super::message::{BeatMark, BoardFields, LinkCounts, Point};
-use crate::listen::{Event, Sink};
+use crate::listen::{Event, Progress, Sink};
 
 /// Feeds the live page; get one from [`super::View::sink`].
 #[derive(Clone, Debug)]
@@ -40,6 +40,13 @@ impl ViewSink {
 }
 
 impl Sink for ViewSink {
+    /// The link's counts come with listen's once-a-second progress, so the
+    /// page's frame counters move even when no `Link` event is sent.
+    fn tick(&mut self, _now: std::time::Instant, progress: &Progress) -> io::Result<()> {
+        lock(&self.live).link(counts(&progress.link));
+        Ok(())
+    }
+
     fn event(&mut self, event: &Event) -> io::Result<()> {
         let mut live = lock(&self.live);
         let board = live.board_now();
