@@ -53,8 +53,9 @@ use photo::Photo;
 /// Samples per second, as on the STM32F411 board.
 const SAMPLE_RATE_HZ: u32 = 250;
 /// UART0 baud rate: from the 125 MHz peripheral clock the divider is
-/// 67 + 52/64, 0.003 % off, and every USB serial adapter takes it. Beats,
-/// states and status need well under 1 kB/s of its 11.5 kB/s.
+/// 67 + 52/64, 0.006 % fast, and every USB serial adapter takes it. Sample
+/// blocks, beats, states and status need about 2.4 kB/s of its 11.5 kB/s
+/// at 250 Hz (docs/wire-format.md, "Bandwidth").
 const BAUD: u32 = 115_200;
 /// LED drive PWM frequency: far above the front end's band, and 6250 steps
 /// of duty from the 125 MHz system clock.
