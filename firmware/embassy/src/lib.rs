@@ -108,16 +108,18 @@ where
 }
 
 /// The calling crate's package version as the `[major, minor, patch]` that
-/// `Hello` reports, checked at compile time.
+/// `Hello` reports, worked out and checked at compile time (a constant, so
+/// no parsing code is linked).
 #[macro_export]
 macro_rules! firmware_version {
-    () => {
-        [
+    () => {{
+        const VERSION: [u8; 3] = [
             $crate::version_part(env!("CARGO_PKG_VERSION_MAJOR")),
             $crate::version_part(env!("CARGO_PKG_VERSION_MINOR")),
             $crate::version_part(env!("CARGO_PKG_VERSION_PATCH")),
-        ]
-    };
+        ];
+        VERSION
+    }};
 }
 
 /// A version component ("0" to "255") as a number, at compile time; for
