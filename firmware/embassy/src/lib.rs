@@ -1,12 +1,13 @@
 //! What plethwire's embassy-based real boards share, so that a board crate
-//! is only its pin map and peripheral setup: [`sample`], the timer-paced
-//! loop around [`Board::tick`]; [`send`], which empties the board's frame
-//! queue into a UART while sampling goes on; the panic handler; and
+//! is only its pin map and peripheral setup: [`board`], which sets up the
+//! [`Board`]; [`run`], which runs its two loops (the timer-paced sampler
+//! around [`Board::tick`], and the sender that empties the board's frame
+//! queue into a UART while sampling goes on); the panic handler; and
 //! [`firmware_version!`].
 //!
-//! Each board runs the two loops side by side on one executor
-//! (`embassy_futures::join`), sharing the board through a `RefCell`: they
-//! never hold it across an await, so a borrow cannot fail.
+//! The two loops run side by side on one executor (`join`), sharing the
+//! board through a `RefCell`: they never hold it across an await, so a
+//! borrow cannot fail.
 
 #![no_std]
 
@@ -15,21 +16,73 @@ mod panic;
 use core::cell::RefCell;
 use core::convert::Infallible;
 
+use embassy_futures::join::join;
 use embassy_sync::blocking_mutex::raw::NoopRawMutex;
 use embassy_sync::signal::Signal;
 use embassy_time::{Instant, Timer};
 use embedded_hal::delay::DelayNs;
 use embedded_hal::digital::{OutputPin, StatefulOutputPin};
 use embedded_hal::pwm::SetDutyCycle;
-use plethwire_board::{Board, PhotoSampler};
+use plethwire_board::{Board, BoardConfig, BoardError, Hardware, PhotoSampler};
 
 /// Bytes per UART transfer: 5.6 ms of line at 115200 baud, so new frames
 /// wait little behind a transfer in flight.
 const CHUNK: usize = 64;
 
+/// A [`Board`] with `config` on `hw`, ready for [`run`]. Panics, with a
+/// log line, if it cannot be set up.
+pub fn board<L, P, A, D>(
+    config: BoardConfig,
+    hw: Hardware<L, P, A, D>,
+) -> RefCell<Board<L, P, A, D>>
+where
+    L: OutputPin,
+    P: SetDutyCycle,
+    A: PhotoSampler,
+    D: DelayNs,
+{
+    match Board::new(config, hw) {
+        Ok(board) => RefCell::new(board),
+        // Not every HAL's PWM error has a defmt form; the only one a duty
+        // can meet is being above the period, which the exposure
+        // controller never asks for.
+        Err(BoardError::Drive(_)) => defmt::panic!("board setup: the LED drive refused its duty"),
+        Err(BoardError::Rate) => defmt::panic!("board setup: {} Hz", config.sample_rate_hz),
+        Err(BoardError::Pipeline(e)) => defmt::panic!("board setup: {}", e),
+    }
+}
+
+/// Run `board`: a sample at every deadline, `beat_led` toggled at every
+/// beat, and the frames out through `write` (one UART transfer, by DMA on
+/// the boards).
+///
+/// The board stays in the caller's frame (the main task's static storage):
+/// moved into this future as well, it would cost a second copy of its
+/// state handling, about 1 KiB of flash.
+pub async fn run<L, P, A, D, const Q: usize, E>(
+    board: &RefCell<Board<L, P, A, D, Q>>,
+    beat_led: impl StatefulOutputPin<Error = Infallible>,
+    write: impl AsyncFnMut(&[u8]) -> Result<(), E>,
+) -> !
+where
+    L: OutputPin,
+    P: SetDutyCycle,
+    A: PhotoSampler,
+    D: DelayNs,
+    E: defmt::Format,
+{
+    let queued = Signal::new();
+    join(
+        sample(board, &queued, beat_led),
+        send(board, &queued, write),
+    )
+    .await
+    .0
+}
+
 /// Take a sample at every deadline, log what happened, toggle `beat_led`
 /// at every beat, and wake the sender when there is something to send.
-pub async fn sample<L, P, A, D, const Q: usize>(
+async fn sample<L, P, A, D, const Q: usize>(
     board: &RefCell<Board<L, P, A, D, Q>>,
     queued: &Signal<NoopRawMutex, ()>,
     mut beat_led: impl StatefulOutputPin<Error = Infallible>,
@@ -78,9 +131,9 @@ where
     }
 }
 
-/// Send whatever is queued through `write` (one UART transfer, by DMA on
-/// the boards); sleep on `queued` when nothing is.
-pub async fn send<L, P, A, D, const Q: usize, E>(
+/// Send whatever is queued through `write`; sleep on `queued` when nothing
+/// is.
+async fn send<L, P, A, D, const Q: usize, E>(
     board: &RefCell<Board<L, P, A, D, Q>>,
     queued: &Signal<NoopRawMutex, ()>,
     mut write: impl AsyncFnMut(&[u8]) -> Result<(), E>,

@@ -31,22 +31,17 @@
 
 mod photo;
 
-use core::cell::RefCell;
-
 use defmt_rtt as _;
 use embassy_executor::Spawner;
-use embassy_futures::join::join;
 use embassy_rp::adc::{self, Adc, Channel};
 use embassy_rp::clocks::clk_sys_freq;
 use embassy_rp::gpio::{Level, Output, Pull};
 use embassy_rp::peripherals::DMA_CH0;
-use embassy_rp::pwm::{self, Pwm, PwmOutput};
+use embassy_rp::pwm::{self, Pwm};
 use embassy_rp::uart::{self, Async, UartTx};
 use embassy_rp::{bind_interrupts, dma};
-use embassy_sync::blocking_mutex::raw::NoopRawMutex;
-use embassy_sync::signal::Signal;
 use embassy_time::{Delay, TICK_HZ};
-use plethwire_board::{Board, BoardConfig, BoardError, Hardware};
+use plethwire_board::{BoardConfig, Hardware};
 
 use photo::Photo;
 
@@ -60,11 +55,6 @@ const BAUD: u32 = 115_200;
 /// LED drive PWM frequency: far above the front end's band, and 6250 steps
 /// of duty from the 125 MHz system clock.
 const PWM_HZ: u32 = 20_000;
-/// Transmit queue, bytes.
-const QUEUE_BYTES: usize = 512;
-
-/// The board with this hardware.
-type Front = Board<Output<'static>, PwmOutput<'static>, Photo<'static>, Delay, QUEUE_BYTES>;
 
 bind_interrupts!(struct Irqs {
     DMA_IRQ_0 => dma::InterruptHandler<DMA_CH0>;
@@ -108,19 +98,7 @@ async fn main(_spawner: Spawner) {
     let mut tx: UartTx<'static, Async> = UartTx::new(p.UART0, p.PIN_0, p.DMA_CH0, Irqs, uart);
     let mut config = BoardConfig::new(SAMPLE_RATE_HZ, TICK_HZ);
     config.firmware_version = plethwire_embassy::firmware_version!();
-    let board: RefCell<Front> = match Board::new(config, hw) {
-        Ok(board) => RefCell::new(board),
-        // The PWM's error type has no defmt form; its one case is a duty
-        // above the period, which the exposure controller never asks for.
-        Err(BoardError::Drive(_)) => defmt::panic!("board setup: LED drive refused"),
-        Err(BoardError::Rate) => defmt::panic!("board setup: sample rate"),
-        Err(BoardError::Pipeline(e)) => defmt::panic!("board setup: pipeline {}", e),
-    };
     let beat_led = Output::new(p.PIN_25, Level::Low);
-    let queued: Signal<NoopRawMutex, ()> = Signal::new();
-    join(
-        plethwire_embassy::sample(&board, &queued, beat_led),
-        plethwire_embassy::send(&board, &queued, async |bytes: &[u8]| tx.write(bytes).await),
-    )
-    .await;
+    let board = plethwire_embassy::board(config, hw);
+    plethwire_embassy::run(&board, beat_led, async |bytes: &[u8]| tx.write(bytes).await).await
 }

@@ -28,23 +28,17 @@
 mod clocks;
 mod photo;
 
-use core::cell::RefCell;
-
 use defmt_rtt as _;
 use embassy_executor::Spawner;
-use embassy_futures::join::join;
 use embassy_stm32::adc::Adc;
 use embassy_stm32::gpio::{Level, Output, OutputType, Speed};
 use embassy_stm32::mode::Async;
-use embassy_stm32::peripherals::TIM3;
 use embassy_stm32::time::Hertz;
-use embassy_stm32::timer::simple_pwm::{PwmPin, SimplePwm, SimplePwmChannel};
+use embassy_stm32::timer::simple_pwm::{PwmPin, SimplePwm};
 use embassy_stm32::usart::{self, UartTx};
 use embassy_stm32::{bind_interrupts, dma, peripherals};
-use embassy_sync::blocking_mutex::raw::NoopRawMutex;
-use embassy_sync::signal::Signal;
 use embassy_time::{Delay, TICK_HZ};
-use plethwire_board::{Board, BoardConfig, Hardware};
+use plethwire_board::{BoardConfig, Hardware};
 
 use photo::Photo;
 
@@ -58,12 +52,6 @@ const BAUD: u32 = 115_200;
 /// LED drive PWM frequency: far above the front end's band, and 5000 steps
 /// of duty from TIM3's 100 MHz clock.
 const PWM_HZ: u32 = 20_000;
-/// Transmit queue, bytes.
-const QUEUE_BYTES: usize = 512;
-
-/// The board with this hardware.
-type Front =
-    Board<Output<'static>, SimplePwmChannel<'static, TIM3>, Photo<'static>, Delay, QUEUE_BYTES>;
 
 bind_interrupts!(struct Irqs {
     DMA2_STREAM7 => dma::InterruptHandler<peripherals::DMA2_CH7>;
@@ -104,15 +92,7 @@ async fn main(_spawner: Spawner) {
     };
     let mut config = BoardConfig::new(SAMPLE_RATE_HZ, TICK_HZ);
     config.firmware_version = plethwire_embassy::firmware_version!();
-    let board: RefCell<Front> = match Board::new(config, hw) {
-        Ok(board) => RefCell::new(board),
-        Err(e) => defmt::panic!("board setup: {}", e),
-    };
     let beat_led = Output::new(p.PC13, Level::High, Speed::Low);
-    let queued: Signal<NoopRawMutex, ()> = Signal::new();
-    join(
-        plethwire_embassy::sample(&board, &queued, beat_led),
-        plethwire_embassy::send(&board, &queued, async |bytes: &[u8]| tx.write(bytes).await),
-    )
-    .await;
+    let board = plethwire_embassy::board(config, hw);
+    plethwire_embassy::run(&board, beat_led, async |bytes: &[u8]| tx.write(bytes).await).await
 }
