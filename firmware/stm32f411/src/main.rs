@@ -26,27 +26,19 @@
 #![no_main]
 
 mod clocks;
-mod link;
-mod panic;
 mod photo;
-
-use core::cell::RefCell;
 
 use defmt_rtt as _;
 use embassy_executor::Spawner;
-use embassy_futures::join::join;
 use embassy_stm32::adc::Adc;
 use embassy_stm32::gpio::{Level, Output, OutputType, Speed};
 use embassy_stm32::mode::Async;
-use embassy_stm32::peripherals::TIM3;
 use embassy_stm32::time::Hertz;
-use embassy_stm32::timer::simple_pwm::{PwmPin, SimplePwm, SimplePwmChannel};
+use embassy_stm32::timer::simple_pwm::{PwmPin, SimplePwm};
 use embassy_stm32::usart::{self, UartTx};
 use embassy_stm32::{bind_interrupts, dma, peripherals};
-use embassy_sync::blocking_mutex::raw::NoopRawMutex;
-use embassy_sync::signal::Signal;
-use embassy_time::{Delay, Instant, Timer, TICK_HZ};
-use plethwire_board::{Board, BoardConfig, Hardware};
+use embassy_time::{Delay, TICK_HZ};
+use plethwire_board::{BoardConfig, Hardware};
 
 use photo::Photo;
 
@@ -60,19 +52,6 @@ const BAUD: u32 = 115_200;
 /// LED drive PWM frequency: far above the front end's band, and 5000 steps
 /// of duty from TIM3's 100 MHz clock.
 const PWM_HZ: u32 = 20_000;
-/// Transmit queue, bytes.
-const QUEUE_BYTES: usize = 512;
-
-/// This firmware's version, from the package's.
-const FIRMWARE_VERSION: [u8; 3] = [
-    version_part(env!("CARGO_PKG_VERSION_MAJOR")),
-    version_part(env!("CARGO_PKG_VERSION_MINOR")),
-    version_part(env!("CARGO_PKG_VERSION_PATCH")),
-];
-
-/// The board with this hardware.
-type Front =
-    Board<Output<'static>, SimplePwmChannel<'static, TIM3>, Photo<'static>, Delay, QUEUE_BYTES>;
 
 bind_interrupts!(struct Irqs {
     DMA2_STREAM7 => dma::InterruptHandler<peripherals::DMA2_CH7>;
@@ -106,77 +85,14 @@ async fn main(_spawner: Spawner) {
     };
     let mut uart = usart::Config::default();
     uart.baudrate = BAUD;
-    let tx: UartTx<'static, Async> = match UartTx::new(p.USART1, p.PA9, p.DMA2_CH7, Irqs, uart) {
+    let mut tx: UartTx<'static, Async> = match UartTx::new(p.USART1, p.PA9, p.DMA2_CH7, Irqs, uart)
+    {
         Ok(tx) => tx,
         Err(e) => defmt::panic!("USART1 setup: {}", e),
     };
     let mut config = BoardConfig::new(SAMPLE_RATE_HZ, TICK_HZ);
-    config.firmware_version = FIRMWARE_VERSION;
-    let board = match Board::new(config, hw) {
-        Ok(board) => RefCell::new(board),
-        Err(e) => defmt::panic!("board setup: {}", e),
-    };
+    config.firmware_version = plethwire_embassy::firmware_version!();
     let beat_led = Output::new(p.PC13, Level::High, Speed::Low);
-    let queued = Signal::new();
-    join(
-        sample(&board, &queued, beat_led),
-        link::send(&board, &queued, tx),
-    )
-    .await;
-}
-
-/// Take a sample at every deadline, log what happened, wake the sender
-/// when there is something to send.
-async fn sample(
-    board: &RefCell<Front>,
-    queued: &Signal<NoopRawMutex, ()>,
-    mut beat_led: Output<'static>,
-) -> ! {
-    board.borrow_mut().start(Instant::now().as_ticks());
-    loop {
-        let at = board.borrow().deadline();
-        // The timer paces: deadlines come from the schedule, not from the
-        // time this loop takes.
-        Timer::at(Instant::from_ticks(at)).await;
-        let report = board.borrow_mut().tick(Instant::now().as_ticks());
-        if let Some(due) = report.due.filter(|d| d.missed > 0) {
-            defmt::warn!(
-                "{} sample ticks missed before sample {}",
-                due.missed,
-                due.index
-            );
-        }
-        if let Some(c) = report.drive {
-            defmt::info!("LED drive {} -> {} (DC level {})", c.from, c.to, c.dc_level);
-        }
-        if let Some(s) = report.state {
-            defmt::info!("signal {} -> {}", s.previous, s.state);
-        }
-        if let Some(b) = report.beat {
-            beat_led.toggle();
-            defmt::debug!(
-                "beat at {}: {} bpm, flags {}",
-                b.peak_index,
-                b.hr_bpm,
-                b.flags
-            );
-        }
-        if !board.borrow().queue().is_empty() {
-            queued.signal(());
-        }
-    }
-}
-
-/// A version component ("0" to "255") as a number, at compile time.
-const fn version_part(s: &str) -> u8 {
-    let b = s.as_bytes();
-    let mut i = 0;
-    let mut v: u32 = 0;
-    while i < b.len() {
-        assert!(b[i].is_ascii_digit(), "version parts are numbers");
-        v = v * 10 + (b[i] - b'0') as u32;
-        i += 1;
-    }
-    assert!(v <= 255, "version parts fit in a byte");
-    v as u8
+    let board = plethwire_embassy::board(config, hw);
+    plethwire_embassy::run(&board, beat_led, async |bytes: &[u8]| tx.write(bytes).await).await
 }
