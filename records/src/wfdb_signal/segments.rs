@@ -199,6 +199,18 @@ impl Segments {
         Ok(out)
     }
 
+    /// Each segment's frames, with its record and the place of signal
+    /// `index` in it (`None`: a gap, or a segment without the signal).
+    pub(crate) fn pieces(
+        &self,
+        index: usize,
+    ) -> impl Iterator<Item = (u64, Option<(&Record, usize)>)> {
+        self.parts.iter().map(move |p| {
+            let j = p.map.get(index).copied().flatten();
+            (p.frames, p.record.as_ref().zip(j))
+        })
+    }
+
     /// Check every segment's checksums against its samples.
     pub(crate) fn verify_checksums(&self) -> Result<()> {
         for seg in self.parts.iter().filter_map(|p| p.record.as_ref()) {

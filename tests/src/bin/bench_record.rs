@@ -76,8 +76,16 @@ fn run(args: &[String]) -> Result<String, String> {
     while let Some(a) = it.next() {
         let mut value = |what: &str| it.next().cloned().ok_or(format!("{what} needs a value"));
         match a.as_str() {
-            "--hours" => hours = value("--hours")?.parse().map_err(|e| format!("--hours: {e}"))?,
-            "--rate" => fs = value("--rate")?.parse().map_err(|e| format!("--rate: {e}"))?,
+            "--hours" => {
+                hours = value("--hours")?
+                    .parse()
+                    .map_err(|e| format!("--hours: {e}"))?
+            }
+            "--rate" => {
+                fs = value("--rate")?
+                    .parse()
+                    .map_err(|e| format!("--rate: {e}"))?
+            }
             "--name" => name = value("--name")?,
             "-h" | "--help" => return Ok(HELP.to_string()),
             _ if dir.is_none() => dir = Some(PathBuf::from(a)),
