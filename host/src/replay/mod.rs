@@ -3,6 +3,7 @@
 
 mod beats;
 mod load;
+mod stream;
 mod summary;
 #[cfg(test)]
 mod tests;
@@ -11,6 +12,7 @@ pub use beats::{
     beat_rows, beats_csv, write_beat_annotations, write_recording_beats, BeatRow, BEATS_CSV_HEADER,
 };
 pub use load::{load, InputInfo, Polarity, Recording, ReplayError, Source};
+pub use stream::{open, StreamError, Streamed, BLOCK_FRAMES};
 pub use summary::{HrvSummary, RateSummary, Summary};
 
 use crate::motion::MotionSignals;
