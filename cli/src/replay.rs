@@ -220,15 +220,17 @@ impl ReplayArgs {
         let ann =
             write_recording_beats(&dir, rec, &self.annotator, run).map_err(Failure::refused)?;
         let mut written = vec![ann.display().to_string()];
-        let tables = [
-            (self.beats_csv, beats_csv(run)),
-            (
-                self.beats_json,
-                serde_json::to_string_pretty(&beat_rows(run)).unwrap_or_default() + "\n",
-            ),
-        ];
-        let bodies = tables.into_iter().filter(|(wanted, _)| *wanted);
-        for (path, (_, body)) in outputs[1..].iter().zip(bodies) {
+        // Each table made only when asked for: on a long record they are
+        // the largest things the command holds.
+        let csv = || beats_csv(run);
+        let json = || serde_json::to_string_pretty(&beat_rows(run)).unwrap_or_default() + "\n";
+        let tables: [(bool, &dyn Fn() -> String); 2] =
+            [(self.beats_csv, &csv), (self.beats_json, &json)];
+        let bodies = tables
+            .into_iter()
+            .filter(|(wanted, _)| *wanted)
+            .map(|(_, make)| make());
+        for (path, body) in outputs[1..].iter().zip(bodies) {
             std::fs::write(path, body)
                 .map_err(|e| Failure::refused(format!("{}: cannot write: {e}", path.display())))?;
             written.push(path.display().to_string());

@@ -108,11 +108,16 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
 }
 
 impl Streamed {
-    /// Hand the samples to `each`, a block at a time, in order.
-    pub fn blocks(&self, mut each: impl FnMut(&[f64])) -> Result<(), ReplayError> {
+    /// Hand the samples to `each`, a block at a time, in order, for as
+    /// long as it answers `true`.
+    pub fn blocks(&self, mut each: impl FnMut(&[f64]) -> bool) -> Result<(), ReplayError> {
         match &self.samples {
             Samples::Whole(samples) => {
-                samples.chunks(BLOCK_FRAMES).for_each(each);
+                for block in samples.chunks(BLOCK_FRAMES) {
+                    if !each(block) {
+                        break;
+                    }
+                }
             }
             Samples::Wfdb {
                 record,
@@ -124,7 +129,9 @@ impl Streamed {
                     if *negate {
                         block.iter_mut().for_each(|x| *x = -*x);
                     }
-                    each(&block);
+                    if !each(&block) {
+                        break;
+                    }
                 }
             }
         }
@@ -144,7 +151,10 @@ impl Streamed {
             states.extend(out.state);
         };
         // The board hands the pipeline f32 samples; so does the replay.
-        self.blocks(|block| block.iter().for_each(|&x| keep(p.push(x as f32))))?;
+        self.blocks(|block| {
+            block.iter().for_each(|&x| keep(p.push(x as f32)));
+            true
+        })?;
         p.finish(|b| {
             keep(Output {
                 beat: Some(b),

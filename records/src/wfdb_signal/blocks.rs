@@ -222,15 +222,22 @@ impl FileSignal {
         let lo = (from + self.skew).min(self.frames);
         let hi = (from + n + self.skew).min(self.frames);
         let stream = self.stored(lo, hi)?;
+        let (invalid, baseline, gain) = (self.invalid, self.baseline, self.gain);
+        let physical = |&d: &i32| {
+            if Some(d) == invalid {
+                f64::NAN
+            } else {
+                (d as f64 - baseline) / gain
+            }
+        };
         let mut out = Vec::with_capacity(n as usize * spf);
-        for frame in stream.chunks_exact(self.per_frame) {
-            out.extend(frame[self.at..self.at + spf].iter().map(|&d| {
-                if Some(d) == self.invalid {
-                    f64::NAN
-                } else {
-                    (d as f64 - self.baseline) / self.gain
-                }
-            }));
+        if self.per_frame == spf {
+            // The file holds this signal alone: every sample is its own.
+            out.extend(stream.iter().map(physical));
+        } else {
+            for frame in stream.chunks_exact(self.per_frame) {
+                out.extend(frame[self.at..self.at + spf].iter().map(physical));
+            }
         }
         out.resize(n as usize * spf, f64::NAN);
         Ok(out)
