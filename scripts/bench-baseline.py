@@ -21,22 +21,10 @@ sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."
 import baseline_beats as bb  # noqa: E402
 
 
-def fill_missing(x):
-    """baseline_beats.fill_missing on an array (that one takes a JSON list)."""
-    finite = np.isfinite(x)
-    if not finite.any():
-        return np.zeros_like(x)
-    last = np.where(finite, np.arange(x.size), 0)
-    np.maximum.accumulate(last, out=last)
-    filled = x[last]
-    filled[: int(np.argmax(finite))] = x[int(np.argmax(finite))]
-    return filled
-
-
 def main():
     record, out = sys.argv[1], sys.argv[2]
     rec = wfdb.rdrecord(record, channel_names=["PLETH"])
-    x = fill_missing(rec.p_signal[:, 0].astype(np.float64))
+    x = bb.fill_missing_array(rec.p_signal[:, 0].astype(np.float64))
     fs = float(rec.fs)
     peaks = bb.filtered_peaks(bb.band_pass(x, fs), fs)
     refined = bb.refine(x, peaks, fs)

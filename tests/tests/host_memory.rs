@@ -78,7 +78,14 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
         .unwrap();
     let traces = traces.finish();
     let refs = References::default();
-    let scores = score_all(&[record.clone()], &Source::default(), config, &refs, |_| ()).unwrap();
+    let scores = score_all(
+        std::slice::from_ref(&record),
+        &Source::default(),
+        config,
+        &refs,
+        |_| (),
+    )
+    .unwrap();
 
     let grown = peak_kb().saturating_sub(before);
     let samples = (b.check_hours * 3600.0 * b.check_rate_hz) as u64;

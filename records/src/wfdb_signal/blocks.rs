@@ -61,11 +61,13 @@ impl Record {
         let spf = spec.samples_per_frame as usize;
         let pieces = match &self.segments {
             Some(segments) => segments
-                .pieces(index)
-                .map(|(frames, source)| Piece {
-                    frames,
+                .parts
+                .iter()
+                .map(|p| Piece {
+                    frames: p.frames,
                     spf,
-                    source,
+                    // A gap, or a segment without the signal, is missing.
+                    source: p.record.as_ref().zip(p.map.get(index).copied().flatten()),
                 })
                 .collect(),
             None => vec![Piece {

@@ -26,18 +26,18 @@ use crate::wfdb_header::{Header, SegmentSpec, SignalSpec};
 /// The segments of a multi-segment record, in order.
 #[derive(Debug, Clone)]
 pub(crate) struct Segments {
-    parts: Vec<Part>,
+    pub(super) parts: Vec<Part>,
 }
 
 /// One segment: its length and, unless it is a gap, its record and where
 /// each of the record's signals lies in it.
 #[derive(Debug, Clone)]
-struct Part {
+pub(super) struct Part {
     name: String,
-    frames: u64,
-    record: Option<Record>,
+    pub(super) frames: u64,
+    pub(super) record: Option<Record>,
     /// For each signal of the whole record, its index in this segment.
-    map: Vec<Option<usize>>,
+    pub(super) map: Vec<Option<usize>>,
 }
 
 /// Name of a null segment or null signal file.
@@ -197,18 +197,6 @@ impl Segments {
             }
         }
         Ok(out)
-    }
-
-    /// Each segment's frames, with its record and the place of signal
-    /// `index` in it (`None`: a gap, or a segment without the signal).
-    pub(crate) fn pieces(
-        &self,
-        index: usize,
-    ) -> impl Iterator<Item = (u64, Option<(&Record, usize)>)> {
-        self.parts.iter().map(move |p| {
-            let j = p.map.get(index).copied().flatten();
-            (p.frames, p.record.as_ref().zip(j))
-        })
     }
 
     /// Check every segment's checksums against its samples.
