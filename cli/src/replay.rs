@@ -11,8 +11,8 @@ use super::pipeline_opts::{MotionOpts, PipelineOpts};
 use super::Failure;
 use plethwire::output_guard::{self, OutputError, DEFAULT_OUTPUT_DIR};
 use plethwire::replay::{
-    beat_rows, beats_csv, load, replay_recording, write_recording_beats, InputInfo, Recording,
-    Replay, Summary, DEFAULT_ANNOTATOR,
+    beat_rows, beats_csv, open, write_recording_beats, InputInfo, Recording, Replay, StreamError,
+    Summary, DEFAULT_ANNOTATOR,
 };
 use plethwire_records::annotation_path;
 
@@ -103,6 +103,18 @@ struct MotionReport<'a> {
     flagged_beats: usize,
 }
 
+/// A streamed replay that stopped, as the command says it: a pipeline
+/// that would not start names the record; a read error names its file.
+pub(crate) fn stream_failure(record: &Path, e: StreamError) -> Failure {
+    match e {
+        StreamError::Pipeline(e) => Failure::refused(format!(
+            "{}: cannot run the pipeline: {e}",
+            record.display()
+        )),
+        StreamError::Read(e) => Failure::refused(e),
+    }
+}
+
 /// Refuse an annotator name that cannot be a file extension, is a WFDB
 /// record part, or (unless `force`) is taken by a file of `record`.
 pub(super) fn check_annotator(record: &Path, name: &str, force: bool) -> Result<(), Failure> {
@@ -140,15 +152,14 @@ impl ReplayArgs {
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
         check_annotator(&self.record, &self.annotator, self.force)?;
         let source = self.pipeline.source_with(&self.motion);
-        let rec = load(&self.record, &source).map_err(Failure::refused)?;
+        // Streamed: a long record is never in memory whole.
+        let streamed = open(&self.record, &source).map_err(Failure::refused)?;
+        let rec = &streamed.head;
         let config = self.pipeline.config(rec.signal.fs);
-        let run = replay_recording(&rec, config).map_err(|e| {
-            Failure::refused(format!(
-                "{}: cannot run the pipeline: {e}",
-                self.record.display()
-            ))
-        })?;
-        let written = self.write_outputs(&rec, &run)?;
+        let run = streamed
+            .replay(config)
+            .map_err(|e| stream_failure(&self.record, e))?;
+        let written = self.write_outputs(rec, &run)?;
         let summary = run.summary();
         let motion = rec.motion.as_ref().map(|m| MotionReport {
             signals: &m.names,
@@ -209,15 +220,17 @@ impl ReplayArgs {
         let ann =
             write_recording_beats(&dir, rec, &self.annotator, run).map_err(Failure::refused)?;
         let mut written = vec![ann.display().to_string()];
-        let tables = [
-            (self.beats_csv, beats_csv(run)),
-            (
-                self.beats_json,
-                serde_json::to_string_pretty(&beat_rows(run)).unwrap_or_default() + "\n",
-            ),
-        ];
-        let bodies = tables.into_iter().filter(|(wanted, _)| *wanted);
-        for (path, (_, body)) in outputs[1..].iter().zip(bodies) {
+        // Each table made only when asked for: on a long record they are
+        // the largest things the command holds.
+        let csv = || beats_csv(run);
+        let json = || serde_json::to_string_pretty(&beat_rows(run)).unwrap_or_default() + "\n";
+        let tables: [(bool, &dyn Fn() -> String); 2] =
+            [(self.beats_csv, &csv), (self.beats_json, &json)];
+        let bodies = tables
+            .into_iter()
+            .filter(|(wanted, _)| *wanted)
+            .map(|(_, make)| make());
+        for (path, body) in outputs[1..].iter().zip(bodies) {
             std::fs::write(path, body)
                 .map_err(|e| Failure::refused(format!("{}: cannot write: {e}", path.display())))?;
             written.push(path.display().to_string());

@@ -8,9 +8,12 @@ use std::path::{Path, PathBuf};
 
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
-use plethwire::replay::{load, replay};
-use plethwire::report::{self, Excerpt, Figures, Reference, ReportInput};
+use plethwire::replay::{open, Replay, ReplayError, Streamed};
+use plethwire::report::{
+    self, BandPass, Excerpt, ExcerptTraces, Figures, Reference, ReportInput, TraceBuilder,
+};
 use plethwire::score::records::{annotators_beside, References};
+use plethwire_dsp::pipeline::Config;
 use plethwire_records::annotation_path;
 
 const EXAMPLES: &str = "\
@@ -161,19 +164,46 @@ fn human(path: &Path, bytes: usize, f: &Figures) -> String {
     t
 }
 
+/// Why the excerpt's traces could not be made.
+enum TraceFailure {
+    Page(report::PageError),
+    Read(ReplayError),
+}
+
 impl ReportArgs {
+    /// The signal excerpt's traces of `streamed`, whose replay is `run`,
+    /// from a second pass over the record (stopped once they are made).
+    fn traces(
+        &self,
+        streamed: &Streamed,
+        run: &Replay,
+        config: Config,
+    ) -> Result<ExcerptTraces, TraceFailure> {
+        let excerpt = report::excerpt_for(self.excerpt, run).map_err(TraceFailure::Page)?;
+        let band =
+            BandPass::new(&config).map_err(|e| TraceFailure::Page(report::PageError::Design(e)))?;
+        let mut b = TraceBuilder::new(run.fs, streamed.len, excerpt, &band, &run.beats);
+        streamed
+            .blocks(|block| {
+                b.push(block);
+                b.wants_more()
+            })
+            .map_err(TraceFailure::Read)?;
+        Ok(b.finish())
+    }
+
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
         let annotator = self.reference.as_deref().unwrap_or(DEFAULT_REFERENCE);
         check_annotator(annotator)?;
-        let rec = load(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
+        // Streamed twice: once through the pipeline, once for the excerpt's
+        // thinned traces; a long record is never in memory whole.
+        let streamed = open(&self.record, &self.pipeline.source()).map_err(Failure::refused)?;
+        let rec = &streamed.head;
         let config = self.pipeline.config(rec.signal.fs);
-        let run = replay(&rec.signal.samples, config).map_err(|e| {
-            Failure::refused(format!(
-                "{}: cannot run the pipeline: {e}",
-                self.record.display()
-            ))
-        })?;
+        let run = streamed
+            .replay(config)
+            .map_err(|e| super::replay::stream_failure(&self.record, e))?;
         let refs = References {
             annotator: annotator.to_owned(),
             ..References::default()
@@ -193,23 +223,29 @@ impl ReportArgs {
         }
         let reference: Option<Reference> =
             Reference::load(&base, &refs, rec.signal.fs).map_err(Failure::refused)?;
-        let input = ReportInput {
-            name: &rec.name,
-            signal: &rec.signal.name,
-            units: rec.signal.units.as_deref(),
-            samples: &rec.signal.samples,
-            config,
-            replay: &run,
-            reference: reference.as_ref(),
-            excerpt: self.excerpt,
-        };
         let path = self
             .out
             .clone()
             .unwrap_or_else(|| PathBuf::from(format!("{}.report.html", rec.name)));
         super::replay::check_outputs(&self.record, std::slice::from_ref(&path), self.force)?;
-        let (page, figures) = report::render(&input)
-            .map_err(|e| Failure::refused(format!("{}: {e}", self.record.display())))?;
+        let page_failure =
+            |e: report::PageError| Failure::refused(format!("{}: {e}", self.record.display()));
+        let traces = self.traces(&streamed, &run, config).map_err(|e| match e {
+            TraceFailure::Page(e) => page_failure(e),
+            TraceFailure::Read(e) => Failure::refused(e),
+        })?;
+        let input = ReportInput {
+            name: &rec.name,
+            signal: &rec.signal.name,
+            units: rec.signal.units.as_deref(),
+            samples: &[],
+            traces: Some(&traces),
+            config,
+            replay: &run,
+            reference: reference.as_ref(),
+            excerpt: self.excerpt,
+        };
+        let (page, figures) = report::render(&input).map_err(page_failure)?;
         std::fs::write(&path, &page).map_err(|e| {
             Failure::refused(format!("{}: cannot write the report: {e}", path.display()))
         })?;

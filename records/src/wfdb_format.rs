@@ -255,11 +255,17 @@ fn sign_extend(raw: i32, bits: u32) -> i32 {
 /// `initial[s]`. Differences are taken between successive samples of the
 /// same signal (signal(5)), so each signal keeps its own running sum.
 pub(crate) fn undo_differences(stream: &mut [i32], slots: &[usize], initial: &[i32]) {
+    undo_differences_from(stream, slots, &mut initial.to_vec());
+}
+
+/// [`undo_differences`] of a stretch of whole frames that goes on from
+/// `running` (each signal's last value), which is left at the stretch's
+/// last values: a long file summed a block at a time.
+pub(crate) fn undo_differences_from(stream: &mut [i32], slots: &[usize], running: &mut [i32]) {
     let frame: usize = slots.iter().sum();
     if frame == 0 {
         return;
     }
-    let mut running: Vec<i32> = initial.to_vec();
     for chunk in stream.chunks_mut(frame) {
         let mut at = 0;
         for (s, &n) in slots.iter().enumerate() {

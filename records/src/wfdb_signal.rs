@@ -13,11 +13,13 @@ use super::wfdb_format::{undo_differences, SignalFormat};
 use super::wfdb_header::{Header, SignalSpec};
 use super::{LoadedSignal, DEFAULT_SIGNAL};
 
+mod blocks;
 mod group;
 mod open;
 mod segments;
 mod skew;
 
+pub use blocks::PhysicalBlocks;
 use group::{check_length, Group};
 use open::{check_skews, header_path_of};
 pub use open::{RecordOptions, MAX_SAMPLES};

@@ -45,6 +45,11 @@ REFINE_S = 0.150
 
 def fill_missing(values):
     x = np.array([math.nan if v is None else float(v) for v in values], dtype=np.float64)
+    return fill_missing_array(x)
+
+
+def fill_missing_array(x):
+    """Step 1 on an array of floats (NaN or infinite: missing)."""
     finite = np.isfinite(x)
     if not finite.any():
         return np.zeros_like(x)

@@ -28,7 +28,7 @@ use serde_json::{json, Value};
 
 #[path = "wfdb_against_python/reference.rs"]
 mod reference;
-use reference::{have_wfdb, read_le, reference, wrann_task, PyAnnotations};
+use reference::{assert_blocks_equal, have_wfdb, read_le, reference, wrann_task, PyAnnotations};
 
 fn le16(values: &[i16]) -> Vec<u8> {
     values.iter().flat_map(|v| v.to_le_bytes()).collect()

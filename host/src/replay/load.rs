@@ -109,7 +109,7 @@ pub enum ReplayError {
     Refused(String),
 }
 
-fn is_csv(path: &Path) -> bool {
+pub(super) fn is_csv(path: &Path) -> bool {
     path.extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
 }
@@ -187,14 +187,14 @@ fn load_as_recorded(path: &Path, source: &Source) -> Result<Recording, ReplayErr
 }
 
 /// The signals asked for.
-enum Wanted<'a> {
+pub(super) enum Wanted<'a> {
     /// One by name (`None`: the reader's default).
     One(Option<&'a str>),
     /// A choice among these (`None`: all there are).
     Among(Option<Vec<String>>),
 }
 
-fn wanted_signals(spec: Option<&str>) -> Wanted<'_> {
+pub(super) fn wanted_signals(spec: Option<&str>) -> Wanted<'_> {
     match spec {
         None => Wanted::One(None),
         Some(s) if s.trim().eq_ignore_ascii_case("auto") => Wanted::Among(None),

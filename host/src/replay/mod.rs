@@ -4,6 +4,7 @@
 mod beats;
 mod blocks;
 mod load;
+mod stream;
 mod summary;
 #[cfg(test)]
 mod tests;
@@ -13,6 +14,7 @@ pub use beats::{
 };
 pub use blocks::sample_blocks;
 pub use load::{load, InputInfo, Polarity, Recording, ReplayError, Source};
+pub use stream::{open, StreamError, Streamed, BLOCK_FRAMES};
 pub use summary::{HrvSummary, RateSummary, Summary};
 
 use crate::motion::MotionSignals;

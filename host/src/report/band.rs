@@ -46,6 +46,11 @@ impl BandPass {
         })
     }
 
+    /// The sections with their state at rest, to run a sample at a time.
+    pub(super) fn cascade(&self) -> Cascade<Delta, BAND_ORDER> {
+        self.cascade
+    }
+
     /// The coefficients the board's sections really implement.
     pub fn sections(&self) -> Vec<Biquad<f64>> {
         self.cascade.realised().to_vec()

@@ -39,6 +39,7 @@ mod reference;
 mod sections;
 pub mod thin;
 mod timeline;
+mod traces;
 mod views;
 
 pub use band::{BandPass, BAND_ORDER};
@@ -48,6 +49,7 @@ pub use html::escape;
 pub use poincare::{nn_pairs, poincare, PoincareStats};
 pub use reference::{score, Reference, ScoreFigures};
 pub use timeline::{spans as state_spans, state_name, StateSeconds, StateSpan};
+pub use traces::{ExcerptTraces, TraceBuilder, TRACE_COLUMNS};
 
 use crate::plot::PlotError;
 use crate::replay::Replay;
@@ -63,8 +65,13 @@ pub struct ReportInput<'a> {
     pub signal: &'a str,
     /// The signal's units, when known.
     pub units: Option<&'a str>,
-    /// The samples the pipeline was fed.
+    /// The samples the pipeline was fed; may be empty when `traces` are
+    /// given.
     pub samples: &'a [f64],
+    /// The signal excerpt's traces, made while the recording streamed
+    /// ([`TraceBuilder`]) for the excerpt [`excerpt_for`] gives; `None`:
+    /// made from `samples`.
+    pub traces: Option<&'a ExcerptTraces>,
     /// The pipeline's configuration (rate, detector, band).
     pub config: Config,
     /// What the pipeline said about `samples`.
@@ -85,6 +92,7 @@ impl<'a> ReportInput<'a> {
             signal: "signal",
             units: None,
             samples,
+            traces: None,
             config,
             replay,
             reference: None,
@@ -132,10 +140,10 @@ struct Prepared {
 
 fn prepare(input: &ReportInput<'_>) -> Result<Prepared, PageError> {
     let run = input.replay;
-    if input.samples.len() as u64 != run.samples {
+    if input.sample_count() != run.samples {
         return Err(PageError::Mismatch(format!(
             "{} samples given but the replay saw {}",
-            input.samples.len(),
+            input.sample_count(),
             run.samples
         )));
     }
@@ -145,13 +153,13 @@ fn prepare(input: &ReportInput<'_>) -> Result<Prepared, PageError> {
             input.config.sample_rate_hz, run.fs
         )));
     }
-    let duration_s = run.samples as f64 / run.fs;
-    let excerpt = match input.excerpt {
-        Some(asked) => asked
-            .within(duration_s)
-            .ok_or(PageError::Excerpt { asked, duration_s })?,
-        None => excerpt::choose(run),
-    };
+    let excerpt = excerpt_for(input.excerpt, run)?;
+    if let Some(t) = input.traces.filter(|t| t.excerpt != excerpt) {
+        return Err(PageError::Mismatch(format!(
+            "traces made for the excerpt {:?}, the page shows {excerpt:?}",
+            t.excerpt
+        )));
+    }
     let band = BandPass::new(&input.config).map_err(PageError::Design)?;
     let figures = figures::compute(input, excerpt, &band);
     Ok(Prepared {
@@ -159,6 +167,26 @@ fn prepare(input: &ReportInput<'_>) -> Result<Prepared, PageError> {
         band,
         figures,
     })
+}
+
+/// The stretch the signal plot of `run` shows: `asked` cut to the
+/// recording, else the one [`choose_excerpt`] picks.
+pub fn excerpt_for(asked: Option<Excerpt>, run: &Replay) -> Result<Excerpt, PageError> {
+    let duration_s = run.samples as f64 / run.fs;
+    match asked {
+        Some(asked) => asked
+            .within(duration_s)
+            .ok_or(PageError::Excerpt { asked, duration_s }),
+        None => Ok(excerpt::choose(run)),
+    }
+}
+
+impl ReportInput<'_> {
+    /// Samples in the recording: the traces' count when given, else
+    /// those of `samples`.
+    pub fn sample_count(&self) -> u64 {
+        self.traces.map_or(self.samples.len() as u64, |t| t.samples)
+    }
 }
 
 /// The numbers the page shows, without drawing it.

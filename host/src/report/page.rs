@@ -252,7 +252,7 @@ pub fn page(
         escape(&f.record),
         header(input, f, &rendered),
         env!("CARGO_PKG_VERSION"),
-        input.samples.len(),
+        input.sample_count(),
     );
     // No line breaks between a number and its unit anywhere on the page.
     Ok(units_kept(&page))

@@ -19,54 +19,101 @@ pub type Segment = Vec<(f64, f64)>;
 pub fn trace(samples: &[f64], fs: f64, from: usize, to: usize, columns: usize) -> Vec<Segment> {
     let to = to.min(samples.len());
     let from = from.min(to);
-    let n = to - from;
-    let columns = columns.max(1);
-    let per_column = n.div_ceil(columns).max(1);
-    let mut segments: Vec<Segment> = Vec::new();
-    let mut current: Segment = Vec::new();
-    let time = |i: usize| i as f64 / fs;
-    let mut start = from;
-    while start < to {
-        let end = (start + per_column).min(to);
-        let mut lo: Option<(usize, f64)> = None;
-        let mut hi: Option<(usize, f64)> = None;
-        let mut broken = false;
-        for (i, &v) in samples.iter().enumerate().take(end).skip(start) {
-            if !v.is_finite() {
-                if per_column <= 2 && !current.is_empty() {
-                    segments.push(std::mem::take(&mut current));
-                } else {
-                    broken = true;
-                }
-                continue;
-            }
-            if per_column <= 2 {
-                current.push((time(i), v));
-                continue;
-            }
-            if lo.is_none_or(|(_, l)| v < l) {
-                lo = Some((i, v));
-            }
-            if hi.is_none_or(|(_, h)| v > h) {
-                hi = Some((i, v));
-            }
+    let mut t = Thinner::new(fs, from, to, columns);
+    for (i, &v) in samples.iter().enumerate().take(to).skip(from) {
+        t.push(i, v);
+    }
+    t.finish()
+}
+
+/// [`trace`] made while the samples stream past: fed every sample in
+/// order, it keeps only the current column and the points kept so far,
+/// and gives the same segments.
+#[derive(Debug, Clone)]
+pub struct Thinner {
+    fs: f64,
+    to: usize,
+    per_column: usize,
+    /// First sample of the current column.
+    start: usize,
+    lo: Option<(usize, f64)>,
+    hi: Option<(usize, f64)>,
+    broken: bool,
+    current: Segment,
+    segments: Vec<Segment>,
+}
+
+impl Thinner {
+    /// A thinner of samples `from..to` (at `fs`) for a plot `columns` wide.
+    pub fn new(fs: f64, from: usize, to: usize, columns: usize) -> Thinner {
+        let from = from.min(to);
+        Thinner {
+            fs,
+            to,
+            per_column: (to - from).div_ceil(columns.max(1)).max(1),
+            start: from,
+            lo: None,
+            hi: None,
+            broken: false,
+            current: Vec::new(),
+            segments: Vec::new(),
         }
-        if let (Some(l), Some(h)) = (lo, hi) {
+    }
+
+    /// Sample `i` (each index once, in increasing order; those outside
+    /// `from..to` are ignored) is `v`.
+    pub fn push(&mut self, i: usize, v: f64) {
+        if i < self.start || i >= self.to {
+            return;
+        }
+        while i >= self.start + self.per_column {
+            self.close_column();
+            self.start += self.per_column;
+        }
+        if !v.is_finite() {
+            if self.per_column <= 2 && !self.current.is_empty() {
+                self.segments.push(std::mem::take(&mut self.current));
+            } else {
+                self.broken = true;
+            }
+            return;
+        }
+        if self.per_column <= 2 {
+            self.current.push((i as f64 / self.fs, v));
+            return;
+        }
+        if self.lo.is_none_or(|(_, l)| v < l) {
+            self.lo = Some((i, v));
+        }
+        if self.hi.is_none_or(|(_, h)| v > h) {
+            self.hi = Some((i, v));
+        }
+    }
+
+    fn close_column(&mut self) {
+        let time = |i: usize| i as f64 / self.fs;
+        if let (Some(l), Some(h)) = (self.lo.take(), self.hi.take()) {
             let (a, b) = if l.0 <= h.0 { (l, h) } else { (h, l) };
-            current.push((time(a.0), a.1));
+            self.current.push((time(a.0), a.1));
             if b.0 != a.0 {
-                current.push((time(b.0), b.1));
+                self.current.push((time(b.0), b.1));
             }
         }
-        if broken && !current.is_empty() {
-            segments.push(std::mem::take(&mut current));
+        if std::mem::take(&mut self.broken) && !self.current.is_empty() {
+            self.segments.push(std::mem::take(&mut self.current));
         }
-        start = end;
     }
-    if !current.is_empty() {
-        segments.push(current);
+
+    /// The segments, once every sample up to `to` has been pushed.
+    pub fn finish(mut self) -> Vec<Segment> {
+        if self.start < self.to {
+            self.close_column();
+        }
+        if !self.current.is_empty() {
+            self.segments.push(self.current);
+        }
+        self.segments
     }
-    segments
 }
 
 /// A line through `points` (time ordered) for a plot `columns` wide
@@ -172,6 +219,110 @@ mod tests {
             trace(&s, 1.0, 3, 5, 100),
             vec![vec![(3.0, 4.0), (4.0, 5.0)]]
         );
+    }
+
+    /// The whole-slice thinning [`trace`] was before it streamed, kept
+    /// as the oracle the streaming one must equal.
+    fn trace_in_one_go(
+        samples: &[f64],
+        fs: f64,
+        from: usize,
+        to: usize,
+        columns: usize,
+    ) -> Vec<Segment> {
+        let to = to.min(samples.len());
+        let from = from.min(to);
+        let n = to - from;
+        let columns = columns.max(1);
+        let per_column = n.div_ceil(columns).max(1);
+        let mut segments: Vec<Segment> = Vec::new();
+        let mut current: Segment = Vec::new();
+        let time = |i: usize| i as f64 / fs;
+        let mut start = from;
+        while start < to {
+            let end = (start + per_column).min(to);
+            let mut lo: Option<(usize, f64)> = None;
+            let mut hi: Option<(usize, f64)> = None;
+            let mut broken = false;
+            for (i, &v) in samples.iter().enumerate().take(end).skip(start) {
+                if !v.is_finite() {
+                    if per_column <= 2 && !current.is_empty() {
+                        segments.push(std::mem::take(&mut current));
+                    } else {
+                        broken = true;
+                    }
+                    continue;
+                }
+                if per_column <= 2 {
+                    current.push((time(i), v));
+                    continue;
+                }
+                if lo.is_none_or(|(_, l)| v < l) {
+                    lo = Some((i, v));
+                }
+                if hi.is_none_or(|(_, h)| v > h) {
+                    hi = Some((i, v));
+                }
+            }
+            if let (Some(l), Some(h)) = (lo, hi) {
+                let (a, b) = if l.0 <= h.0 { (l, h) } else { (h, l) };
+                current.push((time(a.0), a.1));
+                if b.0 != a.0 {
+                    current.push((time(b.0), b.1));
+                }
+            }
+            if broken && !current.is_empty() {
+                segments.push(std::mem::take(&mut current));
+            }
+            start = end;
+        }
+        if !current.is_empty() {
+            segments.push(current);
+        }
+        segments
+    }
+
+    #[test]
+    fn streaming_thinning_equals_thinning_in_one_go() {
+        let mut seed = 0x7417_u64;
+        let mut next = || {
+            seed ^= seed << 13;
+            seed ^= seed >> 7;
+            seed ^= seed << 17;
+            seed
+        };
+        for n in [0usize, 1, 2, 3, 5, 99, 100, 101, 999, 4321] {
+            let s: Vec<f64> = (0..n)
+                .map(|_| match next() % 40 {
+                    0 => f64::NAN,
+                    k => (k as f64).sin() * 10.0,
+                })
+                .collect();
+            for columns in [1usize, 2, 3, 7, 50, 100, 1000, 5000] {
+                for (from, to) in [(0, n), (n / 3, n), (n / 4, n / 2), (0, n + 5)] {
+                    let want = trace_in_one_go(&s, 250.0, from, to, columns);
+                    assert_eq!(
+                        trace(&s, 250.0, from, to, columns),
+                        want,
+                        "{n} {columns} {from} {to}"
+                    );
+                    // Fed one sample at a time, from before `from` to past `to`.
+                    let to_c = to.min(n);
+                    let mut t = Thinner::new(250.0, from.min(to_c), to_c, columns);
+                    s.iter().enumerate().for_each(|(i, &v)| t.push(i, v));
+                    let got = t.finish();
+                    let same = got.iter().map(Vec::len).eq(want.iter().map(Vec::len))
+                        && got
+                            .iter()
+                            .flatten()
+                            .zip(want.iter().flatten())
+                            .all(|(a, b)| {
+                                a.0.to_bits() == b.0.to_bits() && a.1.to_bits() == b.1.to_bits()
+                            });
+                    assert!(same, "{n} {columns} {from} {to}");
+                }
+            }
+        }
     }
 
     #[test]

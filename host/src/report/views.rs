@@ -9,6 +9,7 @@ use super::html::{count, escape, fig, legend, table, Mark};
 use super::poincare::{nn_pairs, poincare};
 use super::sections::section;
 use super::timeline::{spans, state_name, STATES};
+use super::traces::ExcerptTraces;
 use super::ReportInput;
 use crate::plot::theme::{BANDED, FLAGGED, GOOD, GUIDE, HEART, LINE, RAW, REFERENCE};
 use crate::plot::{PlotError, Rgb};
@@ -21,12 +22,18 @@ pub fn excerpt_section(
     e: Excerpt,
     band: &BandPass,
 ) -> Result<String, PlotError> {
-    let (_, to) = e.samples(f.sample_rate_hz, input.samples.len());
-    let banded = band.run(input.samples, to);
+    let made;
+    let traces = match input.traces {
+        Some(t) => t,
+        None => {
+            let beats = &input.replay.beats;
+            made = ExcerptTraces::of_samples(input.samples, f.sample_rate_hz, e, band, beats);
+            &made
+        }
+    };
     let reference = input.reference.and_then(|r| r.beats.as_deref());
     let svg = charts::signal_svg(&SignalPlot {
-        samples: input.samples,
-        banded: &banded,
+        traces,
         fs: f.sample_rate_hz,
         excerpt: e,
         beats: &input.replay.beats,

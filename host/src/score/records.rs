@@ -13,7 +13,7 @@ use super::windows::ReplayWindows;
 use super::{MatchCounts, RateError};
 use crate::ecg::EcgScore;
 use crate::output_guard::record_base;
-use crate::replay::{load, replay_recording, Recording, Replay, ReplayError, Source};
+use crate::replay::{open, Recording, Replay, ReplayError, Source, StreamError};
 use plethwire_dsp::pipeline::Config;
 use serde::Serialize;
 use std::path::{Path, PathBuf};
@@ -196,14 +196,18 @@ pub fn score_all(
     let mut records = Vec::new();
     for path in paths {
         progress(&path.display().to_string());
-        let rec = load(&path, source)?;
+        // Streamed: the references are small, the signal is read in blocks.
+        let streamed = open(&path, source)?;
+        let rec = &streamed.head;
         let cfg = Config {
             sample_rate_hz: rec.signal.fs as f32,
             ..config
         };
-        let run = replay_recording(&rec, cfg)
-            .map_err(|e| ReplayError::Refused(format!("{}: {e}", path.display())))?;
-        records.push(score_one(&rec, &run, refs)?);
+        let run = streamed.replay(cfg).map_err(|e| match e {
+            StreamError::Pipeline(e) => ReplayError::Refused(format!("{}: {e}", path.display())),
+            StreamError::Read(e) => e,
+        })?;
+        records.push(score_one(rec, &run, refs)?);
     }
     check_scored(&records)?;
     Ok(Scores::pooled(records))

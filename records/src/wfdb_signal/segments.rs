@@ -26,18 +26,18 @@ use crate::wfdb_header::{Header, SegmentSpec, SignalSpec};
 /// The segments of a multi-segment record, in order.
 #[derive(Debug, Clone)]
 pub(crate) struct Segments {
-    parts: Vec<Part>,
+    pub(super) parts: Vec<Part>,
 }
 
 /// One segment: its length and, unless it is a gap, its record and where
 /// each of the record's signals lies in it.
 #[derive(Debug, Clone)]
-struct Part {
+pub(super) struct Part {
     name: String,
-    frames: u64,
-    record: Option<Record>,
+    pub(super) frames: u64,
+    pub(super) record: Option<Record>,
     /// For each signal of the whole record, its index in this segment.
-    map: Vec<Option<usize>>,
+    pub(super) map: Vec<Option<usize>>,
 }
 
 /// Name of a null segment or null signal file.

@@ -202,6 +202,7 @@ pub fn compare(rec: &Record, py: &PyRecord, prefix: &Path, tally: &mut Tally) {
         assert_eq!(py_d.len(), py.lengths[i], "{at}: python sample count");
         let ours_d = rec.read_digital(i).unwrap_or_else(|e| panic!("{e}"));
         let ours_p = rec.read_physical(i).unwrap_or_else(|e| panic!("{e}"));
+        assert_blocks_equal(rec, i, &ours_p, &at);
         assert_eq!(ours_d.len(), py_d.len(), "{at}: digital length");
         assert_eq!(ours_p.len(), py_p.len(), "{at}: physical length");
         if let Some(k) = (0..py_d.len()).find(|&k| ours_d[k] as i64 != py_d[k]) {
@@ -225,4 +226,23 @@ pub fn compare(rec: &Record, py: &PyRecord, prefix: &Path, tally: &mut Tally) {
         tally.samples += py_d.len();
     }
     tally.records += 1;
+}
+
+/// Signal `i` of `rec` read 7 frames at a time (block edges inside frames
+/// and packed byte groups) equals `whole`, its whole read, bit for bit.
+pub fn assert_blocks_equal(rec: &Record, i: usize, whole: &[f64], at: &str) {
+    let mut joined: Vec<u64> = Vec::with_capacity(whole.len());
+    for block in rec.physical_blocks(i, 7).unwrap_or_else(|e| panic!("{e}")) {
+        joined.extend(
+            block
+                .unwrap_or_else(|e| panic!("{e}"))
+                .iter()
+                .map(|v| v.to_bits()),
+        );
+    }
+    let bits: Vec<u64> = whole.iter().map(|v| v.to_bits()).collect();
+    assert!(
+        joined == bits,
+        "{at}: signal {i} read in blocks differs from the whole read"
+    );
 }

@@ -61,6 +61,7 @@ fn compare_joined(rec: &Record, py: &PyJoined, prefix: &Path, digital: bool) -> 
         let base = prefix.display().to_string();
         let py_p: Vec<f64> = read_le(Path::new(&format!("{base}.{i}.p")), f64::from_le_bytes);
         let ours = rec.read_physical(i).unwrap_or_else(|e| panic!("{e}"));
+        assert_blocks_equal(rec, i, &ours, "joined record");
         assert_eq!(ours.len(), py_p.len(), "signal {i}");
         for (k, (a, b)) in ours.iter().zip(&py_p).enumerate() {
             let same = a.to_bits() == b.to_bits() || (a.is_nan() && b.is_nan());

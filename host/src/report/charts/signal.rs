@@ -7,16 +7,16 @@ use crate::plot::theme::{FONT, WIDTH};
 use crate::plot::PlotError;
 use crate::plot::{mesh_colours, range_of, rgb, ticks, Area, Drawn};
 use crate::report::excerpt::Excerpt;
-use crate::report::thin::{trace, Segment};
+use crate::report::thin::Segment;
+use crate::report::traces::ExcerptTraces;
 use plethwire_dsp::pipeline::BeatEvent;
 use plotters::prelude::*;
+use std::collections::BTreeMap;
 
 /// What the excerpt plot needs.
 pub struct SignalPlot<'a> {
-    /// The input, whole recording.
-    pub samples: &'a [f64],
-    /// The band-passed input, at least up to the excerpt's end.
-    pub banded: &'a [f64],
+    /// The input and the band-passed input over the excerpt, thinned.
+    pub traces: &'a ExcerptTraces,
     /// Sample rate, Hz.
     pub fs: f64,
     /// The stretch to show.
@@ -34,15 +34,16 @@ const HEIGHT: u32 = 560;
 struct Panel<'p> {
     title: &'p str,
     unit: &'p str,
-    values: &'p [f64],
+    segments: &'p [Segment],
+    /// Finite values at the beats' peaks.
+    at: &'p BTreeMap<u64, f64>,
     colour: (u8, u8, u8),
     show_reference: bool,
 }
 
 fn panel(area: &Area<'_>, p: &SignalPlot<'_>, what: Panel<'_>) -> Drawn {
-    let (from, to) = p.excerpt.samples(p.fs, p.samples.len());
-    let columns = WIDTH as usize - 90;
-    let segments: Vec<Segment> = trace(what.values, p.fs, from, to, columns);
+    let (from, to) = p.excerpt.samples(p.fs, p.traces.samples as usize);
+    let segments = what.segments;
     let mut y = range_of(segments.iter().flatten().map(|q| q.1), 0.08, (-1.0, 1.0));
     // Room above the trace for the reference ticks.
     if what.show_reference && p.reference.is_some() {
@@ -69,6 +70,7 @@ fn panel(area: &Area<'_>, p: &SignalPlot<'_>, what: Panel<'_>) -> Drawn {
         .max_light_lines(1)
         .draw()?;
     for s in segments {
+        let s = s.iter().copied();
         chart.draw_series(LineSeries::new(s, rgb(what.colour).stroke_width(1)))?;
     }
     let shown: Vec<&BeatEvent> = p
@@ -77,9 +79,8 @@ fn panel(area: &Area<'_>, p: &SignalPlot<'_>, what: Panel<'_>) -> Drawn {
         .filter(|b| (from as u64..to as u64).contains(&b.peak_index))
         .collect();
     let at = |b: &BeatEvent| {
-        let i = b.peak_index as usize;
-        let v = what.values.get(i).copied().filter(|v| v.is_finite())?;
-        Some((i as f64 / p.fs, v))
+        let v = *what.at.get(&b.peak_index)?;
+        Some((b.peak_index as usize as f64 / p.fs, v))
     };
     chart.draw_series(
         shown
@@ -120,7 +121,8 @@ pub fn signal_svg(p: &SignalPlot<'_>) -> Result<String, PlotError> {
                 Panel {
                     title: "input as recorded",
                     unit: p.units,
-                    values: p.samples,
+                    segments: &p.traces.raw,
+                    at: &p.traces.raw_at,
                     colour: RAW,
                     show_reference: true,
                 },
@@ -131,7 +133,8 @@ pub fn signal_svg(p: &SignalPlot<'_>) -> Result<String, PlotError> {
                 Panel {
                     title: "band-passed (the pipeline's filter)",
                     unit: p.units,
-                    values: p.banded,
+                    segments: &p.traces.banded,
+                    at: &p.traces.banded_at,
                     colour: BANDED,
                     show_reference: false,
                 },

@@ -1,0 +1,174 @@
+//! Replaying a recording a block of samples at a time, so a long record
+//! is never in memory whole: a WFDB record's signal is read in blocks
+//! ([`plethwire_records::Record::physical_blocks`]) and fed to the
+//! pipeline as it comes; what the replay keeps (its beats and state
+//! changes) grows with the beats, not the samples.
+//!
+//! A CSV file, a choice among several signals and a recording with an
+//! accelerometer are read whole as before ([`load`]) and fed the same way.
+
+use super::load::{is_csv, load, wanted_signals, Wanted};
+use super::{replay_with_motion, Polarity, Recording, Replay, ReplayError, Source};
+use plethwire_dsp::pipeline::{Config, Output, Pipeline, PipelineError};
+use plethwire_records::{LoadedSignal, Record};
+use std::path::Path;
+
+/// Frames read at once: 64 Ki frames, half a megabyte of samples.
+pub const BLOCK_FRAMES: usize = 1 << 16;
+
+/// A recording opened for streaming.
+#[derive(Debug)]
+pub struct Streamed {
+    /// Everything about the recording but its samples: `head.signal.samples`
+    /// stays empty (the samples come from [`Streamed::blocks`]); the
+    /// accelerometer, when asked for, is in `head.motion`.
+    pub head: Recording,
+    /// The signal's samples.
+    pub len: u64,
+    samples: Samples,
+}
+
+#[derive(Debug)]
+enum Samples {
+    /// Read whole ([`load`]).
+    Whole(Vec<f64>),
+    /// Signal `index` of a WFDB record, negated when `negate`.
+    Wfdb {
+        record: Box<Record>,
+        index: usize,
+        negate: bool,
+    },
+}
+
+/// Why a streamed replay stopped.
+#[derive(Debug, thiserror::Error)]
+pub enum StreamError {
+    /// The pipeline refused its configuration (before any sample).
+    #[error(transparent)]
+    Pipeline(#[from] PipelineError),
+    /// The record would not read part way.
+    #[error(transparent)]
+    Read(#[from] ReplayError),
+}
+
+/// Open `path` as [`load`] would load it (the same signal, polarity and
+/// refusals), reading no samples yet when it is a WFDB record replayed
+/// without an accelerometer and with one signal named (or the default).
+pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
+    let one = match wanted_signals(source.signal.as_deref()) {
+        Wanted::One(name) if !is_csv(path) && source.motion.is_none() => Some(name),
+        _ => None,
+    };
+    let Some(name) = one else {
+        let mut head = load(path, source)?;
+        let samples = std::mem::take(&mut head.signal.samples);
+        return Ok(Streamed {
+            len: samples.len() as u64,
+            head,
+            samples: Samples::Whole(samples),
+        });
+    };
+    let stem = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let record_path = if path.extension().is_some_and(|e| e == "hea") {
+        path.with_extension("")
+    } else {
+        path.to_path_buf()
+    };
+    let record = Record::open_with(&record_path, &source.record_options)?;
+    let index = record.pick_signal(name)?;
+    let spec = &record.signals()[index];
+    let head = Recording {
+        name: stem,
+        path: record_path,
+        signal: LoadedSignal {
+            name: spec.description.clone().unwrap_or_default(),
+            units: Some(spec.units.clone()),
+            fs: record.signal_fs(index),
+            samples: Vec::new(),
+        },
+        input: Default::default(),
+        motion: None,
+        record_options: source.record_options.clone(),
+    };
+    let negate = source.polarity == Polarity::Down;
+    let mut head = head;
+    head.input.inverted = negate;
+    Ok(Streamed {
+        len: record.len() as u64 * u64::from(spec.samples_per_frame),
+        head,
+        samples: Samples::Wfdb {
+            record: Box::new(record),
+            index,
+            negate,
+        },
+    })
+}
+
+impl Streamed {
+    /// Hand the samples to `each`, a block at a time, in order, for as
+    /// long as it answers `true`.
+    pub fn blocks(&self, mut each: impl FnMut(&[f64]) -> bool) -> Result<(), ReplayError> {
+        match &self.samples {
+            Samples::Whole(samples) => {
+                for block in samples.chunks(BLOCK_FRAMES) {
+                    if !each(block) {
+                        break;
+                    }
+                }
+            }
+            Samples::Wfdb {
+                record,
+                index,
+                negate,
+            } => {
+                for block in record.physical_blocks(*index, BLOCK_FRAMES)? {
+                    let mut block = block?;
+                    if *negate {
+                        block.iter_mut().for_each(|x| *x = -*x);
+                    }
+                    if !each(&block) {
+                        break;
+                    }
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// The replay of the recording ([`super::replay_recording`] of it
+    /// loaded whole gives the same).
+    pub fn replay(&self, config: Config) -> Result<Replay, StreamError> {
+        if let (Some(motion), Samples::Whole(samples)) = (&self.head.motion, &self.samples) {
+            return Ok(replay_with_motion(samples, Some(motion), config)?);
+        }
+        let mut p = Pipeline::new(config)?;
+        let (mut beats, mut states) = (Vec::new(), Vec::new());
+        let mut keep = |out: Output| {
+            beats.extend(out.beat);
+            states.extend(out.state);
+        };
+        // The board hands the pipeline f32 samples; so does the replay.
+        self.blocks(|block| {
+            block.iter().for_each(|&x| keep(p.push(x as f32)));
+            true
+        })?;
+        p.finish(|b| {
+            keep(Output {
+                beat: Some(b),
+                state: None,
+            })
+        });
+        Ok(Replay {
+            fs: config.sample_rate_hz as f64,
+            samples: self.len,
+            beats,
+            states,
+            rejected: p.rejected_samples(),
+            clipped: p.clipped_samples(),
+            restarts: p.restarts(),
+        })
+    }
+}

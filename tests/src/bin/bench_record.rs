@@ -1,0 +1,134 @@
+//! `bench_record`: a long made-up recording for `scripts/bench-memory`.
+//!
+//! Invented data, in a scenario of our own: a day on one finger clip at
+//! 500 Hz, heart rate low at night, up during a walk and a run, a few
+//! bursts of hand movement and two stretches with the finger off. It is
+//! written as a WFDB record (format 16, signal `PLETH`) with the true
+//! systolic peaks as `<name>.peak`, the annotator `score` and `report`
+//! take by default.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use plethwire_records::{annotation_path, write_annotations, Annotation, NewSignal, RecordWriter};
+use plethwire_synth::{generate, FingerOff, HrSchedule, MotionBurst, SynthOptions};
+
+const HELP: &str = "\
+bench_record: a made-up long recording for the memory benchmark
+
+Usage: bench_record DIR [--hours H] [--rate HZ] [--name NAME]
+
+Writes DIR/NAME.hea, NAME.dat (format 16, signal PLETH) and NAME.peak (the
+true systolic peaks). Defaults: 24 hours, 500 Hz, name day.";
+
+/// Stored units per signal unit, and the stored value of zero: the made-up
+/// signal sits near 1.5 units, so it is stored around 0 with room for the
+/// pulse and the movement.
+const GAIN: f64 = 10_000.0;
+const BASELINE: i32 = -15_000;
+
+fn scenario(hours: f64, fs: f64) -> SynthOptions {
+    let h = 3600.0;
+    let day = hours * h;
+    // (time s, bpm) as shares of the day: night, morning, walk, run, evening.
+    let points: Vec<(f64, f64)> = [
+        (0.0, 58.0),
+        (0.25, 54.0),
+        (0.33, 70.0),
+        (0.45, 95.0),
+        (0.5, 135.0),
+        (0.55, 80.0),
+        (0.8, 72.0),
+        (1.0, 60.0),
+    ]
+    .iter()
+    .map(|&(share, bpm)| (share * day, bpm))
+    .collect();
+    let motion = (1..8)
+        .map(|k| MotionBurst {
+            start_s: day * k as f64 / 8.0,
+            duration_s: 20.0,
+            amplitude: 0.1,
+        })
+        .collect();
+    let finger_off = [0.4, 0.7]
+        .iter()
+        .map(|&share| FingerOff {
+            start_s: share * day,
+            duration_s: 30.0,
+        })
+        .collect();
+    SynthOptions {
+        sample_rate_hz: fs,
+        duration_s: day,
+        hr: HrSchedule::from_points(&points),
+        motion,
+        finger_off,
+        seed: 20_261_203,
+        ..SynthOptions::default()
+    }
+}
+
+fn run(args: &[String]) -> Result<String, String> {
+    let mut dir: Option<PathBuf> = None;
+    let (mut hours, mut fs, mut name) = (24.0, 500.0, "day".to_string());
+    let mut it = args.iter();
+    while let Some(a) = it.next() {
+        let mut value = |what: &str| it.next().cloned().ok_or(format!("{what} needs a value"));
+        match a.as_str() {
+            "--hours" => {
+                hours = value("--hours")?
+                    .parse()
+                    .map_err(|e| format!("--hours: {e}"))?
+            }
+            "--rate" => {
+                fs = value("--rate")?
+                    .parse()
+                    .map_err(|e| format!("--rate: {e}"))?
+            }
+            "--name" => name = value("--name")?,
+            "-h" | "--help" => return Ok(HELP.to_string()),
+            _ if dir.is_none() => dir = Some(PathBuf::from(a)),
+            _ => return Err(format!("unexpected argument {a:?}\n\n{HELP}")),
+        }
+    }
+    let dir = dir.ok_or(format!("no folder given\n\n{HELP}"))?;
+    std::fs::create_dir_all(&dir).map_err(|e| format!("{}: {e}", dir.display()))?;
+    let rec = generate(&scenario(hours, fs)).map_err(|e| e.to_string())?;
+    let signal = NewSignal::new("PLETH", "NU", GAIN, BASELINE);
+    let mut w = RecordWriter::create(&dir, &name, fs, &[signal]).map_err(|e| e.to_string())?;
+    for &x in &rec.samples {
+        let stored = (f64::from(x) * GAIN).round() as i64 + i64::from(BASELINE);
+        let stored = stored.clamp(-32_767, 32_767) as i32;
+        w.push_frame(&[stored]).map_err(|e| e.to_string())?;
+    }
+    let (_, header) = w.finish().map_err(|e| e.to_string())?;
+    let peaks: Vec<Annotation> = rec
+        .peak_indices()
+        .into_iter()
+        .map(|p| Annotation::beat(p as i64))
+        .collect();
+    let ann = annotation_path(&dir.join(&name), "peak");
+    write_annotations(&ann, &peaks).map_err(|e| e.to_string())?;
+    Ok(format!(
+        "{}: {} samples at {fs} Hz, {} true beats in {}",
+        header.display(),
+        rec.samples.len(),
+        peaks.len(),
+        ann.display()
+    ))
+}
+
+fn main() -> ExitCode {
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    match run(&args) {
+        Ok(text) => {
+            println!("{text}");
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("bench_record: {e}");
+            ExitCode::FAILURE
+        }
+    }
+}

@@ -1,0 +1,111 @@
+//! Host memory does not grow with the recording: replay, score and the
+//! report's excerpt pass over a made-up hour at 500 Hz (1.8 M samples,
+//! `bench_record`, a scenario of our own) raise this process's peak
+//! resident memory (Linux `VmHWM`, in kB: a count, not a timing) by no
+//! more than the budget in docs/performance.toml, which is well under
+//! what the samples alone would take read whole. The day-long figures
+//! are `scripts/bench-memory`'s (docs/performance.md).
+//!
+//! One test in its own binary, so no other test's memory counts.
+
+use std::path::Path;
+
+use plethwire::replay::{open, Source};
+use plethwire::report::{excerpt_for, BandPass, TraceBuilder};
+use plethwire::score::records::{score_all, References};
+use plethwire_checks::repo_root;
+use plethwire_dsp::pipeline::Config;
+use serde::Deserialize;
+
+#[derive(Deserialize)]
+struct Book {
+    host_memory: Budget,
+}
+
+#[derive(Deserialize)]
+struct Budget {
+    check_hours: f64,
+    check_rate_hz: f64,
+    stream_growth_budget_kb: u64,
+}
+
+/// This process's peak resident memory so far, kB.
+fn peak_kb() -> u64 {
+    let status = std::fs::read_to_string("/proc/self/status")
+        .expect("/proc/self/status (Linux) holds the peak resident memory");
+    status
+        .lines()
+        .find_map(|l| l.strip_prefix("VmHWM:"))
+        .and_then(|v| v.trim().trim_end_matches("kB").trim().parse().ok())
+        .expect("a VmHWM line in kB")
+}
+
+fn make_record(dir: &Path, hours: f64, rate: f64) {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_bench_record"))
+        .arg(dir)
+        .args(["--hours", &hours.to_string(), "--rate", &rate.to_string()])
+        .output()
+        .expect("bench_record runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
+
+#[test]
+fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
+    let path = repo_root().join("docs/performance.toml");
+    let text = std::fs::read_to_string(&path).unwrap();
+    let book: Book = toml::from_str(&text).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+    let b = book.host_memory;
+    let dir = tempfile::tempdir().unwrap();
+    make_record(dir.path(), b.check_hours, b.check_rate_hz);
+    let record = dir.path().join("day");
+    let before = peak_kb();
+
+    let streamed = open(&record, &Source::default()).unwrap();
+    let config = Config::new(streamed.head.signal.fs as f32);
+    let run = streamed.replay(config).unwrap();
+    let excerpt = excerpt_for(None, &run).unwrap();
+    let band = BandPass::new(&config).unwrap();
+    let mut traces = TraceBuilder::new(run.fs, streamed.len, excerpt, &band, &run.beats);
+    streamed
+        .blocks(|block| {
+            traces.push(block);
+            true // the whole record, as far as the excerpt could lie
+        })
+        .unwrap();
+    let traces = traces.finish();
+    let refs = References::default();
+    let scores = score_all(
+        std::slice::from_ref(&record),
+        &Source::default(),
+        config,
+        &refs,
+        |_| (),
+    )
+    .unwrap();
+
+    let grown = peak_kb().saturating_sub(before);
+    let samples = (b.check_hours * 3600.0 * b.check_rate_hz) as u64;
+    let whole_kb = samples * 8 / 1024;
+    println!(
+        "{samples} samples, {} beats, {} trace points: peak memory grew by {grown} kB \
+         (budget {} kB; the samples read whole as f64 alone: {whole_kb} kB)",
+        run.beats.len(),
+        traces.raw.iter().map(Vec::len).sum::<usize>(),
+        b.stream_growth_budget_kb
+    );
+    assert_eq!(run.samples, samples);
+    assert!(!scores.records.is_empty(), "the record was scored");
+    assert!(
+        b.stream_growth_budget_kb < whole_kb / 2,
+        "the budget must tell streaming from reading whole"
+    );
+    assert!(
+        grown <= b.stream_growth_budget_kb,
+        "peak memory grew by {grown} kB over {samples} samples, budget {} kB",
+        b.stream_growth_budget_kb
+    );
+}
