@@ -29,10 +29,14 @@ use crate::PhotoSampler;
 
 /// Default seconds between periodic status frames.
 pub const STATUS_PERIOD_S: u32 = 2;
-/// Default transmit queue, bytes: three full sample blocks, or 44 ms of
-/// a 115200 baud line (which drains a block, 13 ms of it, long before the
-/// next is due: 64 ms at 250 Hz, 32 ms at 500 Hz and above).
-pub const DEFAULT_QUEUE_BYTES: usize = 512;
+/// Default transmit queue, bytes: two of the largest frames (a sample
+/// block, 147 bytes) and a beat (56), or 33 ms of a 115200 baud line. The
+/// line drains a block, 13 ms of it, long before the next is due (64 ms at
+/// 250 Hz, 32 ms at 500 Hz and above); over a minute of a simulated finger
+/// at 250 Hz the queue holds at most 185 bytes (tests/simulated_run.rs).
+/// 384 rather than 512 keeps the real boards within 12 KiB of static RAM;
+/// the cost is 11 ms less of a stalled line before frames are dropped.
+pub const DEFAULT_QUEUE_BYTES: usize = 384;
 
 /// How a board samples and reports.
 #[derive(Clone, Copy, Debug, PartialEq)]
