@@ -9,7 +9,7 @@
 pub mod live;
 pub mod scenario;
 
-use plethwire::emulate::{
+use plethwire::emulate::{Core, 
     compare, find_qemu, BoardEvents, Emulation, Firmware, FirmwareError, Link,
 };
 use plethwire::replay::{sample_blocks, Replay, Summary};
@@ -164,6 +164,7 @@ pub fn run_board(
     };
     let emu = Emulation {
         qemu,
+        core: Core::M4f,
         elf,
         link: Link::File,
         count_instructions: false,
