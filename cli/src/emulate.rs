@@ -330,4 +330,3 @@ impl EmulateArgs {
 fn firmware_line(f: &Firmware) -> String {
     format!("  firmware    {} ({})\n", f.elf.display(), f.origin)
 }
-

@@ -228,7 +228,10 @@ pub fn build_emulated_firmware() -> PathBuf {
 /// per core and test process.
 pub fn build_emulated_firmware_for(core: Core) -> PathBuf {
     static ELF: [OnceLock<PathBuf>; 2] = [OnceLock::new(), OnceLock::new()];
-    let at = Core::ALL.iter().position(|c| *c == core).expect("a known core");
+    let at = Core::ALL
+        .iter()
+        .position(|c| *c == core)
+        .expect("a known core");
     ELF[at]
         .get_or_init(|| match emulate::build_firmware_for(core) {
             Ok(elf) => elf,
@@ -329,7 +332,10 @@ mod tests {
                 .unwrap_or_else(|| panic!("the firmware config sets a runner for {core:?}"));
             assert_eq!(
                 runner,
-                format!("qemu-system-arm {}", emulate::runner_args_for(core).join(" ")),
+                format!(
+                    "qemu-system-arm {}",
+                    emulate::runner_args_for(core).join(" ")
+                ),
                 "{core:?}"
             );
         }

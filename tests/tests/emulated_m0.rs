@@ -155,8 +155,52 @@ fn the_m0_record_book_is_complete() {
     // The micro:bit's nRF51822 (16 KiB), the RAM the firmware should fit.
     assert_eq!(m0.ram_target_bytes, 16 * 1024);
     let rates: Vec<f64> = m0.record.iter().map(|r| r.sample_rate_hz).collect();
-    assert!(rates.contains(&300.0) && rates.contains(&125.0), "{rates:?}");
+    assert!(
+        rates.contains(&300.0) && rates.contains(&125.0),
+        "{rates:?}"
+    );
     for r in &m0.record {
         assert!(r.instructions_per_sample > 0.0 && r.samples > 0 && r.ram_used_bytes > 0);
+    }
+}
+
+/// The bit equality above rests on both sides rounding every product and
+/// every sum: Rust never contracts `a * b + c` into a fused multiply-add
+/// on its own (it sets no fast-math flags), so the only way one could
+/// enter the shared code is by name. No `mul_add` or `fma` anywhere in
+/// plethwire-dsp, whose code both the boards and the host replay run.
+#[test]
+fn the_shared_code_asks_for_no_fused_multiply_add() {
+    fn sources(dir: &std::path::Path, out: &mut Vec<std::path::PathBuf>) {
+        for entry in std::fs::read_dir(dir).unwrap_or_else(|e| panic!("{}: {e}", dir.display())) {
+            let path = entry.expect("a folder entry").path();
+            if path.is_dir() {
+                sources(&path, out);
+            } else if path.extension().is_some_and(|x| x == "rs") {
+                out.push(path);
+            }
+        }
+    }
+    let mut files = Vec::new();
+    sources(&repo_root().join("shared-dsp/src"), &mut files);
+    assert!(
+        files.len() > 20,
+        "only {} files in shared-dsp/src",
+        files.len()
+    );
+    for file in files {
+        let text = std::fs::read_to_string(&file).expect("a readable source file");
+        for (n, line) in text.lines().enumerate() {
+            let code = line.split("//").next().unwrap_or("");
+            for word in ["mul_add", "fma(", "fmaf(", "fmaf16", "fma::"] {
+                assert!(
+                    !code.contains(word),
+                    "{}:{}: `{word}` fuses a multiply and an add, which the boards \
+                     without one would round differently: {line}",
+                    file.display(),
+                    n + 1
+                );
+            }
+        }
     }
 }

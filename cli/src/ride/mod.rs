@@ -9,8 +9,8 @@
 pub mod live;
 pub mod scenario;
 
-use plethwire::emulate::{Core, 
-    compare, find_qemu, BoardEvents, Emulation, Firmware, FirmwareError, Link,
+use plethwire::emulate::{
+    compare, find_qemu, BoardEvents, Core, Emulation, Firmware, FirmwareError, Link,
 };
 use plethwire::replay::{sample_blocks, Replay, Summary};
 use plethwire::report::{self, Reference, ReportInput};

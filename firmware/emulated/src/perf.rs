@@ -26,8 +26,8 @@ use plethwire_dsp::pipeline::{Output, Pipeline};
 
 use crate::machine;
 use crate::semihost::{HostError, HostFile, Mode};
-use crate::stack;
 use crate::session::{Push, Totals};
+use crate::stack;
 
 /// Nanoseconds in a second: one instruction is 1 ns under `-icount shift=0`.
 const NS_PER_S: u64 = 1_000_000_000;

@@ -140,6 +140,11 @@ mod tests {
         let i = counted.iter().position(|a| a == "-icount").unwrap();
         assert_eq!(counted[i + 1], "shift=0");
         assert_eq!(&counted[..2], ["-M", "microbit"]);
-        assert!(counted.starts_with(&runner_args_for(Core::M0)[..i].iter().map(|a| a.to_string()).collect::<Vec<_>>()));
+        assert!(counted.starts_with(
+            &runner_args_for(Core::M0)[..i]
+                .iter()
+                .map(|a| a.to_string())
+                .collect::<Vec<_>>()
+        ));
     }
 }

@@ -166,9 +166,15 @@ mod tests {
         m0[36..40].copy_from_slice(&0x0500_0200u32.to_le_bytes());
         assert!(parse_header(&m0, Core::M0).is_ok());
         let e = parse_header(&m4f, Core::M0).unwrap_err().to_string();
-        assert!(e.contains("Cortex-M4F") && e.contains("thumbv6m-none-eabi"), "{e}");
+        assert!(
+            e.contains("Cortex-M4F") && e.contains("thumbv6m-none-eabi"),
+            "{e}"
+        );
         let e = parse_header(&m0, Core::M4f).unwrap_err().to_string();
-        assert!(e.contains("Cortex-M0") && e.contains("thumbv7em-none-eabihf"), "{e}");
+        assert!(
+            e.contains("Cortex-M0") && e.contains("thumbv7em-none-eabihf"),
+            "{e}"
+        );
         // The microbit's flash ends at 256 KiB.
         let mut far = m0.clone();
         far[24..28].copy_from_slice(&0x0005_0001u32.to_le_bytes());

@@ -194,7 +194,11 @@ fn build(
                 say(stderr.trim_end());
             }
             match fallback.filter(|f| f.is_file()) {
-                Some(f) => checked(f, format!("{origin} earlier (this build failed: {e})"), core),
+                Some(f) => checked(
+                    f,
+                    format!("{origin} earlier (this build failed: {e})"),
+                    core,
+                ),
                 None => Err(FirmwareError::Build {
                     checkout: checkout.to_path_buf(),
                     source: e,

@@ -38,10 +38,10 @@ pub use board::{
     qemu_args, runner_args, runner_args_for, target_installed, BuildError, FIRMWARE_PROGRAM,
     FIRMWARE_TARGET, ICOUNT_ARGS, SEMIHOSTING,
 };
-pub use cores::Core;
 pub use compare::{
     beat_difference, block_difference, compare, Agreement, BoardEvents, Disagreement,
 };
+pub use cores::Core;
 pub use elf::{check_elf, check_elf_for, ElfProblem};
 pub use firmware::{Firmware, FirmwareError, FirmwareSearch, FIRMWARE_VAR, SOURCE_VAR};
 pub use perf::{parse as parse_perf, PerfError, PerfReport};
