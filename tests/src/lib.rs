@@ -260,9 +260,14 @@ pub fn build_emulated_firmware_for(core: Core) -> PathBuf {
 /// output so far) if it has not exited after `timeout`: firmware that hangs
 /// is a failure, not a wait.
 pub fn run_emulated(elf: &Path, timeout: Duration) -> (ExitStatus, String) {
+    run_emulated_on(Core::M4f, elf, timeout)
+}
+
+/// [`run_emulated`] on `core`'s machine ([`plethwire::emulate::runner_args_for`]).
+pub fn run_emulated_on(core: Core, elf: &Path, timeout: Duration) -> (ExitStatus, String) {
     let exe = qemu().unwrap_or_else(|| panic!("no usable {}", needs::QEMU));
     let mut child = Command::new(&exe)
-        .args(emulate::runner_args())
+        .args(emulate::runner_args_for(core))
         .arg(elf)
         .stdin(Stdio::null())
         .stdout(Stdio::piped())
