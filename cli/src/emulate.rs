@@ -37,7 +37,7 @@ Examples:
 
 Runs the firmware (firmware/emulated) in QEMU's mps2-an386 board (--core
 m4f, a Cortex-M4F) or its microbit (--core m0, a Cortex-M0 without an FPU:
-every float operation in software, over semihosting files only), prints
+every float operation in software), prints
 each beat and state change it sends, writes <record>.<annotator> (WFDB
 annotations, as `plethwire replay`, never over an existing file without
 --force) in --out (default: the current folder), and checks every event
@@ -100,7 +100,7 @@ pub struct EmulateArgs {
     pub uart: bool,
 
     /// The emulated core: m4f (QEMU mps2-an386, Cortex-M4F) or m0 (QEMU
-    /// microbit, Cortex-M0 without FPU; files only).
+    /// microbit, Cortex-M0 without FPU).
     #[arg(long, value_name = "CORE", default_value = "m4f", value_parser = values::core)]
     pub core: Core,
 
@@ -164,12 +164,6 @@ fn state_line(s: &StateEvent, fs: f64) -> String {
 impl EmulateArgs {
     /// Run the command.
     pub fn run(&self, out: &mut dyn Write) -> Result<(), Failure> {
-        if (self.uart || self.serial_link.is_some()) && !self.core.has_uart() {
-            return Err(Failure::refused(format!(
-                "--core {} runs over semihosting files only: no --uart or --serial-link with it",
-                self.core.name()
-            )));
-        }
         match (&self.serial_link, &self.record) {
             (Some(link), _) => serial_link::run(self, link, out),
             (None, Some(record)) => self.run_record(record, out),

@@ -143,6 +143,23 @@ fn bidmc_125_hz_on_the_m0_equals_the_host_and_costs_as_recorded() {
     check("bidmc/bidmc01", 700);
 }
 
+/// 60 s of a 300 Hz record down the microbit's emulated UART, frames back
+/// on it, as a real board would send them.
+#[test]
+fn the_m0_streams_the_same_beats_over_its_uart() {
+    let Some(e) = emulation_on(Core::M0, Link::Uart, false) else {
+        return;
+    };
+    let Some(rec) = shared_record("capnobase/cb0031") else {
+        return;
+    };
+    let samples = &rec.signal.samples[..(60.0 * rec.signal.fs) as usize];
+    let (session, host) = run_both(&e, samples, default_config(&rec));
+    let beats = assert_identical("cb0031 over the M0's UART", &session, &host);
+    assert!(beats >= 60, "only {beats} beats in 60 s");
+    eprintln!("cb0031, first 60 s over the M0's UART: {beats} beats identical");
+}
+
 #[test]
 fn the_m0_record_book_is_complete() {
     let m0 = book();

@@ -3,7 +3,6 @@
 
 use crate::semihost::{HostFile, Mode};
 use crate::session::{FeedSource, FrameSink, RunError};
-#[cfg(machine = "mps2-an386")]
 use crate::uart::{Rx, Tx};
 
 /// Bytes read from the host per call (per machine: the microbit's RAM is
@@ -89,10 +88,8 @@ impl FrameSink for FileSink {
 }
 
 /// The feed arriving on UART0's receive line.
-#[cfg(machine = "mps2-an386")]
 pub struct UartFeed(pub Rx);
 
-#[cfg(machine = "mps2-an386")]
 impl FeedSource for UartFeed {
     fn read_exact(&mut self, buf: &mut [u8]) -> Result<(), RunError> {
         // A line has no end: the header's count says when to stop.
@@ -106,10 +103,8 @@ impl FeedSource for UartFeed {
 }
 
 /// Frames leaving on UART0's transmit line.
-#[cfg(machine = "mps2-an386")]
 pub struct UartSink(pub Tx);
 
-#[cfg(machine = "mps2-an386")]
 impl FrameSink for UartSink {
     fn send(&mut self, frame: &[u8]) -> Result<(), RunError> {
         self.0.write_all(frame);

@@ -11,7 +11,7 @@
 //! | (none: QEMU passes the kernel's file name) | self-check ([`selfcheck`]), report on standard output |
 //! | `plethwire-emulated stream FEED FRAMES` | whole recording: samples feed from the host file `FEED`, frames to the host file `FRAMES` |
 //! | `plethwire-emulated perf FEED FRAMES REPORT` | as `stream`, every `push` timed ([`perf`], needs `-icount shift=0`), figures to the host file `REPORT` |
-//! | `plethwire-emulated uart` | samples feed on UART0's receive line, frames on its transmit line (mps2-an386 only) |
+//! | `plethwire-emulated uart` | samples feed on UART0's receive line, frames on its transmit line |
 //!
 //! The feed and the frames are documented in `docs/wire-format.md`; the
 //! session loop is [`session::run`]. Errors go to the host's standard error
@@ -29,7 +29,9 @@ mod selfcheck;
 mod semihost;
 mod session;
 mod stack;
-#[cfg(machine = "mps2-an386")]
+// The UART of the machine built for: the mps2-an386's CMSDK UART or the
+// nRF51's, with the same calls.
+#[cfg_attr(machine = "microbit", path = "uart_nrf51.rs")]
 mod uart;
 
 use core::fmt::Write;
@@ -38,9 +40,7 @@ use core::panic::PanicInfo;
 use cortex_m_rt::{entry, exception, ExceptionFrame};
 use cortex_m_semihosting::debug::{self, EXIT_FAILURE, EXIT_SUCCESS};
 
-use links::{FileFeed, FileSink};
-#[cfg(machine = "mps2-an386")]
-use links::{UartFeed, UartSink};
+use links::{FileFeed, FileSink, UartFeed, UartSink};
 use semihost::HostFile;
 use session::{Plain, RunError};
 
@@ -112,7 +112,6 @@ fn dispatch(line: &str) -> Result<(), Failure> {
         [] => selfcheck::run(),
         ["stream", feed, frames] => over_files(feed, frames, None)?,
         ["perf", feed, frames, report] => over_files(feed, frames, Some(report))?,
-        #[cfg(machine = "mps2-an386")]
         ["uart"] => {
             let (rx, tx) = uart::take();
             let mut sink = UartSink(tx);

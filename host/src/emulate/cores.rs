@@ -130,12 +130,6 @@ impl Core {
         }
     }
 
-    /// Whether the firmware has its UART mode on this core (the
-    /// mps2-an386's CMSDK UART; the microbit's is not driven).
-    pub fn has_uart(self) -> bool {
-        self == Core::M4f
-    }
-
     /// Whether the firmware for this core uses the hard-float calling
     /// convention (the ELF header's `EF_ARM_ABI_FLOAT_HARD`): the M4F's
     /// does, the M0's, which has no FPU, cannot.

@@ -89,9 +89,6 @@ pub enum EmulateError {
     /// No usable `qemu-system-arm`.
     #[error("qemu-system-arm not found: install it (Debian/Ubuntu: `apt-get install qemu-system-arm`) or set PLETHWIRE_QEMU")]
     NoQemu,
-    /// The UART link was asked for on a core whose firmware has none.
-    #[error("the emulated {} has no UART mode: use the semihosting files (without --uart)", .0.describe())]
-    NoUart(Core),
     /// Instruction counting was asked for over the UART.
     #[error("instruction counting works over semihosting files, not the UART")]
     CountingNeedsFiles,
@@ -132,9 +129,6 @@ impl Emulation {
     ) -> Result<Session, EmulateError> {
         if self.count_instructions && self.link == Link::Uart {
             return Err(EmulateError::CountingNeedsFiles);
-        }
-        if self.link == Link::Uart && !self.core.has_uart() {
-            return Err(EmulateError::NoUart(self.core));
         }
         let header = FeedHeader {
             config,

@@ -142,9 +142,6 @@ impl Emulation {
         }
         let mut pty = LinkedPty::open(link)?;
         on_ready(pty.target());
-        if !self.core.has_uart() {
-            return Err(EmulateError::NoUart(self.core));
-        }
         let board = Emulation {
             link: Link::Uart,
             count_instructions: false,
