@@ -263,6 +263,7 @@ impl DemoArgs {
                 elf: self.firmware.clone(),
                 source: self.source.clone(),
                 rebuild: true,
+                ..FirmwareSearch::default()
             };
             run_board(samples, config, replay, &mut || search.locate(&mut note))
         }

@@ -14,15 +14,15 @@ use plethwire_dsp::wire::{Frame, Message};
 use super::pipeline_opts::PipelineOpts;
 use super::Failure;
 use plethwire::emulate::{
-    compare, find_qemu, Agreement, BoardEvents, Disagreement, Emulation, Firmware, FirmwareSearch,
-    Link, PerfReport, Session,
+    compare, find_qemu, Agreement, BoardEvents, Core, Disagreement, Emulation, Firmware,
+    FirmwareSearch, Link, Session,
 };
 use plethwire::replay::{
-    load, replay, sample_blocks, write_recording_beats, Recording, Replay, Summary,
-    DEFAULT_ANNOTATOR,
+    load, replay, sample_blocks, write_recording_beats, Recording, Replay, DEFAULT_ANNOTATOR,
 };
 use plethwire_records::annotation_path;
 
+mod report;
 mod serial_link;
 
 const EXAMPLES: &str = "\
@@ -30,11 +30,14 @@ Examples:
   plethwire emulate ../shared/data/capnobase/cb0009 --out /tmp/beats
   plethwire emulate ../shared/data/bidmc/bidmc01 --uart --seconds 60
   plethwire emulate ../shared/data/bidmc/bidmc01 --count-instructions --quiet
+  plethwire emulate ../shared/data/bidmc/bidmc01 --core m0 --count-instructions --quiet
   plethwire emulate ../shared/data/bidmc/bidmc01 --seconds 30 --json
   plethwire emulate --serial-link /tmp/plethwire-board --rate 250
   plethwire emulate ../shared/data/bidmc/bidmc01 --serial-link /tmp/plethwire-board --seconds 120
 
-Runs the firmware (firmware/emulated) in QEMU's mps2-an386 board, prints
+Runs the firmware (firmware/emulated) in QEMU's mps2-an386 board (--core
+m4f, a Cortex-M4F) or its microbit (--core m0, a Cortex-M0 without an FPU:
+every float operation in software), prints
 each beat and state change it sends, writes <record>.<annotator> (WFDB
 annotations, as `plethwire replay`, never over an existing file without
 --force) in --out (default: the current folder), and checks every event
@@ -56,7 +59,8 @@ practice decide.
 The firmware: --firmware ELF, else $PLETHWIRE_FIRMWARE, else built in the
 plethwire checkout --source DIR or $PLETHWIRE_SOURCE names, else the
 checkout this program was built from (firmware/target/thumbv7em-none-eabihf/
-release/plethwire-emulated, built there when missing; PLETHWIRE_SOURCE set
+release/plethwire-emulated, or thumbv6m-none-eabi for --core m0, built
+there when missing; PLETHWIRE_SOURCE set
 to nothing turns this off). Exit status: 0 done and identical, 1 the board,
 QEMU or the files failed or the events differ, 2 the command line could not
 be understood.";
@@ -94,6 +98,11 @@ pub struct EmulateArgs {
     /// semihosting files.
     #[arg(long)]
     pub uart: bool,
+
+    /// The emulated core: m4f (QEMU mps2-an386, Cortex-M4F) or m0 (QEMU
+    /// microbit, Cortex-M0 without FPU).
+    #[arg(long, value_name = "CORE", default_value = "m4f", value_parser = values::core)]
+    pub core: Core,
 
     /// The emulated firmware's ELF [default: $PLETHWIRE_FIRMWARE, else
     /// built from --source].
@@ -181,6 +190,7 @@ impl EmulateArgs {
         let link = if self.uart { Link::Uart } else { Link::File };
         let emulation = Emulation {
             qemu,
+            core: self.core,
             elf: firmware.elf.clone(),
             link,
             count_instructions: self.count_instructions,
@@ -217,8 +227,8 @@ impl EmulateArgs {
         let ann =
             write_recording_beats(&dir, &rec, &self.annotator, &board).map_err(Failure::refused)?;
         let text = if self.json {
-            json_report(
-                &rec.name,
+            report::json_report(
+                (&rec.name, self.core),
                 self.uart,
                 n as f64 / fs,
                 &session,
@@ -227,7 +237,7 @@ impl EmulateArgs {
                 (&ann, &firmware),
             )
         } else {
-            summary(&session, &board.summary(), agreement.as_ref().ok(), &ann)
+            report::summary(&session, &board.summary(), agreement.as_ref().ok(), &ann)
         };
         out.write_all(text.as_bytes()).map_err(Failure::output)?;
         agreement.map(|_| ()).map_err(|e| {
@@ -280,6 +290,7 @@ impl EmulateArgs {
             elf: self.firmware.clone(),
             source: self.source.clone(),
             rebuild: false,
+            core: self.core,
         };
         let quiet = self.json;
         search
@@ -294,11 +305,12 @@ impl EmulateArgs {
     /// The first line: which record, how long, at what rate, over which link.
     fn head_line(&self, rec: &Recording, n: usize) -> String {
         format!(
-            "{}: {:.1} s of {} at {} Hz on the emulated board ({})\n",
+            "{}: {:.1} s of {} at {} Hz on the emulated board ({}; {})\n",
             rec.name,
             n as f64 / rec.signal.fs,
             rec.signal.name,
             rec.signal.fs,
+            self.core.describe(),
             if self.uart {
                 "UART"
             } else {
@@ -311,77 +323,4 @@ impl EmulateArgs {
 /// Which firmware ran, and where it came from.
 fn firmware_line(f: &Firmware) -> String {
     format!("  firmware    {} ({})\n", f.elf.display(), f.origin)
-}
-
-fn summary(
-    session: &Session,
-    s: &Summary,
-    agreement: Option<&plethwire::emulate::Agreement>,
-    ann: &std::path::Path,
-) -> String {
-    let st = &session.stats;
-    let mut t = format!(
-        "  frames      {} decoded, {} damaged, {} lost\n",
-        st.frames, st.damaged, st.lost_frames
-    );
-    t += &super::replay::beats_and_rate_lines(s);
-    t += &format!(
-        "  input       {} samples replaced (not a number), {} at the rails\n",
-        s.rejected_samples, s.clipped_samples
-    );
-    if let Some(a) = agreement {
-        t += &format!(
-            "  host replay identical, bit for bit: {} beats, {} state change{}, {} sample blocks\n",
-            a.beats,
-            a.states,
-            if a.states == 1 { "" } else { "s" },
-            a.blocks
-        );
-    }
-    if let Some(p) = &session.perf {
-        t += &perf_line(p);
-    }
-    t += &format!("  wrote       {}\n", ann.display());
-    t
-}
-
-fn perf_line(p: &PerfReport) -> String {
-    format!(
-        "  cost        {:.1} instructions per sample ({} over {} samples; dearest sample about {})\n",
-        p.instructions_per_sample,
-        p.instructions,
-        p.samples,
-        p.max_instructions()
-    )
-}
-
-/// The run as our JSON document: record, link, frames, summary, agreement
-/// with the host, performance, the annotation file and the firmware.
-fn json_report(
-    name: &str,
-    uart: bool,
-    seconds: f64,
-    session: &Session,
-    board: &Replay,
-    agreement: &Result<Agreement, Disagreement>,
-    (ann, firmware): (&Path, &Firmware),
-) -> String {
-    let doc = serde_json::json!({
-        "record": name,
-        "link": if uart { "uart" } else { "files" },
-        "seconds": seconds,
-        "frames": {
-            "decoded": session.stats.frames,
-            "damaged": session.stats.damaged,
-            "lost": session.stats.lost_frames,
-        },
-        "summary": board.summary(),
-        "identical_to_host": agreement.is_ok(),
-        "difference": agreement.as_ref().err().map(ToString::to_string),
-        "perf": session.perf,
-        "annotations": ann.display().to_string(),
-        "firmware": firmware.elf.display().to_string(),
-        "firmware_from": firmware.origin,
-    });
-    serde_json::to_string_pretty(&doc).unwrap_or_default() + "\n"
 }

@@ -131,6 +131,17 @@ pub(crate) fn signal_rails(text: &str) -> Result<(f32, f32), String> {
     Ok((low, high))
 }
 
+/// An emulated core by its name (`m4f`, `m0`).
+pub(crate) fn core(text: &str) -> Result<plethwire::emulate::Core, String> {
+    plethwire::emulate::Core::from_name(text.trim()).ok_or_else(|| {
+        let names: Vec<&str> = plethwire::emulate::Core::ALL
+            .iter()
+            .map(|c| c.name())
+            .collect();
+        format!("expected one of {}", names.join(", "))
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

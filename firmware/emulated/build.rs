@@ -1,12 +1,20 @@
-//! Puts this board's `memory.x` where the linker finds it (cortex-m-rt's
-//! `link.x` INCLUDEs it; the linker arguments themselves are in
-//! `.cargo/config.toml`, where cortex-m-rt's template keeps them), and
-//! designs the pipeline's filters for a few rates here, on the PC, exactly
-//! as the real boards' build scripts do for theirs: `bands.rs` in OUT_DIR
-//! holds them as `BUILT_BANDS`. The self-check designs the same on the
-//! device and prints both, so the host test sees that a board's
-//! build-time filters are what `Pipeline::new` designs on the chip. (This
-//! board itself designs at run time, for any recording's rate.)
+//! Puts the emulated machine's `memory.x` where the linker finds it
+//! (cortex-m-rt's `link.x` INCLUDEs it), tells the code which machine it
+//! is built for, and designs the pipeline's filters for a few rates here,
+//! on the PC, exactly as the real boards' build scripts do for theirs.
+//!
+//! The crate builds for two QEMU machines, chosen by the target:
+//! `thumbv7em-none-eabihf` is `mps2-an386` (Cortex-M4F, `memory.x`),
+//! `thumbv6m-none-eabi` is `microbit` (Cortex-M0, no FPU,
+//! `memory-microbit.x`). The code sees `machine = "mps2-an386"` or
+//! `machine = "microbit"`. The linker arguments themselves are in
+//! `firmware/.cargo/config.toml`, where cortex-m-rt's template keeps them.
+//!
+//! `bands.rs` in OUT_DIR holds the filters as `BUILT_BANDS`. The
+//! self-check designs the same on the device and prints both, so the host
+//! test sees that a board's build-time filters are what `Pipeline::new`
+//! designs on the chip. (This board itself designs at run time, for any
+//! recording's rate.)
 
 use std::env;
 use std::fs;
@@ -19,9 +27,17 @@ use plethwire_dsp::pipeline::{BandSections, Config};
 const RATES_HZ: [f32; 7] = [25.0, 100.0, 125.0, 250.0, 300.0, 500.0, 1000.0];
 
 fn main() {
+    let target = env::var("TARGET").expect("cargo sets TARGET");
+    let (machine, memory): (&str, &[u8]) = if target.starts_with("thumbv6m") {
+        ("microbit", include_bytes!("memory-microbit.x"))
+    } else {
+        ("mps2-an386", include_bytes!("memory.x"))
+    };
     let out = PathBuf::from(env::var_os("OUT_DIR").expect("cargo sets OUT_DIR"));
-    fs::write(out.join("memory.x"), include_bytes!("memory.x")).expect("write memory.x");
-    println!("cargo:rustc-link-search={}", out.display());
+    fs::write(out.join("memory.x"), memory).expect("write memory.x");
+    println!("cargo::rustc-check-cfg=cfg(machine, values(\"mps2-an386\", \"microbit\"))");
+    println!("cargo::rustc-cfg=machine=\"{machine}\"");
+    println!("cargo::rustc-link-search={}", out.display());
 
     let mut text = format!(
         "/// Rates of [`BUILT_BANDS`], Hz.\n\
@@ -39,6 +55,7 @@ fn main() {
     text += "];\n";
     fs::write(out.join("bands.rs"), text).expect("write bands.rs");
 
-    println!("cargo:rerun-if-changed=memory.x");
-    println!("cargo:rerun-if-changed=build.rs");
+    println!("cargo::rerun-if-changed=memory.x");
+    println!("cargo::rerun-if-changed=memory-microbit.x");
+    println!("cargo::rerun-if-changed=build.rs");
 }

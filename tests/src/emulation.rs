@@ -5,23 +5,31 @@
 use std::path::PathBuf;
 use std::time::Duration;
 
-use plethwire::emulate::{block_difference, Emulation, Link, Session};
+use plethwire::emulate::{block_difference, target_installed, Core, Emulation, Link, Session};
 use plethwire::replay::{load, replay, sample_blocks, Recording, Replay, Source};
 use plethwire_dsp::pipeline::{BeatEvent, Config};
 use plethwire_dsp::wire::SampleBlock;
 
-use crate::{
-    build_emulated_firmware, firmware_target_installed, need, needs, qemu, shared_data_dir,
-};
+use crate::{build_emulated_firmware_for, need, needs, qemu, shared_data_dir};
 
 /// Longer than any run needs (a whole recording takes a few seconds, 60 s
 /// over the UART about ten), short enough to catch a hang.
 pub const RUN_TIMEOUT: Duration = Duration::from_secs(180);
 
-/// An emulation over `link`, the firmware built; `None` (after
-/// [`need`]) when QEMU or the firmware target is missing outside CI.
+/// An emulation over `link` on the default core (the Cortex-M4F), the
+/// firmware built; `None` (after [`need`]) when QEMU or the firmware
+/// target is missing outside CI.
 pub fn emulation(link: Link, count_instructions: bool) -> Option<Emulation> {
-    if !need(needs::FIRMWARE_TARGET, firmware_target_installed()) {
+    emulation_on(Core::M4f, link, count_instructions)
+}
+
+/// [`emulation`] on `core`.
+pub fn emulation_on(core: Core, link: Link, count_instructions: bool) -> Option<Emulation> {
+    let what = match core {
+        Core::M4f => needs::FIRMWARE_TARGET,
+        Core::M0 => needs::M0_FIRMWARE_TARGET,
+    };
+    if !need(what, target_installed(core.target())) {
         return None;
     }
     let qemu = qemu();
@@ -30,7 +38,8 @@ pub fn emulation(link: Link, count_instructions: bool) -> Option<Emulation> {
     }
     Some(Emulation {
         qemu: qemu?,
-        elf: build_emulated_firmware(),
+        core,
+        elf: build_emulated_firmware_for(core),
         link,
         count_instructions,
         timeout: Some(RUN_TIMEOUT),

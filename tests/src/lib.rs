@@ -52,7 +52,7 @@ use std::sync::OnceLock;
 use std::thread::{self, JoinHandle};
 use std::time::{Duration, Instant};
 
-use plethwire::emulate::{self, BuildError};
+use plethwire::emulate::{self, BuildError, Core};
 use serde::de::DeserializeOwned;
 use serde::Serialize;
 
@@ -80,6 +80,9 @@ pub mod needs {
     /// The Rust standard library for the emulated firmware's target.
     pub const FIRMWARE_TARGET: &str = "the Rust target thumbv7em-none-eabihf \
          (`rustup target add thumbv7em-none-eabihf`; scripts/test-all adds it)";
+    /// The Rust standard library for the emulated Cortex-M0's target.
+    pub const M0_FIRMWARE_TARGET: &str = "the Rust target thumbv6m-none-eabi \
+         (`rustup target add thumbv6m-none-eabi`; scripts/test-all adds it)";
 }
 
 /// Whether skips must become failures: `CI` is `true` (any case) or `1`.
@@ -218,23 +221,34 @@ pub fn qemu() -> Option<PathBuf> {
 /// The build runs once per test process. Panics with cargo's output if the
 /// build fails.
 pub fn build_emulated_firmware() -> PathBuf {
-    static ELF: OnceLock<PathBuf> = OnceLock::new();
-    ELF.get_or_init(|| match emulate::build_firmware() {
-        Ok(elf) => elf,
-        Err(BuildError::Failed {
-            status,
-            dir,
-            stderr,
-        }) => panic!(
-            "firmware build failed ({status}) in {}:\n{stderr}",
-            dir.display()
-        ),
-        Err(BuildError::NoExecutable { stderr }) => {
-            panic!("cargo reported no existing plethwire-emulated executable:\n{stderr}")
-        }
-        Err(e) => panic!("firmware build: {e}"),
-    })
-    .clone()
+    build_emulated_firmware_for(Core::M4f)
+}
+
+/// [`build_emulated_firmware`] for `core` (`--target` its target), once
+/// per core and test process.
+pub fn build_emulated_firmware_for(core: Core) -> PathBuf {
+    static ELF: [OnceLock<PathBuf>; 2] = [OnceLock::new(), OnceLock::new()];
+    let at = Core::ALL
+        .iter()
+        .position(|c| *c == core)
+        .expect("a known core");
+    ELF[at]
+        .get_or_init(|| match emulate::build_firmware_for(core) {
+            Ok(elf) => elf,
+            Err(BuildError::Failed {
+                status,
+                dir,
+                stderr,
+            }) => panic!(
+                "firmware build failed ({status}) in {}:\n{stderr}",
+                dir.display()
+            ),
+            Err(BuildError::NoExecutable { stderr }) => {
+                panic!("cargo reported no existing plethwire-emulated executable:\n{stderr}")
+            }
+            Err(e) => panic!("firmware build: {e}"),
+        })
+        .clone()
 }
 
 /// Run `elf` in QEMU's mps2-an386 machine as the firmware's runner does
@@ -246,9 +260,14 @@ pub fn build_emulated_firmware() -> PathBuf {
 /// output so far) if it has not exited after `timeout`: firmware that hangs
 /// is a failure, not a wait.
 pub fn run_emulated(elf: &Path, timeout: Duration) -> (ExitStatus, String) {
+    run_emulated_on(Core::M4f, elf, timeout)
+}
+
+/// [`run_emulated`] on `core`'s machine ([`plethwire::emulate::runner_args_for`]).
+pub fn run_emulated_on(core: Core, elf: &Path, timeout: Duration) -> (ExitStatus, String) {
     let exe = qemu().unwrap_or_else(|| panic!("no usable {}", needs::QEMU));
     let mut child = Command::new(&exe)
-        .args(emulate::runner_args())
+        .args(emulate::runner_args_for(core))
         .arg(elf)
         .stdin(Stdio::null())
         .stdout(Stdio::piped())
@@ -311,15 +330,20 @@ mod tests {
     fn the_board_runs_the_machine_of_the_firmware_runner() {
         let config = std::fs::read_to_string(repo_root().join("firmware/.cargo/config.toml"))
             .expect("firmware/.cargo/config.toml exists");
-        let runner = config
-            .lines()
-            .find_map(|l| l.trim().strip_prefix("runner = \""))
-            .and_then(|r| r.strip_suffix('"'))
-            .expect("the firmware config sets a runner");
-        assert_eq!(
-            runner,
-            format!("qemu-system-arm {}", emulate::runner_args().join(" "))
-        );
+        let table: toml::Table = config.parse().expect("firmware/.cargo/config.toml parses");
+        for core in Core::ALL {
+            let runner = table["target"][core.target()]["runner"]
+                .as_str()
+                .unwrap_or_else(|| panic!("the firmware config sets a runner for {core:?}"));
+            assert_eq!(
+                runner,
+                format!(
+                    "qemu-system-arm {}",
+                    emulate::runner_args_for(core).join(" ")
+                ),
+                "{core:?}"
+            );
+        }
     }
 
     #[test]

@@ -7,7 +7,7 @@
 
 use std::path::PathBuf;
 
-use plethwire::emulate::{Link, PerfReport};
+use plethwire::emulate::{Core, Link, PerfReport};
 use plethwire_checks::emulation::{
     assert_identical, default_config, emulation, run_both, shared_record,
 };
@@ -58,6 +58,7 @@ fn check(relative: &str) {
     assert_identical(relative, &session, &host);
     let perf: PerfReport = session.perf.expect("counting was asked for");
     assert_eq!(perf.samples, want.samples, "{relative}: samples counted");
+    assert_eq!(perf.core, Core::M4f, "{relative}: the machine counted on");
     assert!(
         perf.calibration_ticks.abs_diff(100) <= 1,
         "{relative}: SysTick is not counting instructions"

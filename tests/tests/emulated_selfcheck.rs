@@ -1,12 +1,15 @@
 //! The project's core invariant, first instance: the firmware running on an
-//! (emulated) Cortex-M4F and the host produce the same numbers, bit for bit,
-//! for filter design and for filtering.
+//! (emulated) Cortex-M4F, and on a Cortex-M0 without an FPU, and the host
+//! produce the same numbers, bit for bit, for filter design and for
+//! filtering.
 
 use std::time::Duration;
 
+use plethwire::emulate::{target_installed, Core};
 use plethwire_checks::selfcheck::{self, SelfCheck};
 use plethwire_checks::{
-    build_emulated_firmware, firmware_target_installed, need, needs, qemu, run_emulated,
+    build_emulated_firmware, build_emulated_firmware_for, firmware_target_installed, need, needs,
+    qemu, run_emulated, run_emulated_on,
 };
 use plethwire_dsp::design::butterworth_bandpass;
 use plethwire_dsp::filter::{Cascade, Delta, Df2t};
@@ -27,14 +30,23 @@ const QEMU_TIMEOUT: Duration = Duration::from_secs(60);
 /// Build, run under QEMU and parse; `None` when a prerequisite is missing
 /// outside CI.
 fn run_firmware() -> Option<SelfCheck> {
-    if !need(needs::FIRMWARE_TARGET, firmware_target_installed()) {
+    run_firmware_on(Core::M4f)
+}
+
+/// [`run_firmware`] on `core`.
+fn run_firmware_on(core: Core) -> Option<SelfCheck> {
+    let what = match core {
+        Core::M4f => needs::FIRMWARE_TARGET,
+        Core::M0 => needs::M0_FIRMWARE_TARGET,
+    };
+    if !need(what, target_installed(core.target())) {
         return None;
     }
     if !need(needs::QEMU, qemu().is_some()) {
         return None;
     }
-    let elf = build_emulated_firmware();
-    let (status, stdout) = run_emulated(&elf, QEMU_TIMEOUT);
+    let elf = build_emulated_firmware_for(core);
+    let (status, stdout) = run_emulated_on(core, &elf, QEMU_TIMEOUT);
     assert!(
         status.success(),
         "emulated firmware exited with {status}; its output:\n{stdout}"
@@ -46,7 +58,18 @@ fn run_firmware() -> Option<SelfCheck> {
 
 #[test]
 fn emulated_firmware_matches_host_bit_for_bit() {
-    let Some(report) = run_firmware() else {
+    matches_host(Core::M4f);
+}
+
+/// The same on the Cortex-M0: its design runs in soft-float `f64`, its
+/// filters in soft-float `f32`.
+#[test]
+fn emulated_m0_firmware_matches_host_bit_for_bit() {
+    matches_host(Core::M0);
+}
+
+fn matches_host(core: Core) {
+    let Some(report) = run_firmware_on(core) else {
         return;
     };
     // Without these the comparisons below could pass on an empty report.
@@ -72,8 +95,8 @@ fn emulated_firmware_matches_host_bit_for_bit() {
         );
     }
 
-    // (b) Filtering: the device's FPU against the host's, on the inputs the
-    // device printed.
+    // (b) Filtering: the device's FPU (or soft-float) against the host's,
+    // on the inputs the device printed.
     let mut delta: Cascade<Delta, 2> = design.cascade().unwrap();
     let mut df2t: Cascade<Df2t, 2> = design.cascade().unwrap();
     for (n, s) in report.samples.iter().enumerate() {

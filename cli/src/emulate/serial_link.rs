@@ -130,6 +130,7 @@ pub fn run(args: &EmulateArgs, link: &Path, out: &mut dyn Write) -> Result<(), F
     install_stop_handler()?;
     let emulation = Emulation {
         qemu,
+        core: args.core,
         elf: firmware.elf.clone(),
         link: Link::Uart,
         count_instructions: false,

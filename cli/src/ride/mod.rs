@@ -10,7 +10,7 @@ pub mod live;
 pub mod scenario;
 
 use plethwire::emulate::{
-    compare, find_qemu, BoardEvents, Emulation, Firmware, FirmwareError, Link,
+    compare, find_qemu, BoardEvents, Core, Emulation, Firmware, FirmwareError, Link,
 };
 use plethwire::replay::{sample_blocks, Replay, Summary};
 use plethwire::report::{self, Reference, ReportInput};
@@ -164,6 +164,7 @@ pub fn run_board(
     };
     let emu = Emulation {
         qemu,
+        core: Core::M4f,
         elf,
         link: Link::File,
         count_instructions: false,

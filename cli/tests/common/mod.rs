@@ -154,5 +154,7 @@ pub fn elf_header(machine: u16, entry: u32) -> Vec<u8> {
     h[16..18].copy_from_slice(&2u16.to_le_bytes());
     h[18..20].copy_from_slice(&machine.to_le_bytes());
     h[24..28].copy_from_slice(&entry.to_le_bytes());
+    // EABI version 5 with the hard-float ABI, as the Cortex-M4F build has.
+    h[36..40].copy_from_slice(&0x0500_0400u32.to_le_bytes());
     h
 }

@@ -5,9 +5,9 @@ use crate::semihost::{HostFile, Mode};
 use crate::session::{FeedSource, FrameSink, RunError};
 use crate::uart::{Rx, Tx};
 
-/// Bytes read from the host per call: large enough that the calls cost
-/// little, small enough for any board's RAM.
-const CHUNK: usize = 4096;
+/// Bytes read from the host per call (per machine: the microbit's RAM is
+/// small).
+const CHUNK: usize = crate::machine::FEED_CHUNK;
 
 /// A feed read from a host file in chunks.
 pub struct FileFeed {

@@ -1,4 +1,6 @@
-//! plethwire firmware for QEMU's `mps2-an386` (Cortex-M4F).
+//! plethwire firmware for two QEMU machines: `mps2-an386` (Cortex-M4F,
+//! built for `thumbv7em-none-eabihf`) and `microbit` (Cortex-M0 without an
+//! FPU, built for `thumbv6m-none-eabi`); [`machine`] holds what differs.
 //!
 //! What it does depends on the semihosting command line
 //! (`-semihosting-config enable=on,target=native,arg=...`), whose first
@@ -21,10 +23,15 @@
 #![no_main]
 
 mod links;
+mod machine;
 mod perf;
 mod selfcheck;
 mod semihost;
 mod session;
+mod stack;
+// The UART of the machine built for: the mps2-an386's CMSDK UART or the
+// nRF51's, with the same calls.
+#[cfg_attr(machine = "microbit", path = "uart_nrf51.rs")]
 mod uart;
 
 use core::fmt::Write;
@@ -42,6 +49,7 @@ const PROGRAM: &str = "plethwire-emulated";
 
 #[entry]
 fn main() -> ! {
+    stack::paint();
     let mut buf = [0u8; 512];
     let outcome = match semihost::command_line(&mut buf) {
         Ok(line) => dispatch(line),
@@ -102,21 +110,8 @@ fn dispatch(line: &str) -> Result<(), Failure> {
     }
     match &args[..n] {
         [] => selfcheck::run(),
-        ["stream", feed, frames] => {
-            let (mut src, mut sink) = (FileFeed::open(feed)?, FileSink::create(frames)?);
-            session::run(&mut src, &mut sink, &mut Plain)?;
-        }
-        ["perf", feed, frames, report] => {
-            let syst = cortex_m::Peripherals::take()
-                .ok_or(Failure::Counter("the core peripherals are taken"))?
-                .SYST;
-            let mut counter = perf::Counter::start(syst).map_err(Failure::Counter)?;
-            let (mut src, mut sink) = (FileFeed::open(feed)?, FileSink::create(frames)?);
-            let totals = session::run(&mut src, &mut sink, &mut counter)?;
-            counter
-                .report(&totals, report)
-                .map_err(|e| Failure::Run(e.into()))?;
-        }
+        ["stream", feed, frames] => over_files(feed, frames, None)?,
+        ["perf", feed, frames, report] => over_files(feed, frames, Some(report))?,
         ["uart"] => {
             let (rx, tx) = uart::take();
             let mut sink = UartSink(tx);
@@ -124,6 +119,34 @@ fn dispatch(line: &str) -> Result<(), Failure> {
             sink.0.flush();
         }
         _ => return Err(Failure::Usage),
+    }
+    Ok(())
+}
+
+/// A session over the host files `feed` and `frames`, counted when there
+/// is a `report` to write. One path for both modes, so the feed's buffer
+/// is on the stack once (the microbit's RAM is small).
+fn over_files(feed: &str, frames: &str, report: Option<&str>) -> Result<(), Failure> {
+    let counter = match report {
+        Some(_) => {
+            let syst = cortex_m::Peripherals::take()
+                .ok_or(Failure::Counter("the core peripherals are taken"))?
+                .SYST;
+            Some(perf::Counter::start(syst).map_err(Failure::Counter)?)
+        }
+        None => None,
+    };
+    let (mut src, mut sink) = (FileFeed::open(feed)?, FileSink::create(frames)?);
+    match (counter, report) {
+        (Some(mut counter), Some(report)) => {
+            let totals = session::run(&mut src, &mut sink, &mut counter)?;
+            counter
+                .report(&totals, report)
+                .map_err(|e| Failure::Run(e.into()))?;
+        }
+        _ => {
+            session::run(&mut src, &mut sink, &mut Plain)?;
+        }
     }
     Ok(())
 }

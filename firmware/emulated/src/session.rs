@@ -11,8 +11,7 @@
 use core::fmt;
 
 use plethwire_dsp::feed::{FeedError, FeedHeader, FEED_HEADER_LEN};
-use plethwire_dsp::pipeline::PipelineError;
-use plethwire_dsp::pipeline::{Output, Pipeline};
+use plethwire_dsp::pipeline::{Output, Pipeline, PipelineError};
 use plethwire_dsp::wire::{sample_stride, Encoder, Hello, Message, SampleTap, Status, MAX_FRAME};
 
 use crate::semihost::HostError;
@@ -142,7 +141,14 @@ pub fn run<F: FeedSource, S: FrameSink, P: Push>(
     source.read_exact(&mut head)?;
     let header = FeedHeader::decode(&head).map_err(RunError::Feed)?;
     source.expect_len(header.feed_len())?;
-    let mut pipeline = Pipeline::new(header.config).map_err(RunError::Pipeline)?;
+    // Matched by reference, never moved: the pipeline is 10.5 KiB, two
+    // thirds of the microbit's RAM, and a move (as `map_err` and `?` make)
+    // would take as much again. `new` returns straight into `built`.
+    let mut built = Pipeline::new(header.config);
+    let pipeline = match &mut built {
+        Ok(pipeline) => pipeline,
+        Err(e) => return Err(RunError::Pipeline(*e)),
+    };
     let mut out = Framer {
         encoder: Encoder::new(),
         sink,
@@ -158,14 +164,14 @@ pub fn run<F: FeedSource, S: FrameSink, P: Push>(
     for _ in 0..header.samples {
         source.read_exact(&mut bytes)?;
         let x = f32::from_le_bytes(bytes);
-        let o = pusher.push(&mut pipeline, x);
+        let o = pusher.push(pipeline, x);
         if let Some(s) = o.state {
             out.send(&Message::State(s))?;
         }
         if let Some(b) = o.beat {
             out.send(&Message::Beat(b))?;
         }
-        if let Some(block) = tap.push(x, &pipeline) {
+        if let Some(block) = tap.push(x, pipeline) {
             out.send(&Message::Samples(block))?;
         }
     }

@@ -1,35 +1,21 @@
 //! The emulated board's one owner: finding QEMU, finding or building the
-//! emulated firmware, and the QEMU command line. The command line, the demo
+//! emulated firmware, and the QEMU command line for each core
+//! ([`Core`]). The command line, the demo
 //! and the checks in `tests/` all come here.
 
 use std::ffi::OsString;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 
+use super::cores::Core;
 use super::EmulateError;
 
 mod build;
 
 pub use build::{
-    build_firmware, build_firmware_in, firmware_target_installed, BuildError, FIRMWARE_TARGET,
+    build_firmware, build_firmware_for, build_firmware_in, firmware_target_installed,
+    target_installed, BuildError, FIRMWARE_TARGET,
 };
-
-/// The machine: QEMU's MPS2 AN386 board (Cortex-M4F), no display, no
-/// monitor, UART0 on standard input and output. The same as the runner in
-/// `firmware/.cargo/config.toml` up to `-semihosting-config` (a check in
-/// `tests/` holds the two together).
-pub const MACHINE_ARGS: &[&str] = &[
-    "-M",
-    "mps2-an386",
-    "-cpu",
-    "cortex-m4",
-    "-display",
-    "none",
-    "-monitor",
-    "none",
-    "-serial",
-    "stdio",
-];
 
 /// Semihosting on, with file access on the host (`-semihosting-config`);
 /// the firmware's command line is appended as `,arg=...`.
@@ -41,27 +27,27 @@ pub const ICOUNT_ARGS: &[&str] = &["-icount", "shift=0"];
 /// The first word of the firmware's command line for its run modes.
 pub const FIRMWARE_PROGRAM: &str = "plethwire-emulated";
 
-/// Where `cargo build --release` in `firmware/` puts the ELF, below the
-/// repository root.
-pub const FIRMWARE_ELF: &str = "firmware/target/thumbv7em-none-eabihf/release/plethwire-emulated";
-
-/// How to build the firmware, for messages.
-pub const BUILD_HINT: &str = "build it with `cd firmware && cargo build --release`";
-
-/// The arguments of the runner in `firmware/.cargo/config.toml` (what
-/// `cargo run` in `firmware/` starts), up to and including `-kernel`: the
-/// machine with semihosting on and no firmware command line, which runs
-/// the firmware's self-check. The ELF's path follows.
+/// The arguments of the runner in `firmware/.cargo/config.toml` for the
+/// default core's target (what `cargo run` in `firmware/` starts), up to
+/// and including `-kernel`: the machine with semihosting on and no
+/// firmware command line, which runs the firmware's self-check. The ELF's
+/// path follows.
 pub fn runner_args() -> Vec<&'static str> {
-    let mut v = MACHINE_ARGS.to_vec();
+    runner_args_for(Core::M4f)
+}
+
+/// [`runner_args`] for `core`'s machine and target.
+pub fn runner_args_for(core: Core) -> Vec<&'static str> {
+    let mut v = core.machine_args().to_vec();
     v.extend(["-semihosting-config", SEMIHOSTING, "-kernel"]);
     v
 }
 
-/// The QEMU arguments for `elf` with the firmware command line `args`
-/// (each becomes `arg=...`), with or without instruction counting.
-pub fn qemu_args(elf: &Path, args: &[&str], count_instructions: bool) -> Vec<String> {
-    let mut v: Vec<String> = MACHINE_ARGS.iter().map(|s| s.to_string()).collect();
+/// The QEMU arguments for `elf` on `core`'s machine with the firmware
+/// command line `args` (each becomes `arg=...`), with or without
+/// instruction counting.
+pub fn qemu_args(core: Core, elf: &Path, args: &[&str], count_instructions: bool) -> Vec<String> {
+    let mut v: Vec<String> = core.machine_args().iter().map(|s| s.to_string()).collect();
     if count_instructions {
         v.extend(ICOUNT_ARGS.iter().map(|s| s.to_string()));
     }
@@ -132,7 +118,12 @@ mod tests {
 
     #[test]
     fn the_command_line_reaches_the_firmware_as_semihosting_args() {
-        let v = qemu_args(Path::new("/x/fw.elf"), &["stream", "a.bin", "b.bin"], false);
+        let v = qemu_args(
+            Core::M4f,
+            Path::new("/x/fw.elf"),
+            &["stream", "a.bin", "b.bin"],
+            false,
+        );
         let at = v.iter().position(|a| a == "-semihosting-config").unwrap();
         assert_eq!(
             v[at + 1],
@@ -145,8 +136,15 @@ mod tests {
         runner[at + 1].push_str(",arg=plethwire-emulated,arg=stream,arg=a.bin,arg=b.bin");
         runner.push("/x/fw.elf".into());
         assert_eq!(v, runner);
-        let counted = qemu_args(Path::new("fw"), &["perf"], true);
+        let counted = qemu_args(Core::M0, Path::new("fw"), &["perf"], true);
         let i = counted.iter().position(|a| a == "-icount").unwrap();
         assert_eq!(counted[i + 1], "shift=0");
+        assert_eq!(&counted[..2], ["-M", "microbit"]);
+        assert!(counted.starts_with(
+            &runner_args_for(Core::M0)[..i]
+                .iter()
+                .map(|a| a.to_string())
+                .collect::<Vec<_>>()
+        ));
     }
 }

@@ -14,8 +14,9 @@
 use std::ffi::OsString;
 use std::path::{Path, PathBuf};
 
-use super::board::{build_firmware_in, repo_roots, BuildError, FIRMWARE_ELF, FIRMWARE_TARGET};
-use super::elf::{check_elf, ElfProblem};
+use super::board::{build_firmware_in, repo_roots, BuildError};
+use super::elf::{check_elf_for, ElfProblem};
+use super::Core;
 
 /// Environment variable naming the emulated firmware's ELF.
 pub const FIRMWARE_VAR: &str = "PLETHWIRE_FIRMWARE";
@@ -28,8 +29,8 @@ pub const SOURCE_VAR: &str = "PLETHWIRE_SOURCE";
 #[derive(Debug, thiserror::Error)]
 pub enum FirmwareError {
     /// Nothing named and no checkout to build in.
-    #[error("no emulated firmware found: pass --firmware <ELF> or set {FIRMWARE_VAR}=<ELF> (an ELF built from firmware/emulated), or pass --source <plethwire checkout> or set {SOURCE_VAR}=<plethwire checkout> to build it there (needs `rustup target add {FIRMWARE_TARGET}`)")]
-    NotFound,
+    #[error("no emulated firmware found: pass --firmware <ELF> or set {FIRMWARE_VAR}=<ELF> (an ELF built from firmware/emulated), or pass --source <plethwire checkout> or set {SOURCE_VAR}=<plethwire checkout> to build it there (needs `rustup target add {}`)", .0.target())]
+    NotFound(Core),
     /// The named ELF does not exist.
     #[error("no emulated firmware at {} (from {from}); give the path of an ELF built from firmware/emulated, or pass --source <plethwire checkout> to build it", .path.display())]
     Missing {
@@ -39,7 +40,7 @@ pub enum FirmwareError {
         from: String,
     },
     /// The named ELF is not firmware for the emulated board.
-    #[error("{} (from {from}) is not the emulated board's firmware: {problem}; build firmware/emulated (`cd firmware && cargo build --release`) and give that ELF", .path.display())]
+    #[error("{} (from {from}) is not the emulated board's firmware: {problem}; build firmware/emulated (`{}`) and give that ELF", .path.display(), .core.build_hint())]
     WrongElf {
         /// The path named.
         path: PathBuf,
@@ -47,6 +48,8 @@ pub enum FirmwareError {
         from: String,
         /// What is wrong with it.
         problem: ElfProblem,
+        /// The core it was to run on.
+        core: Core,
     },
     /// The named folder is not a plethwire checkout.
     #[error("{} (from {from}) is not a plethwire checkout: it has no firmware/Cargo.toml; point it at the folder holding plethwire's sources, or pass --firmware <ELF>", .path.display())]
@@ -77,6 +80,8 @@ pub struct FirmwareSearch {
     /// ELF is already there (a named checkout is always built in: quick
     /// when up to date, and never a stale ELF).
     pub rebuild: bool,
+    /// The core it is to run on: its target, and the ELF check.
+    pub core: Core,
 }
 
 /// The firmware found.
@@ -108,7 +113,7 @@ impl FirmwareSearch {
             .map(|p| (p, "--firmware".to_owned()))
             .or_else(|| named(var, FIRMWARE_VAR));
         if let Some((path, from)) = named_elf {
-            return checked(path, from);
+            return checked(path, from, self.core);
         }
         let source_var = var(SOURCE_VAR);
         let named_source = self
@@ -120,22 +125,23 @@ impl FirmwareSearch {
             if !path.join("firmware/Cargo.toml").is_file() {
                 return Err(FirmwareError::NotACheckout { path, from });
             }
-            return build(&path, say, None);
+            return build(&path, self.core, say, None);
         }
         if source_var.is_some_and(|v| v.is_empty()) {
-            return Err(FirmwareError::NotFound);
+            return Err(FirmwareError::NotFound(self.core));
         }
         let Some(root) = repo_roots()
             .into_iter()
             .find(|r| r.join("firmware/Cargo.toml").is_file())
         else {
-            return Err(FirmwareError::NotFound);
+            return Err(FirmwareError::NotFound(self.core));
         };
-        let existing = root.join(FIRMWARE_ELF);
+        let existing = root.join(self.core.elf_path());
         if !self.rebuild && existing.is_file() {
-            return checked(existing, "the checkout this program was built from".into());
+            let from = "the checkout this program was built from".into();
+            return checked(existing, from, self.core);
         }
-        build(&root, say, Some(existing))
+        build(&root, self.core, say, Some(existing))
     }
 }
 
@@ -146,12 +152,13 @@ fn named(var: &dyn Fn(&str) -> Option<OsString>, name: &str) -> Option<(PathBuf,
         .map(|v| (PathBuf::from(v), name.to_owned()))
 }
 
-/// `path` as the firmware, once it exists and passes [`check_elf`].
-fn checked(path: PathBuf, from: String) -> Result<Firmware, FirmwareError> {
+/// `path` as the firmware for `core`, once it exists and passes
+/// [`check_elf_for`].
+fn checked(path: PathBuf, from: String, core: Core) -> Result<Firmware, FirmwareError> {
     if !path.is_file() {
         return Err(FirmwareError::Missing { path, from });
     }
-    match check_elf(&path) {
+    match check_elf_for(&path, core) {
         Ok(()) => Ok(Firmware {
             elf: path,
             origin: from,
@@ -160,30 +167,38 @@ fn checked(path: PathBuf, from: String) -> Result<Firmware, FirmwareError> {
             path,
             from,
             problem,
+            core,
         }),
     }
 }
 
-/// Build in `checkout`; when the build fails, `fallback` (an ELF already
-/// there) if it exists, else the failure.
+/// Build for `core` in `checkout`; when the build fails, `fallback` (an ELF
+/// already there) if it exists, else the failure.
 fn build(
     checkout: &Path,
+    core: Core,
     say: &mut dyn FnMut(&str),
     fallback: Option<PathBuf>,
 ) -> Result<Firmware, FirmwareError> {
     say(&format!(
-        "building the emulated firmware in {} (cargo build --release; quick when up to date) ...",
-        checkout.display()
+        "building the emulated firmware for {} in {} (cargo build --release --target {}; quick when up to date) ...",
+        core.describe(),
+        checkout.display(),
+        core.target()
     ));
     let origin = format!("built in {}", checkout.display());
-    match build_firmware_in(&checkout.join("firmware")) {
-        Ok(elf) => checked(elf, origin),
+    match build_firmware_in(&checkout.join("firmware"), core) {
+        Ok(elf) => checked(elf, origin, core),
         Err(e) => {
             if let BuildError::Failed { stderr, .. } = &e {
                 say(stderr.trim_end());
             }
             match fallback.filter(|f| f.is_file()) {
-                Some(f) => checked(f, format!("{origin} earlier (this build failed: {e})")),
+                Some(f) => checked(
+                    f,
+                    format!("{origin} earlier (this build failed: {e})"),
+                    core,
+                ),
                 None => Err(FirmwareError::Build {
                     checkout: checkout.to_path_buf(),
                     source: e,

@@ -1,5 +1,7 @@
-//! Running a recording through the firmware on QEMU's emulated Cortex-M4F
-//! board, and reading back what it sent.
+//! Running a recording through the firmware on an emulated board, and
+//! reading back what it sent. Two cores ([`Core`]): QEMU's mps2-an386
+//! (Cortex-M4F, the default) and its microbit (Cortex-M0 without an FPU),
+//! the same firmware built for each one's target.
 //!
 //! The host writes a samples feed ([`plethwire_dsp::feed`]: header with the
 //! pipeline's `Config`, then `f32` samples), starts QEMU on the emulated
@@ -22,6 +24,7 @@
 
 mod board;
 mod compare;
+mod cores;
 mod elf;
 mod firmware;
 mod perf;
@@ -31,14 +34,15 @@ mod serial_link;
 mod session;
 
 pub use board::{
-    build_firmware, build_firmware_in, find_qemu, firmware_target_installed, qemu_args,
-    runner_args, BuildError, BUILD_HINT, FIRMWARE_ELF, FIRMWARE_PROGRAM, FIRMWARE_TARGET,
-    ICOUNT_ARGS, MACHINE_ARGS, SEMIHOSTING,
+    build_firmware, build_firmware_for, build_firmware_in, find_qemu, firmware_target_installed,
+    qemu_args, runner_args, runner_args_for, target_installed, BuildError, FIRMWARE_PROGRAM,
+    FIRMWARE_TARGET, ICOUNT_ARGS, SEMIHOSTING,
 };
 pub use compare::{
     beat_difference, block_difference, compare, Agreement, BoardEvents, Disagreement,
 };
-pub use elf::{check_elf, ElfProblem, EMULATED_FLASH};
+pub use cores::Core;
+pub use elf::{check_elf, check_elf_for, ElfProblem};
 pub use firmware::{Firmware, FirmwareError, FirmwareSearch, FIRMWARE_VAR, SOURCE_VAR};
 pub use perf::{parse as parse_perf, PerfError, PerfReport};
 pub use pty::LinkedPty;
@@ -66,7 +70,9 @@ pub enum Link {
 pub struct Emulation {
     /// `qemu-system-arm` ([`find_qemu`]).
     pub qemu: PathBuf,
-    /// The emulated firmware's ELF ([`FirmwareSearch::locate`]).
+    /// The core, and so the QEMU machine, it runs on.
+    pub core: Core,
+    /// The emulated firmware's ELF for that core ([`FirmwareSearch::locate`]).
     pub elf: PathBuf,
     /// The link.
     pub link: Link,

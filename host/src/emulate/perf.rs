@@ -1,18 +1,26 @@
 //! The emulated board's instruction count report (`perf` mode).
 //!
 //! The firmware writes one `key value` per line between the header
-//! `plethwire-emulated perf v1` and `end`; `docs/performance.md` explains
+//! `plethwire-emulated perf v2` and `end`; `docs/performance.md` explains
 //! the method. Parsing is strict: a missing or inconsistent figure is an
 //! error, never a zero.
 
 use serde::Serialize;
 
-/// First line of a version-1 report.
-pub const HEADER: &str = "plethwire-emulated perf v1";
+use super::Core;
+
+/// First line of a version-2 report.
+pub const HEADER: &str = "plethwire-emulated perf v2";
+
+/// Nanoseconds in a second: one instruction is 1 ns under `-icount shift=0`.
+const NS_PER_S: u64 = 1_000_000_000;
 
 /// What one run of `Pipeline::push` over a recording cost on the board.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct PerfReport {
+    /// The core whose machine the firmware says it ran on (`machine
+    /// mps2-an386` or `microbit`).
+    pub core: Core,
     /// Samples pushed (the recording; `finish` is not counted).
     pub samples: u64,
     /// SysTick ticks inside the brackets around each `push`.
@@ -21,22 +29,47 @@ pub struct PerfReport {
     pub empty_ticks: u64,
     /// Ticks of the dearest single `push` (to a tick).
     pub max_push_ticks: u64,
-    /// Ticks the 4000-instruction calibration block took (100 when
-    /// SysTick counts instructions).
+    /// Ticks the 4000-instruction calibration block took
+    /// ([`Self::expected_calibration_ticks`] when SysTick counts
+    /// instructions).
     pub calibration_ticks: u64,
-    /// Instructions per tick (40).
-    pub instructions_per_tick: u64,
+    /// SysTick's clock in Hz: a tick is `1e9 / core_clock_hz` instructions
+    /// (40 at 25 MHz, 62.5 at 16 MHz).
+    pub core_clock_hz: u64,
     /// Instructions of all pushes, the measuring subtracted.
     pub instructions: u64,
     /// `instructions / samples`.
     pub instructions_per_sample: f64,
+    /// Bytes of RAM the firmware claims (statics and stack).
+    pub ram_bytes: u64,
+    /// Bytes of it the statics take (`.data`, `.bss`, `.uninit`).
+    pub static_bytes: u64,
+    /// The deepest the stack went in the run, bytes (painted and read back).
+    pub stack_peak_bytes: u64,
 }
 
 impl PerfReport {
     /// Instructions of the dearest single `push`, to within a tick.
     pub fn max_instructions(&self) -> u64 {
-        self.max_push_ticks * self.instructions_per_tick
+        ticks_to_instructions(self.max_push_ticks, self.core_clock_hz)
     }
+
+    /// Ticks the calibration block takes when SysTick counts instructions
+    /// (4000 instructions at this clock: 100 at 25 MHz, 64 at 16 MHz).
+    pub fn expected_calibration_ticks(&self) -> u64 {
+        4000 * self.core_clock_hz / NS_PER_S
+    }
+
+    /// RAM the run used: the statics and the stack's peak, bytes.
+    pub fn ram_used_bytes(&self) -> u64 {
+        self.static_bytes + self.stack_peak_bytes
+    }
+}
+
+/// Instructions in `ticks` of a SysTick clocked at `clock_hz`, rounded as
+/// the firmware rounds them.
+fn ticks_to_instructions(ticks: u64, clock_hz: u64) -> u64 {
+    (ticks * NS_PER_S + clock_hz / 2) / clock_hz.max(1)
 }
 
 /// What is wrong with a perf report; one line.
@@ -62,6 +95,12 @@ pub enum PerfError {
         /// Why it does not parse.
         source: std::num::ParseIntError,
     },
+    /// The machine is not one of ours.
+    #[error("perf report: unknown machine {0:?}")]
+    UnknownMachine(String),
+    /// The stack's peak exceeds the RAM.
+    #[error("perf report: the statics and the stack's peak exceed the RAM")]
+    RamMismatch,
     /// The per-sample figure is not a number.
     #[error("perf report: instructions_per_sample is not a number")]
     NotNumber(#[source] std::num::ParseFloatError),
@@ -112,24 +151,36 @@ pub fn parse(text: &str) -> Result<PerfReport, PerfError> {
                 source,
             })
     };
+    let name = get("machine")?;
+    let core = Core::ALL
+        .into_iter()
+        .find(|c| c.machine() == name)
+        .ok_or_else(|| PerfError::UnknownMachine(name.to_owned()))?;
     let r = PerfReport {
+        core,
         samples: int("samples")?,
         push_ticks: int("push_ticks")?,
         empty_ticks: int("empty_ticks")?,
         max_push_ticks: int("max_push_ticks")?,
         calibration_ticks: int("calibration_ticks")?,
-        instructions_per_tick: int("instructions_per_tick")?,
+        core_clock_hz: int("core_clock_hz")?,
         instructions: int("instructions")?,
         instructions_per_sample: get("instructions_per_sample")?
             .parse::<f64>()
             .map_err(PerfError::NotNumber)?,
+        ram_bytes: int("ram_bytes")?,
+        static_bytes: int("static_bytes")?,
+        stack_peak_bytes: int("stack_peak_bytes")?,
     };
     let net = r
         .push_ticks
         .checked_sub(r.empty_ticks)
         .ok_or(PerfError::EmptyCostsMore)?;
-    if net * r.instructions_per_tick != r.instructions {
+    if ticks_to_instructions(net, r.core_clock_hz) != r.instructions {
         return Err(PerfError::TicksMismatch);
+    }
+    if r.ram_used_bytes() > r.ram_bytes {
+        return Err(PerfError::RamMismatch);
     }
     let mean = r.instructions as f64 / r.samples.max(1) as f64;
     if (mean - r.instructions_per_sample).abs() > 0.006 {
@@ -145,9 +196,18 @@ pub fn parse(text: &str) -> Result<PerfReport, PerfError> {
 mod tests {
     use super::*;
 
-    const GOOD: &str = "plethwire-emulated perf v1\nsamples 4\npush_ticks 110\n\
-        empty_ticks 10\nmax_push_ticks 30\ncalibration_nops 4000\ncalibration_ticks 100\n\
-        instructions_per_tick 40\ninstructions 4000\ninstructions_per_sample 1000.00\nend\n";
+    const GOOD: &str = "plethwire-emulated perf v2\nmachine mps2-an386\nsamples 4\n\
+        push_ticks 110\nempty_ticks 10\nmax_push_ticks 30\ncalibration_nops 4000\n\
+        calibration_ticks 100\ncore_clock_hz 25000000\ninstructions 4000\n\
+        instructions_per_sample 1000.00\nram_bytes 262144\nstatic_bytes 16\n\
+        stack_peak_bytes 20000\nend\n";
+
+    /// The microbit's: 62.5 instructions a tick, rounded to the nearest.
+    const M0: &str = "plethwire-emulated perf v2\nmachine microbit\nsamples 3\n\
+        push_ticks 11\nempty_ticks 2\nmax_push_ticks 5\ncalibration_nops 4000\n\
+        calibration_ticks 64\ncore_clock_hz 16000000\ninstructions 563\n\
+        instructions_per_sample 187.67\nram_bytes 32768\nstatic_bytes 16\n\
+        stack_peak_bytes 19604\nend\n";
 
     #[test]
     fn reads_a_report() {
@@ -156,6 +216,13 @@ mod tests {
         assert_eq!(r.instructions, 4000);
         assert_eq!(r.instructions_per_sample, 1000.0);
         assert_eq!(r.max_instructions(), 1200);
+        assert_eq!(r.expected_calibration_ticks(), 100);
+        assert_eq!(r.core, Core::M4f);
+        let m0 = parse(M0).unwrap();
+        assert_eq!(m0.instructions, 563);
+        assert_eq!(m0.max_instructions(), 313);
+        assert_eq!(m0.expected_calibration_ticks(), 64);
+        assert_eq!(m0.ram_used_bytes(), 19620);
     }
 
     #[test]
@@ -164,6 +231,9 @@ mod tests {
         assert!(parse(&GOOD.replace("instructions 4000", "instructions 4040")).is_err());
         assert!(parse(&GOOD.replace("1000.00", "999.00")).is_err());
         assert!(parse(&GOOD.replace("samples 4\n", "")).is_err());
-        assert!(parse(&GOOD.replace("v1", "v2")).is_err());
+        assert!(parse(&GOOD.replace("v2", "v1")).is_err());
+        assert!(parse(&GOOD.replace("mps2-an386", "lm3s6965evb")).is_err());
+        assert!(parse(&GOOD.replace("stack_peak_bytes 20000", "stack_peak_bytes 262140")).is_err());
+        assert!(parse(&M0.replace("instructions 563", "instructions 562")).is_err());
     }
 }

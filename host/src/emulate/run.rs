@@ -41,7 +41,7 @@ pub(super) fn start(
     // relative to ours.
     let elf = std::path::absolute(&e.elf).map_err(io("cannot resolve the firmware path"))?;
     let mut child = Command::new(&e.qemu)
-        .args(qemu_args(&elf, args, e.count_instructions))
+        .args(qemu_args(e.core, &elf, args, e.count_instructions))
         .current_dir(dir)
         .stdin(stdin)
         .stdout(Stdio::piped())
@@ -158,7 +158,15 @@ pub(super) fn over_files(
     let perf = if e.count_instructions {
         let text = std::fs::read_to_string(dir.path().join(PERF))
             .map_err(io("cannot read the board's perf report"))?;
-        Some(perf::parse(&text)?)
+        let report = perf::parse(&text)?;
+        if report.core != e.core {
+            return Err(EmulateError::Board(format!(
+                "the firmware counted on the {} machine, not the {}'s",
+                report.core.machine(),
+                e.core.describe()
+            )));
+        }
+        Some(report)
     } else {
         None
     };

@@ -5,9 +5,9 @@ use std::ffi::OsString;
 use std::path::{Path, PathBuf};
 use std::process::{Command, ExitStatus, Stdio};
 
-use super::{repo_roots, FIRMWARE_PROGRAM};
+use super::{repo_roots, Core, FIRMWARE_PROGRAM};
 
-/// The target the emulated firmware is built for.
+/// The target the emulated firmware is built for on the default core.
 pub const FIRMWARE_TARGET: &str = "thumbv7em-none-eabihf";
 
 /// Why the emulated firmware could not be built; one line.
@@ -16,11 +16,9 @@ pub enum BuildError {
     /// No `firmware/Cargo.toml` in any repository root looked at.
     #[error("no firmware sources (firmware/Cargo.toml) there")]
     NoSources,
-    /// The standard library for [`FIRMWARE_TARGET`] is not installed.
-    #[error(
-        "the Rust target {FIRMWARE_TARGET} is not installed (`rustup target add {FIRMWARE_TARGET}`)"
-    )]
-    NoTarget,
+    /// The standard library for the core's target is not installed.
+    #[error("the Rust target {0} is not installed (`rustup target add {0}`)")]
+    NoTarget(&'static str),
     /// Cargo could not be started.
     #[error("cannot run cargo: {0}")]
     Cargo(#[source] std::io::Error),
@@ -65,6 +63,12 @@ fn rustc() -> OsString {
 /// Whether the Rust standard library for [`FIRMWARE_TARGET`] is installed in
 /// the active toolchain.
 pub fn firmware_target_installed() -> bool {
+    target_installed(FIRMWARE_TARGET)
+}
+
+/// Whether the Rust standard library for `target` is installed in the
+/// active toolchain.
+pub fn target_installed(target: &str) -> bool {
     let Ok(out) = Command::new(rustc())
         .args(["--print", "sysroot"])
         .stderr(Stdio::null())
@@ -75,7 +79,7 @@ pub fn firmware_target_installed() -> bool {
     let sysroot = String::from_utf8_lossy(&out.stdout);
     Path::new(sysroot.trim())
         .join("lib/rustlib")
-        .join(FIRMWARE_TARGET)
+        .join(target)
         .join("lib")
         .is_dir()
 }
@@ -98,36 +102,44 @@ fn overrides_firmware_config(name: &str) -> bool {
         )
 }
 
-/// Build the emulated firmware (`cargo build --release` with the firmware
-/// folder as the working directory, so its `.cargo/config.toml` applies)
-/// and return the path of its ELF, normally [`super::FIRMWARE_ELF`].
+/// Build the emulated firmware for the default core (`cargo build --release`
+/// with the firmware folder as the working directory, so its
+/// `.cargo/config.toml` applies) and return the path of its ELF, normally
+/// [`Core::elf_path`].
 ///
 /// Quick when the firmware is up to date. The path is taken from cargo's
 /// JSON messages rather than assumed, so a user-level `build.target-dir`
 /// setting cannot make us run a stale binary.
 pub fn build_firmware() -> Result<PathBuf, BuildError> {
+    build_firmware_for(Core::M4f)
+}
+
+/// [`build_firmware`] for `core` (`--target` its target).
+pub fn build_firmware_for(core: Core) -> Result<PathBuf, BuildError> {
     let dir = repo_roots()
         .into_iter()
         .map(|root| root.join("firmware"))
         .find(|dir| dir.join("Cargo.toml").is_file())
         .ok_or(BuildError::NoSources)?;
-    build_firmware_in(&dir)
+    build_firmware_in(&dir, core)
 }
 
-/// [`build_firmware`] in the firmware workspace `dir` (a checkout's
+/// [`build_firmware_for`] in the firmware workspace `dir` (a checkout's
 /// `firmware/` folder).
-pub fn build_firmware_in(dir: &Path) -> Result<PathBuf, BuildError> {
+pub fn build_firmware_in(dir: &Path, core: Core) -> Result<PathBuf, BuildError> {
     let dir = dir.to_path_buf();
     if !dir.join("Cargo.toml").is_file() {
         return Err(BuildError::NoSources);
     }
-    if !firmware_target_installed() {
-        return Err(BuildError::NoTarget);
+    if !target_installed(core.target()) {
+        return Err(BuildError::NoTarget(core.target()));
     }
     let mut cmd = Command::new(cargo());
     cmd.current_dir(&dir).args([
         "build",
         "--release",
+        "--target",
+        core.target(),
         "--message-format=json-render-diagnostics",
     ]);
     for (name, _) in std::env::vars_os() {
