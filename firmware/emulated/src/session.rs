@@ -11,7 +11,7 @@
 use core::fmt;
 
 use plethwire_dsp::feed::{FeedError, FeedHeader, FEED_HEADER_LEN};
-use plethwire_dsp::pipeline::{Output, Pipeline, PipelineError};
+use plethwire_dsp::pipeline::{BandSections, Output, Pipeline, PipelineError};
 use plethwire_dsp::wire::{sample_stride, Encoder, Hello, Message, SampleTap, Status, MAX_FRAME};
 
 use crate::semihost::HostError;
@@ -141,10 +141,33 @@ pub fn run<F: FeedSource, S: FrameSink, P: Push>(
     source.read_exact(&mut head)?;
     let header = FeedHeader::decode(&head).map_err(RunError::Feed)?;
     source.expect_len(header.feed_len())?;
+    // The band is designed here, before `stream`'s frame (which holds the
+    // pipeline) exists: the f64 design's 6.6 KiB of stack and the
+    // pipeline's 10.5 KiB are never needed at once, which the microbit's
+    // 16 KiB could not hold. The same sections `Pipeline::new` designs.
+    let band = design(&header)?;
+    stream(source, sink, pusher, &header, &band)
+}
+
+/// The feed's band filters, designed in a frame of their own.
+#[inline(never)]
+fn design(header: &FeedHeader) -> Result<BandSections, RunError> {
+    BandSections::design(&header.config).map_err(RunError::Pipeline)
+}
+
+/// The feed's samples through a pipeline on `band`, frames to `sink`.
+#[inline(never)]
+fn stream<F: FeedSource, S: FrameSink, P: Push>(
+    source: &mut F,
+    sink: &mut S,
+    pusher: &mut P,
+    header: &FeedHeader,
+    band: &BandSections,
+) -> Result<Totals, RunError> {
     // Matched by reference, never moved: the pipeline is 10.5 KiB, two
     // thirds of the microbit's RAM, and a move (as `map_err` and `?` make)
-    // would take as much again. `new` returns straight into `built`.
-    let mut built = Pipeline::new(header.config);
+    // would take as much again. `with_band` returns straight into `built`.
+    let mut built = Pipeline::with_band(header.config, band);
     let pipeline = match &mut built {
         Ok(pipeline) => pipeline,
         Err(e) => return Err(RunError::Pipeline(*e)),
