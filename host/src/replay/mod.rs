@@ -65,8 +65,12 @@ pub fn replay_with_motion(
 ) -> Result<Replay, PipelineError> {
     let (mut beats, mut states) = (Vec::new(), Vec::new());
     let mut keep = |out: Output| {
-        beats.extend(out.beat);
-        states.extend(out.state);
+        if let Some(b) = out.beat {
+            beats.push(b);
+        }
+        if let Some(s) = out.state {
+            states.push(s);
+        }
     };
     // The board hands the pipeline f32 samples; so does the replay.
     let counts = |p: &Pipeline| (p.rejected_samples(), p.clipped_samples(), p.restarts());

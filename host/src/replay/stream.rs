@@ -146,9 +146,15 @@ impl Streamed {
         }
         let mut p = Pipeline::new(config)?;
         let (mut beats, mut states) = (Vec::new(), Vec::new());
+        // `push` on an `Option` (not `extend`): `extend` is a call per
+        // sample, 7 % of a replay.
         let mut keep = |out: Output| {
-            beats.extend(out.beat);
-            states.extend(out.state);
+            if let Some(b) = out.beat {
+                beats.push(b);
+            }
+            if let Some(s) = out.state {
+                states.push(s);
+            }
         };
         // The board hands the pipeline f32 samples; so does the replay.
         self.blocks(|block| {
