@@ -330,7 +330,10 @@ impl Pipeline {
         motion: &M,
     ) -> BeatEvent {
         let traces = &self.traces;
-        let (judged, shape) = self.book.judge(at, &traces.banded, &traces.marks, motion);
+        let mut shape = None;
+        let judged = self
+            .book
+            .judge(at, &traces.banded, &traces.marks, motion, &mut shape);
         let trusted = self.book.record(at, &judged, shape.as_ref());
         let good = judged.flags.is_good();
         self.monitor.beat(at.peak, good);

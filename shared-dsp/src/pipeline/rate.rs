@@ -56,13 +56,17 @@ impl Intervals {
             return None;
         }
         let v = &mut v[..n];
-        // Insertion sort: at most HISTORY values, once per beat.
+        // Insertion sort: at most HISTORY values, once per beat; each
+        // value is held aside while the larger ones before it move up one
+        // (a store each, not a swap's two).
         for i in 1..n {
+            let x = v[i];
             let mut j = i;
-            while j > 0 && v[j - 1] > v[j] {
-                v.swap(j - 1, j);
+            while j > 0 && v[j - 1] > x {
+                v[j] = v[j - 1];
                 j -= 1;
             }
+            v[j] = x;
         }
         let m = if n % 2 == 1 {
             v[n / 2]

@@ -54,6 +54,17 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
         self.data[(self.head + N - age) % N]
     }
 
+    /// [`Self::at`] for an `age` the caller keeps below `N` (a window
+    /// fixed at construction): no test of the age, one masked load. An
+    /// age of `N` or more reads the slot of `age % N`.
+    #[inline]
+    pub fn at_within(&self, age: usize) -> T {
+        debug_assert!(age < N);
+        // For a power-of-two N the wrapping difference's remainder is the
+        // slot `age` back, as in `at`.
+        self.data[self.head.wrapping_sub(age) % N]
+    }
+
     /// How many values are held.
     pub fn len(&self) -> usize {
         self.filled
