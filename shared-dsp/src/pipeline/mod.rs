@@ -282,6 +282,9 @@ impl Pipeline {
 
     /// A candidate at detector index `now` (input index `n`): placed,
     /// gated, and if it passes, a beat.
+    // Once per candidate: out of line, so the per-sample path that calls
+    // it keeps its registers (inlined, its spills cost every sample).
+    #[inline(never)]
     fn candidate<M: MotionReference>(
         &mut self,
         cand: &Candidate,

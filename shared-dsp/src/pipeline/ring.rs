@@ -9,22 +9,24 @@
 /// instead of 286.4 on cb0009 at 300 Hz (+8 %), counted on the emulated
 /// board (`tests/tests/emulated_performance.rs`): its write compares and
 /// wraps where this ring masks, and its newest index is a branch.
-// `repr(C)`, counters first: they stay within reach of short load
+// `repr(C)`, the counter first: it stays within reach of short load
 // offsets from the start of the ring, whatever its size.
 #[derive(Clone, Copy, Debug)]
 #[repr(C)]
 pub struct Ring<const N: usize, T = f32> {
+    // The pushes so far until N, then N plus the newest slot: one counter
+    // is both the newest slot (`head % N`) and the fill (`min(head, N)`),
+    // so a push updates one word and tests nothing.
     head: usize,
-    filled: usize,
     data: [T; N],
 }
 
 impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// An empty ring.
     pub fn new() -> Self {
+        const { assert!(N.is_power_of_two(), "a Ring's size is a power of two") };
         Self {
             head: 0,
-            filled: 0,
             data: [T::default(); N],
         }
     }
@@ -32,13 +34,11 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// Append a value, forgetting the oldest once full.
     #[inline]
     pub fn push(&mut self, v: T) {
-        // `% N` is a mask for the power-of-two sizes used, and tells the
-        // compiler the index is in range (no bounds check).
-        self.head = (self.head + 1) % N;
-        self.data[self.head] = v;
-        if self.filled < N {
-            self.filled += 1;
-        }
+        // Below N the count goes up by one; from N on, bit N stays set
+        // and the low bits wrap: the newest slot is `head % N` either way
+        // (a mask, and no bounds check).
+        self.head = ((self.head + 1) & (2 * N - 1)) | (self.head & N);
+        self.data[self.head % N] = v;
     }
 
     /// The value pushed `age` pushes ago (0 = newest); the default value
@@ -67,12 +67,16 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
 
     /// How many values are held.
     pub fn len(&self) -> usize {
-        self.filled
+        if self.head >= N {
+            N
+        } else {
+            self.head
+        }
     }
 
     /// Nothing pushed yet?
     pub fn is_empty(&self) -> bool {
-        self.filled == 0
+        self.head == 0
     }
 
     /// Capacity.

@@ -34,6 +34,10 @@ pub struct Monitor {
     state: SignalState,
     clip_share: f32,
     clip_alpha: f32,
+    // The block length the share's weight was last worked out for, and
+    // that weight (`min(clip_alpha · samples, 1)`): blocks keep one length.
+    alpha_samples: u32,
+    block_alpha: f32,
     fs: f32,
     // Input index of the last beat (0 before the first: the silence then
     // counts from the start), and the index after which, without another
@@ -62,6 +66,8 @@ impl Monitor {
             state: SignalState::Acquiring,
             clip_share: 0.0,
             clip_alpha: 1.0 / (CLIP_WINDOW_S * fs_hz),
+            alpha_samples: 0,
+            block_alpha: 0.0,
             fs: fs_hz,
             last_beat: 0,
             silent_after: libm::floorf(SILENCE_S * fs_hz) as u64,
@@ -115,16 +121,19 @@ impl Monitor {
         samples: u32,
         median_ibi_ms: Option<f32>,
     ) -> Option<StateEvent> {
-        // Most blocks hold no clipped sample, and the share is then most
-        // often exactly 0 already: it stays 0 (0 + α·(0 − 0)), no work.
+        // Most blocks hold no clipped sample, and the share is then often
+        // exactly 0 already: it stays 0 (0 + α·(0 − 0)), no work.
         if clipped != 0 || self.clip_share != 0.0 {
             let share = if clipped == 0 {
                 0.0
             } else {
                 clipped as f32 / samples.max(1) as f32
             };
-            let alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
-            self.clip_share += alpha * (share - self.clip_share);
+            if samples != self.alpha_samples {
+                self.alpha_samples = samples;
+                self.block_alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
+            }
+            self.clip_share += self.block_alpha * (share - self.clip_share);
         }
         let key = median_ibi_ms.map_or(NO_MEDIAN, f32::to_bits);
         if key != self.silence_for {
