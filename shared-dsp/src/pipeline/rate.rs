@@ -42,20 +42,22 @@ impl Intervals {
     /// Median of the good intervals that ended after input index `since`,
     /// with how many there were.
     pub fn median_since(&self, since: u64) -> Option<(f32, usize)> {
-        let mut v = [0.0f32; HISTORY];
-        let mut n = 0;
+        // A vector, not a zeroed array: only the values taken are written
+        // (twice per beat, 256 bytes cleared each time otherwise).
+        let mut held: heapless::Vec<f32, HISTORY> = heapless::Vec::new();
         for k in 0..self.len {
             let i = (self.head + HISTORY - k) % HISTORY;
             if self.at[i] < since {
                 break;
             }
-            v[n] = self.ibi[i];
-            n += 1;
+            // At most `len` ≤ HISTORY values: never full.
+            let _ = held.push(self.ibi[i]);
         }
+        let n = held.len();
         if n == 0 {
             return None;
         }
-        let v = &mut v[..n];
+        let v = held.as_mut_slice();
         // Insertion sort: at most HISTORY values, once per beat; each
         // value is held aside while the larger ones before it move up one
         // (a store each, not a swap's two).

@@ -57,6 +57,12 @@ pub struct Monitor {
     // Whole samples: `since > silence_after` is the same test as against
     // the exact limit, without converting `since` on every call.
     silence_after: u64,
+    // What the last state decision saw, besides the state itself: a beat
+    // since (`beats_changed`), saturated, silent. With none of them
+    // changed the decision is the same, so it is not taken again.
+    beats_changed: bool,
+    was_saturated: bool,
+    was_silent: bool,
 }
 
 impl Monitor {
@@ -77,6 +83,9 @@ impl Monitor {
             good_run: 0,
             silence_for: NO_MEDIAN,
             silence_after: libm::floorf(SILENCE_S * fs_hz) as u64,
+            beats_changed: true,
+            was_saturated: false,
+            was_silent: false,
         }
     }
 
@@ -108,6 +117,7 @@ impl Monitor {
         self.bad = (self.recent & mask).count_ones();
         self.judged = (self.judged + 1).min(JUDGED_BEATS);
         self.good_run = if good { self.good_run + 1 } else { 0 };
+        self.beats_changed = true;
     }
 
     /// Update once per block of `samples` input samples ending at input
@@ -142,8 +152,19 @@ impl Monitor {
         // `n − last_beat > silence_after`, the difference saturating at 0
         // (indices are far below overflow).
         let silent = n > self.silent_after;
+        let saturated = self.clip_share > SATURATED_SHARE;
+        // The decision below depends on these, the beat counts and the
+        // state only, and taking it again on the same ones changes
+        // nothing (a state it reached, and the good run it cleared, give
+        // that state again): skipped unless one of them moved.
+        if !self.beats_changed && saturated == self.was_saturated && silent == self.was_silent {
+            return None;
+        }
+        self.beats_changed = false;
+        self.was_saturated = saturated;
+        self.was_silent = silent;
         let bad = self.bad;
-        let next = if self.clip_share > SATURATED_SHARE {
+        let next = if saturated {
             SignalState::Saturated
         } else if silent {
             SignalState::NoSignal
