@@ -49,14 +49,15 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
             return T::default();
         }
         // A slot not yet written since `new` still holds the default, so
-        // ages between `filled` and `N` need no test of their own. age < N,
+        // ages between `len()` and `N` need no test of their own. age < N,
         // so this cannot underflow.
         self.data[(self.head + N - age) % N]
     }
 
     /// [`Self::at`] for an `age` the caller keeps below `N` (a window
-    /// fixed at construction): no test of the age, one masked load. An
-    /// age of `N` or more reads the slot of `age % N`.
+    /// fixed at construction, or an age below [`Self::len`]): no test of
+    /// the age, one masked load. An age of `N` or more reads as `age % N`
+    /// would.
     #[inline]
     pub fn at_within(&self, age: usize) -> T {
         debug_assert!(age < N);
@@ -127,6 +128,21 @@ mod tests {
             r.push(v as f32);
         }
         assert_eq!([r.at(0), r.at(1), r.at(2), r.at(3)], [6.0, 5.0, 4.0, 3.0]);
+        assert_eq!(r.at(4), 0.0);
+    }
+
+    #[test]
+    fn the_count_stays_full_and_the_ages_right_after_many_wraps() {
+        let mut r = Ring::<4>::new();
+        for v in 1..=4 * 1000 + 3 {
+            r.push(v as f32);
+            assert_eq!(r.len(), (v as usize).min(4));
+        }
+        let newest = (4 * 1000 + 3) as f32;
+        for age in 0..4 {
+            assert_eq!(r.at(age), newest - age as f32);
+            assert_eq!(r.at_within(age), r.at(age));
+        }
         assert_eq!(r.at(4), 0.0);
     }
 

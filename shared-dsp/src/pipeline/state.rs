@@ -213,6 +213,34 @@ mod tests {
     }
 
     #[test]
+    fn beats_and_silence_move_the_state_even_between_unchanged_blocks() {
+        // 100 Hz, blocks of 2 samples: the decision is skipped while
+        // nothing moves, and taken again at each beat and when silence
+        // begins.
+        let mut m = Monitor::new(100.0);
+        let mut states = std::vec::Vec::new();
+        let mut n = 0u64;
+        let mut run = |m: &mut Monitor, blocks: u64, beat_every: Option<u64>| {
+            for _ in 0..blocks {
+                n += 2;
+                if beat_every.is_some_and(|k| n % k == 0) {
+                    m.beat(n, true);
+                }
+                if let Some(e) = m.block(n, 0, 2, Some(800.0)) {
+                    states.push(e.state);
+                }
+            }
+        };
+        run(&mut m, 200, Some(80)); // 4 s of beats every 0.8 s
+        run(&mut m, 200, None); // 4 s without: silent after 3 s
+        run(&mut m, 200, Some(80)); // beats again
+        assert_eq!(
+            states,
+            [SignalState::Good, SignalState::NoSignal, SignalState::Good]
+        );
+    }
+
+    #[test]
     fn clipped_share_counts_whole_blocks() {
         // Blocks of 4 samples, 3 clipped: a 75 % share, saturated within
         // the 2 s window (100 Hz: 50 blocks).
