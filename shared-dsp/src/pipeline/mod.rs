@@ -91,7 +91,9 @@ pub struct Pipeline {
     // on Cortex-M a float load reaches only 1 KB past its base register,
     // so the filters' and counters' state must not sit behind the rings;
     // the detector's scalars come before its rings, the bookkeeping's
-    // before its histories.
+    // before its histories; the rings written at the detector's rate
+    // before the bookkeeping, read once per beat (their counters then
+    // stay within a load's reach of the base).
     n: u64,
     t: u64,
     conditioning: Conditioning,
@@ -100,8 +102,8 @@ pub struct Pipeline {
     gate: CandidateGate,
     placement: PeakPlacement,
     detector: AnyDetector,
-    book: BeatBook,
     traces: Traces,
+    book: BeatBook,
     config: Config,
 }
 
