@@ -18,7 +18,7 @@ use embedded_hal::delay::DelayNs;
 use embedded_hal::digital::OutputPin;
 use embedded_hal::pwm::SetDutyCycle;
 use plethwire_dsp::pipeline::PipelineError;
-use plethwire_dsp::pipeline::{BeatEvent, Config, Options, Pipeline, StateEvent};
+use plethwire_dsp::pipeline::{BandSections, BeatEvent, Config, Options, Pipeline, StateEvent};
 use plethwire_dsp::wire::{sample_stride, Encoder, Hello, Message, SampleTap, Status, MAX_FRAME};
 
 use crate::ambient::{AmbientCanceller, AmbientSample, SampleError, DEFAULT_SETTLE_NS};
@@ -29,10 +29,14 @@ use crate::PhotoSampler;
 
 /// Default seconds between periodic status frames.
 pub const STATUS_PERIOD_S: u32 = 2;
-/// Default transmit queue, bytes: three full sample blocks, or 44 ms of
-/// a 115200 baud line (which drains a block, 13 ms of it, long before the
-/// next is due: 64 ms at 250 Hz, 32 ms at 500 Hz and above).
-pub const DEFAULT_QUEUE_BYTES: usize = 512;
+/// Default transmit queue, bytes: two of the largest frames (a sample
+/// block, 147 bytes) and a beat (56), or 33 ms of a 115200 baud line. The
+/// line drains a block, 13 ms of it, long before the next is due (64 ms at
+/// 250 Hz, 32 ms at 500 Hz and above); over a minute of a simulated finger
+/// at 250 Hz the queue holds at most 185 bytes (tests/simulated_run.rs).
+/// 384 rather than 512 keeps the real boards within 12 KiB of static RAM;
+/// the cost is 11 ms less of a stalled line before frames are dropped.
+pub const DEFAULT_QUEUE_BYTES: usize = 384;
 
 /// How a board samples and reports.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -91,6 +95,23 @@ impl BoardConfig {
 /// Bits of an ADC whose full scale is `full_scale` counts (4095: 12).
 fn adc_bits(full_scale: u16) -> u8 {
     (16 - full_scale.leading_zeros()) as u8
+}
+
+/// The pipeline's configuration for a board's.
+fn pipeline_config(config: &BoardConfig) -> Config {
+    Config {
+        sample_rate_hz: config.sample_rate_hz as f32,
+        options: config.options,
+    }
+}
+
+/// A pipeline's refusal as a board's: a rate it refuses is the board's
+/// [`BoardError::Rate`].
+fn pipeline_error<E>(e: PipelineError) -> BoardError<E> {
+    match e {
+        PipelineError::SampleRate => BoardError::Rate,
+        e => BoardError::Pipeline(e),
+    }
 }
 
 /// The peripherals a board drives, behind embedded-hal traits.
@@ -180,22 +201,31 @@ where
     A: PhotoSampler,
     D: DelayNs,
 {
-    /// Set up: design the pipeline and set the initial LED drive.
+    /// Set up: design the pipeline's filters for `config`, then as
+    /// [`Self::with_band`].
     pub fn new(
         config: BoardConfig,
+        hw: Hardware<L, P, A, D>,
+    ) -> Result<Self, BoardError<P::Error>> {
+        let band = BandSections::design(&pipeline_config(&config)).map_err(pipeline_error)?;
+        Self::with_band(config, &band, hw)
+    }
+
+    /// Set up with the pipeline's filters designed already (by the
+    /// board's build script, for its fixed rate: no filter design is
+    /// linked into a board that calls only this), and set the initial LED
+    /// drive. `band` must be designed for `config`'s rate and band edges
+    /// ([`PipelineError::BandMismatch`] otherwise).
+    pub fn with_band(
+        config: BoardConfig,
+        band: &BandSections,
         mut hw: Hardware<L, P, A, D>,
     ) -> Result<Self, BoardError<P::Error>> {
         let rate = config.sample_rate_hz as f32;
         let schedule =
             Schedule::new(config.tick_hz, config.sample_rate_hz).ok_or(BoardError::Rate)?;
-        let pipeline = Pipeline::new(Config {
-            sample_rate_hz: rate,
-            options: config.options,
-        })
-        .map_err(|e| match e {
-            PipelineError::SampleRate => BoardError::Rate,
-            e => BoardError::Pipeline(e),
-        })?;
+        let pipeline =
+            Pipeline::with_band(pipeline_config(&config), band).map_err(pipeline_error)?;
         let exposure = Exposure::new(
             &config.exposure,
             config.adc_full_scale,

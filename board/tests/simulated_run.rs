@@ -9,8 +9,9 @@ use std::rc::Rc;
 
 use common::{decode, Adc, Drive, Finger, Led};
 use embedded_hal_mock::eh1::delay::NoopDelay;
+use plethwire_board::driver::DEFAULT_QUEUE_BYTES;
 use plethwire_board::{Board, BoardConfig, DriveChange, Hardware};
-use plethwire_dsp::pipeline::{BeatEvent, Config, Pipeline, SignalState};
+use plethwire_dsp::pipeline::{BandSections, BeatEvent, Config, Pipeline, SignalState};
 use plethwire_dsp::wire::{Message, Status};
 
 const RATE: u32 = 250;
@@ -187,8 +188,9 @@ fn at_250_hz_a_115200_baud_line_carries_every_sample_and_drops_nothing() {
     assert!(share < 0.70, "{per_s} B/s: less than 30 % headroom");
     // docs/wire-format.md: about 2.4 kB/s at 250 Hz, blocks and beats.
     assert!((2300.0..2600.0).contains(&per_s), "{per_s} B/s");
+    println!("at most {} bytes queued", r.most_queued);
     assert!(
-        r.most_queued < 512,
+        r.most_queued < DEFAULT_QUEUE_BYTES,
         "the queue filled up: {}",
         r.most_queued
     );
@@ -232,4 +234,49 @@ fn at_250_hz_a_115200_baud_line_carries_every_sample_and_drops_nothing() {
         Message::Hello(h) => assert_eq!(h.adc_bits, 12),
         ref m => panic!("first frame {m:?}"),
     }
+}
+
+#[test]
+fn a_board_on_filters_designed_at_build_time_sends_the_same_bytes() {
+    // What a board's build script does for its fixed rate.
+    let band = BandSections::design(&Config::new(RATE as f32)).unwrap();
+    let finger = Finger::new(5000.0);
+    let mut designed = board(&finger, 0.25);
+    let reference = run(&mut designed, &finger, 20);
+    let finger = Finger::new(5000.0);
+    let hw = Hardware {
+        led: Led(finger.clone()),
+        drive: Drive(finger.clone()),
+        adc: Adc(finger.clone()),
+        delay: NoopDelay::new(),
+    };
+    let mut config = BoardConfig::new(RATE, TICK_HZ);
+    config.firmware_version = [0, 1, 0];
+    config.exposure.initial_drive = 0.25;
+    let mut given: BenchBoard = Board::with_band(config, &band, hw).unwrap();
+    let r = run(&mut given, &finger, 20);
+    assert!(
+        reference.beats.len() > 20,
+        "{} beats",
+        reference.beats.len()
+    );
+    assert_eq!(r.beats, reference.beats);
+    assert_eq!(r.bytes, reference.bytes, "every frame, byte for byte");
+}
+
+#[test]
+fn a_board_refuses_filters_designed_for_another_rate() {
+    let band = BandSections::design(&Config::new(125.0)).unwrap();
+    let finger = Finger::new(5000.0);
+    let hw = Hardware {
+        led: Led(finger.clone()),
+        drive: Drive(finger.clone()),
+        adc: Adc(finger.clone()),
+        delay: NoopDelay::new(),
+    };
+    let refused = BenchBoard::with_band(BoardConfig::new(RATE, TICK_HZ), &band, hw).err();
+    assert_eq!(
+        refused.map(|e| format!("{e:?}")),
+        Some("Pipeline(BandMismatch)".to_string())
+    );
 }

@@ -5,18 +5,22 @@
 //! rounding on either side can hide (or invent) a difference. The format:
 //!
 //! ```text
-//! plethwire-emulated selfcheck v1
+//! plethwire-emulated selfcheck v2
 //! section <i> <b0> <b1> <b2> <a1> <a2>      (f64 bits, 16 hex digits each)
 //! sample <n> <x> <delta y> <df2t y>          (f32 bits, 8 hex digits each)
+//! band <i> <13 numbers>                      (f32 bits: the band designed on the device)
+//! built <i> <13 numbers>                     (f32 bits: the same band from build.rs)
 //! end
 //! ```
 //!
-//! The parser is strict: indices must count up from 0, all sections come
-//! before all samples, and `end` must be the last line. A report cut short
+//! A band's 13 numbers are [`BandBits`]'s. The parser is strict: indices
+//! must count up from 0, all sections come before all samples, all samples
+//! before the first band, each `built` right after the `band` of its
+//! index, and `end` must be the last line. A report cut short
 //! by a crash therefore fails to parse instead of comparing fewer numbers.
 
-/// First line of a version-1 report.
-pub const HEADER: &str = "plethwire-emulated selfcheck v1";
+/// First line of a version-2 report.
+pub const HEADER: &str = "plethwire-emulated selfcheck v2";
 
 /// One designed second-order section, as printed by the firmware.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -43,6 +47,11 @@ pub struct SampleBits {
     pub df2t: u32,
 }
 
+/// The pipeline's band (`plethwire_dsp::pipeline::BandSections`) as bits
+/// of its `f32` numbers: the rate and the band's edges it is designed for,
+/// then the low-pass's `c0, c1, c2, g1, g2` and the high-pass's.
+pub type BandBits = [u32; 13];
+
 /// A complete, well-formed self-check report.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
 pub struct SelfCheck {
@@ -50,6 +59,10 @@ pub struct SelfCheck {
     pub sections: Vec<SectionBits>,
     /// Samples in time order.
     pub samples: Vec<SampleBits>,
+    /// The band designed on the device, one per rate.
+    pub bands: Vec<BandBits>,
+    /// The band designed by the build script for the same rates.
+    pub built: Vec<BandBits>,
 }
 
 /// Why a self-check report does not parse; one line.
@@ -86,6 +99,13 @@ pub enum LineProblem {
     /// A section after a sample.
     #[error("section after the first sample")]
     SectionAfterSample,
+    /// A section or a sample after a band.
+    #[error("section or sample after the first band")]
+    AfterBand,
+    /// A `built` record not right after the `band` of its index, or a
+    /// `band` without its `built`.
+    #[error("band and built records not in pairs")]
+    UnpairedBand,
     /// A record type the format does not have.
     #[error("unknown record")]
     UnknownRecord,
@@ -137,6 +157,9 @@ pub fn parse(text: &str) -> Result<SelfCheck, SelfCheckError> {
         }
         let mut fields = line.split(' ');
         match fields.next() {
+            Some("section" | "sample") if !report.bands.is_empty() => {
+                return Err(at(LineProblem::AfterBand));
+            }
             Some("section") => {
                 if !report.samples.is_empty() {
                     return Err(at(LineProblem::SectionAfterSample));
@@ -160,8 +183,30 @@ pub fn parse(text: &str) -> Result<SelfCheck, SelfCheckError> {
                 let [x, delta, df2t] = bits;
                 report.samples.push(SampleBits { x, delta, df2t });
             }
+            Some(record @ ("band" | "built")) => {
+                let band = record == "band";
+                if band != (report.built.len() == report.bands.len()) {
+                    return Err(at(LineProblem::UnpairedBand));
+                }
+                let list = if band {
+                    &mut report.bands
+                } else {
+                    &mut report.built
+                };
+                expect_index(fields.next(), list.len()).map_err(at)?;
+                let mut bits = [0u32; 13];
+                for b in &mut bits {
+                    // 8 hex digits always fit in u32.
+                    *b = hex_field(fields.next(), 8).map_err(at)? as u32;
+                }
+                no_more(fields).map_err(at)?;
+                list.push(bits);
+            }
             Some("end") => {
                 no_more(fields).map_err(at)?;
+                if report.built.len() != report.bands.len() {
+                    return Err(at(LineProblem::UnpairedBand));
+                }
                 ended = true;
             }
             _ => return Err(at(LineProblem::UnknownRecord)),
@@ -215,7 +260,7 @@ fn no_more<'a>(mut fields: impl Iterator<Item = &'a str>) -> Result<(), LineProb
 mod tests {
     use super::*;
 
-    const GOOD: &str = "plethwire-emulated selfcheck v1\n\
+    const GOOD: &str = "plethwire-emulated selfcheck v2\n\
         section 0 3ff0000000000000 0000000000000000 bff0000000000000 c000000000000000 3fe0000000000000\n\
         sample 0 3f000000 3f800000 bf800000\n\
         sample 1 00000001 80000000 7fc00000\n\
@@ -251,7 +296,7 @@ mod tests {
 
     #[test]
     fn rejects_a_wrong_header() {
-        let other = GOOD.replace("v1", "v2");
+        let other = GOOD.replace("v2", "v1");
         assert!(parse(&other).unwrap_err().to_string().starts_with("line 1"));
         assert!(parse("").is_err());
     }
@@ -274,6 +319,33 @@ mod tests {
             GOOD.replace("section 0 3ff0000000000000", "section 0 3ff00000"),
         ] {
             assert!(parse(&bad).is_err(), "accepted:\n{bad}");
+        }
+    }
+
+    const BAND: &str = "437a0000 3f000000 41000000 3c109b4a 3cd8e8f0 3d109b4a 3d109b4a \
+        3e7d6c66 3f770f8c bf770f8c 00000000 3b1fdea8 3d8c87c3";
+
+    #[test]
+    fn parses_bands_and_their_built_twins_in_order() {
+        let text = GOOD.replace(
+            "end\n",
+            &format!("band 0 {BAND}\nbuilt 0 {BAND}\nband 1 {BAND}\nbuilt 1 {BAND}\nend\n"),
+        );
+        let r = parse(&text).unwrap();
+        assert_eq!((r.bands.len(), r.built.len()), (2, 2));
+        assert_eq!(r.bands[1][0], 0x437a_0000);
+        assert_eq!(r.built[0][12], 0x3d8c_87c3);
+        for bad in [
+            // A built record before its band, a band without its built
+            // twin, a sample after the bands, a short band.
+            format!("built 0 {BAND}\nend\n"),
+            format!("band 0 {BAND}\nband 1 {BAND}\nend\n"),
+            format!("band 0 {BAND}\nend\n"),
+            format!("band 0 {BAND}\nbuilt 0 {BAND}\nsample 2 00000000 00000000 00000000\nend\n"),
+            "band 0 437a0000 3f000000\nend\n".to_string(),
+        ] {
+            let text = GOOD.replace("end\n", &bad);
+            assert!(parse(&text).is_err(), "accepted:\n{text}");
         }
     }
 

@@ -10,6 +10,7 @@ use plethwire_checks::{
 };
 use plethwire_dsp::design::butterworth_bandpass;
 use plethwire_dsp::filter::{Cascade, Delta, Df2t};
+use plethwire_dsp::pipeline::{BandSections, Config};
 
 /// Must match the firmware's `ORDER`, `LOW_HZ`, `HIGH_HZ`, `FS_HZ`; a
 /// mismatch shows up as differing section coefficients.
@@ -149,4 +150,61 @@ fn a_run_past_its_deadline_is_killed() {
         .and_then(|p| p.downcast::<String>().ok())
         .expect("run_emulated panics with a message when the deadline passes");
     assert!(message.contains("did not exit"), "{message}");
+}
+
+/// The rate a real board's `src/rate.rs` sets (`SAMPLE_RATE_HZ`).
+fn board_rate(board: &str) -> f32 {
+    let path = format!(
+        "{}/../firmware/{board}/src/rate.rs",
+        env!("CARGO_MANIFEST_DIR")
+    );
+    let text = std::fs::read_to_string(&path).unwrap_or_else(|e| panic!("{path}: {e}"));
+    let value = text
+        .split("SAMPLE_RATE_HZ: u32 =")
+        .nth(1)
+        .and_then(|rest| rest.split(';').next())
+        .unwrap_or_else(|| panic!("{path}: no SAMPLE_RATE_HZ"));
+    value.trim().parse().unwrap()
+}
+
+/// The real boards run filters designed at build time, on the PC
+/// (firmware/*/build.rs, `BandSections::design` written out by
+/// `BandSections::source`), where `Pipeline::new` would design them on the
+/// chip. The device's own design and the build script's must be the same
+/// bits, and both the host's, at the boards' rates and across the range.
+#[test]
+fn filters_designed_at_build_time_are_the_devices_own_design() {
+    let Some(report) = run_firmware() else {
+        return;
+    };
+    assert_eq!(report.bands.len(), report.built.len());
+    assert!(report.bands.len() >= 3, "{} bands", report.bands.len());
+    let rates: Vec<f32> = report.bands.iter().map(|b| f32::from_bits(b[0])).collect();
+    for board in ["stm32f411", "rp2040"] {
+        let rate = board_rate(board);
+        assert!(
+            rates.contains(&rate),
+            "{board}'s {rate} Hz not among {rates:?}"
+        );
+    }
+    for (i, (device, built)) in report.bands.iter().zip(&report.built).enumerate() {
+        let fs = f32::from_bits(device[0]);
+        assert_eq!(device, built, "{fs} Hz: device design != build script's");
+        let host = BandSections::design(&Config::new(fs)).unwrap();
+        let d = |d: &Delta| [d.c0, d.c1, d.c2, d.g1, d.g2];
+        let host_bits: Vec<u32> = [host.sample_rate_hz, host.band_low_hz, host.band_high_hz]
+            .into_iter()
+            .chain(d(&host.lowpass))
+            .chain(d(&host.highpass))
+            .map(f32::to_bits)
+            .collect();
+        assert_eq!(
+            &device[..],
+            &host_bits[..],
+            "band {i}, {fs} Hz: device != host"
+        );
+        // Not a degenerate design: the low-pass passes DC, the high-pass
+        // blocks it exactly (c2 = 0).
+        assert!(host.lowpass.c2 > 0.0 && host.highpass.c2 == 0.0, "{host:?}");
+    }
 }

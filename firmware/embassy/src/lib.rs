@@ -24,15 +24,19 @@ use embedded_hal::delay::DelayNs;
 use embedded_hal::digital::{OutputPin, StatefulOutputPin};
 use embedded_hal::pwm::SetDutyCycle;
 use plethwire_board::{Board, BoardConfig, BoardError, Hardware, PhotoSampler};
+use plethwire_dsp::pipeline::BandSections;
 
 /// Bytes per UART transfer: 5.6 ms of line at 115200 baud, so new frames
 /// wait little behind a transfer in flight.
 const CHUNK: usize = 64;
 
-/// A [`Board`] with `config` on `hw`, ready for [`run`]. Panics, with a
-/// log line, if it cannot be set up.
+/// A [`Board`] with `config` on `hw`, running the filters `band` (the
+/// board's build script designs them for its fixed rate, so no filter
+/// design is linked in), ready for [`run`]. Panics, with a log line, if it
+/// cannot be set up.
 pub fn board<L, P, A, D>(
     config: BoardConfig,
+    band: &BandSections,
     hw: Hardware<L, P, A, D>,
 ) -> RefCell<Board<L, P, A, D>>
 where
@@ -41,7 +45,7 @@ where
     A: PhotoSampler,
     D: DelayNs,
 {
-    match Board::new(config, hw) {
+    match Board::with_band(config, band, hw) {
         Ok(board) => RefCell::new(board),
         // Not every HAL's PWM error has a defmt form; the only one a duty
         // can meet is being above the period, which the exposure

@@ -1,6 +1,9 @@
 //! The self-check: designs the band-pass filter on the device, runs both
-//! section structures over a built-in signal and prints every number as raw
-//! bits on the host's standard output. The host test suite re-does the same
+//! section structures over a built-in signal, designs the pipeline's band
+//! for a few rates ([`BandSections::design`], what `Pipeline::new` runs)
+//! next to the same designed on the PC by build.rs (what the real boards
+//! run), and prints every number as raw bits on the host's standard
+//! output. The host test suite re-does the same
 //! work and requires the results to match bit for bit, so a difference in
 //! float handling between the board and the laptop shows up as a failing
 //! test instead of a subtle drift in detected beats.
@@ -9,15 +12,20 @@
 //! lowercase hex: 16 digits for `f64`, 8 for `f32`):
 //!
 //! ```text
-//! plethwire-emulated selfcheck v1
+//! plethwire-emulated selfcheck v2
 //! section <i> <b0> <b1> <b2> <a1> <a2>
 //! sample <n> <x> <delta y> <df2t y>
+//! band <i> <rate> <low> <high> <lowpass c0 c1 c2 g1 g2> <highpass c0 c1 c2 g1 g2>
+//! built <i> <the same 13 numbers, from build.rs>
 //! end
 //! ```
 
 use cortex_m_semihosting::hprintln;
 use plethwire_dsp::design::butterworth_bandpass;
 use plethwire_dsp::filter::{Cascade, Delta, Df2t};
+use plethwire_dsp::pipeline::{BandSections, Config};
+
+include!(concat!(env!("OUT_DIR"), "/bands.rs"));
 
 /// Number of built-in input samples; the host check insists on exactly this many.
 const SAMPLES: usize = 64;
@@ -32,7 +40,7 @@ const FS_HZ: f64 = 100.0;
 
 /// Print the report on the host's standard output.
 pub fn run() {
-    hprintln!("plethwire-emulated selfcheck v1");
+    hprintln!("plethwire-emulated selfcheck v2");
 
     // Designing here rather than on the host is the point: it exercises the
     // target's soft-f64 arithmetic, which must agree with the laptop's.
@@ -65,7 +73,38 @@ pub fn run() {
         );
     }
 
+    for (i, (fs, built)) in BUILT_RATES_HZ.iter().zip(&BUILT_BANDS).enumerate() {
+        // On the device, in its soft-float f64, as `Pipeline::new` does.
+        let here = BandSections::design(&Config::new(*fs)).unwrap();
+        print_band("band", i, &here);
+        print_band("built", i, built);
+    }
+
     hprintln!("end");
+}
+
+/// One `band` or `built` record: `b`'s 13 numbers as `f32` bits.
+fn print_band(record: &str, i: usize, b: &BandSections) {
+    let d = |d: &Delta| [d.c0, d.c1, d.c2, d.g1, d.g2].map(f32::to_bits);
+    let (lp, hp) = (d(&b.lowpass), d(&b.highpass));
+    hprintln!(
+        "{} {} {:08x} {:08x} {:08x} {:08x} {:08x} {:08x} {:08x} {:08x} {:08x} {:08x} {:08x} {:08x} {:08x}",
+        record,
+        i,
+        b.sample_rate_hz.to_bits(),
+        b.band_low_hz.to_bits(),
+        b.band_high_hz.to_bits(),
+        lp[0],
+        lp[1],
+        lp[2],
+        lp[3],
+        lp[4],
+        hp[0],
+        hp[1],
+        hp[2],
+        hp[3],
+        hp[4]
+    );
 }
 
 /// Tiny linear congruential generator (Numerical Recipes constants).

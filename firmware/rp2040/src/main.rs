@@ -45,8 +45,10 @@ use plethwire_board::{BoardConfig, Hardware};
 
 use photo::Photo;
 
-/// Samples per second, as on the STM32F411 board.
-const SAMPLE_RATE_HZ: u32 = 250;
+// SAMPLE_RATE_HZ (src/rate.rs), and BAND, the pipeline's filters that
+// build.rs designs for it.
+include!("rate.rs");
+include!(concat!(env!("OUT_DIR"), "/band.rs"));
 /// UART0 baud rate: from the 125 MHz peripheral clock the divider is
 /// 67 + 52/64, 0.006 % fast, and every USB serial adapter takes it. Sample
 /// blocks, beats, states and status need about 2.4 kB/s of its 11.5 kB/s
@@ -99,6 +101,6 @@ async fn main(_spawner: Spawner) {
     let mut config = BoardConfig::new(SAMPLE_RATE_HZ, TICK_HZ);
     config.firmware_version = plethwire_embassy::firmware_version!();
     let beat_led = Output::new(p.PIN_25, Level::Low);
-    let board = plethwire_embassy::board(config, hw);
+    let board = plethwire_embassy::board(config, &BAND, hw);
     plethwire_embassy::run(&board, beat_led, async |bytes: &[u8]| tx.write(bytes).await).await
 }

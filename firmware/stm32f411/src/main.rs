@@ -42,8 +42,10 @@ use plethwire_board::{BoardConfig, Hardware};
 
 use photo::Photo;
 
-/// Samples per second.
-const SAMPLE_RATE_HZ: u32 = 250;
+// SAMPLE_RATE_HZ (src/rate.rs), and BAND, the pipeline's filters that
+// build.rs designs for it.
+include!("rate.rs");
+include!(concat!(env!("OUT_DIR"), "/band.rs"));
 /// USART1 baud rate: 100 MHz / 115200 divides to 54.25 exactly, and every
 /// USB serial adapter takes it. Sample blocks, beats, states and status
 /// need about 2.4 kB/s of its 11.5 kB/s at 250 Hz (docs/wire-format.md,
@@ -93,6 +95,6 @@ async fn main(_spawner: Spawner) {
     let mut config = BoardConfig::new(SAMPLE_RATE_HZ, TICK_HZ);
     config.firmware_version = plethwire_embassy::firmware_version!();
     let beat_led = Output::new(p.PC13, Level::High, Speed::Low);
-    let board = plethwire_embassy::board(config, hw);
+    let board = plethwire_embassy::board(config, &BAND, hw);
     plethwire_embassy::run(&board, beat_led, async |bytes: &[u8]| tx.write(bytes).await).await
 }

@@ -4,9 +4,9 @@
 //! smoothed signal peaks are placed on), and the decimation to the
 //! detector's rate.
 
+use super::band;
 use super::condition::{Conditioner, Rails};
 use super::settings::{Config, PipelineError};
-use crate::design::butterworth_lowpass;
 use crate::filter::{Cascade, Delta};
 
 /// Order of the band's low-pass (and of its high-pass): two poles at each
@@ -57,29 +57,29 @@ pub struct Conditioning {
 }
 
 impl Conditioning {
-    /// The stage for `config` (checked already), decimating by `decim`.
+    /// The stage for `config` (checked already), decimating by `decim`,
+    /// its low-pass designed here.
     pub fn new(config: &Config, decim: u32) -> Result<Self, PipelineError> {
-        let o = &config.options;
-        let lowpass = butterworth_lowpass(
-            BAND_ORDER,
-            o.band_high_hz as f64,
-            config.sample_rate_hz as f64,
-        )
-        .and_then(|d| d.cascade())
-        .map_err(PipelineError::BandHigh)?;
-        let rails = match o.rails {
+        let lowpass = band::lowpass(config.options.band_high_hz, config.sample_rate_hz)?;
+        Ok(Self::with_lowpass(config, decim, lowpass))
+    }
+
+    /// The stage for `config` (checked already), decimating by `decim`,
+    /// with the band's `lowpass` designed already ([`band::BandSections`]).
+    pub fn with_lowpass(config: &Config, decim: u32, lowpass: Delta) -> Self {
+        let rails = match config.options.rails {
             Some((low, high)) => Rails::Known { low, high },
             None => Rails::Auto,
         };
-        Ok(Self {
+        Self {
             decim,
             phase: 0,
             conditioner: Conditioner::new(rails, config.sample_rate_hz),
-            lowpass,
+            lowpass: Cascade::new([lowpass]),
             mark: 0,
             started: false,
             clipped_in_block: 0,
-        })
+        }
     }
 
     /// Condition and low-pass one input sample.

@@ -35,6 +35,7 @@
 //! # Ok::<(), plethwire_dsp::pipeline::PipelineError>(())
 //! ```
 
+pub mod band;
 pub mod bookkeeping;
 pub mod condition;
 pub mod conditioning;
@@ -55,6 +56,7 @@ pub mod traces;
 mod with_motion;
 mod zong;
 
+pub use band::{BandSections, BandSource};
 pub use bookkeeping::{HRV_INTERVALS, RECENT_INTERVALS};
 pub use condition::Rails;
 pub use detector::{Candidate, Detector, DetectorKind};
@@ -110,11 +112,27 @@ pub struct Pipeline {
 impl Pipeline {
     /// A pipeline for `config`; refuses rates outside 25 to 1000 Hz, a
     /// heart-rate window that is not a positive number of seconds, and
-    /// bands the design refuses.
+    /// bands the design refuses. Designs the band's filters
+    /// ([`BandSections::design`]) and runs [`Self::with_band`].
     // Out of line: inlined into a board's start-up task it costs flash.
     #[inline(never)]
     pub fn new(config: Config) -> Result<Self, PipelineError> {
+        Self::with_band(config, &BandSections::design(&config)?)
+    }
+
+    /// A pipeline for `config` that runs `band`, designed already (on the
+    /// PC, by a board's build script): no filter design runs here, and a
+    /// board that only calls this links none. The same checks as
+    /// [`Self::new`], and [`PipelineError::BandMismatch`] when `band` was
+    /// designed for another rate or other band edges. With
+    /// `BandSections::design(&config)` it is the pipeline [`Self::new`]
+    /// builds.
+    #[inline(never)]
+    pub fn with_band(config: Config, band: &BandSections) -> Result<Self, PipelineError> {
         config.check()?;
+        if !band.fits(&config) {
+            return Err(PipelineError::BandMismatch);
+        }
         let fs = config.sample_rate_hz;
         let decim = config.decimation();
         let fd = fs / decim as f32;
@@ -123,8 +141,8 @@ impl Pipeline {
         // detector's rate: a band-pass of the same four poles, but only one
         // section runs per input sample. The low-pass also keeps the
         // pulse's shape for placing peaks, without ADC noise or steps.
-        let conditioning = Conditioning::new(&config, decim)?;
-        let band = BandRestart::new(&config, fd)?;
+        let conditioning = Conditioning::with_lowpass(&config, decim, band.lowpass);
+        let band = BandRestart::with_highpass(fd, band.highpass);
         Ok(Self {
             n: 0,
             t: 0,

@@ -4,12 +4,11 @@
 //! against its own recent range ([`super::scale`]), or twice the silence
 //! limit without a beat.
 
-use super::conditioning::BAND_ORDER;
+use super::band;
 use super::ring::Ring;
 use super::scale::{Change, Scale};
 use super::settings::{Config, PipelineError};
 use super::state;
-use crate::design::butterworth_highpass;
 use crate::filter::{Cascade, Delta};
 
 /// Time over which a step is measured, seconds (the size that makes a
@@ -54,17 +53,21 @@ pub struct BandRestart {
 }
 
 impl BandRestart {
-    /// The stage for `config` (checked already) at detector rate `fd`.
+    /// The stage for `config` (checked already) at detector rate `fd`, its
+    /// high-pass designed here.
     pub fn new(config: &Config, fd: f32) -> Result<Self, PipelineError> {
-        let highpass =
-            butterworth_highpass(BAND_ORDER, config.options.band_low_hz as f64, fd as f64)
-                .and_then(|d| d.cascade())
-                .map_err(PipelineError::BandLow)?;
+        let highpass = band::highpass(config.options.band_low_hz, fd)?;
+        Ok(Self::with_highpass(fd, highpass))
+    }
+
+    /// The stage at detector rate `fd` with the band's `highpass` designed
+    /// already ([`band::BandSections`]).
+    pub fn with_highpass(fd: f32, highpass: Delta) -> Self {
         // Whole detector samples: `t > lost_at` is then the same test as
         // against the exact span.
         let lost_after = libm::floorf(LOST_SILENCES * state::SILENCE_S * fd) as u64;
-        Ok(Self {
-            highpass,
+        Self {
+            highpass: Cascade::new([highpass]),
             step_lag: (libm::roundf(STEP_S * fd) as usize).max(1),
             lost_at: lost_after,
             lost_after,
@@ -72,7 +75,7 @@ impl BandRestart {
             restarted_at: 0,
             epoch: 0,
             restarts: 0,
-        })
+        }
     }
 
     /// Start the high-pass at rest at low-passed level `s` (the first

@@ -157,6 +157,9 @@ pub enum PipelineError {
     /// The accelerometer's rate is outside what
     /// [`super::MotionTracker`] takes.
     MotionRate,
+    /// The band's sections handed to [`super::Pipeline::with_band`] were
+    /// designed for another sample rate or other band edges.
+    BandMismatch,
 }
 
 impl fmt::Display for PipelineError {
@@ -176,6 +179,9 @@ impl fmt::Display for PipelineError {
                 "the accelerometer's rate must be between {} and {} Hz",
                 super::motion::MIN_MOTION_RATE_HZ,
                 super::motion::MAX_MOTION_RATE_HZ
+            ),
+            Self::BandMismatch => f.write_str(
+                "the band's filters were designed for another sample rate or other band edges",
             ),
         }
     }
