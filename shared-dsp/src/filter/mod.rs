@@ -43,7 +43,12 @@ macro_rules! float_sample {
         impl Sample for $t {
             #[inline]
             fn sanitize(self) -> Self {
-                if self.is_finite() {
+                // Nearly every sample is in range: one comparison (NaN
+                // fails it) instead of a finiteness test and two clamps,
+                // on every filtered sample.
+                if self.abs() <= 1e18 {
+                    self
+                } else if self.is_finite() {
                     self.clamp(-1e18, 1e18)
                 } else {
                     0.0

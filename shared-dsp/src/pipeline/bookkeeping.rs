@@ -155,15 +155,18 @@ impl BeatBook {
     }
 
     /// Judge the beat at `at`: its interval and flags, its shape against
-    /// the template (from `banded` and `marks`), and against `motion`.
-    /// The interval joins the reference intervals.
+    /// the template (from `banded` and `marks`, into `shape`), and against
+    /// `motion`. The interval joins the reference intervals.
+    // The shape is written where the caller keeps it: returned by value
+    // with the verdict, its 132 bytes were copied twice per beat.
     pub fn judge<M: MotionReference>(
         &mut self,
         at: &At,
         banded: &Ring<SHAPE_RING>,
         marks: &Ring<SHAPE_RING, u8>,
         motion: &M,
-    ) -> (Judged, Option<Shape>) {
+        shape: &mut Option<Shape>,
+    ) -> Judged {
         let mut flags = 0u8;
         let median = self.recent_ibi;
         let ibi = self.interval(at);
@@ -190,17 +193,21 @@ impl BeatBook {
             at.since_restart as f32,
         );
         let to = max_f32(age - WINDOW_AFTER_IBI * period, 0.0);
-        for a in (libm::floorf(to) as usize)..=(libm::ceilf(from) as usize) {
-            let m = marks.at(a);
-            if m & MARK_CLIPPED != 0 {
-                flags |= BeatFlags::CLIPPED;
-            }
-            if m & MARK_REJECTED != 0 {
-                flags |= BeatFlags::INPUT_REJECTED;
-            }
+        // The window's marks together, then their bits once. Every age
+        // read here and by the shape is below `banded.len() − 1` (`from`
+        // is), and the marks ring is as full: no age test per read.
+        let mut marked = 0u8;
+        for a in (libm::floorf(to) as usize)..(libm::ceilf(from) as usize + 1) {
+            marked |= marks.at_within(a);
         }
-        let shape = Shape::capture(|a| banded.at(a), from, to);
-        let quality = match &shape {
+        if marked & MARK_CLIPPED != 0 {
+            flags |= BeatFlags::CLIPPED;
+        }
+        if marked & MARK_REJECTED != 0 {
+            flags |= BeatFlags::INPUT_REJECTED;
+        }
+        *shape = Shape::capture(|a| banded.at_within(a), from, to);
+        let quality = match shape {
             Some(s) => {
                 let (r, low) = self.template.judge(s);
                 if low {
@@ -219,12 +226,11 @@ impl BeatBook {
                 flags |= BeatFlags::MOTION;
             }
         }
-        let judged = Judged {
+        Judged {
             ibi,
             flags: BeatFlags(flags),
             quality,
-        };
-        (judged, shape)
+        }
     }
 
     /// Record a judged beat at `at` with its `shape`: the template learns
@@ -324,7 +330,8 @@ mod tests {
         let mut events = std::vec::Vec::new();
         for k in 0..6u64 {
             let a = at(50 * k + 100, 50 * k + 90);
-            let (j, shape) = book.judge(&a, &banded, &marks, &NoMotion);
+            let mut shape = None;
+            let j = book.judge(&a, &banded, &marks, &NoMotion, &mut shape);
             let trusted = book.record(&a, &j, shape.as_ref());
             events.push((book.event(&a, &j, 1.0, None), trusted));
         }
@@ -352,7 +359,7 @@ mod tests {
             n: 101,
             ..at(100, 90)
         };
-        let (j, _) = book.judge(&a, &banded, &marks, &NoMotion);
+        let j = book.judge(&a, &banded, &marks, &NoMotion, &mut None);
         assert!(j.flags.has(BeatFlags::CLIPPED));
     }
 }

@@ -36,8 +36,9 @@ pub struct Conditioned {
 pub struct Conditioner {
     rails: Rails,
     plateau: u32,
+    // The last finite sample; NaN before the first (so no run starts
+    // there, and a replaced sample before any is 0).
     last: f32,
-    seen: bool,
     max: f32,
     min: f32,
     run: u32,
@@ -51,8 +52,7 @@ impl Conditioner {
         Self {
             rails,
             plateau: (libm::ceilf(PLATEAU_S * fs_hz) as u32).max(3),
-            last: 0.0,
-            seen: false,
+            last: f32::NAN,
             max: f32::NEG_INFINITY,
             min: f32::INFINITY,
             run: 0,
@@ -66,7 +66,7 @@ impl Conditioner {
         if !x.is_finite() {
             self.rejected += 1;
             return Conditioned {
-                value: self.last,
+                value: self.last_value(),
                 rejected: true,
                 clipped: false,
             };
@@ -74,31 +74,36 @@ impl Conditioner {
         let clipped = match self.rails {
             Rails::Known { low, high } => x <= low || x >= high,
             Rails::Auto => {
-                // x is finite here and the extremes never NaN, so plain
-                // comparisons do (a tie keeps the old extreme: the same
-                // number, and only compared with `==` below).
-                if x > self.max {
-                    self.max = x;
-                }
-                if x < self.min {
-                    self.min = x;
-                }
                 // A run of equal values counts whether or not it sits at an
                 // extreme: a constant value that is not the maximum or the
                 // minimum cannot become one without changing, so only
                 // runs at an extreme ever reach the test below, and the
-                // extremes need comparing only then (most samples differ
-                // from the last one: one comparison).
-                self.run = if self.seen && x == self.last {
-                    self.run + 1
+                // extremes need comparing only then. A repeat cannot move
+                // the extremes (its value was taken last time), so they
+                // are updated only when the value changes.
+                if x == self.last {
+                    self.run += 1;
+                    self.run >= self.plateau && (x == self.max || x == self.min)
                 } else {
-                    1
-                };
-                self.run >= self.plateau && (x == self.max || x == self.min)
+                    self.run = 1;
+                    // x is finite here and the extremes never NaN, so
+                    // plain comparisons do (a tie keeps the old extreme:
+                    // the same number, and only compared with `==`). New
+                    // extremes are rare after the first seconds: one test
+                    // for both.
+                    if x > self.max || x < self.min {
+                        if x > self.max {
+                            self.max = x;
+                        }
+                        if x < self.min {
+                            self.min = x;
+                        }
+                    }
+                    false
+                }
             }
         };
         self.last = x;
-        self.seen = true;
         if clipped {
             self.clipped += 1;
         }
@@ -106,6 +111,16 @@ impl Conditioner {
             value: x,
             rejected: false,
             clipped,
+        }
+    }
+
+    /// The last finite sample, 0 before the first.
+    #[inline]
+    pub fn last_value(&self) -> f32 {
+        if self.last.is_nan() {
+            0.0
+        } else {
+            self.last
         }
     }
 

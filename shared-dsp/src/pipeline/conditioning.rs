@@ -54,7 +54,6 @@ pub struct Conditioning {
     started: bool,
     // Clipped input samples since the last detector-rate sample.
     clipped_in_block: u32,
-    last_value: f32,
 }
 
 impl Conditioning {
@@ -80,7 +79,6 @@ impl Conditioning {
             mark: 0,
             started: false,
             clipped_in_block: 0,
-            last_value: 0.0,
         }
     }
 
@@ -95,7 +93,6 @@ impl Conditioning {
             self.started = true;
             Some(self.lowpass.settle(c.value))
         };
-        self.last_value = c.value;
         let smoothed = self.lowpass.process(c.value);
         if c.clipped {
             self.mark |= MARK_CLIPPED;
@@ -141,7 +138,7 @@ impl Conditioning {
 
     /// The last conditioned value.
     pub fn last_value(&self) -> f32 {
-        self.last_value
+        self.conditioner.last_value()
     }
 
     /// Non-finite input samples replaced so far.

@@ -54,6 +54,10 @@ pub const IDLE_S: f32 = 2.5;
 pub const NARROW_RUN: u32 = 3;
 
 const RING: usize = 256;
+/// Where [`Elgendi`]'s history keeps a sample's clipped square…
+const SQUARED: usize = 0;
+/// …and its band-passed value.
+const FILTERED: usize = 1;
 
 /// Causal Elgendi detector state, at the detector's rate.
 // `repr(C)`, rings last: the per-sample scalars stay within reach of short
@@ -65,6 +69,10 @@ pub struct Elgendi {
     w1: usize,
     w2: usize,
     delay: usize,
+    // The window lengths as divisors (`w1 as f32`, `w2 as f32`), converted
+    // once instead of on every sample.
+    w1_f: f32,
+    w2_f: f32,
     short_sum: RunningSum,
     long_sum: RunningSum,
     mean_sq: f32,
@@ -79,8 +87,9 @@ pub struct Elgendi {
     narrow_run: u32,
     best: f32,
     best_t: u64,
-    squared: Ring<RING>,
-    filtered: Ring<RING>,
+    // Each sample's clipped square and its band-passed value, in one
+    // ring: pushed together, one counter for both.
+    history: Ring<RING, [f32; 2]>,
     // The rate it was built for, to start again at ([`Detector::reset`]).
     fs_hz: f32,
 }
@@ -94,14 +103,18 @@ impl Elgendi {
         let h1 = (libm::floorf(W1_S * fs_hz / 2.0) as usize).max(1);
         let h2 = (libm::floorf(W2_S * fs_hz / 2.0) as usize).max(2);
         let h2 = h2.min((RING - 2) / 2);
+        // The short window inside the long one (always so below 2 kHz), so
+        // every age read below is under RING.
+        let h1 = h1.min(h2);
         Self {
             fs_hz,
             h1,
             w1: 2 * h1 + 1,
             w2: 2 * h2 + 1,
             delay: h2,
-            squared: Ring::new(),
-            filtered: Ring::new(),
+            w1_f: (2 * h1 + 1) as f32,
+            w2_f: (2 * h2 + 1) as f32,
+            history: Ring::new(),
             short_sum: RunningSum::default(),
             long_sum: RunningSum::default(),
             mean_sq: 0.0,
@@ -132,23 +145,24 @@ impl Detector for Elgendi {
     fn process(&mut self, y: f32) -> Option<Candidate> {
         let clipped = max_f32(y, 0.0);
         let z = clipped * clipped;
-        self.squared.push(z);
-        self.filtered.push(y);
+        self.history.push([z, y]);
         self.mean_sq += self.mean_alpha * (z - self.mean_sq);
         // Long window: the last W2 samples, centred on age D.
         self.long_sum.add(z);
-        self.long_sum.add(-self.squared.at(self.w2));
+        // (Every age here is below RING: W2 ≤ RING − 1 by construction.)
+        self.long_sum.add(-self.history.at_within(self.w2)[SQUARED]);
         // Short window: W1 samples centred on age D.
-        self.short_sum.add(self.squared.at(self.delay - self.h1));
         self.short_sum
-            .add(-self.squared.at(self.delay + self.h1 + 1));
+            .add(self.history.at_within(self.delay - self.h1)[SQUARED]);
+        self.short_sum
+            .add(-self.history.at_within(self.delay + self.h1 + 1)[SQUARED]);
         self.t += 1;
-        let ma_peak = self.short_sum.get() / self.w1 as f32;
-        let ma_beat = self.long_sum.get() / self.w2 as f32;
+        let ma_peak = self.short_sum.get() / self.w1_f;
+        let ma_beat = self.long_sum.get() / self.w2_f;
         let threshold = ma_beat + BETA * self.mean_sq;
         let centre_t = (self.t - 1).checked_sub(self.delay as u64)?;
         if ma_peak > threshold {
-            let v = self.filtered.at(self.delay);
+            let v = self.history.at_within(self.delay)[FILTERED];
             if self.block_len == 0 || v > self.best {
                 self.best = v;
                 self.best_t = centre_t;

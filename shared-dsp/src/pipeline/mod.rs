@@ -93,7 +93,9 @@ pub struct Pipeline {
     // on Cortex-M a float load reaches only 1 KB past its base register,
     // so the filters' and counters' state must not sit behind the rings;
     // the detector's scalars come before its rings, the bookkeeping's
-    // before its histories.
+    // before its histories; the rings written at the detector's rate
+    // before the bookkeeping, read once per beat (their counters then
+    // stay within a load's reach of the base).
     n: u64,
     t: u64,
     conditioning: Conditioning,
@@ -102,8 +104,8 @@ pub struct Pipeline {
     gate: CandidateGate,
     placement: PeakPlacement,
     detector: AnyDetector,
-    book: BeatBook,
     traces: Traces,
+    book: BeatBook,
     config: Config,
 }
 
@@ -300,6 +302,9 @@ impl Pipeline {
 
     /// A candidate at detector index `now` (input index `n`): placed,
     /// gated, and if it passes, a beat.
+    // Once per candidate: out of line, so the per-sample path that calls
+    // it keeps its registers (inlined, its spills cost every sample).
+    #[inline(never)]
     fn candidate<M: MotionReference>(
         &mut self,
         cand: &Candidate,
@@ -348,7 +353,10 @@ impl Pipeline {
         motion: &M,
     ) -> BeatEvent {
         let traces = &self.traces;
-        let (judged, shape) = self.book.judge(at, &traces.banded, &traces.marks, motion);
+        let mut shape = None;
+        let judged = self
+            .book
+            .judge(at, &traces.banded, &traces.marks, motion, &mut shape);
         let trusted = self.book.record(at, &judged, shape.as_ref());
         let good = judged.flags.is_good();
         self.monitor.beat(at.peak, good);

@@ -126,7 +126,8 @@ impl PeakPlacement {
             .min(look.since_restart);
         let mut best_age = age.min(oldest);
         let mut best = f32::NEG_INFINITY;
-        for a in newest..=oldest.max(newest) {
+        // (Half-open ranges: an inclusive one tests for its end twice.)
+        for a in newest..oldest.max(newest) + 1 {
             let v = look.smoothed.at(a);
             if v > best {
                 best = v;
@@ -159,7 +160,7 @@ impl PeakPlacement {
             .min(look.smoothed.len().saturating_sub(1))
             .min(look.since_restart);
         let mut foot = f32::INFINITY;
-        for a in age..=oldest.max(age) {
+        for a in age..oldest.max(age) + 1 {
             foot = min_f32(foot, look.smoothed.at(a));
         }
         look.smoothed.at(age) - foot

@@ -48,26 +48,32 @@ impl Shape {
 
     /// Zero mean, unit norm; `None` when flat.
     pub fn normalised(mut v: [f32; POINTS]) -> Option<Self> {
-        let mean = v.iter().sum::<f32>() / POINTS as f32;
-        let mut norm = 0.0;
-        for x in v.iter_mut() {
-            *x -= mean;
-            norm += *x * *x;
-        }
-        let norm = libm::sqrtf(norm);
-        if norm.is_nan() || norm <= 1e-20 {
-            return None;
-        }
-        for x in v.iter_mut() {
-            *x /= norm;
-        }
-        Some(Self(v))
+        normalise(&mut v).then_some(Self(v))
     }
 
     /// Pearson correlation with another normalised shape.
     pub fn correlation(&self, other: &Shape) -> f32 {
         self.0.iter().zip(other.0.iter()).map(|(a, b)| a * b).sum()
     }
+}
+
+/// Make `v` zero mean and unit norm, in place; `false` and `v` untouched
+/// when it is flat.
+fn normalise(v: &mut [f32; POINTS]) -> bool {
+    let mean = v.iter().sum::<f32>() / POINTS as f32;
+    let mut norm = 0.0;
+    for x in v.iter() {
+        let d = *x - mean;
+        norm += d * d;
+    }
+    let norm = libm::sqrtf(norm);
+    if norm.is_nan() || norm <= 1e-20 {
+        return false;
+    }
+    for x in v.iter_mut() {
+        *x = (*x - mean) / norm;
+    }
+    true
 }
 
 /// The running template and its verdicts.
@@ -104,22 +110,22 @@ impl Template {
     // path the emulated board counts (see docs/performance.md).
     #[inline(never)]
     pub fn learn(&mut self, pulse: &Shape) {
-        let new = match self.shape {
-            None => *pulse,
-            Some(mut t) => {
-                let w = if self.accepted < WARM_UP {
-                    1.0 / (self.accepted + 1) as f32
-                } else {
-                    TEMPLATE_WEIGHT
-                };
-                for (a, b) in t.0.iter_mut().zip(pulse.0.iter()) {
-                    *a += w * (b - *a);
-                }
-                // Renormalise so correlations stay Pearson correlations.
-                Shape::normalised(t.0).unwrap_or(t)
+        if let Some(t) = &mut self.shape {
+            let w = if self.accepted < WARM_UP {
+                1.0 / (self.accepted + 1) as f32
+            } else {
+                TEMPLATE_WEIGHT
+            };
+            for (a, b) in t.0.iter_mut().zip(pulse.0.iter()) {
+                *a += w * (b - *a);
             }
-        };
-        self.shape = Some(new);
+            // Renormalise so correlations stay Pearson correlations (a
+            // flat blend stays as it is). In place: a copy of the template
+            // each way cost as much as the blend.
+            normalise(&mut t.0);
+        } else {
+            self.shape = Some(*pulse);
+        }
         self.accepted += 1;
     }
 

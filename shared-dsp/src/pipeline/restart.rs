@@ -88,8 +88,10 @@ impl BandRestart {
     /// the `smoothed` values before it: whether to start afresh.
     #[inline(always)]
     pub fn judge<const N: usize>(&mut self, s: f32, smoothed: &Ring<N>, t: u64) -> Option<Restart> {
+        // The ring holds at least the lag, so its age is below the ring's
+        // size: no age test.
         let jump = if smoothed.len() >= self.step_lag {
-            s - smoothed.at(self.step_lag - 1)
+            s - smoothed.at_within(self.step_lag - 1)
         } else {
             0.0
         };

@@ -9,22 +9,24 @@
 /// instead of 286.4 on cb0009 at 300 Hz (+8 %), counted on the emulated
 /// board (`tests/tests/emulated_performance.rs`): its write compares and
 /// wraps where this ring masks, and its newest index is a branch.
-// `repr(C)`, counters first: they stay within reach of short load
+// `repr(C)`, the counter first: it stays within reach of short load
 // offsets from the start of the ring, whatever its size.
 #[derive(Clone, Copy, Debug)]
 #[repr(C)]
 pub struct Ring<const N: usize, T = f32> {
+    // The pushes so far until N, then N plus the newest slot: one counter
+    // is both the newest slot (`head % N`) and the fill (`min(head, N)`),
+    // so a push updates one word and tests nothing.
     head: usize,
-    filled: usize,
     data: [T; N],
 }
 
 impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// An empty ring.
     pub fn new() -> Self {
+        const { assert!(N.is_power_of_two(), "a Ring's size is a power of two") };
         Self {
             head: 0,
-            filled: 0,
             data: [T::default(); N],
         }
     }
@@ -32,13 +34,11 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// Append a value, forgetting the oldest once full.
     #[inline]
     pub fn push(&mut self, v: T) {
-        // `% N` is a mask for the power-of-two sizes used, and tells the
-        // compiler the index is in range (no bounds check).
-        self.head = (self.head + 1) % N;
-        self.data[self.head] = v;
-        if self.filled < N {
-            self.filled += 1;
-        }
+        // Below N the count goes up by one; from N on, bit N stays set
+        // and the low bits wrap: the newest slot is `head % N` either way
+        // (a mask, and no bounds check).
+        self.head = ((self.head + 1) & (2 * N - 1)) | (self.head & N);
+        self.data[self.head % N] = v;
     }
 
     /// The value pushed `age` pushes ago (0 = newest); the default value
@@ -49,19 +49,35 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
             return T::default();
         }
         // A slot not yet written since `new` still holds the default, so
-        // ages between `filled` and `N` need no test of their own. age < N,
+        // ages between `len()` and `N` need no test of their own. age < N,
         // so this cannot underflow.
         self.data[(self.head + N - age) % N]
     }
 
+    /// [`Self::at`] for an `age` the caller keeps below `N` (a window
+    /// fixed at construction, or an age below [`Self::len`]): no test of
+    /// the age, one masked load. An age of `N` or more reads as `age % N`
+    /// would.
+    #[inline]
+    pub fn at_within(&self, age: usize) -> T {
+        debug_assert!(age < N);
+        // For a power-of-two N the wrapping difference's remainder is the
+        // slot `age` back, as in `at`.
+        self.data[self.head.wrapping_sub(age) % N]
+    }
+
     /// How many values are held.
     pub fn len(&self) -> usize {
-        self.filled
+        if self.head >= N {
+            N
+        } else {
+            self.head
+        }
     }
 
     /// Nothing pushed yet?
     pub fn is_empty(&self) -> bool {
-        self.filled == 0
+        self.head == 0
     }
 
     /// Capacity.
@@ -112,6 +128,21 @@ mod tests {
             r.push(v as f32);
         }
         assert_eq!([r.at(0), r.at(1), r.at(2), r.at(3)], [6.0, 5.0, 4.0, 3.0]);
+        assert_eq!(r.at(4), 0.0);
+    }
+
+    #[test]
+    fn the_count_stays_full_and_the_ages_right_after_many_wraps() {
+        let mut r = Ring::<4>::new();
+        for v in 1..=4 * 1000 + 3 {
+            r.push(v as f32);
+            assert_eq!(r.len(), (v as usize).min(4));
+        }
+        let newest = (4 * 1000 + 3) as f32;
+        for age in 0..4 {
+            assert_eq!(r.at(age), newest - age as f32);
+            assert_eq!(r.at_within(age), r.at(age));
+        }
         assert_eq!(r.at(4), 0.0);
     }
 

@@ -24,26 +24,45 @@ pub const JUDGED_BEATS: u32 = 5;
 /// Consecutive good beats needed to declare the signal good.
 pub const GOOD_RUN: u32 = 3;
 
+/// `Monitor::silence_for` when there is no median interval: the bits of
+/// a NaN, which no median of intervals is.
+const NO_MEDIAN: u32 = u32::MAX;
+
 /// State machine over the signal's condition.
 #[derive(Clone, Copy, Debug)]
 pub struct Monitor {
     state: SignalState,
     clip_share: f32,
     clip_alpha: f32,
+    // The block length the share's weight was last worked out for, and
+    // that weight (`min(clip_alpha · samples, 1)`): blocks keep one length.
+    alpha_samples: u32,
+    block_alpha: f32,
     fs: f32,
-    last_beat: Option<u64>,
+    // Input index of the last beat (0 before the first: the silence then
+    // counts from the start), and the index after which, without another
+    // beat, the signal is silent (`last_beat + silence_after`, kept so the
+    // per-block test is one comparison).
+    last_beat: u64,
+    silent_after: u64,
     recent: u8,
     // Bad beats among the last JUDGED_BEATS, kept with `recent`.
     bad: u32,
     judged: u32,
     good_run: u32,
-    // The silence limit in samples and the median interval (bits) it was
-    // worked out for: the median changes once per beat, the check runs
-    // every sample.
-    silence_for: Option<u32>,
+    // The silence limit in samples and the median interval (bits, or
+    // `NO_MEDIAN`) it was worked out for: the median changes once per
+    // beat, the check runs every block.
+    silence_for: u32,
     // Whole samples: `since > silence_after` is the same test as against
     // the exact limit, without converting `since` on every call.
     silence_after: u64,
+    // What the last state decision saw, besides the state itself: a beat
+    // since (`beats_changed`), saturated, silent. With none of them
+    // changed the decision is the same, so it is not taken again.
+    beats_changed: bool,
+    was_saturated: bool,
+    was_silent: bool,
 }
 
 impl Monitor {
@@ -53,15 +72,35 @@ impl Monitor {
             state: SignalState::Acquiring,
             clip_share: 0.0,
             clip_alpha: 1.0 / (CLIP_WINDOW_S * fs_hz),
+            alpha_samples: 0,
+            block_alpha: 0.0,
             fs: fs_hz,
-            last_beat: None,
+            last_beat: 0,
+            silent_after: libm::floorf(SILENCE_S * fs_hz) as u64,
             recent: 0,
             bad: 0,
             judged: 0,
             good_run: 0,
-            silence_for: None,
+            silence_for: NO_MEDIAN,
             silence_after: libm::floorf(SILENCE_S * fs_hz) as u64,
+            beats_changed: true,
+            was_saturated: false,
+            was_silent: false,
         }
+    }
+
+    /// The median interval changed (its bits `key`): the silence limit
+    /// follows it.
+    // Once per beat at most: kept out of the per-block path's code.
+    #[cold]
+    #[inline(never)]
+    fn new_median(&mut self, median_ibi_ms: Option<f32>, key: u32) {
+        let silence_s = median_ibi_ms.map_or(SILENCE_S, |m| {
+            max_f32(SILENCE_INTERVALS * m / 1000.0, SILENCE_S)
+        });
+        self.silence_after = libm::floorf(silence_s * self.fs) as u64;
+        self.silent_after = self.last_beat + self.silence_after;
+        self.silence_for = key;
     }
 
     /// The current state.
@@ -71,12 +110,14 @@ impl Monitor {
 
     /// Record a beat at input index `at`.
     pub fn beat(&mut self, at: u64, good: bool) {
-        self.last_beat = Some(at);
+        self.last_beat = at;
+        self.silent_after = at + self.silence_after;
         self.recent = (self.recent << 1) | u8::from(!good);
         let mask = (1u8 << JUDGED_BEATS) - 1;
         self.bad = (self.recent & mask).count_ones();
         self.judged = (self.judged + 1).min(JUDGED_BEATS);
         self.good_run = if good { self.good_run + 1 } else { 0 };
+        self.beats_changed = true;
     }
 
     /// Update once per block of `samples` input samples ending at input
@@ -90,26 +131,40 @@ impl Monitor {
         samples: u32,
         median_ibi_ms: Option<f32>,
     ) -> Option<StateEvent> {
-        // Most blocks hold no clipped sample: no division then.
-        let share = if clipped == 0 {
-            0.0
-        } else {
-            clipped as f32 / samples.max(1) as f32
-        };
-        let alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
-        self.clip_share += alpha * (share - self.clip_share);
-        let key = median_ibi_ms.map(f32::to_bits);
-        if key != self.silence_for {
-            let silence_s = median_ibi_ms.map_or(SILENCE_S, |m| {
-                max_f32(SILENCE_INTERVALS * m / 1000.0, SILENCE_S)
-            });
-            self.silence_after = libm::floorf(silence_s * self.fs) as u64;
-            self.silence_for = key;
+        // Most blocks hold no clipped sample, and the share is then often
+        // exactly 0 already: it stays 0 (0 + α·(0 − 0)), no work.
+        if clipped != 0 || self.clip_share != 0.0 {
+            let share = if clipped == 0 {
+                0.0
+            } else {
+                clipped as f32 / samples.max(1) as f32
+            };
+            if samples != self.alpha_samples {
+                self.alpha_samples = samples;
+                self.block_alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
+            }
+            self.clip_share += self.block_alpha * (share - self.clip_share);
         }
-        let since = self.last_beat.map_or(n, |b| n.saturating_sub(b));
-        let silent = since > self.silence_after;
+        let key = median_ibi_ms.map_or(NO_MEDIAN, f32::to_bits);
+        if key != self.silence_for {
+            self.new_median(median_ibi_ms, key);
+        }
+        // `n − last_beat > silence_after`, the difference saturating at 0
+        // (indices are far below overflow).
+        let silent = n > self.silent_after;
+        let saturated = self.clip_share > SATURATED_SHARE;
+        // The decision below depends on these, the beat counts and the
+        // state only, and taking it again on the same ones changes
+        // nothing (a state it reached, and the good run it cleared, give
+        // that state again): skipped unless one of them moved.
+        if !self.beats_changed && saturated == self.was_saturated && silent == self.was_silent {
+            return None;
+        }
+        self.beats_changed = false;
+        self.was_saturated = saturated;
+        self.was_silent = silent;
         let bad = self.bad;
-        let next = if self.clip_share > SATURATED_SHARE {
+        let next = if saturated {
             SignalState::Saturated
         } else if silent {
             SignalState::NoSignal
@@ -155,6 +210,34 @@ mod tests {
         assert_eq!(m.block(301, 0, 1, Some(2000.0)), None);
         assert_eq!(m.block(500, 0, 1, Some(2000.0)), None);
         assert!(m.block(501, 0, 1, Some(2000.0)).is_some());
+    }
+
+    #[test]
+    fn beats_and_silence_move_the_state_even_between_unchanged_blocks() {
+        // 100 Hz, blocks of 2 samples: the decision is skipped while
+        // nothing moves, and taken again at each beat and when silence
+        // begins.
+        let mut m = Monitor::new(100.0);
+        let mut states = std::vec::Vec::new();
+        let mut n = 0u64;
+        let mut run = |m: &mut Monitor, blocks: u64, beat_every: Option<u64>| {
+            for _ in 0..blocks {
+                n += 2;
+                if beat_every.is_some_and(|k| n % k == 0) {
+                    m.beat(n, true);
+                }
+                if let Some(e) = m.block(n, 0, 2, Some(800.0)) {
+                    states.push(e.state);
+                }
+            }
+        };
+        run(&mut m, 200, Some(80)); // 4 s of beats every 0.8 s
+        run(&mut m, 200, None); // 4 s without: silent after 3 s
+        run(&mut m, 200, Some(80)); // beats again
+        assert_eq!(
+            states,
+            [SignalState::Good, SignalState::NoSignal, SignalState::Good]
+        );
     }
 
     #[test]
