@@ -131,6 +131,13 @@ fn check(relative: &str, at_least_beats: usize) {
         m0.tolerance,
         &update,
     );
+    // The machine has the micro:bit's 16 KiB; a run past it would fault,
+    // but say so plainly when the margin is gone.
+    assert!(
+        ram <= m0.ram_target_bytes,
+        "{relative}: {ram} bytes of RAM used, more than the micro:bit's {}",
+        m0.ram_target_bytes
+    );
 }
 
 #[test]

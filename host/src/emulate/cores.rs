@@ -17,7 +17,7 @@ pub enum Core {
     M4f,
     /// QEMU's `microbit` (nRF51822): a Cortex-M0, ARMv6-M, no FPU, so
     /// every float operation is a library call (compiler-builtins' IEEE
-    /// soft-float). RAM raised to the 32 KiB of the part's larger variants
+    /// soft-float). The micro:bit's 16 KiB of RAM
     /// (`firmware/emulated/memory-microbit.x`).
     M0,
 }
@@ -36,20 +36,10 @@ const M4F_MACHINE: &[&str] = &[
     "stdio",
 ];
 
-/// The microbit machine with 32 KiB of RAM (a property of QEMU's nRF51
-/// model, `sram-size`; 16 KiB by default) and its UART on standard
-/// input and output.
+/// The microbit machine (16 KiB of RAM, QEMU's default for its nRF51
+/// model) with its UART on standard input and output.
 const M0_MACHINE: &[&str] = &[
-    "-M",
-    "microbit",
-    "-global",
-    "nrf51-soc.sram-size=32768",
-    "-display",
-    "none",
-    "-monitor",
-    "none",
-    "-serial",
-    "stdio",
+    "-M", "microbit", "-display", "none", "-monitor", "none", "-serial", "stdio",
 ];
 
 impl Core {

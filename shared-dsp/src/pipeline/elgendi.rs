@@ -200,7 +200,20 @@ impl Detector for Elgendi {
     }
 
     fn reset(&mut self) {
-        *self = Self::new(self.fs_hz);
+        // In place, field by field: the settings (windows, rates) stay
+        // what `new` made them; every learnt value goes back to `new`'s.
+        // Building a whole new detector and copying it would need its
+        // 2 KiB again on the stack (`reset_equals_new` checks the two).
+        self.short_sum = RunningSum::default();
+        self.long_sum = RunningSum::default();
+        self.mean_sq = 0.0;
+        self.t = 0;
+        self.block_len = 0;
+        self.idle_left = self.idle_limit;
+        self.narrow_run = 0;
+        self.best = f32::NEG_INFINITY;
+        self.best_t = 0;
+        self.history = Ring::new();
     }
 }
 

@@ -216,7 +216,22 @@ impl Detector for Zong {
     }
 
     fn reset(&mut self) {
-        *self = Self::new(self.fs_hz);
+        // In place, as `Elgendi`'s: the settings stay, every learnt value
+        // goes back to `new`'s (`reset_equals_new` checks the two).
+        self.ssf = RunningSum::default();
+        self.last_y = 0.0;
+        self.learn_sum = 0.0;
+        self.max_avg = 0.0;
+        self.threshold = f32::INFINITY;
+        self.t = 0;
+        self.last_beat = None;
+        self.last_change = 0;
+        self.interval = START_INTERVAL_S * self.fs_hz;
+        self.pending = None;
+        self.top = f32::NEG_INFINITY;
+        self.rises = Ring::new();
+        self.ssf_hist = Ring::new();
+        self.filtered = Ring::new();
     }
 }
 
