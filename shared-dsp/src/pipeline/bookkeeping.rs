@@ -158,7 +158,7 @@ impl BeatBook {
     /// the template (from `banded` and `marks`, into `shape`), and against
     /// `motion`. The interval joins the reference intervals.
     // The shape is written where the caller keeps it: returned by value
-    // with the verdict, its 132 bytes were copied twice per beat.
+    // with the verdict, its 68 bytes (132 with 32 points) were copied twice per beat.
     pub fn judge<M: MotionReference>(
         &mut self,
         at: &At,
