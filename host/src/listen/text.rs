@@ -195,11 +195,16 @@ fn state(s: &StateSeen) -> String {
 }
 
 fn status(s: &Status) -> String {
+    // Only what the board says it measured: an emulated board measures
+    // no LED, DC or ambient level, and 0 % would read as a dark finger.
+    let share =
+        |v: Option<f64>| v.map_or_else(|| "-".to_owned(), |v| format!("{:.1} %", 100.0 * v));
     format!(
-        "status   LED {:.1} %  DC {:.1} % of full scale  board counts: clipped {}, \
+        "status   LED {}  DC {}  ambient {} of full scale  board counts: clipped {}, \
          ADC overruns {}, frames dropped {}, samples replaced {}",
-        100.0 * f64::from(s.led_drive) / 65_535.0,
-        100.0 * s.dc_level,
+        share(s.led_drive_measured().map(|d| f64::from(d) / 65_535.0)),
+        share(s.dc_level_measured().map(f64::from)),
+        share(s.ambient_level_measured().map(f64::from)),
         s.clipped_samples,
         s.adc_overruns,
         s.dropped_frames,
@@ -227,6 +232,28 @@ fn link_line(look: &Look, s: &DecodeStats) -> String {
 mod tests {
     use super::*;
     use plethwire_dsp::pipeline::{BeatEvent, BeatFlags, StateEvent};
+
+    /// The status line gives only what the board says it measured.
+    #[test]
+    fn the_status_line_shows_what_was_measured_and_a_dash_for_the_rest() {
+        let mut s = Status {
+            led_drive: 30_000,
+            dc_level: 0.52,
+            ambient_level: 0.031,
+            measured: Status::MEASURED_ALL,
+            clipped_samples: 3,
+            adc_overruns: 0,
+            dropped_frames: 0,
+            rejected_samples: 0,
+        };
+        assert_eq!(
+            status(&s),
+            "status   LED 45.8 %  DC 52.0 %  ambient 3.1 % of full scale  board counts: \
+             clipped 3, ADC overruns 0, frames dropped 0, samples replaced 0"
+        );
+        s.measured = Status::MEASURED_DC_LEVEL;
+        assert!(status(&s).starts_with("status   LED -  DC 52.0 %  ambient - of full scale"));
+    }
 
     fn look(colour: bool) -> Look {
         Look {
