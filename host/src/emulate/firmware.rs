@@ -6,7 +6,8 @@
 //!    [`SOURCE_VAR`]: the firmware is built there;
 //! 3. last, the checkout this program was built from, if it is still
 //!    there (and [`SOURCE_VAR`] is not set to the empty string, which
-//!    means "no checkout").
+//!    means "no checkout"): its ELF as built, or built again first when a
+//!    file it is made from is newer.
 //!
 //! Every ELF is checked ([`check_elf`]) before QEMU gets it. When nothing
 //! is found, one message says each way to fix it.
@@ -137,12 +138,48 @@ impl FirmwareSearch {
             return Err(FirmwareError::NotFound(self.core));
         };
         let existing = root.join(self.core.elf_path());
-        if !self.rebuild && existing.is_file() {
+        if !self.rebuild && existing.is_file() && !stale(&existing, &root) {
             let from = "the checkout this program was built from".into();
             return checked(existing, from, self.core);
         }
         build(&root, self.core, say, Some(existing))
     }
+}
+
+/// The trees whose files go into the emulated firmware, under a checkout.
+const FIRMWARE_SOURCES: [&str; 4] = [
+    "shared-dsp/src",
+    "board/src",
+    "firmware/emulated",
+    "firmware/Cargo.lock",
+];
+
+/// Whether a file the emulated firmware is built from is newer than `elf`
+/// (then the ELF would count and compare the code as it was, not as it
+/// is). Unreadable times count as not newer: the ELF is then used as before.
+fn stale(elf: &Path, root: &Path) -> bool {
+    let Ok(built) = std::fs::metadata(elf).and_then(|m| m.modified()) else {
+        return false;
+    };
+    FIRMWARE_SOURCES
+        .iter()
+        .any(|part| newer_than(&root.join(part), built))
+}
+
+/// Whether `path`, or any file below it, was changed after `when`.
+fn newer_than(path: &Path, when: std::time::SystemTime) -> bool {
+    let Ok(meta) = std::fs::metadata(path) else {
+        return false;
+    };
+    if meta.is_dir() {
+        let Ok(entries) = std::fs::read_dir(path) else {
+            return false;
+        };
+        return entries
+            .flatten()
+            .any(|e| e.file_name() != "target" && newer_than(&e.path(), when));
+    }
+    meta.modified().is_ok_and(|m| m > when)
 }
 
 /// A non-empty variable as a path, with its name as the origin.
@@ -211,6 +248,28 @@ fn build(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// An ELF older than a file of the shared code is stale; one newer than
+    /// every such file is not; a `target` folder inside is not looked at.
+    #[test]
+    fn an_elf_older_than_the_shared_code_is_stale() {
+        use std::time::{Duration, SystemTime};
+        let root = tempfile::tempdir().unwrap();
+        let at = |path: &Path, when: SystemTime| {
+            std::fs::create_dir_all(path.parent().unwrap()).unwrap();
+            let f = std::fs::File::create(path).unwrap();
+            f.set_modified(when).unwrap();
+        };
+        let now = SystemTime::now();
+        let hour = Duration::from_secs(3600);
+        let elf = root.path().join("firmware/target/elf");
+        at(&root.path().join("shared-dsp/src/lib.rs"), now - 2 * hour);
+        at(&root.path().join("firmware/emulated/target/newer"), now);
+        at(&elf, now - hour);
+        assert!(!stale(&elf, root.path()));
+        at(&root.path().join("board/src/lib.rs"), now - hour / 2);
+        assert!(stale(&elf, root.path()));
+    }
 
     fn env<'a>(pairs: &'a [(&'a str, &'a str)]) -> impl Fn(&str) -> Option<OsString> + 'a {
         move |name| {
