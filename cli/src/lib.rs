@@ -16,6 +16,7 @@ mod report;
 mod ride;
 mod score;
 mod score_strap;
+mod stop;
 mod values;
 
 pub use demo::DemoArgs;

@@ -5,8 +5,6 @@ use crate::values;
 use clap::Args;
 use std::io::{self, IsTerminal, Write};
 use std::path::PathBuf;
-use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::Once;
 use std::time::{Duration, SystemTime};
 
 use super::Failure;
@@ -131,24 +129,6 @@ fn parse_wait(s: &str) -> Result<f64, String> {
     }
 }
 
-/// Set by Ctrl-C, SIGTERM or SIGHUP; the handler is installed once per
-/// process, the flag cleared by each session.
-static STOP: AtomicBool = AtomicBool::new(false);
-static HANDLER: Once = Once::new();
-
-fn install_stop_handler() -> Result<(), Failure> {
-    let mut result = Ok(());
-    HANDLER.call_once(|| {
-        result = ctrlc::set_handler(|| STOP.store(true, Ordering::SeqCst)).map_err(|e| {
-            Failure::refused(format!(
-                "cannot catch Ctrl-C, so files could not be finished: {e}"
-            ))
-        });
-    });
-    STOP.store(false, Ordering::SeqCst);
-    result
-}
-
 /// Colour only for a terminal that has not asked for none.
 fn want_colour(json: bool) -> bool {
     !json
@@ -231,7 +211,7 @@ impl ListenArgs {
         }
         let view = self.start_view()?;
         let checks = self.live_checks()?;
-        install_stop_handler()?;
+        let stop = crate::stop::install("files could not be finished")?;
         let settings = self.settings();
         let setup = Setup {
             record: name.clone(),
@@ -260,7 +240,7 @@ impl ListenArgs {
             checks,
             screen_failed: false,
         };
-        let result = run(&mut connector, &mut session, &mut tee, &settings, &STOP);
+        let result = run(&mut connector, &mut session, &mut tee, &settings, stop);
         let screen_failed = tee.screen_failed;
         let (ended_by, failure) = match result {
             Ok(Ending::Stopped) => ("stopped", None),

@@ -5,8 +5,6 @@
 
 use std::io::Write;
 use std::path::Path;
-use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::Once;
 
 use plethwire::emulate::{find_qemu, Emulation, Link, LinkReport, PacedFeed};
 use plethwire::replay::load;
@@ -28,23 +26,6 @@ const LOOP_S: f64 = 300.0;
 const MADE_UP_RAILS: (f32, f32) = (0.0, 4095.0);
 /// The line's capacity at 115200 baud, 8N1 (10 bits a byte), bytes/s.
 const LINE_BYTES_PER_S: f64 = 11_520.0;
-
-/// Set by Ctrl-C, SIGTERM or SIGHUP.
-static STOP: AtomicBool = AtomicBool::new(false);
-static HANDLER: Once = Once::new();
-
-fn install_stop_handler() -> Result<(), Failure> {
-    let mut result = Ok(());
-    HANDLER.call_once(|| {
-        result = ctrlc::set_handler(|| STOP.store(true, Ordering::SeqCst)).map_err(|e| {
-            Failure::refused(format!(
-                "cannot catch Ctrl-C, so the serial link could not be removed: {e}"
-            ))
-        });
-    });
-    STOP.store(false, Ordering::SeqCst);
-    result
-}
 
 /// Our bench scenario, invented: a finger resting on the sensor, in the
 /// whole codes of a 12-bit ADC (DC near half the range, a pulse of 80
@@ -127,7 +108,7 @@ pub fn run(args: &EmulateArgs, link: &Path, out: &mut dyn Write) -> Result<(), F
     let firmware = args.firmware()?;
     let qemu = find_qemu().map_err(Failure::refused)?;
     let (feed, words) = feed(args)?;
-    install_stop_handler()?;
+    let stop = crate::stop::install("the serial link could not be removed")?;
     let emulation = Emulation {
         qemu,
         core: args.core,
@@ -152,7 +133,7 @@ pub fn run(args: &EmulateArgs, link: &Path, out: &mut dyn Write) -> Result<(), F
             .err();
     };
     let report = emulation
-        .serve_serial_link(link, &feed, &STOP, &mut ready)
+        .serve_serial_link(link, &feed, stop, &mut ready)
         .map_err(|e| Failure::refused(format!("{}: {e}", link.display())))?;
     if let Some(e) = failed_output {
         return Err(Failure::output(e));
