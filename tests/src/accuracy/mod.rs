@@ -105,6 +105,10 @@ pub struct Picture {
     pub ours: SideFigures,
     /// The baseline's.
     pub baseline: SideFigures,
+    /// Per recording (`dataset/name`), every beat and state change the
+    /// pipeline gave, one `Debug` line each (floats print exactly): for
+    /// telling whether a change to the pipeline changed any result.
+    pub event_lists: Vec<(String, String)>,
 }
 
 /// A recording made ready: its samples, its replay and its references.
@@ -166,6 +170,12 @@ pub fn run(data: &Path, mut progress: impl FnMut(&str)) -> Result<Picture, Accur
         .collect();
     progress("the baseline (tests/scipy/baseline_beats.py)");
     let mut baseline = baseline_detections(&inputs).into_iter();
+    let event_lists = DATASETS
+        .iter()
+        .zip(&prepared)
+        .flat_map(|(set, recs)| recs.iter().map(move |p| (set, p)))
+        .map(|(set, p)| (format!("{}/{}", set.folder, p.rec.name), event_list(&p.run)))
+        .collect();
     let mut datasets = Vec::new();
     for (set, recs) in DATASETS.iter().zip(&prepared) {
         let (mut ours, mut theirs, mut missed) = (Vec::new(), Vec::new(), Vec::new());
@@ -204,5 +214,24 @@ pub fn run(data: &Path, mut progress: impl FnMut(&str)) -> Result<Picture, Accur
         datasets,
         ours,
         baseline,
+        event_lists,
     })
+}
+
+/// A replay's beats and state changes, a `Debug` line each, then its counts.
+fn event_list(run: &Replay) -> String {
+    use std::fmt::Write as _;
+    let mut s = String::new();
+    for b in &run.beats {
+        let _ = writeln!(s, "{b:?}");
+    }
+    for e in &run.states {
+        let _ = writeln!(s, "{e:?}");
+    }
+    let _ = writeln!(
+        s,
+        "samples {} rejected {} clipped {} restarts {}",
+        run.samples, run.rejected, run.clipped, run.restarts
+    );
+    s
 }

@@ -13,11 +13,13 @@ use plethwire_checks::{repo_root, shared_data_dir};
 const HELP: &str = "\
 accuracy: every shared dataset, the pipeline beside the plain baseline, one table
 
-Usage: scripts/accuracy [--write] [--data DIR]
+Usage: scripts/accuracy [--write] [--data DIR] [--events DIR]
 
-  --write     also write the table into docs/accuracy.md, between its marks
-  --data DIR  the shared recordings (default: PLETHWIRE_DATA, else ../shared/data)
-  -h, --help  this text
+  --write       also write the table into docs/accuracy.md, between its marks
+  --data DIR    the shared recordings (default: PLETHWIRE_DATA, else ../shared/data)
+  --events DIR  also write each recording's beats and state changes there, a
+                file each (diff -r two such folders: did a change move any result?)
+  -h, --help    this text
 
 Needs python3 with numpy and scipy (the baseline). Prints the table on
 standard output, then one line per target (met, not met yet with its floor,
@@ -30,6 +32,7 @@ understood.";
 struct Args {
     write: bool,
     data: Option<PathBuf>,
+    events: Option<PathBuf>,
 }
 
 /// A command line the tool does not understand.
@@ -38,6 +41,9 @@ enum ArgsError {
     /// `--data` came last, without its folder.
     #[error("--data needs a folder")]
     DataWithoutFolder,
+    /// `--events` came last, without its folder.
+    #[error("--events needs a folder")]
+    EventsWithoutFolder,
     /// A word that is no option of this tool.
     #[error("unexpected argument {0:?} (see --help)")]
     Unexpected(String),
@@ -47,6 +53,7 @@ fn parse(mut args: impl Iterator<Item = String>) -> Result<Option<Args>, ArgsErr
     let mut a = Args {
         write: false,
         data: None,
+        events: None,
     };
     while let Some(arg) = args.next() {
         match arg.as_str() {
@@ -54,6 +61,10 @@ fn parse(mut args: impl Iterator<Item = String>) -> Result<Option<Args>, ArgsErr
             "--data" => {
                 let dir = args.next().ok_or(ArgsError::DataWithoutFolder)?;
                 a.data = Some(dir.into());
+            }
+            "--events" => {
+                let dir = args.next().ok_or(ArgsError::EventsWithoutFolder)?;
+                a.events = Some(dir.into());
             }
             "-h" | "--help" => return Ok(None),
             other => return Err(ArgsError::Unexpected(other.to_owned())),
@@ -98,6 +109,13 @@ fn main() -> ExitCode {
         return ExitCode::from(1);
     }
     eprintln!("scored in {:.1} s", started.elapsed().as_secs_f64());
+    if let Some(dir) = &args.events {
+        if let Err(e) = write_events(dir, &picture.event_lists) {
+            eprintln!("accuracy: {}: {e}", dir.display());
+            return ExitCode::from(1);
+        }
+        eprintln!("wrote every recording's events into {}", dir.display());
+    }
     if args.write {
         let doc = repo_root().join("docs/accuracy.md");
         if let Err(e) = table::write_into(&doc, &markdown) {
@@ -107,4 +125,15 @@ fn main() -> ExitCode {
         eprintln!("wrote the table into {}", doc.display());
     }
     ExitCode::SUCCESS
+}
+
+/// One file per recording, `dataset-name.txt`, of its beats and state
+/// changes: `diff -r` of two such folders says whether a change to the
+/// pipeline changed any result.
+fn write_events(dir: &std::path::Path, lists: &[(String, String)]) -> std::io::Result<()> {
+    std::fs::create_dir_all(dir)?;
+    for (name, text) in lists {
+        std::fs::write(dir.join(format!("{}.txt", name.replace('/', "-"))), text)?;
+    }
+    Ok(())
 }
