@@ -17,11 +17,13 @@
 //! saturates.
 
 mod biquad;
+mod bounded;
 mod cascade;
 mod delta;
 mod q31;
 
 pub use biquad::{Biquad, Df1, Df1State, Df2t, Df2tState, Real};
+pub use bounded::Bounded;
 pub use cascade::Cascade;
 pub use delta::{Delta, DeltaState};
 pub use q31::{from_q31, to_q31, Q31State, Q31};

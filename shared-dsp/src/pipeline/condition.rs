@@ -19,13 +19,20 @@ pub enum Rails {
 /// Shortest flat run at an extreme that counts as clipping, seconds.
 pub const PLATEAU_S: f32 = 0.02;
 
+/// Largest input magnitude taken; beyond it a sample is replaced like one
+/// that is not a number. (The limit [`crate::filter::Sample::sanitize`]
+/// keeps filters within: the pipeline's filters then need no test of
+/// their own, and squares of what they give stay finite in `f32`.)
+pub const INPUT_LIMIT: f32 = 1e18;
+
 /// What conditioning made of one sample.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Conditioned {
     /// The value to filter (the last good value when the input was not
     /// finite).
     pub value: f32,
-    /// The input was not finite and was replaced.
+    /// The input was not finite, or beyond [`INPUT_LIMIT`], and was
+    /// replaced.
     pub rejected: bool,
     /// The sample is at the rails.
     pub clipped: bool,
@@ -63,7 +70,9 @@ impl Conditioner {
 
     /// Condition one sample.
     pub fn push(&mut self, x: f32) -> Conditioned {
-        if !x.is_finite() {
+        // One comparison: NaN fails it too.
+        #[allow(clippy::neg_cmp_op_on_partial_ord)]
+        if !(x.abs() <= INPUT_LIMIT) {
             self.rejected += 1;
             return Conditioned {
                 value: self.last_value(),
@@ -146,7 +155,10 @@ mod tests {
         let r = c.push(f32::NAN);
         assert!(r.rejected && r.value == 1.5);
         c.push(f32::INFINITY);
-        assert_eq!(c.rejected(), 2);
+        let r = c.push(-2e18);
+        assert!(r.rejected && r.value == 1.5);
+        assert!(!c.push(-1e18).rejected);
+        assert_eq!(c.rejected(), 3);
     }
 
     #[test]

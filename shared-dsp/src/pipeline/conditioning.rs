@@ -7,7 +7,7 @@
 use super::band;
 use super::condition::{Conditioner, Rails};
 use super::settings::{Config, PipelineError};
-use crate::filter::{Cascade, Delta};
+use crate::filter::{Bounded, Delta};
 
 /// Order of the band's low-pass (and of its high-pass): two poles at each
 /// edge, the band of [`super`]'s Butterworth design.
@@ -48,10 +48,10 @@ pub struct Conditioning {
     decim: u32,
     phase: u32,
     conditioner: Conditioner,
-    // Upper band edge at the input rate.
-    lowpass: Cascade<Delta, 1>,
+    // Upper band edge at the input rate. Bounded: the conditioner keeps
+    // its input within `INPUT_LIMIT`.
+    lowpass: Bounded<Delta>,
     mark: u8,
-    started: bool,
     // Clipped input samples since the last detector-rate sample.
     clipped_in_block: u32,
 }
@@ -75,35 +75,51 @@ impl Conditioning {
             decim,
             phase: 0,
             conditioner: Conditioner::new(rails, config.sample_rate_hz),
-            lowpass: Cascade::new([lowpass]),
+            lowpass: Bounded::new(lowpass),
             mark: 0,
-            started: false,
             clipped_in_block: 0,
         }
     }
 
-    /// Condition and low-pass one input sample.
+    /// Condition and low-pass one input sample; `first` on the very
+    /// first one only (the pipeline knows it from its sample count, so no
+    /// flag of this stage is tested on every sample).
     #[inline(always)]
-    pub fn push(&mut self, x: f32) -> Smoothed {
+    pub fn push(&mut self, x: f32, first: bool) -> Smoothed {
         let c = self.conditioner.push(x);
-        let first_rest = if self.started {
-            None
-        } else {
+        if c.rejected {
+            return self.push_replaced(c.value, first);
+        }
+        let first_rest = if first {
             // Start as if this value had always been there: no transient.
-            self.started = true;
             Some(self.lowpass.settle(c.value))
+        } else {
+            None
         };
         let smoothed = self.lowpass.process(c.value);
         if c.clipped {
             self.mark |= MARK_CLIPPED;
             self.clipped_in_block += 1;
         }
-        if c.rejected {
-            self.mark |= MARK_REJECTED;
-        }
         Smoothed {
             value: c.value,
             smoothed,
+            first_rest,
+        }
+    }
+
+    /// [`Self::push`] of a sample the conditioner replaced by `value`
+    /// (never clipped): marked, then low-passed as any other.
+    // Rare: out of the per-sample path's code, which then needs no second
+    // test of the replacement.
+    #[cold]
+    #[inline(never)]
+    fn push_replaced(&mut self, value: f32, first: bool) -> Smoothed {
+        self.mark |= MARK_REJECTED;
+        let first_rest = first.then(|| self.lowpass.settle(value));
+        Smoothed {
+            value,
+            smoothed: self.lowpass.process(value),
             first_rest,
         }
     }
@@ -167,7 +183,7 @@ mod tests {
             .into_iter()
             .enumerate()
         {
-            let s = stage.push(x);
+            let s = stage.push(x, k == 0);
             assert_eq!(s.first_rest.is_some(), k == 0);
             blocks.extend(stage.block());
         }
@@ -192,8 +208,8 @@ mod tests {
     fn a_constant_input_passes_the_low_pass_unchanged_from_the_first_sample() {
         let c = Config::new(125.0);
         let mut stage = Conditioning::new(&c, c.decimation()).unwrap();
-        for _ in 0..50 {
-            let s = stage.push(2.5);
+        for k in 0..50 {
+            let s = stage.push(2.5, k == 0);
             assert!((s.smoothed - 2.5).abs() < 1e-5, "{}", s.smoothed);
         }
     }

@@ -225,7 +225,7 @@ impl Pipeline {
     /// rate, HRV and signal state, which follow good beats).
     #[inline(always)]
     pub fn push_with<M: MotionReference>(&mut self, x: f32, motion: &M) -> Output {
-        let c = self.conditioning.push(x);
+        let c = self.conditioning.push(x, self.n == 0);
         if let Some(rest) = c.first_rest {
             self.band.start(rest);
         }

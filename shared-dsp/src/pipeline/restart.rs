@@ -9,7 +9,7 @@ use super::ring::Ring;
 use super::scale::{Change, Scale};
 use super::settings::{Config, PipelineError};
 use super::state;
-use crate::filter::{Cascade, Delta};
+use crate::filter::{Bounded, Delta};
 
 /// Time over which a step is measured, seconds (the size that makes a
 /// step is in [`super::scale`]).
@@ -36,8 +36,9 @@ pub enum Restart {
 #[derive(Clone, Debug)]
 #[repr(C)]
 pub struct BandRestart {
-    // Lower band edge at the detector's rate.
-    highpass: Cascade<Delta, 1>,
+    // Lower band edge at the detector's rate. Bounded: its input is the
+    // low-pass's output, of conditioned (bounded) samples.
+    highpass: Bounded<Delta>,
     // Detector samples over which a step is measured (STEP_S).
     step_lag: usize,
     scale: Scale,
@@ -67,7 +68,7 @@ impl BandRestart {
         // against the exact span.
         let lost_after = libm::floorf(LOST_SILENCES * state::SILENCE_S * fd) as u64;
         Self {
-            highpass: Cascade::new([highpass]),
+            highpass: Bounded::new(highpass),
             step_lag: (libm::roundf(STEP_S * fd) as usize).max(1),
             lost_at: lost_after,
             lost_after,
