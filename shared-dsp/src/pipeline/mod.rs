@@ -98,6 +98,12 @@ pub struct Pipeline {
     // stay within a load's reach of the base).
     n: u64,
     t: u64,
+    // Detector samples until the signal state is next decided, and the
+    // spacing of those decisions (`Config::state_every`); input samples
+    // clipped since the last one.
+    state_in: u32,
+    state_every: u32,
+    clipped_since: u32,
     conditioning: Conditioning,
     band: BandRestart,
     monitor: Monitor,
@@ -146,6 +152,9 @@ impl Pipeline {
         Ok(Self {
             n: 0,
             t: 0,
+            state_in: 1,
+            state_every: config.state_every(),
+            clipped_since: 0,
             conditioning,
             band,
             monitor: Monitor::new(fs),
@@ -235,15 +244,21 @@ impl Pipeline {
         let Some(block) = self.conditioning.block() else {
             return Output::default();
         };
-        let mut out = Output {
-            beat: None,
-            state: self.monitor.block(
+        // The signal state is decided on every `state_every`-th detector
+        // sample, over the input samples since the last decision.
+        self.clipped_since += block.clipped;
+        self.state_in -= 1;
+        let mut out = Output::default();
+        if self.state_in == 0 {
+            self.state_in = self.state_every;
+            out.state = self.monitor.block(
                 n,
-                block.clipped,
-                self.conditioning.decimation(),
+                self.clipped_since,
+                self.state_every * self.conditioning.decimation(),
                 self.book.recent_ibi(),
-            ),
-        };
+            );
+            self.clipped_since = 0;
+        }
         let y = self.band_pass(c.smoothed, c.value, block);
         let now = self.t;
         self.t += 1;

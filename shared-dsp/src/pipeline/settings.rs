@@ -68,6 +68,12 @@ pub fn check_sample_rate(rate_hz: f64) -> Result<f64, SampleRateError> {
 /// the detector's rate.
 pub const DETECTOR_BASE_HZ: f32 = 62.5;
 
+/// The signal state is decided on every `floor(fd / 31.25)`-th detector
+/// sample (at least every one), so 31.25 to 62.5 times a second: it
+/// follows seconds of beats and clipping, and deciding it at the
+/// detector's full rate cost a tenth of the pipeline at 125 Hz.
+pub const STATE_BASE_HZ: f32 = 31.25;
+
 /// Settings with defaults a sensor builder rarely needs to change.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -135,6 +141,13 @@ impl Config {
     /// at least 1.
     pub(super) fn decimation(&self) -> u32 {
         max_f32(libm::floorf(self.sample_rate_hz / DETECTOR_BASE_HZ), 1.0) as u32
+    }
+
+    /// Detector samples per decision of the signal state:
+    /// `floor(fd / STATE_BASE_HZ)`, at least 1.
+    pub(super) fn state_every(&self) -> u32 {
+        let fd = self.sample_rate_hz / self.decimation() as f32;
+        max_f32(libm::floorf(fd / STATE_BASE_HZ), 1.0) as u32
     }
 }
 
