@@ -7,7 +7,7 @@
 use super::band;
 use super::condition::{Conditioner, Rails};
 use super::settings::{Config, PipelineError};
-use crate::filter::{Bounded, Delta};
+use crate::filter::{Bounded, Delta, PlainDelta};
 
 /// Order of the band's low-pass (and of its high-pass): two poles at each
 /// edge, the band of [`super`]'s Butterworth design.
@@ -49,8 +49,8 @@ pub struct Conditioning {
     phase: u32,
     conditioner: Conditioner,
     // Upper band edge at the input rate. Bounded: the conditioner keeps
-    // its input within `INPUT_LIMIT`.
-    lowpass: Bounded<Delta>,
+    // its input within `INPUT_LIMIT`; plain: see `PlainDelta`.
+    lowpass: Bounded<PlainDelta>,
     mark: u8,
     // Clipped input samples since the last detector-rate sample.
     clipped_in_block: u32,
@@ -75,7 +75,7 @@ impl Conditioning {
             decim,
             phase: 0,
             conditioner: Conditioner::new(rails, config.sample_rate_hz),
-            lowpass: Bounded::new(lowpass),
+            lowpass: Bounded::new(PlainDelta(lowpass)),
             mark: 0,
             clipped_in_block: 0,
         }
