@@ -142,6 +142,20 @@ impl Conditioning {
         Some(block)
     }
 
+    /// Input samples still to come before the next detector-rate sample
+    /// (1 to the decimation).
+    #[inline(always)]
+    pub fn remaining(&self) -> u32 {
+        self.decim - self.phase
+    }
+
+    /// After `k` calls of [`Self::push`], fewer than [`Self::remaining`]:
+    /// the phase moves on by `k` (no block completes).
+    #[inline(always)]
+    pub fn skip(&mut self, k: u32) {
+        self.phase += k;
+    }
+
     /// Start the low-pass at `value` (after a step); its output at rest.
     pub fn settle(&mut self, value: f32) -> f32 {
         self.lowpass.settle(value)

@@ -36,6 +36,7 @@
 //! ```
 
 pub mod band;
+mod block;
 pub mod bookkeeping;
 pub mod condition;
 pub mod conditioning;
@@ -73,7 +74,7 @@ pub use zong::Zong;
 
 use crate::hrv::HrvStats;
 use bookkeeping::{At, BeatBook};
-use conditioning::{Block, Conditioning};
+use conditioning::{Block, Conditioning, Smoothed};
 use detector::AnyDetector;
 use gate::{CandidateGate, Recent};
 use placement::{Look, PeakPlacement};
@@ -234,13 +235,8 @@ impl Pipeline {
     /// rate, HRV and signal state, which follow good beats).
     #[inline(always)]
     pub fn push_with<M: MotionReference>(&mut self, x: f32, motion: &M) -> Output {
-        let c = self.conditioning.push(x, self.n == 0);
-        if let Some(rest) = c.first_rest {
-            self.band.start(rest);
-        }
-        self.traces.input.put(self.n, c.value);
-        let n = self.n;
-        self.n += 1;
+        let c = self.input_sample(x);
+        let n = self.n - 1;
         let Some(block) = self.conditioning.block() else {
             return Output::default();
         };
@@ -270,6 +266,18 @@ impl Pipeline {
             out.beat = self.candidate(&cand, now, n, motion);
         }
         out
+    }
+
+    /// The input-rate part of a sample: conditioned, low-passed, kept.
+    #[inline(always)]
+    fn input_sample(&mut self, x: f32) -> Smoothed {
+        let c = self.conditioning.push(x, self.n == 0);
+        if let Some(rest) = c.first_rest {
+            self.band.start(rest);
+        }
+        self.traces.input.put(self.n, c.value);
+        self.n += 1;
+        c
     }
 
     /// The detector-rate part before the detector: the step judgement, a
