@@ -37,6 +37,12 @@ impl<S: Section> Bounded<S> {
         self.section.steady_output(x)
     }
 
+    /// The state (after the last sample).
+    #[inline(always)]
+    pub fn state(&self) -> &S::State {
+        &self.state
+    }
+
     /// The section.
     pub fn section(&self) -> &S {
         &self.section

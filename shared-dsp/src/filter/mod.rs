@@ -8,7 +8,6 @@
 //! | structure | sample | use it for |
 //! |---|---|---|
 //! | [`Delta`] | `f32` | the default: low corners at high sample rates (0.5 Hz at 1 kHz) stay accurate |
-//! | [`PlainDelta`] | `f32` | [`Delta`] without its compensated sum: cheaper, for corners well above 1 Hz |
 //! | [`Df2t`] | `f32` / `f64` | textbook transposed direct form II; fine when corners are above ~fs/100 |
 //! | [`Df1`] | `f32` / `f64` | textbook direct form I |
 //! | [`Q31`] | `i32` (Q1.31) | cores without an FPU (Cortex-M0/M3); 64-bit accumulator and error feedback |
@@ -21,14 +20,12 @@ mod biquad;
 mod bounded;
 mod cascade;
 mod delta;
-mod plain_delta;
 mod q31;
 
 pub use biquad::{Biquad, Df1, Df1State, Df2t, Df2tState, Real};
 pub use bounded::Bounded;
 pub use cascade::Cascade;
 pub use delta::{Delta, DeltaState};
-pub use plain_delta::PlainDelta;
 pub use q31::{from_q31, to_q31, Q31State, Q31};
 
 use crate::DesignError;

@@ -74,7 +74,7 @@ pub use zong::Zong;
 
 use crate::hrv::HrvStats;
 use bookkeeping::{At, BeatBook};
-use conditioning::{Block, Conditioning, Smoothed};
+use conditioning::{Block, Conditioning};
 use detector::AnyDetector;
 use gate::{CandidateGate, Recent};
 use placement::{Look, PeakPlacement};
@@ -235,11 +235,14 @@ impl Pipeline {
     /// rate, HRV and signal state, which follow good beats).
     #[inline(always)]
     pub fn push_with<M: MotionReference>(&mut self, x: f32, motion: &M) -> Output {
-        let c = self.input_sample(x);
+        self.input_sample(x);
         let n = self.n - 1;
         let Some(block) = self.conditioning.block() else {
             return Output::default();
         };
+        // Read back, not kept from `input_sample`: kept, it would be saved
+        // to the stack on every sample for the few that get here.
+        let c = self.conditioning.last();
         // The signal state is decided on every `state_every`-th detector
         // sample, over the input samples since the last decision.
         self.clipped_since += block.clipped;
@@ -270,14 +273,13 @@ impl Pipeline {
 
     /// The input-rate part of a sample: conditioned, low-passed, kept.
     #[inline(always)]
-    fn input_sample(&mut self, x: f32) -> Smoothed {
+    fn input_sample(&mut self, x: f32) {
         let c = self.conditioning.push(x, self.n == 0);
         if let Some(rest) = c.first_rest {
             self.band.start(rest);
         }
         self.traces.input.put(self.n, c.value);
         self.n += 1;
-        c
     }
 
     /// The detector-rate part before the detector: the step judgement, a
