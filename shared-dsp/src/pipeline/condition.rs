@@ -69,49 +69,67 @@ impl Conditioner {
     }
 
     /// Condition one sample.
+    #[inline(always)]
     pub fn push(&mut self, x: f32) -> Conditioned {
-        // One comparison: NaN fails it too.
-        #[allow(clippy::neg_cmp_op_on_partial_ord)]
-        if !(x.abs() <= INPUT_LIMIT) {
-            self.rejected += 1;
-            return Conditioned {
-                value: self.last_value(),
-                rejected: true,
-                clipped: false,
-            };
-        }
-        let clipped = match self.rails {
-            Rails::Known { low, high } => x <= low || x >= high,
+        match self.rails {
+            Rails::Known { low, high } => {
+                // One comparison: NaN fails it too.
+                #[allow(clippy::neg_cmp_op_on_partial_ord)]
+                if !(x.abs() <= INPUT_LIMIT) {
+                    return self.replace();
+                }
+                self.accept(x, x <= low || x >= high)
+            }
             Rails::Auto => {
-                // A run of equal values counts whether or not it sits at an
-                // extreme: a constant value that is not the maximum or the
-                // minimum cannot become one without changing, so only
-                // runs at an extreme ever reach the test below, and the
-                // extremes need comparing only then. A repeat cannot move
-                // the extremes (its value was taken last time), so they
-                // are updated only when the value changes.
-                if x == self.last {
-                    self.run += 1;
-                    self.run >= self.plateau && (x == self.max || x == self.min)
+                // Within the extremes seen so far, which only taken samples
+                // set: finite, within `INPUT_LIMIT` and no new extreme, in
+                // two comparisons (NaN fails them). Nearly every sample
+                // after the first seconds.
+                if x <= self.max && x >= self.min {
+                    // A run of equal values counts whether or not it sits
+                    // at an extreme: a constant value that is not the
+                    // maximum or the minimum cannot become one without
+                    // changing, so only runs at an extreme ever reach the
+                    // test of the extremes.
+                    let clipped = if x == self.last {
+                        self.run += 1;
+                        self.run >= self.plateau && (x == self.max || x == self.min)
+                    } else {
+                        self.run = 1;
+                        false
+                    };
+                    self.accept(x, clipped)
                 } else {
-                    self.run = 1;
-                    // x is finite here and the extremes never NaN, so
-                    // plain comparisons do (a tie keeps the old extreme:
-                    // the same number, and only compared with `==`). New
-                    // extremes are rare after the first seconds: one test
-                    // for both.
-                    if x > self.max || x < self.min {
-                        if x > self.max {
-                            self.max = x;
-                        }
-                        if x < self.min {
-                            self.min = x;
-                        }
-                    }
-                    false
+                    self.push_outside(x)
                 }
             }
-        };
+        }
+    }
+
+    /// [`Self::push`] with automatic rails of a sample beyond the extremes
+    /// seen so far: a new extreme (never clipped: it differs from the last
+    /// sample, which lies within the old ones), or one to replace.
+    #[inline(always)]
+    fn push_outside(&mut self, x: f32) -> Conditioned {
+        #[allow(clippy::neg_cmp_op_on_partial_ord)]
+        if !(x.abs() <= INPUT_LIMIT) {
+            return self.replace();
+        }
+        // A tie keeps the old extreme (the same number, and only compared
+        // with `==`).
+        if x > self.max {
+            self.max = x;
+        }
+        if x < self.min {
+            self.min = x;
+        }
+        self.run = 1;
+        self.accept(x, false)
+    }
+
+    /// Take `x`, `clipped` or not.
+    #[inline(always)]
+    fn accept(&mut self, x: f32, clipped: bool) -> Conditioned {
         self.last = x;
         if clipped {
             self.clipped += 1;
@@ -120,6 +138,16 @@ impl Conditioner {
             value: x,
             rejected: false,
             clipped,
+        }
+    }
+
+    /// A sample not taken: counted, the last taken value in its place.
+    fn replace(&mut self) -> Conditioned {
+        self.rejected += 1;
+        Conditioned {
+            value: self.last_value(),
+            rejected: true,
+            clipped: false,
         }
     }
 
