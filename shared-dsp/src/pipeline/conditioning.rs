@@ -163,16 +163,12 @@ impl Conditioning {
         self.phase += k;
     }
 
-    /// The last sample as conditioned, and low-passed: what [`Self::push`]
-    /// returned for it (read back from the stage's state, so the caller
-    /// need not keep it across the per-sample path).
+    /// The last sample low-passed: what [`Self::push`] returned for it as
+    /// `smoothed` (read back from the low-pass's state, so the caller need
+    /// not keep it across the per-sample path).
     #[inline(always)]
-    pub fn last(&self) -> Smoothed {
-        Smoothed {
-            value: self.conditioner.last_value(),
-            smoothed: self.lowpass.state().y[0],
-            first_rest: None,
-        }
+    pub fn last_smoothed(&self) -> f32 {
+        self.lowpass.state().y[0]
     }
 
     /// Start the low-pass at `value` (after a step); its output at rest.

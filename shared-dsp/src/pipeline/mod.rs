@@ -242,7 +242,7 @@ impl Pipeline {
         };
         // Read back, not kept from `input_sample`: kept, it would be saved
         // to the stack on every sample for the few that get here.
-        let c = self.conditioning.last();
+        let smoothed = self.conditioning.last_smoothed();
         // The signal state is decided on every `state_every`-th detector
         // sample, over the input samples since the last decision.
         self.clipped_since += block.clipped;
@@ -258,7 +258,7 @@ impl Pipeline {
             );
             self.clipped_since = 0;
         }
-        let y = self.band_pass(c.smoothed, c.value, block);
+        let y = self.band_pass(smoothed, block);
         let now = self.t;
         self.t += 1;
         if let Some(mut cand) = self.detector.process(y) {
@@ -286,7 +286,7 @@ impl Pipeline {
     /// restart or the high-pass, the signal-state floor, the rings.
     /// Returns the band-passed value.
     #[inline(always)]
-    fn band_pass(&mut self, mut s: f32, value: f32, block: Block) -> f32 {
+    fn band_pass(&mut self, mut s: f32, block: Block) -> f32 {
         let why = self.band.judge(s, &self.traces.smoothed, self.t);
         if self.monitor.state() == SignalState::NoSignal {
             // Without pulses the floor sinks: a pulse much smaller than the
@@ -301,7 +301,7 @@ impl Pipeline {
                     // level too, so no part of its step response, of
                     // whatever size, reaches the detector or the pulse
                     // measures.
-                    s = self.conditioning.settle(value);
+                    s = self.conditioning.settle(self.conditioning.last_value());
                 }
                 self.restart(s, why)
             }
