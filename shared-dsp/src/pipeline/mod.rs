@@ -237,12 +237,9 @@ impl Pipeline {
         };
         let mut out = Output {
             beat: None,
-            state: self.monitor.block(
-                n,
-                block.clipped,
-                self.conditioning.decimation(),
-                self.book.recent_ibi(),
-            ),
+            state: self
+                .monitor
+                .block(n, block.clipped, self.conditioning.decimation()),
         };
         let y = self.band_pass(c.smoothed, c.value, block);
         let now = self.t;
@@ -297,6 +294,7 @@ impl Pipeline {
         let rest = self.band.restart(s, why, self.t);
         self.detector.reset();
         self.book.restart();
+        self.monitor.median(self.book.recent_ibi());
         rest
     }
 
@@ -360,6 +358,7 @@ impl Pipeline {
         let trusted = self.book.record(at, &judged, shape.as_ref());
         let good = judged.flags.is_good();
         self.monitor.beat(at.peak, good);
+        self.monitor.median(self.book.recent_ibi());
         // Trusted while the signal is good (the state outlives a restart:
         // the first two beats after one never set the level the floor
         // comes from).

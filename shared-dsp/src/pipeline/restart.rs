@@ -88,13 +88,11 @@ impl BandRestart {
     /// the `smoothed` values before it: whether to start afresh.
     #[inline(always)]
     pub fn judge<const N: usize>(&mut self, s: f32, smoothed: &Ring<N>, t: u64) -> Option<Restart> {
-        // The ring holds at least the lag, so its age is below the ring's
-        // size: no age test.
-        let jump = if smoothed.len() >= self.step_lag {
-            s - smoothed.at_within(self.step_lag - 1)
-        } else {
-            0.0
-        };
+        // No fill test: until the ring holds the lag (the first lag
+        // samples of the pipeline) the scale has seen fewer than the lag
+        // and judges no jump (`Scale::early_step`), so what the unwritten
+        // slots give is never used. The lag is below the ring's size.
+        let jump = s - smoothed.at_within(self.step_lag - 1);
         let change = self.scale.push(s, jump);
         match change {
             Change::Step => Some(Restart::Step),

@@ -33,6 +33,9 @@ const NO_MEDIAN: u32 = u32::MAX;
 pub struct Monitor {
     state: SignalState,
     clip_share: f32,
+    // `clip_share > SATURATED_SHARE`, kept where the share changes (most
+    // blocks leave it at 0).
+    saturated: bool,
     clip_alpha: f32,
     // The block length the share's weight was last worked out for, and
     // that weight (`min(clip_alpha · samples, 1)`): blocks keep one length.
@@ -71,6 +74,7 @@ impl Monitor {
         Self {
             state: SignalState::Acquiring,
             clip_share: 0.0,
+            saturated: false,
             clip_alpha: 1.0 / (CLIP_WINDOW_S * fs_hz),
             alpha_samples: 0,
             block_alpha: 0.0,
@@ -89,8 +93,18 @@ impl Monitor {
         }
     }
 
-    /// The median interval changed (its bits `key`): the silence limit
-    /// follows it.
+    /// The recent median interval, after every change of it (a beat, a
+    /// restart): the silence limit follows it. Told when it changes, not
+    /// read on every block, so a block does no work for it.
+    #[inline]
+    pub fn median(&mut self, median_ibi_ms: Option<f32>) {
+        let key = median_ibi_ms.map_or(NO_MEDIAN, f32::to_bits);
+        if key != self.silence_for {
+            self.new_median(median_ibi_ms, key);
+        }
+    }
+
+    /// The median interval changed (its bits `key`).
     // Once per beat at most: kept out of the per-block path's code.
     #[cold]
     #[inline(never)]
@@ -121,16 +135,10 @@ impl Monitor {
     }
 
     /// Update once per block of `samples` input samples ending at input
-    /// index `n`, `clipped` of them at the rails, with the recent median
-    /// interval; report a change of state. (The pipeline calls it at the
-    /// detector's rate: state needs no finer timing.)
-    pub fn block(
-        &mut self,
-        n: u64,
-        clipped: u32,
-        samples: u32,
-        median_ibi_ms: Option<f32>,
-    ) -> Option<StateEvent> {
+    /// index `n`, `clipped` of them at the rails; report a change of
+    /// state. (The pipeline calls it at the detector's rate: state needs
+    /// no finer timing.) The silence limit is the one [`Self::median`] set.
+    pub fn block(&mut self, n: u64, clipped: u32, samples: u32) -> Option<StateEvent> {
         // Most blocks hold no clipped sample, and the share is then often
         // exactly 0 already: it stays 0 (0 + α·(0 − 0)), no work.
         if clipped != 0 || self.clip_share != 0.0 {
@@ -144,15 +152,12 @@ impl Monitor {
                 self.block_alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
             }
             self.clip_share += self.block_alpha * (share - self.clip_share);
-        }
-        let key = median_ibi_ms.map_or(NO_MEDIAN, f32::to_bits);
-        if key != self.silence_for {
-            self.new_median(median_ibi_ms, key);
+            self.saturated = self.clip_share > SATURATED_SHARE;
         }
         // `n − last_beat > silence_after`, the difference saturating at 0
         // (indices are far below overflow).
         let silent = n > self.silent_after;
-        let saturated = self.clip_share > SATURATED_SHARE;
+        let saturated = self.saturated;
         // The decision below depends on these, the beat counts and the
         // state only, and taking it again on the same ones changes
         // nothing (a state it reached, and the good run it cleared, give
@@ -201,15 +206,16 @@ mod tests {
         let mut m = Monitor::new(100.0);
         m.beat(0, true);
         // 3 s floor at 100 Hz: silent after sample 300.
-        assert_eq!(m.block(300, 0, 1, None), None);
-        let e = m.block(301, 0, 1, None).expect("no signal");
+        assert_eq!(m.block(300, 0, 1), None);
+        let e = m.block(301, 0, 1).expect("no signal");
         assert_eq!(e.state, SignalState::NoSignal);
         // With 2 s intervals the limit is 2.5 intervals: 500 samples.
         let mut m = Monitor::new(100.0);
         m.beat(0, true);
-        assert_eq!(m.block(301, 0, 1, Some(2000.0)), None);
-        assert_eq!(m.block(500, 0, 1, Some(2000.0)), None);
-        assert!(m.block(501, 0, 1, Some(2000.0)).is_some());
+        m.median(Some(2000.0));
+        assert_eq!(m.block(301, 0, 1), None);
+        assert_eq!(m.block(500, 0, 1), None);
+        assert!(m.block(501, 0, 1).is_some());
     }
 
     #[test]
@@ -218,6 +224,7 @@ mod tests {
         // nothing moves, and taken again at each beat and when silence
         // begins.
         let mut m = Monitor::new(100.0);
+        m.median(Some(800.0));
         let mut states = std::vec::Vec::new();
         let mut n = 0u64;
         let mut run = |m: &mut Monitor, blocks: u64, beat_every: Option<u64>| {
@@ -226,7 +233,7 @@ mod tests {
                 if beat_every.is_some_and(|k| n % k == 0) {
                     m.beat(n, true);
                 }
-                if let Some(e) = m.block(n, 0, 2, Some(800.0)) {
+                if let Some(e) = m.block(n, 0, 2) {
                     states.push(e.state);
                 }
             }
@@ -245,10 +252,11 @@ mod tests {
         // Blocks of 4 samples, 3 clipped: a 75 % share, saturated within
         // the 2 s window (100 Hz: 50 blocks).
         let mut m = Monitor::new(100.0);
+        m.median(Some(800.0));
         let mut saw = false;
         for k in 0..50u64 {
             m.beat(4 * k, true);
-            if let Some(e) = m.block(4 * k + 3, 3, 4, Some(800.0)) {
+            if let Some(e) = m.block(4 * k + 3, 3, 4) {
                 saw |= e.state == SignalState::Saturated;
             }
         }
