@@ -51,6 +51,7 @@ pub mod restart;
 mod ring;
 pub mod scale;
 pub mod settings;
+mod sorted;
 pub mod state;
 pub mod traces;
 mod with_motion;
