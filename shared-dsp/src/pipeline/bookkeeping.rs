@@ -9,7 +9,7 @@ use super::motion::{self, MotionReference};
 use super::placement::DEFAULT_IBI_MS;
 use super::quality::{Shape, Template};
 use super::rate::{self, Intervals};
-use super::ring::Ring;
+use super::ring::Trace;
 use super::sorted::LastIntervals;
 use super::traces::SHAPE_RING;
 use crate::hrv::{HrvStats, HrvWindow};
@@ -167,8 +167,8 @@ impl BeatBook {
     pub fn judge<M: MotionReference>(
         &mut self,
         at: &At,
-        banded: &Ring<SHAPE_RING>,
-        marks: &Ring<SHAPE_RING, u8>,
+        banded: Trace<'_, SHAPE_RING>,
+        marks: Trace<'_, SHAPE_RING, u8>,
         motion: &M,
         shape: &mut Option<Shape>,
     ) -> Judged {
@@ -310,6 +310,7 @@ impl BeatBook {
 #[cfg(test)]
 mod tests {
     use super::super::motion::NoMotion;
+    use super::super::ring::Ring;
     use super::*;
 
     /// A pulse of period 50 detector samples on the banded ring, newest
@@ -342,7 +343,7 @@ mod tests {
         for k in 0..6u64 {
             let a = at(50 * k + 100, 50 * k + 90);
             let mut shape = None;
-            let j = book.judge(&a, &banded, &marks, &NoMotion, &mut shape);
+            let j = book.judge(&a, banded.trace(), marks.trace(), &NoMotion, &mut shape);
             let trusted = book.record(&a, &j, shape.as_ref());
             events.push((book.event(&a, &j, 1.0, None), trusted));
         }
@@ -370,7 +371,7 @@ mod tests {
             n: 101,
             ..at(100, 90)
         };
-        let j = book.judge(&a, &banded, &marks, &NoMotion, &mut None);
+        let j = book.judge(&a, banded.trace(), marks.trace(), &NoMotion, &mut None);
         assert!(j.flags.has(BeatFlags::CLIPPED));
     }
 }

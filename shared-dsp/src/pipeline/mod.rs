@@ -64,7 +64,7 @@ pub use detector::{Candidate, Detector, DetectorKind};
 pub use elgendi::Elgendi;
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
 pub use motion::{MotionReference, MotionTracker, NoMotion, Verdict};
-pub use ring::{History, Ring, RunningSum};
+pub use ring::{History, Ring, RunningSum, Trace};
 pub use settings::{
     check_sample_rate, Config, Options, PipelineError, RateRange, SampleRateError,
     DETECTOR_BASE_HZ, MAX_RATE_HZ, MIN_RATE_HZ,
@@ -207,7 +207,7 @@ impl Pipeline {
     /// the pipeline keeps anyway: it adds nothing to [`Self::push`].
     #[inline]
     pub fn band_passed(&self) -> f32 {
-        self.traces.banded.at(0)
+        self.traces.banded().at(0)
     }
 
     /// Times the filters restarted after a step in the input.
@@ -260,7 +260,7 @@ impl Pipeline {
     /// Returns the band-passed value.
     #[inline(always)]
     fn band_pass(&mut self, mut s: f32, value: f32, block: Block) -> f32 {
-        let why = self.band.judge(s, &self.traces.smoothed, self.t);
+        let why = self.band.judge(s, self.traces.smoothed(), self.t);
         if self.monitor.state() == SignalState::NoSignal {
             // Without pulses the floor sinks: a pulse much smaller than the
             // old one is found within seconds.
@@ -312,7 +312,7 @@ impl Pipeline {
         motion: &M,
     ) -> Option<BeatEvent> {
         let look = Look {
-            smoothed: &self.traces.smoothed,
+            smoothed: self.traces.smoothed(),
             input: &self.traces.input,
             now,
             since_restart: self.band.since_restart(now),
@@ -355,7 +355,7 @@ impl Pipeline {
         let mut shape = None;
         let judged = self
             .book
-            .judge(at, &traces.banded, &traces.marks, motion, &mut shape);
+            .judge(at, traces.banded(), traces.marks(), motion, &mut shape);
         let trusted = self.book.record(at, &judged, shape.as_ref());
         let good = judged.flags.is_good();
         self.monitor.beat(at.peak, good);

@@ -4,7 +4,7 @@
 //! back by the low-pass's group delay to the input, where the input's own
 //! first arrival at its top is the peak.
 
-use super::ring::{History, Ring};
+use super::ring::{History, Trace};
 use crate::math::{max_f32, min_f32};
 
 /// Frequency at which the low-pass's group delay is taken to move peaks
@@ -49,7 +49,7 @@ pub const DEFAULT_IBI_MS: f32 = 800.0;
 #[derive(Clone, Copy, Debug)]
 pub struct Look<'a, const S: usize, const I: usize> {
     /// The smoothed (low-passed) signal at the detector's rate.
-    pub smoothed: &'a Ring<S>,
+    pub smoothed: Trace<'a, S>,
     /// The conditioned input.
     pub input: &'a History<I>,
     /// Detector index of the newest smoothed sample.
@@ -269,6 +269,7 @@ fn butterworth2_delay_s(corner_hz: f32, at_hz: f32) -> f32 {
 
 #[cfg(test)]
 mod tests {
+    use super::super::ring::Ring;
     use super::*;
 
     #[test]
@@ -302,7 +303,7 @@ mod tests {
         let input = History::<512>::new();
         let p = PeakPlacement::new(100.0, 100.0, 1, 8.0);
         let look = Look {
-            smoothed: &smoothed,
+            smoothed: smoothed.trace(),
             input: &input,
             now: 59,
             since_restart: 59,
