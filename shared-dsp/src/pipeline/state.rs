@@ -60,12 +60,15 @@ pub struct Monitor {
     // Whole samples: `since > silence_after` is the same test as against
     // the exact limit, without converting `since` on every call.
     silence_after: u64,
-    // What the last state decision saw, besides the state itself: a beat
-    // since (`beats_changed`), saturated, silent. With none of them
-    // changed the decision is the same, so it is not taken again.
-    beats_changed: bool,
-    was_saturated: bool,
-    was_silent: bool,
+    // The input index from which the state is decided again. The decision
+    // depends on saturation, silence, the beat counts and the state only,
+    // and taking it again on the same ones changes nothing (a state it
+    // reached, and the good run it cleared, give that state again); so it
+    // is taken only when one of them may have moved: 0 after a beat, a new
+    // silence limit or a change of saturation, else the first index of
+    // silence (never, when silent already: only a beat or a new limit ends
+    // it). One comparison per block.
+    decide_at: u64,
 }
 
 impl Monitor {
@@ -87,9 +90,7 @@ impl Monitor {
             good_run: 0,
             silence_for: NO_MEDIAN,
             silence_after: libm::floorf(SILENCE_S * fs_hz) as u64,
-            beats_changed: true,
-            was_saturated: false,
-            was_silent: false,
+            decide_at: 0,
         }
     }
 
@@ -115,6 +116,7 @@ impl Monitor {
         self.silence_after = libm::floorf(silence_s * self.fs) as u64;
         self.silent_after = self.last_beat + self.silence_after;
         self.silence_for = key;
+        self.decide_at = 0;
     }
 
     /// The current state.
@@ -131,7 +133,7 @@ impl Monitor {
         self.bad = (self.recent & mask).count_ones();
         self.judged = (self.judged + 1).min(JUDGED_BEATS);
         self.good_run = if good { self.good_run + 1 } else { 0 };
-        self.beats_changed = true;
+        self.decide_at = 0;
     }
 
     /// Update once per block of `samples` input samples ending at input
@@ -152,22 +154,31 @@ impl Monitor {
                 self.block_alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
             }
             self.clip_share += self.block_alpha * (share - self.clip_share);
-            self.saturated = self.clip_share > SATURATED_SHARE;
+            let saturated = self.clip_share > SATURATED_SHARE;
+            if saturated != self.saturated {
+                self.saturated = saturated;
+                self.decide_at = 0;
+            }
         }
+        if n < self.decide_at {
+            return None;
+        }
+        self.decide(n)
+    }
+
+    /// The state decision at input index `n`, and when to take it next.
+    // A few times per beat at most: kept out of the per-block path's code.
+    #[inline(never)]
+    fn decide(&mut self, n: u64) -> Option<StateEvent> {
         // `n − last_beat > silence_after`, the difference saturating at 0
         // (indices are far below overflow).
         let silent = n > self.silent_after;
         let saturated = self.saturated;
-        // The decision below depends on these, the beat counts and the
-        // state only, and taking it again on the same ones changes
-        // nothing (a state it reached, and the good run it cleared, give
-        // that state again): skipped unless one of them moved.
-        if !self.beats_changed && saturated == self.was_saturated && silent == self.was_silent {
-            return None;
-        }
-        self.beats_changed = false;
-        self.was_saturated = saturated;
-        self.was_silent = silent;
+        self.decide_at = if silent {
+            u64::MAX
+        } else {
+            self.silent_after + 1
+        };
         let bad = self.bad;
         let next = if saturated {
             SignalState::Saturated
