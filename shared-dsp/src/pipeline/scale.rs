@@ -154,10 +154,23 @@ impl Scale {
         self.high = f32::NEG_INFINITY;
         self.low = f32::INFINITY;
         // Ranges of the newest second, of the blocks after it up to
-        // STEP_BLOCKS, and of the rest: each block is read once.
+        // STEP_BLOCKS, and of the rest: each block is read once. Once all
+        // are held (nearly always) the spans are constants, and the reads
+        // unrolled.
         let held = self.blocks;
-        let newest = self.range(0, QUIET_BLOCKS.min(held));
-        let older = self.range(QUIET_BLOCKS.min(held), held.min(STEP_BLOCKS));
+        let (newest, older, rest) = if held == JUDGED {
+            (
+                self.range(0, QUIET_BLOCKS),
+                self.range(QUIET_BLOCKS, STEP_BLOCKS),
+                self.range(STEP_BLOCKS, JUDGED),
+            )
+        } else {
+            (
+                self.range(0, QUIET_BLOCKS.min(held)),
+                self.range(QUIET_BLOCKS.min(held), held.min(STEP_BLOCKS)),
+                self.range(STEP_BLOCKS.min(held), held),
+            )
+        };
         self.step_range = (self.fresh >= STEP_AFTER).then(|| {
             let (high, low) = join(newest, older);
             high - low
@@ -167,7 +180,7 @@ impl Scale {
         // artefact that began with a restart (a step into it) and ended
         // within three seconds is a collapse too.
         if held > QUIET_BLOCKS {
-            let before = join(older, self.range(STEP_BLOCKS.min(held), held));
+            let before = join(older, rest);
             if (newest.0 - newest.1) * COLLAPSE_FACTOR < before.0 - before.1 {
                 return Change::Collapse;
             }
@@ -177,6 +190,7 @@ impl Scale {
 
     /// Highest and lowest value of the completed blocks `from..to` ago
     /// (0 = the newest); (−∞, ∞) when the span is empty.
+    #[inline(always)]
     fn range(&self, from: usize, to: usize) -> (f32, f32) {
         let mut high = f32::NEG_INFINITY;
         let mut low = f32::INFINITY;
