@@ -77,7 +77,10 @@ pub struct Elgendi {
     long_sum: RunningSum,
     mean_sq: f32,
     mean_alpha: f32,
-    t: u64,
+    // Detector index of the sample at the windows' centre (age D) on the
+    // next call: negative until D samples have come, so the warm-up test
+    // is its sign.
+    centre: i64,
     block_len: usize,
     // Samples left until the offset's mean starts again (IDLE_S after the
     // last block wide enough for a beat), and IDLE_S in samples.
@@ -119,7 +122,7 @@ impl Elgendi {
             long_sum: RunningSum::default(),
             mean_sq: 0.0,
             mean_alpha: 1.0 / max_f32(OFFSET_MEAN_TAU_S * fs_hz, 1.0),
-            t: 0,
+            centre: -(h2 as i64),
             block_len: 0,
             idle_left: (IDLE_S * fs_hz) as u32,
             idle_limit: (IDLE_S * fs_hz) as u32,
@@ -156,11 +159,15 @@ impl Detector for Elgendi {
             .add(self.history.at_within(self.delay - self.h1)[SQUARED]);
         self.short_sum
             .add(-self.history.at_within(self.delay + self.h1 + 1)[SQUARED]);
-        self.t += 1;
+        let centre = self.centre;
+        self.centre += 1;
         let ma_peak = self.short_sum.get() / self.w1_f;
         let ma_beat = self.long_sum.get() / self.w2_f;
         let threshold = ma_beat + BETA * self.mean_sq;
-        let centre_t = (self.t - 1).checked_sub(self.delay as u64)?;
+        if centre < 0 {
+            return None;
+        }
+        let centre_t = centre as u64;
         if ma_peak > threshold {
             let v = self.history.at_within(self.delay)[FILTERED];
             if self.block_len == 0 || v > self.best {
@@ -207,7 +214,7 @@ impl Detector for Elgendi {
         self.short_sum = RunningSum::default();
         self.long_sum = RunningSum::default();
         self.mean_sq = 0.0;
-        self.t = 0;
+        self.centre = -(self.delay as i64);
         self.block_len = 0;
         self.idle_left = self.idle_limit;
         self.narrow_run = 0;

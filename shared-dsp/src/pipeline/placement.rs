@@ -127,12 +127,17 @@ impl PeakPlacement {
         let mut best_age = age.min(oldest);
         let mut best = f32::NEG_INFINITY;
         // (Half-open ranges: an inclusive one tests for its end twice.)
-        for a in newest..oldest.max(newest) + 1 {
-            let v = look.smoothed.at(a);
-            if v > best {
-                best = v;
-                best_age = a;
+        if oldest >= newest {
+            // Every age here is at most `len − 1`: no age test per read.
+            for a in newest..oldest + 1 {
+                let v = look.smoothed.at_within(a);
+                if v > best {
+                    best = v;
+                    best_age = a;
+                }
             }
+        } else if look.smoothed.at(newest) > best {
+            best_age = newest;
         }
         look.now - best_age as u64
     }
@@ -160,8 +165,13 @@ impl PeakPlacement {
             .min(look.smoothed.len().saturating_sub(1))
             .min(look.since_restart);
         let mut foot = f32::INFINITY;
-        for a in age..oldest.max(age) + 1 {
-            foot = min_f32(foot, look.smoothed.at(a));
+        if oldest >= age {
+            // Every age here is at most `len − 1`: no age test per read.
+            for a in age..oldest + 1 {
+                foot = min_f32(foot, look.smoothed.at_within(a));
+            }
+        } else {
+            foot = min_f32(foot, look.smoothed.at(age));
         }
         look.smoothed.at(age) - foot
     }
@@ -235,7 +245,8 @@ impl PeakPlacement {
             .min(smoothed.len().saturating_sub(1))
             .min(look.since_restart.saturating_sub(1));
         let mut a = age;
-        while a < oldest && smoothed.at(a + 1) >= mid {
+        // (a + 1 ≤ oldest ≤ len − 1 in the loop: no age test per read.)
+        while a < oldest && smoothed.at_within(a + 1) >= mid {
             a += 1;
         }
         // Samples a + 1 (below mid) and a (at or above it), when found.
