@@ -37,6 +37,14 @@ pub struct Monitor {
     // blocks leave it at 0).
     saturated: bool,
     clip_alpha: f32,
+    // A share below this is taken as 0. Any clipped block adds at least
+    // about `clip_alpha` (its weight times a share of at least one sample
+    // in the block, or the share itself when the weight is 1), and a share
+    // below 2⁻²⁵ of what is added is lost in its rounding (half an ulp):
+    // the sum, and so every later share, is bit for bit what it would be
+    // from 0. Far below that, at `clip_alpha`·10⁻⁹, a decaying share stops
+    // costing work some 20 s in, not after minutes of underflow to 0.
+    clip_floor: f32,
     // The block length the share's weight was last worked out for, and
     // that weight (`min(clip_alpha · samples, 1)`): blocks keep one length.
     alpha_samples: u32,
@@ -79,6 +87,7 @@ impl Monitor {
             clip_share: 0.0,
             saturated: false,
             clip_alpha: 1.0 / (CLIP_WINDOW_S * fs_hz),
+            clip_floor: 1e-9 / (CLIP_WINDOW_S * fs_hz),
             alpha_samples: 0,
             block_alpha: 0.0,
             fs: fs_hz,
@@ -154,6 +163,11 @@ impl Monitor {
                 self.block_alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
             }
             self.clip_share += self.block_alpha * (share - self.clip_share);
+            if self.clip_share < self.clip_floor {
+                // Too small to move the next clipped block's share by a
+                // bit, or the state: exactly 0, and no work until then.
+                self.clip_share = 0.0;
+            }
             let saturated = self.clip_share > SATURATED_SHARE;
             if saturated != self.saturated {
                 self.saturated = saturated;
@@ -256,6 +270,28 @@ mod tests {
             states,
             [SignalState::Good, SignalState::NoSignal, SignalState::Good]
         );
+    }
+
+    #[test]
+    fn a_share_taken_as_zero_gives_the_next_clipped_block_the_same_share() {
+        // Blocks of 2 at 125 Hz: a burst, then gaps without clipping of
+        // every length up to 5000 blocks (the share falls below the floor
+        // after about 2400), then clipped blocks; the share after each is
+        // bit for bit what the plain running mean gives.
+        for gap in (0..5000).step_by(50) {
+            let mut m = Monitor::new(125.0);
+            let alpha = m.clip_alpha * 2.0;
+            let mut plain = 0.0f32;
+            let burst = (0..40).map(|k| k % 2);
+            let clips = burst.chain(core::iter::repeat(0).take(gap));
+            for (k, clipped) in clips.chain([1, 2, 0, 1]).enumerate() {
+                m.block(2 * k as u64, clipped, 2);
+                plain += alpha * (clipped as f32 / 2.0 - plain);
+                if clipped != 0 {
+                    assert_eq!(m.clip_share.to_bits(), plain.to_bits(), "gap {gap}");
+                }
+            }
+        }
     }
 
     #[test]
