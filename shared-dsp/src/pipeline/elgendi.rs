@@ -146,8 +146,8 @@ impl Elgendi {
 impl Detector for Elgendi {
     /// Feed one band-passed sample; returns a beat once its block closes.
     fn process(&mut self, y: f32) -> Option<Candidate> {
-        let clipped = max_f32(y, 0.0);
-        let z = clipped * clipped;
+        // The clipped square (max(y, 0)²; NaN and −0 give 0 as well).
+        let z = if y > 0.0 { y * y } else { 0.0 };
         self.history.push([z, y]);
         self.mean_sq += self.mean_alpha * (z - self.mean_sq);
         // Long window: the last W2 samples, centred on age D.

@@ -138,7 +138,10 @@ impl CandidateGate {
     }
 
     /// One detector sample without a signal: the floor sinks.
-    #[inline(always)]
+    // Only while there is no signal: out of line, so the per-sample test
+    // is a branch, not four predicated instructions every sample.
+    #[cold]
+    #[inline(never)]
     pub fn sink(&mut self) {
         self.level_floor *= self.floor_decay;
     }

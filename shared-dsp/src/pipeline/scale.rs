@@ -74,7 +74,8 @@ pub struct Scale {
     // quiet second kept from before a collapse).
     fresh: usize,
     // Range of the STEP_BLOCKS newest completed blocks, kept per block,
-    // and STEP_FACTOR times it (the per-sample test is one comparison).
+    // and STEP_FACTOR times it (the per-sample test is one comparison;
+    // −∞ without a range).
     step_range: Option<f32>,
     step_jump: f32,
 }
@@ -94,7 +95,7 @@ impl Scale {
             blocks: 0,
             fresh: 0,
             step_range: None,
-            step_jump: f32::INFINITY,
+            step_jump: f32::NEG_INFINITY,
         }
     }
 
@@ -102,12 +103,9 @@ impl Scale {
     /// step lag ago), then take the newest smoothed value `s`.
     #[inline]
     pub fn push(&mut self, s: f32, jump: f32) -> Change {
-        let step = if self.step_range.is_some() {
-            jump.abs() > self.step_jump
-        } else {
-            self.early_step(jump)
-        };
-        if step {
+        // Without a step range the threshold is −∞, so the one comparison
+        // sends every sample of the early second on to `early_step`.
+        if jump.abs() > self.step_jump && (self.step_range.is_some() || self.early_step(jump)) {
             return Change::Step;
         }
         // The smoothed input is finite (the conditioner replaces NaN), so
@@ -175,7 +173,9 @@ impl Scale {
             let (high, low) = join(newest, older);
             high - low
         });
-        self.step_jump = self.step_range.map_or(f32::INFINITY, |r| STEP_FACTOR * r);
+        self.step_jump = self
+            .step_range
+            .map_or(f32::NEG_INFINITY, |r| STEP_FACTOR * r);
         // Judged as soon as a block before the quiet second is held: an
         // artefact that began with a restart (a step into it) and ended
         // within three seconds is a collapse too.
@@ -225,7 +225,7 @@ impl Scale {
         self.blocks = self.blocks.min(QUIET_BLOCKS);
         self.fresh = 0;
         self.step_range = None;
-        self.step_jump = f32::INFINITY;
+        self.step_jump = f32::NEG_INFINITY;
     }
 
     /// Range of the newest completed blocks up to [`STEP_BLOCKS`], if
