@@ -65,7 +65,11 @@ const FILTERED: usize = 1;
 #[derive(Clone, Debug)]
 #[repr(C)]
 pub struct Elgendi {
-    h1: usize,
+    // The ages at which a sample enters the short window (D − h1, h1 its
+    // half-width) and leaves it (D + h1 + 1), kept so each read is one
+    // load of the age.
+    short_in: usize,
+    short_out: usize,
     w1: usize,
     w2: usize,
     delay: usize,
@@ -111,7 +115,8 @@ impl Elgendi {
         let h1 = h1.min(h2);
         Self {
             fs_hz,
-            h1,
+            short_in: h2 - h1,
+            short_out: h2 + h1 + 1,
             w1: 2 * h1 + 1,
             w2: 2 * h2 + 1,
             delay: h2,
@@ -156,9 +161,9 @@ impl Detector for Elgendi {
         self.long_sum.add(-self.history.at_within(self.w2)[SQUARED]);
         // Short window: W1 samples centred on age D.
         self.short_sum
-            .add(self.history.at_within(self.delay - self.h1)[SQUARED]);
+            .add(self.history.at_within(self.short_in)[SQUARED]);
         self.short_sum
-            .add(-self.history.at_within(self.delay + self.h1 + 1)[SQUARED]);
+            .add(-self.history.at_within(self.short_out)[SQUARED]);
         let centre = self.centre;
         self.centre += 1;
         let ma_peak = self.short_sum.get() / self.w1_f;
