@@ -201,10 +201,8 @@ impl BeatBook {
         // The window's marks together, then their bits once. Every age
         // read here and by the shape is below `banded.len() − 1` (`from`
         // is), and the marks ring is as full: no age test per read.
-        let mut marked = 0u8;
-        for a in (libm::floorf(to) as usize)..(libm::ceilf(from) as usize + 1) {
-            marked |= marks.at_within(a);
-        }
+        let window = (libm::floorf(to) as usize)..(libm::ceilf(from) as usize + 1);
+        let marked = marks.ages(window.start, window.end).fold(0u8, |m, v| m | v);
         if marked & MARK_CLIPPED != 0 {
             flags |= BeatFlags::CLIPPED;
         }

@@ -124,21 +124,19 @@ impl PeakPlacement {
         let oldest = (age + self.search_before)
             .min(look.smoothed.len().saturating_sub(1))
             .min(look.since_restart);
-        let mut best_age = age.min(oldest);
-        let mut best = f32::NEG_INFINITY;
-        // (Half-open ranges: an inclusive one tests for its end twice.)
-        if oldest >= newest {
-            // Every age here is at most `len − 1`: no age test per read.
-            for a in newest..oldest + 1 {
-                let v = look.smoothed.at_within(a);
-                if v > best {
-                    best = v;
-                    best_age = a;
-                }
-            }
-        } else if look.smoothed.at(newest) > best {
-            best_age = newest;
-        }
+        // The first of the highest; (half-open ranges: an inclusive one
+        // tests for its end twice).
+        let none = (f32::NEG_INFINITY, age.min(oldest));
+        let best_age = if oldest >= newest {
+            // Every age here is at most `len − 1`: read as runs of slots.
+            let ages = look.smoothed.ages(newest, oldest + 1).zip(newest..);
+            ages.fold(none, |(b, ba), (v, a)| if v > b { (v, a) } else { (b, ba) })
+                .1
+        } else if look.smoothed.at(newest) > none.0 {
+            newest
+        } else {
+            none.1
+        };
         look.now - best_age as u64
     }
 
@@ -166,10 +164,8 @@ impl PeakPlacement {
             .min(look.since_restart);
         let mut foot = f32::INFINITY;
         if oldest >= age {
-            // Every age here is at most `len − 1`: no age test per read.
-            for a in age..oldest + 1 {
-                foot = min_f32(foot, look.smoothed.at_within(a));
-            }
+            // Every age here is at most `len − 1`: read as runs of slots.
+            foot = look.smoothed.ages(age, oldest + 1).fold(foot, min_f32);
         } else {
             foot = min_f32(foot, look.smoothed.at(age));
         }
@@ -244,11 +240,10 @@ impl PeakPlacement {
         let oldest = (age + back)
             .min(smoothed.len().saturating_sub(1))
             .min(look.since_restart.saturating_sub(1));
-        let mut a = age;
-        // (a + 1 ≤ oldest ≤ len − 1 in the loop: no age test per read.)
-        while a < oldest && smoothed.at_within(a + 1) >= mid {
-            a += 1;
-        }
+        // The first age after the peak's below `mid` (a + 1 ≤ oldest ≤
+        // len − 1: read as runs of slots); at most `oldest`.
+        let above_mid = smoothed.ages(age + 1, oldest + 1).position(|v| !(v >= mid));
+        let a = age + above_mid.unwrap_or(oldest.saturating_sub(age));
         // Samples a + 1 (below mid) and a (at or above it), when found.
         let (below, above) = (smoothed.at(a + 1), smoothed.at(a));
         let frac = if a < oldest && above > below {
