@@ -13,18 +13,21 @@ pub const SHAPE_RING: usize = 256;
 pub const INPUT_RING: usize = 512;
 
 /// The rings of recent samples.
-// `repr(C)`: the detector-rate rings' one counter first (see `Pipeline`).
+// `repr(C)`: the detector-rate rings' one counter first (see `Pipeline`),
+// then the input history, written on every input sample: it then starts
+// less than 4 KiB into the pipeline, an offset one add reaches (measured:
+// 0.6 instructions per sample less at 125 Hz than with it last).
 #[derive(Clone, Debug)]
 #[repr(C)]
 pub struct Traces {
     // The detector-rate rings are pushed together: one counter
     // (`ring::advance`) for the three.
     head: usize,
+    /// The conditioned input, by input index.
+    pub input: History<INPUT_RING>,
     smoothed: [f32; SHAPE_RING],
     banded: [f32; SHAPE_RING],
     marks: [u8; SHAPE_RING],
-    /// The conditioned input, by input index.
-    pub input: History<INPUT_RING>,
 }
 
 impl Traces {
