@@ -137,9 +137,8 @@ impl CandidateGate {
         }
     }
 
-    /// One detector sample without a signal: the floor sinks.
-    // Only while there is no signal: out of line, so the per-sample test
-    // is a branch, not four predicated instructions every sample.
+    /// One detector sample without a signal: the floor sinks. (Out of
+    /// line: the caller's per-sample test is then only a branch.)
     #[cold]
     #[inline(never)]
     pub fn sink(&mut self) {

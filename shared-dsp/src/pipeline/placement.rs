@@ -6,6 +6,7 @@
 
 use super::ring::{History, Trace};
 use crate::math::{max_f32, min_f32};
+use core::cmp::Ordering;
 
 /// Frequency at which the low-pass's group delay is taken to move peaks
 /// and onsets back to where they are in the input, Hz: a pulse's
@@ -242,7 +243,8 @@ impl PeakPlacement {
             .min(look.since_restart.saturating_sub(1));
         // The first age after the peak's below `mid` (a + 1 ≤ oldest ≤
         // len − 1: read as runs of slots); at most `oldest`.
-        let above_mid = smoothed.ages(age + 1, oldest + 1).position(|v| !(v >= mid));
+        let under_mid = |v: f32| matches!(v.partial_cmp(&mid), None | Some(Ordering::Less));
+        let above_mid = smoothed.ages(age + 1, oldest + 1).position(under_mid);
         let a = age + above_mid.unwrap_or(oldest.saturating_sub(age));
         // Samples a + 1 (below mid) and a (at or above it), when found.
         let (below, above) = (smoothed.at(a + 1), smoothed.at(a));

@@ -85,7 +85,7 @@ impl<const N: usize> Default for Sorted<N> {
 pub fn sortable(x: f32) -> bool {
     // NaN compares with nothing; 0.0 and −0.0 compare equal with other
     // bits.
-    x == x && x != 0.0
+    !x.is_nan() && x != 0.0
 }
 
 /// The last `K` intervals and their median: the reference intervals of a

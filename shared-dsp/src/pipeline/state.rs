@@ -283,7 +283,7 @@ mod tests {
             let alpha = m.clip_alpha * 2.0;
             let mut plain = 0.0f32;
             let burst = (0..40).map(|k| k % 2);
-            let clips = burst.chain(core::iter::repeat(0).take(gap));
+            let clips = burst.chain(core::iter::repeat_n(0, gap));
             for (k, clipped) in clips.chain([1, 2, 0, 1]).enumerate() {
                 m.block(2 * k as u64, clipped, 2);
                 plain += alpha * (clipped as f32 / 2.0 - plain);
