@@ -24,6 +24,9 @@ pub struct Intervals {
     // whose window's values `sorted` holds.
     pushes: usize,
     synced: usize,
+    // How many of the newest end in order (each at or after the one
+    // before): over them the window's test is monotone in age.
+    ordered: usize,
     sorted: Sorted<HISTORY>,
 }
 
@@ -37,12 +40,19 @@ impl Intervals {
             len: 0,
             pushes: 0,
             synced: 0,
+            ordered: 0,
             sorted: Sorted::new(),
         }
     }
 
     /// Record a good interval ending at input index `at`.
     pub fn push(&mut self, ibi_ms: f32, at: u64) {
+        let in_order = self.len > 0 && at >= self.at[self.head];
+        self.ordered = if in_order {
+            (self.ordered + 1).min(HISTORY)
+        } else {
+            1
+        };
         self.head = (self.head + 1) % HISTORY;
         self.ibi[self.head] = ibi_ms;
         self.at[self.head] = at;
@@ -77,10 +87,19 @@ impl Intervals {
     /// copied and selected again (once per beat, the dearest part of a
     /// beat's bookkeeping).
     pub fn median_since_kept(&mut self, since: u64) -> Option<(f32, usize)> {
-        // The same span as `median_since`: the newest run ending after
-        // `since`.
-        let mut k = 0;
-        while k < self.len && self.at[(self.head + HISTORY - k) % HISTORY] >= since {
+        // The same span as `median_since` finds, without scanning it all:
+        // start at the last span's end (plus the pushes since), kept
+        // within the newest that end in order, where "ended after `since`"
+        // holds up to one age and not beyond; step down while the age
+        // before fails (then every age below passes), then up as
+        // `median_since` scans.
+        let at = |age: usize| self.at[(self.head + HISTORY - age) % HISTORY];
+        let fresh = self.pushes.wrapping_sub(self.synced);
+        let mut k = (self.sorted.len() + fresh).min(self.ordered.min(self.len));
+        while k > 0 && at(k - 1) < since {
+            k -= 1;
+        }
+        while k < self.len && at(k) >= since {
             k += 1;
         }
         if k == 0 {
@@ -88,7 +107,6 @@ impl Intervals {
         }
         // The kept values are those of the `sorted.len()` newest as of
         // `synced` pushes, i.e. of the ages below `held` now.
-        let fresh = self.pushes.wrapping_sub(self.synced);
         self.synced = self.pushes;
         let mut held = self.sorted.len() + fresh;
         if held > self.len {
