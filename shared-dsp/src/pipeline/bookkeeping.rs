@@ -9,7 +9,8 @@ use super::motion::{self, MotionReference};
 use super::placement::DEFAULT_IBI_MS;
 use super::quality::{Shape, Template};
 use super::rate::{self, Intervals};
-use super::ring::Ring;
+use super::ring::Trace;
+use super::sorted::LastIntervals;
 use super::traces::SHAPE_RING;
 use crate::hrv::{HrvStats, HrvWindow};
 use crate::math::{max_f32, min_f32};
@@ -17,6 +18,10 @@ use crate::math::{max_f32, min_f32};
 /// Intervals whose median is the reference for plausibility, peak search
 /// and pulse windows.
 pub const RECENT_INTERVALS: usize = 8;
+
+// The steadiness under motion is judged on the reference intervals, which
+// hold only the last RECENT_INTERVALS.
+const _: () = assert!(motion::STEADY_INTERVALS <= RECENT_INTERVALS);
 
 /// Intervals kept for heart-rate variability (about two minutes at 60 bpm).
 pub const HRV_INTERVALS: usize = 128;
@@ -84,7 +89,7 @@ pub struct BeatBook {
     intervals: Intervals,
     // Every interval, trusted or not: the reference for plausibility, so one
     // odd interval early on cannot lock every later beat out.
-    all_intervals: Intervals,
+    all_intervals: LastIntervals<RECENT_INTERVALS>,
     hrv: HrvWindow<HRV_INTERVALS>,
 }
 
@@ -105,7 +110,7 @@ impl BeatBook {
             hr_window_s,
             template: Template::new(),
             intervals: Intervals::new(),
-            all_intervals: Intervals::new(),
+            all_intervals: LastIntervals::new(),
             hrv: HrvWindow::new(),
         }
     }
@@ -162,8 +167,8 @@ impl BeatBook {
     pub fn judge<M: MotionReference>(
         &mut self,
         at: &At,
-        banded: &Ring<SHAPE_RING>,
-        marks: &Ring<SHAPE_RING, u8>,
+        banded: Trace<'_, SHAPE_RING>,
+        marks: Trace<'_, SHAPE_RING, u8>,
         motion: &M,
         shape: &mut Option<Shape>,
     ) -> Judged {
@@ -180,8 +185,8 @@ impl BeatBook {
         // pulse would ever match (so none would ever be good).
         let period = median.or(ibi).unwrap_or(DEFAULT_IBI_MS) * self.fd / 1000.0;
         if let Some(i) = ibi {
-            self.all_intervals.push(i, at.peak);
-            self.recent_ibi = self.all_intervals.recent_median(RECENT_INTERVALS);
+            self.all_intervals.push(i);
+            self.recent_ibi = self.all_intervals.median();
         }
         // The refined peak's age in detector samples, and the window.
         let age = (at.n - at.peak) as f32 / self.decim as f32;
@@ -196,10 +201,8 @@ impl BeatBook {
         // The window's marks together, then their bits once. Every age
         // read here and by the shape is below `banded.len() − 1` (`from`
         // is), and the marks ring is as full: no age test per read.
-        let mut marked = 0u8;
-        for a in (libm::floorf(to) as usize)..(libm::ceilf(from) as usize + 1) {
-            marked |= marks.at_within(a);
-        }
+        let window = (libm::floorf(to) as usize)..(libm::ceilf(from) as usize + 1);
+        let marked = marks.ages(window.start, window.end).fold(0u8, |m, v| m | v);
         if marked & MARK_CLIPPED != 0 {
             flags |= BeatFlags::CLIPPED;
         }
@@ -221,7 +224,7 @@ impl BeatBook {
             }
         };
         if M::JUDGES {
-            let spread = self.all_intervals.recent_spread(motion::STEADY_INTERVALS);
+            let spread = self.all_intervals.spread(motion::STEADY_INTERVALS);
             if motion.judge(ibi, spread).flags() {
                 flags |= BeatFlags::MOTION;
             }
@@ -276,11 +279,17 @@ impl BeatBook {
 
     /// The beat's event: `judged` at `at`, of `amplitude`, with its
     /// `onset` (input index).
-    pub fn event(&self, at: &At, judged: &Judged, amplitude: f32, onset: Option<u64>) -> BeatEvent {
+    pub fn event(
+        &mut self,
+        at: &At,
+        judged: &Judged,
+        amplitude: f32,
+        onset: Option<u64>,
+    ) -> BeatEvent {
         let window = (self.hr_window_s * self.fs) as u64;
         let smoothed = self
             .intervals
-            .median_since(at.peak.saturating_sub(window))
+            .median_since_kept(at.peak.saturating_sub(window))
             .map(|(m, _)| MS_PER_MINUTE / m);
         BeatEvent {
             peak_index: at.peak,
@@ -299,6 +308,7 @@ impl BeatBook {
 #[cfg(test)]
 mod tests {
     use super::super::motion::NoMotion;
+    use super::super::ring::Ring;
     use super::*;
 
     /// A pulse of period 50 detector samples on the banded ring, newest
@@ -331,7 +341,7 @@ mod tests {
         for k in 0..6u64 {
             let a = at(50 * k + 100, 50 * k + 90);
             let mut shape = None;
-            let j = book.judge(&a, &banded, &marks, &NoMotion, &mut shape);
+            let j = book.judge(&a, banded.trace(), marks.trace(), &NoMotion, &mut shape);
             let trusted = book.record(&a, &j, shape.as_ref());
             events.push((book.event(&a, &j, 1.0, None), trusted));
         }
@@ -359,7 +369,7 @@ mod tests {
             n: 101,
             ..at(100, 90)
         };
-        let j = book.judge(&a, &banded, &marks, &NoMotion, &mut None);
+        let j = book.judge(&a, banded.trace(), marks.trace(), &NoMotion, &mut None);
         assert!(j.flags.has(BeatFlags::CLIPPED));
     }
 }

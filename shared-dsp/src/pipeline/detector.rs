@@ -98,8 +98,12 @@ const _: () = {
 /// The detector of a [`DetectorKind`], held inline (no allocation in this
 /// crate; the variants' sizes differ by a few hundred bytes, nothing next
 /// to the pipeline's rings).
+// `repr(u8)`: the variant is told by a byte of its own (left to the
+// compiler it was a niche in a 64-bit field: two words compared per
+// sample).
 #[allow(clippy::large_enum_variant)]
 #[derive(Clone, Debug)]
+#[repr(u8)]
 pub(crate) enum AnyDetector {
     Elgendi(Elgendi),
     Zong(Zong),

@@ -65,7 +65,11 @@ const FILTERED: usize = 1;
 #[derive(Clone, Debug)]
 #[repr(C)]
 pub struct Elgendi {
-    h1: usize,
+    // The ages at which a sample enters the short window (D − h1, h1 its
+    // half-width) and leaves it (D + h1 + 1), kept so each read is one
+    // load of the age.
+    short_in: usize,
+    short_out: usize,
     w1: usize,
     w2: usize,
     delay: usize,
@@ -77,7 +81,10 @@ pub struct Elgendi {
     long_sum: RunningSum,
     mean_sq: f32,
     mean_alpha: f32,
-    t: u64,
+    // Detector index of the sample at the windows' centre (age D) on the
+    // next call: negative until D samples have come, so the warm-up test
+    // is its sign.
+    centre: i64,
     block_len: usize,
     // Samples left until the offset's mean starts again (IDLE_S after the
     // last block wide enough for a beat), and IDLE_S in samples.
@@ -108,7 +115,8 @@ impl Elgendi {
         let h1 = h1.min(h2);
         Self {
             fs_hz,
-            h1,
+            short_in: h2 - h1,
+            short_out: h2 + h1 + 1,
             w1: 2 * h1 + 1,
             w2: 2 * h2 + 1,
             delay: h2,
@@ -119,7 +127,7 @@ impl Elgendi {
             long_sum: RunningSum::default(),
             mean_sq: 0.0,
             mean_alpha: 1.0 / max_f32(OFFSET_MEAN_TAU_S * fs_hz, 1.0),
-            t: 0,
+            centre: -(h2 as i64),
             block_len: 0,
             idle_left: (IDLE_S * fs_hz) as u32,
             idle_limit: (IDLE_S * fs_hz) as u32,
@@ -143,8 +151,8 @@ impl Elgendi {
 impl Detector for Elgendi {
     /// Feed one band-passed sample; returns a beat once its block closes.
     fn process(&mut self, y: f32) -> Option<Candidate> {
-        let clipped = max_f32(y, 0.0);
-        let z = clipped * clipped;
+        // The clipped square (max(y, 0)²; NaN and −0 give 0 as well).
+        let z = if y > 0.0 { y * y } else { 0.0 };
         self.history.push([z, y]);
         self.mean_sq += self.mean_alpha * (z - self.mean_sq);
         // Long window: the last W2 samples, centred on age D.
@@ -153,14 +161,18 @@ impl Detector for Elgendi {
         self.long_sum.add(-self.history.at_within(self.w2)[SQUARED]);
         // Short window: W1 samples centred on age D.
         self.short_sum
-            .add(self.history.at_within(self.delay - self.h1)[SQUARED]);
+            .add(self.history.at_within(self.short_in)[SQUARED]);
         self.short_sum
-            .add(-self.history.at_within(self.delay + self.h1 + 1)[SQUARED]);
-        self.t += 1;
+            .add(-self.history.at_within(self.short_out)[SQUARED]);
+        let centre = self.centre;
+        self.centre += 1;
         let ma_peak = self.short_sum.get() / self.w1_f;
         let ma_beat = self.long_sum.get() / self.w2_f;
         let threshold = ma_beat + BETA * self.mean_sq;
-        let centre_t = (self.t - 1).checked_sub(self.delay as u64)?;
+        if centre < 0 {
+            return None;
+        }
+        let centre_t = centre as u64;
         if ma_peak > threshold {
             let v = self.history.at_within(self.delay)[FILTERED];
             if self.block_len == 0 || v > self.best {
@@ -207,7 +219,7 @@ impl Detector for Elgendi {
         self.short_sum = RunningSum::default();
         self.long_sum = RunningSum::default();
         self.mean_sq = 0.0;
-        self.t = 0;
+        self.centre = -(self.delay as i64);
         self.block_len = 0;
         self.idle_left = self.idle_limit;
         self.narrow_run = 0;

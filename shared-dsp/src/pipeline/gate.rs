@@ -137,8 +137,10 @@ impl CandidateGate {
         }
     }
 
-    /// One detector sample without a signal: the floor sinks.
-    #[inline(always)]
+    /// One detector sample without a signal: the floor sinks. (Out of
+    /// line: the caller's per-sample test is then only a branch.)
+    #[cold]
+    #[inline(never)]
     pub fn sink(&mut self) {
         self.level_floor *= self.floor_decay;
     }

@@ -52,6 +52,7 @@ pub mod restart;
 mod ring;
 pub mod scale;
 pub mod settings;
+mod sorted;
 pub mod state;
 pub mod traces;
 mod with_motion;
@@ -64,7 +65,7 @@ pub use detector::{Candidate, Detector, DetectorKind};
 pub use elgendi::Elgendi;
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
 pub use motion::{MotionReference, MotionTracker, NoMotion, Verdict};
-pub use ring::{History, Ring, RunningSum};
+pub use ring::{History, Ring, RunningSum, Trace};
 pub use settings::{
     check_sample_rate, Config, Options, PipelineError, RateRange, SampleRateError,
     DETECTOR_BASE_HZ, MAX_RATE_HZ, MIN_RATE_HZ,
@@ -216,7 +217,7 @@ impl Pipeline {
     /// the pipeline keeps anyway: it adds nothing to [`Self::push`].
     #[inline]
     pub fn band_passed(&self) -> f32 {
-        self.traces.banded.at(0)
+        self.traces.banded().at(0)
     }
 
     /// Times the filters restarted after a step in the input.
@@ -254,7 +255,6 @@ impl Pipeline {
                 n,
                 self.clipped_since,
                 self.state_every * self.conditioning.decimation(),
-                self.book.recent_ibi(),
             );
             self.clipped_since = 0;
         }
@@ -286,8 +286,13 @@ impl Pipeline {
     /// restart or the high-pass, the signal-state floor, the rings.
     /// Returns the band-passed value.
     #[inline(always)]
+<<<<<<< HEAD
     fn band_pass(&mut self, mut s: f32, block: Block) -> f32 {
         let why = self.band.judge(s, &self.traces.smoothed, self.t);
+=======
+    fn band_pass(&mut self, mut s: f32, value: f32, block: Block) -> f32 {
+        let why = self.band.judge(s, self.traces.smoothed(), self.t);
+>>>>>>> beatcost
         if self.monitor.state() == SignalState::NoSignal {
             // Without pulses the floor sinks: a pulse much smaller than the
             // old one is found within seconds.
@@ -322,6 +327,7 @@ impl Pipeline {
         let rest = self.band.restart(s, why, self.t);
         self.detector.reset();
         self.book.restart();
+        self.monitor.median(self.book.recent_ibi());
         rest
     }
 
@@ -338,7 +344,7 @@ impl Pipeline {
         motion: &M,
     ) -> Option<BeatEvent> {
         let look = Look {
-            smoothed: &self.traces.smoothed,
+            smoothed: self.traces.smoothed(),
             input: &self.traces.input,
             now,
             since_restart: self.band.since_restart(now),
@@ -381,10 +387,11 @@ impl Pipeline {
         let mut shape = None;
         let judged = self
             .book
-            .judge(at, &traces.banded, &traces.marks, motion, &mut shape);
+            .judge(at, traces.banded(), traces.marks(), motion, &mut shape);
         let trusted = self.book.record(at, &judged, shape.as_ref());
         let good = judged.flags.is_good();
         self.monitor.beat(at.peak, good);
+        self.monitor.median(self.book.recent_ibi());
         // Trusted while the signal is good (the state outlives a restart:
         // the first two beats after one never set the level the floor
         // comes from).

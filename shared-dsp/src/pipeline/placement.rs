@@ -4,8 +4,9 @@
 //! back by the low-pass's group delay to the input, where the input's own
 //! first arrival at its top is the peak.
 
-use super::ring::{History, Ring};
+use super::ring::{History, Trace};
 use crate::math::{max_f32, min_f32};
+use core::cmp::Ordering;
 
 /// Frequency at which the low-pass's group delay is taken to move peaks
 /// and onsets back to where they are in the input, Hz: a pulse's
@@ -49,7 +50,7 @@ pub const DEFAULT_IBI_MS: f32 = 800.0;
 #[derive(Clone, Copy, Debug)]
 pub struct Look<'a, const S: usize, const I: usize> {
     /// The smoothed (low-passed) signal at the detector's rate.
-    pub smoothed: &'a Ring<S>,
+    pub smoothed: Trace<'a, S>,
     /// The conditioned input.
     pub input: &'a History<I>,
     /// Detector index of the newest smoothed sample.
@@ -124,16 +125,19 @@ impl PeakPlacement {
         let oldest = (age + self.search_before)
             .min(look.smoothed.len().saturating_sub(1))
             .min(look.since_restart);
-        let mut best_age = age.min(oldest);
-        let mut best = f32::NEG_INFINITY;
-        // (Half-open ranges: an inclusive one tests for its end twice.)
-        for a in newest..oldest.max(newest) + 1 {
-            let v = look.smoothed.at(a);
-            if v > best {
-                best = v;
-                best_age = a;
-            }
-        }
+        // The first of the highest; (half-open ranges: an inclusive one
+        // tests for its end twice).
+        let none = (f32::NEG_INFINITY, age.min(oldest));
+        let best_age = if oldest >= newest {
+            // Every age here is at most `len − 1`: read as runs of slots.
+            let ages = look.smoothed.ages(newest, oldest + 1).zip(newest..);
+            ages.fold(none, |(b, ba), (v, a)| if v > b { (v, a) } else { (b, ba) })
+                .1
+        } else if look.smoothed.at(newest) > none.0 {
+            newest
+        } else {
+            none.1
+        };
         look.now - best_age as u64
     }
 
@@ -160,8 +164,11 @@ impl PeakPlacement {
             .min(look.smoothed.len().saturating_sub(1))
             .min(look.since_restart);
         let mut foot = f32::INFINITY;
-        for a in age..oldest.max(age) + 1 {
-            foot = min_f32(foot, look.smoothed.at(a));
+        if oldest >= age {
+            // Every age here is at most `len − 1`: read as runs of slots.
+            foot = look.smoothed.ages(age, oldest + 1).fold(foot, min_f32);
+        } else {
+            foot = min_f32(foot, look.smoothed.at(age));
         }
         look.smoothed.at(age) - foot
     }
@@ -234,10 +241,11 @@ impl PeakPlacement {
         let oldest = (age + back)
             .min(smoothed.len().saturating_sub(1))
             .min(look.since_restart.saturating_sub(1));
-        let mut a = age;
-        while a < oldest && smoothed.at(a + 1) >= mid {
-            a += 1;
-        }
+        // The first age after the peak's below `mid` (a + 1 ≤ oldest ≤
+        // len − 1: read as runs of slots); at most `oldest`.
+        let under_mid = |v: f32| matches!(v.partial_cmp(&mid), None | Some(Ordering::Less));
+        let above_mid = smoothed.ages(age + 1, oldest + 1).position(under_mid);
+        let a = age + above_mid.unwrap_or(oldest.saturating_sub(age));
         // Samples a + 1 (below mid) and a (at or above it), when found.
         let (below, above) = (smoothed.at(a + 1), smoothed.at(a));
         let frac = if a < oldest && above > below {
@@ -269,6 +277,7 @@ fn butterworth2_delay_s(corner_hz: f32, at_hz: f32) -> f32 {
 
 #[cfg(test)]
 mod tests {
+    use super::super::ring::Ring;
     use super::*;
 
     #[test]
@@ -302,7 +311,7 @@ mod tests {
         let input = History::<512>::new();
         let p = PeakPlacement::new(100.0, 100.0, 1, 8.0);
         let look = Look {
-            smoothed: &smoothed,
+            smoothed: smoothed.trace(),
             input: &input,
             now: 59,
             since_restart: 59,

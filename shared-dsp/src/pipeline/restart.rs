@@ -5,7 +5,9 @@
 //! limit without a beat.
 
 use super::band;
+#[cfg(test)]
 use super::ring::Ring;
+use super::ring::Trace;
 use super::scale::{Change, Scale};
 use super::settings::{Config, PipelineError};
 use super::state;
@@ -94,14 +96,17 @@ impl BandRestart {
     /// Judge the newest smoothed value `s` at detector index `t` against
     /// the `smoothed` values before it: whether to start afresh.
     #[inline(always)]
-    pub fn judge<const N: usize>(&mut self, s: f32, smoothed: &Ring<N>, t: u64) -> Option<Restart> {
-        // The ring holds at least the lag, so its age is below the ring's
-        // size: no age test.
-        let jump = if smoothed.len() >= self.step_lag {
-            s - smoothed.at_within(self.step_lag - 1)
-        } else {
-            0.0
-        };
+    pub fn judge<const N: usize>(
+        &mut self,
+        s: f32,
+        smoothed: Trace<'_, N>,
+        t: u64,
+    ) -> Option<Restart> {
+        // No fill test: until the ring holds the lag (the first lag
+        // samples of the pipeline) the scale has seen fewer than the lag
+        // and judges no jump (`Scale::early_step`), so what the unwritten
+        // slots give is never used. The lag is below the ring's size.
+        let jump = s - smoothed.at_within(self.step_lag - 1);
         let change = self.scale.push(s, jump);
         match change {
             Change::Step => Some(Restart::Step),
@@ -207,7 +212,7 @@ mod tests {
         let mut why = None;
         for t in 0..400u64 {
             let s = libm::sinf(t as f32 * 0.12) + if t >= 300 { 50.0 } else { 0.0 };
-            let j = b.judge(s, &ring, t);
+            let j = b.judge(s, ring.trace(), t);
             if j.is_some() && why.is_none() {
                 why = j.map(|w| (w, t));
             }
@@ -223,10 +228,10 @@ mod tests {
         let ring = Ring::<256>::new();
         let limit = libm::floorf(LOST_SILENCES * state::SILENCE_S * fd) as u64;
         // Flat: the scale sees nothing; only the silence counts.
-        assert_eq!(b.judge(0.0, &ring, limit), None);
+        assert_eq!(b.judge(0.0, ring.trace(), limit), None);
         b.beat(10);
-        assert_eq!(b.judge(0.0, &ring, limit + 1), None);
-        assert_eq!(b.judge(0.0, &ring, limit + 11), Some(Restart::Lost));
+        assert_eq!(b.judge(0.0, ring.trace(), limit + 1), None);
+        assert_eq!(b.judge(0.0, ring.trace(), limit + 11), Some(Restart::Lost));
         assert_eq!(b.restart(0.0, Restart::Lost, limit + 11), 0.0);
         assert_eq!((b.epoch(), b.restarts()), (limit + 11, 1));
         assert_eq!(b.since_restart(limit + 20), 9);

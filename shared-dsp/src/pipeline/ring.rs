@@ -34,24 +34,21 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// Append a value, forgetting the oldest once full.
     #[inline]
     pub fn push(&mut self, v: T) {
-        // Below N the count goes up by one; from N on, bit N stays set
-        // and the low bits wrap: the newest slot is `head % N` either way
-        // (a mask, and no bounds check).
-        self.head = ((self.head + 1) & (2 * N - 1)) | (self.head & N);
+        self.head = advance::<N>(self.head);
         self.data[self.head % N] = v;
+    }
+
+    /// The ring to read, as a [`Trace`].
+    #[inline]
+    pub fn trace(&self) -> Trace<'_, N, T> {
+        Trace::new(self.head, &self.data)
     }
 
     /// The value pushed `age` pushes ago (0 = newest); the default value
     /// (0) when older than what the ring holds.
     #[inline]
     pub fn at(&self, age: usize) -> T {
-        if age >= N {
-            return T::default();
-        }
-        // A slot not yet written since `new` still holds the default, so
-        // ages between `len()` and `N` need no test of their own. age < N,
-        // so this cannot underflow.
-        self.data[(self.head + N - age) % N]
+        self.trace().at(age)
     }
 
     /// [`Self::at`] for an `age` the caller keeps below `N` (a window
@@ -60,19 +57,12 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
     /// would.
     #[inline]
     pub fn at_within(&self, age: usize) -> T {
-        debug_assert!(age < N);
-        // For a power-of-two N the wrapping difference's remainder is the
-        // slot `age` back, as in `at`.
-        self.data[self.head.wrapping_sub(age) % N]
+        self.trace().at_within(age)
     }
 
     /// How many values are held.
     pub fn len(&self) -> usize {
-        if self.head >= N {
-            N
-        } else {
-            self.head
-        }
+        self.trace().len()
     }
 
     /// Nothing pushed yet?
@@ -89,6 +79,89 @@ impl<const N: usize, T: Copy + Default> Ring<N, T> {
 impl<const N: usize, T: Copy + Default> Default for Ring<N, T> {
     fn default() -> Self {
         Self::new()
+    }
+}
+
+/// A ring's counter after one more push (from 0, the empty ring's), for
+/// owners that keep several rings pushed together on one counter.
+#[inline(always)]
+pub const fn advance<const N: usize>(head: usize) -> usize {
+    // Below N the count goes up by one; from N on, bit N stays set and the
+    // low bits wrap: the newest slot is `head % N` either way (a mask, and
+    // no bounds check).
+    ((head + 1) & (2 * N - 1)) | (head & N)
+}
+
+/// A ring's values read by age: its counter ([`advance`]) and slots
+/// (written at `head % N`), borrowed. `N` is a power of two.
+#[derive(Clone, Copy, Debug)]
+pub struct Trace<'a, const N: usize, T = f32> {
+    head: usize,
+    data: &'a [T; N],
+}
+
+impl<'a, const N: usize, T: Copy + Default> Trace<'a, N, T> {
+    /// The ring of counter `head` and slots `data`.
+    #[inline(always)]
+    pub fn new(head: usize, data: &'a [T; N]) -> Self {
+        Self { head, data }
+    }
+
+    /// As [`Ring::at`].
+    #[inline]
+    pub fn at(&self, age: usize) -> T {
+        if age >= N {
+            return T::default();
+        }
+        // A slot not yet written since `new` still holds the default, so
+        // ages between `len()` and `N` need no test of their own. age < N,
+        // so this cannot underflow.
+        self.data[(self.head + N - age) % N]
+    }
+
+    /// As [`Ring::at_within`].
+    #[inline]
+    pub fn at_within(&self, age: usize) -> T {
+        debug_assert!(age < N);
+        // For a power-of-two N the wrapping difference's remainder is the
+        // slot `age` back, as in `at`.
+        self.data[self.head.wrapping_sub(age) % N]
+    }
+
+    /// The values of ages `from..to` (`to ≤ N`, and `to ≤ len()` for only
+    /// values pushed), newest first, read as at most two runs of slots with
+    /// no index arithmetic per value (a loop over it costs what a loop over
+    /// a slice does, used with `fold`, `position` and the like); empty when
+    /// `to ≤ from`.
+    #[inline]
+    pub fn ages(&self, from: usize, to: usize) -> impl Iterator<Item = T> + 'a {
+        let count = to.max(from) - from;
+        debug_assert!(count <= N);
+        // Age a is slot (head − a) mod N: the ages run down the slots from
+        // `first`, past slot 0 to slot N − 1 at most once.
+        let first = self.head.wrapping_sub(from) % N;
+        let data: &'a [T; N] = self.data;
+        let (upper, lower) = if count <= first + 1 {
+            (&data[first + 1 - count..first + 1], &data[..0])
+        } else {
+            (&data[..first + 1], &data[N - (count - first - 1)..])
+        };
+        upper.iter().rev().chain(lower.iter().rev()).copied()
+    }
+
+    /// How many values are held.
+    #[inline]
+    pub fn len(&self) -> usize {
+        if self.head >= N {
+            N
+        } else {
+            self.head
+        }
+    }
+
+    /// Nothing pushed yet?
+    pub fn is_empty(&self) -> bool {
+        self.head == 0
     }
 }
 
@@ -144,6 +217,22 @@ mod tests {
             assert_eq!(r.at_within(age), r.at(age));
         }
         assert_eq!(r.at(4), 0.0);
+    }
+
+    #[test]
+    fn runs_of_ages_read_as_ages_one_by_one() {
+        let mut r = Ring::<8, u32>::new();
+        for v in 1..=21 {
+            r.push(v);
+            let t = r.trace();
+            for from in 0..=8 {
+                for to in 0..=8 {
+                    let runs: std::vec::Vec<u32> = t.ages(from, to).collect();
+                    let one_by_one: std::vec::Vec<u32> = (from..to).map(|a| t.at(a)).collect();
+                    assert_eq!(runs, one_by_one, "{v}: {from}..{to}");
+                }
+            }
+        }
     }
 
     #[test]

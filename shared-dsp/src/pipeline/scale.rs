@@ -74,7 +74,8 @@ pub struct Scale {
     // quiet second kept from before a collapse).
     fresh: usize,
     // Range of the STEP_BLOCKS newest completed blocks, kept per block,
-    // and STEP_FACTOR times it (the per-sample test is one comparison).
+    // and STEP_FACTOR times it (the per-sample test is one comparison;
+    // −∞ without a range).
     step_range: Option<f32>,
     step_jump: f32,
 }
@@ -94,7 +95,7 @@ impl Scale {
             blocks: 0,
             fresh: 0,
             step_range: None,
-            step_jump: f32::INFINITY,
+            step_jump: f32::NEG_INFINITY,
         }
     }
 
@@ -102,12 +103,9 @@ impl Scale {
     /// step lag ago), then take the newest smoothed value `s`.
     #[inline]
     pub fn push(&mut self, s: f32, jump: f32) -> Change {
-        let step = if self.step_range.is_some() {
-            jump.abs() > self.step_jump
-        } else {
-            self.early_step(jump)
-        };
-        if step {
+        // Without a step range the threshold is −∞, so the one comparison
+        // sends every sample of the early second on to `early_step`.
+        if jump.abs() > self.step_jump && (self.step_range.is_some() || self.early_step(jump)) {
             return Change::Step;
         }
         // The smoothed input is finite (the conditioner replaces NaN), so
@@ -154,20 +152,35 @@ impl Scale {
         self.high = f32::NEG_INFINITY;
         self.low = f32::INFINITY;
         // Ranges of the newest second, of the blocks after it up to
-        // STEP_BLOCKS, and of the rest: each block is read once.
+        // STEP_BLOCKS, and of the rest: each block is read once. Once all
+        // are held (nearly always) the spans are constants, and the reads
+        // unrolled.
         let held = self.blocks;
-        let newest = self.range(0, QUIET_BLOCKS.min(held));
-        let older = self.range(QUIET_BLOCKS.min(held), held.min(STEP_BLOCKS));
+        let (newest, older, rest) = if held == JUDGED {
+            (
+                self.range(0, QUIET_BLOCKS),
+                self.range(QUIET_BLOCKS, STEP_BLOCKS),
+                self.range(STEP_BLOCKS, JUDGED),
+            )
+        } else {
+            (
+                self.range(0, QUIET_BLOCKS.min(held)),
+                self.range(QUIET_BLOCKS.min(held), held.min(STEP_BLOCKS)),
+                self.range(STEP_BLOCKS.min(held), held),
+            )
+        };
         self.step_range = (self.fresh >= STEP_AFTER).then(|| {
             let (high, low) = join(newest, older);
             high - low
         });
-        self.step_jump = self.step_range.map_or(f32::INFINITY, |r| STEP_FACTOR * r);
+        self.step_jump = self
+            .step_range
+            .map_or(f32::NEG_INFINITY, |r| STEP_FACTOR * r);
         // Judged as soon as a block before the quiet second is held: an
         // artefact that began with a restart (a step into it) and ended
         // within three seconds is a collapse too.
         if held > QUIET_BLOCKS {
-            let before = join(older, self.range(STEP_BLOCKS.min(held), held));
+            let before = join(older, rest);
             if (newest.0 - newest.1) * COLLAPSE_FACTOR < before.0 - before.1 {
                 return Change::Collapse;
             }
@@ -177,6 +190,7 @@ impl Scale {
 
     /// Highest and lowest value of the completed blocks `from..to` ago
     /// (0 = the newest); (−∞, ∞) when the span is empty.
+    #[inline(always)]
     fn range(&self, from: usize, to: usize) -> (f32, f32) {
         let mut high = f32::NEG_INFINITY;
         let mut low = f32::INFINITY;
@@ -211,7 +225,7 @@ impl Scale {
         self.blocks = self.blocks.min(QUIET_BLOCKS);
         self.fresh = 0;
         self.step_range = None;
-        self.step_jump = f32::INFINITY;
+        self.step_jump = f32::NEG_INFINITY;
     }
 
     /// Range of the newest completed blocks up to [`STEP_BLOCKS`], if

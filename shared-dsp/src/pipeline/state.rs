@@ -33,7 +33,18 @@ const NO_MEDIAN: u32 = u32::MAX;
 pub struct Monitor {
     state: SignalState,
     clip_share: f32,
+    // `clip_share > SATURATED_SHARE`, kept where the share changes (most
+    // blocks leave it at 0).
+    saturated: bool,
     clip_alpha: f32,
+    // A share below this is taken as 0. Any clipped block adds at least
+    // about `clip_alpha` (its weight times a share of at least one sample
+    // in the block, or the share itself when the weight is 1), and a share
+    // below 2⁻²⁵ of what is added is lost in its rounding (half an ulp):
+    // the sum, and so every later share, is bit for bit what it would be
+    // from 0. Far below that, at `clip_alpha`·10⁻⁹, a decaying share stops
+    // costing work some 20 s in, not after minutes of underflow to 0.
+    clip_floor: f32,
     // The block length the share's weight was last worked out for, and
     // that weight (`min(clip_alpha · samples, 1)`): blocks keep one length.
     alpha_samples: u32,
@@ -57,12 +68,15 @@ pub struct Monitor {
     // Whole samples: `since > silence_after` is the same test as against
     // the exact limit, without converting `since` on every call.
     silence_after: u64,
-    // What the last state decision saw, besides the state itself: a beat
-    // since (`beats_changed`), saturated, silent. With none of them
-    // changed the decision is the same, so it is not taken again.
-    beats_changed: bool,
-    was_saturated: bool,
-    was_silent: bool,
+    // The input index from which the state is decided again. The decision
+    // depends on saturation, silence, the beat counts and the state only,
+    // and taking it again on the same ones changes nothing (a state it
+    // reached, and the good run it cleared, give that state again); so it
+    // is taken only when one of them may have moved: 0 after a beat, a new
+    // silence limit or a change of saturation, else the first index of
+    // silence (never, when silent already: only a beat or a new limit ends
+    // it). One comparison per block.
+    decide_at: u64,
 }
 
 impl Monitor {
@@ -71,7 +85,9 @@ impl Monitor {
         Self {
             state: SignalState::Acquiring,
             clip_share: 0.0,
+            saturated: false,
             clip_alpha: 1.0 / (CLIP_WINDOW_S * fs_hz),
+            clip_floor: 1e-9 / (CLIP_WINDOW_S * fs_hz),
             alpha_samples: 0,
             block_alpha: 0.0,
             fs: fs_hz,
@@ -83,14 +99,22 @@ impl Monitor {
             good_run: 0,
             silence_for: NO_MEDIAN,
             silence_after: libm::floorf(SILENCE_S * fs_hz) as u64,
-            beats_changed: true,
-            was_saturated: false,
-            was_silent: false,
+            decide_at: 0,
         }
     }
 
-    /// The median interval changed (its bits `key`): the silence limit
-    /// follows it.
+    /// The recent median interval, after every change of it (a beat, a
+    /// restart): the silence limit follows it. Told when it changes, not
+    /// read on every block, so a block does no work for it.
+    #[inline]
+    pub fn median(&mut self, median_ibi_ms: Option<f32>) {
+        let key = median_ibi_ms.map_or(NO_MEDIAN, f32::to_bits);
+        if key != self.silence_for {
+            self.new_median(median_ibi_ms, key);
+        }
+    }
+
+    /// The median interval changed (its bits `key`).
     // Once per beat at most: kept out of the per-block path's code.
     #[cold]
     #[inline(never)]
@@ -101,6 +125,7 @@ impl Monitor {
         self.silence_after = libm::floorf(silence_s * self.fs) as u64;
         self.silent_after = self.last_beat + self.silence_after;
         self.silence_for = key;
+        self.decide_at = 0;
     }
 
     /// The current state.
@@ -117,20 +142,14 @@ impl Monitor {
         self.bad = (self.recent & mask).count_ones();
         self.judged = (self.judged + 1).min(JUDGED_BEATS);
         self.good_run = if good { self.good_run + 1 } else { 0 };
-        self.beats_changed = true;
+        self.decide_at = 0;
     }
 
     /// Update once per block of `samples` input samples ending at input
-    /// index `n`, `clipped` of them at the rails, with the recent median
-    /// interval; report a change of state. (The pipeline calls it at the
-    /// detector's rate: state needs no finer timing.)
-    pub fn block(
-        &mut self,
-        n: u64,
-        clipped: u32,
-        samples: u32,
-        median_ibi_ms: Option<f32>,
-    ) -> Option<StateEvent> {
+    /// index `n`, `clipped` of them at the rails; report a change of
+    /// state. (The pipeline calls it at the detector's rate: state needs
+    /// no finer timing.) The silence limit is the one [`Self::median`] set.
+    pub fn block(&mut self, n: u64, clipped: u32, samples: u32) -> Option<StateEvent> {
         // Most blocks hold no clipped sample, and the share is then often
         // exactly 0 already: it stays 0 (0 + α·(0 − 0)), no work.
         if clipped != 0 || self.clip_share != 0.0 {
@@ -144,25 +163,36 @@ impl Monitor {
                 self.block_alpha = min_f32(self.clip_alpha * samples as f32, 1.0);
             }
             self.clip_share += self.block_alpha * (share - self.clip_share);
+            if self.clip_share < self.clip_floor {
+                // Too small to move the next clipped block's share by a
+                // bit, or the state: exactly 0, and no work until then.
+                self.clip_share = 0.0;
+            }
+            let saturated = self.clip_share > SATURATED_SHARE;
+            if saturated != self.saturated {
+                self.saturated = saturated;
+                self.decide_at = 0;
+            }
         }
-        let key = median_ibi_ms.map_or(NO_MEDIAN, f32::to_bits);
-        if key != self.silence_for {
-            self.new_median(median_ibi_ms, key);
+        if n < self.decide_at {
+            return None;
         }
+        self.decide(n)
+    }
+
+    /// The state decision at input index `n`, and when to take it next.
+    // A few times per beat at most: kept out of the per-block path's code.
+    #[inline(never)]
+    fn decide(&mut self, n: u64) -> Option<StateEvent> {
         // `n − last_beat > silence_after`, the difference saturating at 0
         // (indices are far below overflow).
         let silent = n > self.silent_after;
-        let saturated = self.clip_share > SATURATED_SHARE;
-        // The decision below depends on these, the beat counts and the
-        // state only, and taking it again on the same ones changes
-        // nothing (a state it reached, and the good run it cleared, give
-        // that state again): skipped unless one of them moved.
-        if !self.beats_changed && saturated == self.was_saturated && silent == self.was_silent {
-            return None;
-        }
-        self.beats_changed = false;
-        self.was_saturated = saturated;
-        self.was_silent = silent;
+        let saturated = self.saturated;
+        self.decide_at = if silent {
+            u64::MAX
+        } else {
+            self.silent_after + 1
+        };
         let bad = self.bad;
         let next = if saturated {
             SignalState::Saturated
@@ -201,15 +231,16 @@ mod tests {
         let mut m = Monitor::new(100.0);
         m.beat(0, true);
         // 3 s floor at 100 Hz: silent after sample 300.
-        assert_eq!(m.block(300, 0, 1, None), None);
-        let e = m.block(301, 0, 1, None).expect("no signal");
+        assert_eq!(m.block(300, 0, 1), None);
+        let e = m.block(301, 0, 1).expect("no signal");
         assert_eq!(e.state, SignalState::NoSignal);
         // With 2 s intervals the limit is 2.5 intervals: 500 samples.
         let mut m = Monitor::new(100.0);
         m.beat(0, true);
-        assert_eq!(m.block(301, 0, 1, Some(2000.0)), None);
-        assert_eq!(m.block(500, 0, 1, Some(2000.0)), None);
-        assert!(m.block(501, 0, 1, Some(2000.0)).is_some());
+        m.median(Some(2000.0));
+        assert_eq!(m.block(301, 0, 1), None);
+        assert_eq!(m.block(500, 0, 1), None);
+        assert!(m.block(501, 0, 1).is_some());
     }
 
     #[test]
@@ -218,6 +249,7 @@ mod tests {
         // nothing moves, and taken again at each beat and when silence
         // begins.
         let mut m = Monitor::new(100.0);
+        m.median(Some(800.0));
         let mut states = std::vec::Vec::new();
         let mut n = 0u64;
         let mut run = |m: &mut Monitor, blocks: u64, beat_every: Option<u64>| {
@@ -226,7 +258,7 @@ mod tests {
                 if beat_every.is_some_and(|k| n % k == 0) {
                     m.beat(n, true);
                 }
-                if let Some(e) = m.block(n, 0, 2, Some(800.0)) {
+                if let Some(e) = m.block(n, 0, 2) {
                     states.push(e.state);
                 }
             }
@@ -241,14 +273,37 @@ mod tests {
     }
 
     #[test]
+    fn a_share_taken_as_zero_gives_the_next_clipped_block_the_same_share() {
+        // Blocks of 2 at 125 Hz: a burst, then gaps without clipping of
+        // every length up to 5000 blocks (the share falls below the floor
+        // after about 2400), then clipped blocks; the share after each is
+        // bit for bit what the plain running mean gives.
+        for gap in (0..5000).step_by(50) {
+            let mut m = Monitor::new(125.0);
+            let alpha = m.clip_alpha * 2.0;
+            let mut plain = 0.0f32;
+            let burst = (0..40).map(|k| k % 2);
+            let clips = burst.chain(core::iter::repeat_n(0, gap));
+            for (k, clipped) in clips.chain([1, 2, 0, 1]).enumerate() {
+                m.block(2 * k as u64, clipped, 2);
+                plain += alpha * (clipped as f32 / 2.0 - plain);
+                if clipped != 0 {
+                    assert_eq!(m.clip_share.to_bits(), plain.to_bits(), "gap {gap}");
+                }
+            }
+        }
+    }
+
+    #[test]
     fn clipped_share_counts_whole_blocks() {
         // Blocks of 4 samples, 3 clipped: a 75 % share, saturated within
         // the 2 s window (100 Hz: 50 blocks).
         let mut m = Monitor::new(100.0);
+        m.median(Some(800.0));
         let mut saw = false;
         for k in 0..50u64 {
             m.beat(4 * k, true);
-            if let Some(e) = m.block(4 * k + 3, 3, 4, Some(800.0)) {
+            if let Some(e) = m.block(4 * k + 3, 3, 4) {
                 saw |= e.state == SignalState::Saturated;
             }
         }
