@@ -52,7 +52,7 @@ pub use wfdb_header::{
     BaseDate, BaseTime, Header, SegmentSpec, SignalSpec, DEFAULT_FS, DEFAULT_GAIN, DEFAULT_UNITS,
     MAX_HEADER_BYTES,
 };
-pub use wfdb_signal::{checksum, PhysicalBlocks, Record, RecordOptions, MAX_SAMPLES};
+pub use wfdb_signal::{checksum, BlockSample, PhysicalBlocks, Record, RecordOptions, MAX_SAMPLES};
 pub use wfdb_write::{write_record, NewSignal, RecordWriter};
 
 /// The signal picked when the caller names none: the photoplethysmogram,

@@ -10,7 +10,7 @@
 use super::load::{is_csv, load, wanted_signals, Wanted};
 use super::{replay_with_motion, Polarity, Recording, Replay, ReplayError, Source};
 use plethwire_dsp::pipeline::{Config, Output, Pipeline, PipelineError};
-use plethwire_records::{LoadedSignal, Record};
+use plethwire_records::{BlockSample, LoadedSignal, Record};
 use std::path::Path;
 
 /// Frames read at once: 64 Ki frames, half a megabyte of samples.
@@ -110,11 +110,24 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
 impl Streamed {
     /// Hand the samples to `each`, a block at a time, in order, for as
     /// long as it answers `true`.
-    pub fn blocks(&self, mut each: impl FnMut(&[f64]) -> bool) -> Result<(), ReplayError> {
+    pub fn blocks(&self, each: impl FnMut(&[f64]) -> bool) -> Result<(), ReplayError> {
+        self.blocks_as(each)
+    }
+
+    /// [`blocks`](Self::blocks) as `f64` or as `f32` (the `f64` values
+    /// rounded, as the pipeline takes them), read into one buffer kept
+    /// for the whole record.
+    pub fn blocks_as<T: BlockSample>(
+        &self,
+        mut each: impl FnMut(&[T]) -> bool,
+    ) -> Result<(), ReplayError> {
+        let mut block: Vec<T> = Vec::with_capacity(BLOCK_FRAMES);
         match &self.samples {
             Samples::Whole(samples) => {
-                for block in samples.chunks(BLOCK_FRAMES) {
-                    if !each(block) {
+                for chunk in samples.chunks(BLOCK_FRAMES) {
+                    block.clear();
+                    block.extend(chunk.iter().map(|&x| T::from_f64(x)));
+                    if !each(&block) {
                         break;
                     }
                 }
@@ -124,9 +137,11 @@ impl Streamed {
                 index,
                 negate,
             } => {
-                for block in record.physical_blocks(*index, BLOCK_FRAMES)? {
-                    let mut block = block?;
+                let mut blocks = record.physical_blocks(*index, BLOCK_FRAMES)?;
+                while blocks.read_into(&mut block)? {
                     if *negate {
+                        // Negation is exact, and rounding to f32 symmetric:
+                        // the same bits as negating before rounding.
                         block.iter_mut().for_each(|x| *x = -*x);
                     }
                     if !each(&block) {
@@ -157,8 +172,8 @@ impl Streamed {
             }
         };
         // The board hands the pipeline f32 samples; so does the replay.
-        self.blocks(|block| {
-            block.iter().for_each(|&x| keep(p.push(x as f32)));
+        self.blocks_as(|block: &[f32]| {
+            block.iter().for_each(|&x| keep(p.push(x)));
             true
         })?;
         p.finish(|b| {
