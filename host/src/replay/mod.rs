@@ -4,6 +4,7 @@
 mod beats;
 mod blocks;
 mod load;
+mod read_ahead;
 mod stream;
 mod summary;
 #[cfg(test)]

@@ -8,6 +8,7 @@
 //! accelerometer are read whole as before ([`load`]) and fed the same way.
 
 use super::load::{is_csv, load, wanted_signals, Wanted};
+use super::read_ahead::read_ahead;
 use super::{replay_with_motion, Polarity, Recording, Replay, ReplayError, Source};
 use plethwire_dsp::pipeline::{Config, Output, Pipeline, PipelineError};
 use plethwire_records::{BlockSample, LoadedSignal, Record};
@@ -115,15 +116,16 @@ impl Streamed {
     }
 
     /// [`blocks`](Self::blocks) as `f64` or as `f32` (the `f64` values
-    /// rounded, as the pipeline takes them), read into one buffer kept
-    /// for the whole record.
+    /// rounded, as the pipeline takes them); a WFDB record's next block is
+    /// read on a second thread meanwhile (`read_ahead`), into the few
+    /// buffers kept for the whole record.
     pub fn blocks_as<T: BlockSample>(
         &self,
         mut each: impl FnMut(&[T]) -> bool,
     ) -> Result<(), ReplayError> {
-        let mut block: Vec<T> = Vec::with_capacity(BLOCK_FRAMES);
         match &self.samples {
             Samples::Whole(samples) => {
+                let mut block: Vec<T> = Vec::with_capacity(BLOCK_FRAMES);
                 for chunk in samples.chunks(BLOCK_FRAMES) {
                     block.clear();
                     block.extend(chunk.iter().map(|&x| T::from_f64(x)));
@@ -137,17 +139,7 @@ impl Streamed {
                 index,
                 negate,
             } => {
-                let mut blocks = record.physical_blocks(*index, BLOCK_FRAMES)?;
-                while blocks.read_into(&mut block)? {
-                    if *negate {
-                        // Negation is exact, and rounding to f32 symmetric:
-                        // the same bits as negating before rounding.
-                        block.iter_mut().for_each(|x| *x = -*x);
-                    }
-                    if !each(&block) {
-                        break;
-                    }
-                }
+                read_ahead(record, *index, BLOCK_FRAMES, *negate, each)?;
             }
         }
         Ok(())
