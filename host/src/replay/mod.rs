@@ -4,8 +4,11 @@
 mod beats;
 mod blocks;
 mod load;
+mod motion_stream;
 mod read_ahead;
 mod stream;
+#[cfg(test)]
+mod stream_tests;
 mod summary;
 #[cfg(test)]
 mod tests;

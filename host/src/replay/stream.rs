@@ -8,9 +8,10 @@
 //! accelerometer are read whole as before ([`load`]) and fed the same way.
 
 use super::load::{is_csv, load, wanted_signals, Wanted};
+use super::motion_stream::{self, motion_axes};
 use super::read_ahead::read_ahead;
 use super::{replay_with_motion, Polarity, Recording, Replay, ReplayError, Source};
-use plethwire_dsp::pipeline::{Config, Output, Pipeline, PipelineError};
+use plethwire_dsp::pipeline::{BeatEvent, Config, Output, Pipeline, PipelineError, StateEvent};
 use plethwire_records::{BlockSample, LoadedSignal, Record};
 use std::path::Path;
 
@@ -22,7 +23,8 @@ pub const BLOCK_FRAMES: usize = 1 << 16;
 pub struct Streamed {
     /// Everything about the recording but its samples: `head.signal.samples`
     /// stays empty (the samples come from [`Streamed::blocks`]); the
-    /// accelerometer, when asked for, is in `head.motion`.
+    /// accelerometer of a CSV recording, when asked for, is in
+    /// `head.motion` (a WFDB record's is streamed: [`Streamed::motion_names`]).
     pub head: Recording,
     /// The signal's samples.
     pub len: u64,
@@ -33,11 +35,13 @@ pub struct Streamed {
 enum Samples {
     /// Read whole ([`load`]).
     Whole(Vec<f64>),
-    /// Signal `index` of a WFDB record, negated when `negate`.
+    /// Signal `index` of a WFDB record, negated when `negate`, with the
+    /// accelerometer's signals and names when asked for.
     Wfdb {
         record: Box<Record>,
         index: usize,
         negate: bool,
+        motion: Option<([usize; 3], [String; 3])>,
     },
 }
 
@@ -53,11 +57,11 @@ pub enum StreamError {
 }
 
 /// Open `path` as [`load`] would load it (the same signal, polarity and
-/// refusals), reading no samples yet when it is a WFDB record replayed
-/// without an accelerometer and with one signal named (or the default).
+/// refusals), reading no samples yet when it is a WFDB record with one
+/// signal named (or the default), with or without an accelerometer.
 pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
     let one = match wanted_signals(source.signal.as_deref()) {
-        Wanted::One(name) if !is_csv(path) && source.motion.is_none() => Some(name),
+        Wanted::One(name) if !is_csv(path) => Some(name),
         _ => None,
     };
     let Some(name) = one else {
@@ -97,6 +101,10 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
     let negate = source.polarity == Polarity::Down;
     let mut head = head;
     head.input.inverted = negate;
+    let motion = match &source.motion {
+        Some(names) => Some((motion_axes(path, &record, names, index)?, names.clone())),
+        None => None,
+    };
     Ok(Streamed {
         len: record.len() as u64 * u64::from(spec.samples_per_frame),
         head,
@@ -104,11 +112,24 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
             record: Box::new(record),
             index,
             negate,
+            motion,
         },
     })
 }
 
 impl Streamed {
+    /// The accelerometer's signal names, when the replay takes one (read
+    /// whole into `head.motion`, or streamed beside the pulse).
+    pub fn motion_names(&self) -> Option<&[String; 3]> {
+        match &self.samples {
+            Samples::Wfdb {
+                motion: Some((_, names)),
+                ..
+            } => Some(names),
+            _ => self.head.motion.as_ref().map(|m| &m.names),
+        }
+    }
+
     /// Hand the samples to `each`, a block at a time, in order, for as
     /// long as it answers `true`.
     pub fn blocks(&self, each: impl FnMut(&[f64]) -> bool) -> Result<(), ReplayError> {
@@ -138,6 +159,7 @@ impl Streamed {
                 record,
                 index,
                 negate,
+                ..
             } => {
                 read_ahead(record, *index, BLOCK_FRAMES, *negate, each)?;
             }
@@ -151,37 +173,64 @@ impl Streamed {
         if let (Some(motion), Samples::Whole(samples)) = (&self.head.motion, &self.samples) {
             return Ok(replay_with_motion(samples, Some(motion), config)?);
         }
+        if let Samples::Wfdb {
+            record,
+            index,
+            negate,
+            motion: Some((axes, _)),
+        } = &self.samples
+        {
+            let pulse = (record.as_ref(), *index, *negate);
+            return motion_stream::replay(pulse, *axes, self.head.signal.fs, config);
+        }
         let mut p = Pipeline::new(config)?;
-        let (mut beats, mut states) = (Vec::new(), Vec::new());
-        // `push` on an `Option` (not `extend`): `extend` is a call per
-        // sample, 7 % of a replay.
-        let mut keep = |out: Output| {
-            if let Some(b) = out.beat {
-                beats.push(b);
-            }
-            if let Some(s) = out.state {
-                states.push(s);
-            }
-        };
+        let mut kept = Kept::default();
         // The board hands the pipeline f32 samples; so does the replay.
         self.blocks_as(|block: &[f32]| {
-            block.iter().for_each(|&x| keep(p.push(x)));
+            block.iter().for_each(|&x| kept.keep(p.push(x)));
             true
         })?;
-        p.finish(|b| {
-            keep(Output {
-                beat: Some(b),
-                state: None,
-            })
-        });
-        Ok(Replay {
+        p.finish(|b| kept.closed(b));
+        Ok(kept.into_replay(&p, config, self.len))
+    }
+}
+
+/// The beats and state changes of a replay, as they come.
+#[derive(Default)]
+pub(super) struct Kept {
+    beats: Vec<BeatEvent>,
+    states: Vec<StateEvent>,
+}
+
+impl Kept {
+    /// Keep what the pipeline said for one sample.
+    #[inline(always)]
+    pub(super) fn keep(&mut self, out: Output) {
+        // `push` on an `Option` (not `extend`): `extend` is a call per
+        // sample, 7 % of a replay.
+        if let Some(b) = out.beat {
+            self.beats.push(b);
+        }
+        if let Some(s) = out.state {
+            self.states.push(s);
+        }
+    }
+
+    /// Keep a beat closed by the end of the recording.
+    pub(super) fn closed(&mut self, b: BeatEvent) {
+        self.beats.push(b);
+    }
+
+    /// The replay of `samples` samples by `p` (its open beats closed).
+    pub(super) fn into_replay(self, p: &Pipeline, config: Config, samples: u64) -> Replay {
+        Replay {
             fs: config.sample_rate_hz as f64,
-            samples: self.len,
-            beats,
-            states,
+            samples,
+            beats: self.beats,
+            states: self.states,
             rejected: p.rejected_samples(),
             clipped: p.clipped_samples(),
             restarts: p.restarts(),
-        })
+        }
     }
 }
