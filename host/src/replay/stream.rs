@@ -2,15 +2,17 @@
 //! is never in memory whole: a WFDB record's signal is read in blocks
 //! ([`plethwire_records::Record::physical_blocks`]) and fed to the
 //! pipeline as it comes; what the replay keeps (its beats and state
-//! changes) grows with the beats, not the samples.
+//! changes) grows with the beats, not the samples. A choice among several
+//! signals streams each candidate once through the judge first; an
+//! accelerometer streams beside the pulse (`motion_stream`).
 //!
-//! A CSV file, a choice among several signals and a recording with an
-//! accelerometer are read whole as before ([`load`]) and fed the same way.
+//! A CSV file is read whole as before ([`load`]) and fed the same way.
 
 use super::load::{is_csv, load, wanted_signals, Wanted};
 use super::motion_stream::{self, motion_axes};
 use super::read_ahead::read_ahead;
-use super::{replay_with_motion, Polarity, Recording, Replay, ReplayError, Source};
+use super::{replay_with_motion, InputInfo, Polarity, Recording, Replay, ReplayError, Source};
+use crate::channel::{choose_among, ChannelChoice, Judge};
 use plethwire_dsp::pipeline::{BeatEvent, Config, Output, Pipeline, PipelineError, StateEvent};
 use plethwire_records::{BlockSample, LoadedSignal, Record};
 use std::path::Path;
@@ -57,14 +59,13 @@ pub enum StreamError {
 }
 
 /// Open `path` as [`load`] would load it (the same signal, polarity and
-/// refusals), reading no samples yet when it is a WFDB record with one
-/// signal named (or the default), with or without an accelerometer.
+/// refusals), reading no samples yet when it is a WFDB record (with one
+/// signal named or the default; with or without an accelerometer), or
+/// only what the choice among several signals takes (each candidate
+/// streamed once through [`crate::channel::Judge`]). CSV files are read
+/// whole.
 pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
-    let one = match wanted_signals(source.signal.as_deref()) {
-        Wanted::One(name) if !is_csv(path) => Some(name),
-        _ => None,
-    };
-    let Some(name) = one else {
+    if is_csv(path) {
         let mut head = load(path, source)?;
         let samples = std::mem::take(&mut head.signal.samples);
         return Ok(Streamed {
@@ -72,7 +73,7 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
             head,
             samples: Samples::Whole(samples),
         });
-    };
+    }
     let stem = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
@@ -83,7 +84,10 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
         path.to_path_buf()
     };
     let record = Record::open_with(&record_path, &source.record_options)?;
-    let index = record.pick_signal(name)?;
+    let (index, channel) = match wanted_signals(source.signal.as_deref()) {
+        Wanted::One(name) => (record.pick_signal(name)?, None),
+        Wanted::Among(names) => choose_streamed(path, &record, names)?,
+    };
     let spec = &record.signals()[index];
     let head = Recording {
         name: stem,
@@ -94,7 +98,10 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
             fs: record.signal_fs(index),
             samples: Vec::new(),
         },
-        input: Default::default(),
+        input: InputInfo {
+            channel,
+            ..InputInfo::default()
+        },
         motion: None,
         record_options: source.record_options.clone(),
     };
@@ -233,4 +240,36 @@ impl Kept {
             restarts: p.restarts(),
         }
     }
+}
+
+/// The signal of `record` chosen among `names` (all its signals for
+/// `None`) as [`load`] chooses it, and the choice (none for a single
+/// name): each candidate judged as its blocks stream past.
+fn choose_streamed(
+    path: &Path,
+    record: &Record,
+    names: Option<Vec<String>>,
+) -> Result<(usize, Option<ChannelChoice>), ReplayError> {
+    let names = names.unwrap_or_else(|| record.signal_names());
+    let indices = names
+        .iter()
+        .map(|n| record.pick_signal(Some(n)))
+        .collect::<plethwire_records::Result<Vec<usize>>>()?;
+    if let [one] = indices[..] {
+        return Ok((one, None));
+    }
+    let mut candidates = Vec::with_capacity(indices.len());
+    for &i in &indices {
+        let name = record.signals()[i].description.clone().unwrap_or_default();
+        let mut judge = Judge::new(&name, record.signal_fs(i));
+        read_ahead(record, i, BLOCK_FRAMES, false, |block: &[f64]| {
+            judge.push(block);
+            true
+        })?;
+        candidates.push(judge.finish());
+    }
+    let (best, choice) = choose_among(candidates).ok_or_else(|| {
+        ReplayError::Refused(format!("{}: no signals to choose from", path.display()))
+    })?;
+    Ok((indices[best], Some(choice)))
 }

@@ -105,3 +105,42 @@ fn motion_signals_that_do_not_fit_are_refused_as_the_whole_read_refuses_them() {
     assert_eq!(open(&path, &source).unwrap_err().to_string(), whole);
     assert!(whole.contains("must be the same"), "{whole}");
 }
+
+#[test]
+fn a_choice_among_a_records_signals_streams_to_the_whole_reads_choice() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = record(dir.path());
+    let config = Config::new(FS as f32);
+    // The arm swing, a pure 1.3 Hz sine for 25 s, beats the pulse.
+    for (spec, chosen) in [
+        ("auto", Some("AX")),
+        ("AZ, PLETH,AY", Some("PLETH")),
+        ("AY,AX", Some("AX")),
+        ("PLETH,", None),
+    ] {
+        let source = Source {
+            signal: Some(spec.into()),
+            polarity: Polarity::Down,
+            ..Source::default()
+        };
+        let whole = load(&path, &source).unwrap();
+        let streamed = open(&path, &source).unwrap();
+        assert_eq!(streamed.head.input, whole.input, "{spec}");
+        assert_eq!(streamed.head.signal.name, whole.signal.name, "{spec}");
+        let got = streamed
+            .head
+            .input
+            .channel
+            .as_ref()
+            .map(|c| c.chosen.as_str());
+        assert_eq!(got, chosen, "{spec}");
+        let want = replay_recording(&whole, config).unwrap();
+        assert_eq!(streamed.replay(config).unwrap(), want, "{spec}");
+    }
+    let unknown = Source {
+        signal: Some("PLETH,NONE".into()),
+        ..Source::default()
+    };
+    let e = load(&path, &unknown).unwrap_err().to_string();
+    assert_eq!(open(&path, &unknown).unwrap_err().to_string(), e);
+}
