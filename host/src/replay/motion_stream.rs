@@ -55,7 +55,9 @@ pub(super) fn replay(
     config: Config,
 ) -> Result<Replay, StreamError> {
     let mut p = MotionPipeline::new(config, fs as f32)?;
-    let read = |i: usize| record.physical_blocks(i, BLOCK_FRAMES);
+    // Four signals read at once: blocks a quarter as long, so the four
+    // together keep what one signal's blocks keep.
+    let read = |i: usize| record.physical_blocks(i, BLOCK_FRAMES / 4);
     let mut pulse = read(index).map_err(super::ReplayError::from)?;
     let mut motion = [read(axes[0]), read(axes[1]), read(axes[2])];
     let (mut x, mut m) = (Vec::<f32>::new(), [(); 3].map(|()| Vec::<f32>::new()));

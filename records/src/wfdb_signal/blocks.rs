@@ -233,7 +233,10 @@ impl FileSignal {
             spec.adc_gain,
         );
         let samples = rec.frames.saturating_mul(u64::from(spec.samples_per_frame));
-        let table = (samples >= TABLE16_FROM_SAMPLES)
+        // Only for a signal alone in its file: beside others its reading
+        // costs more than its conversion, and several tables add up.
+        let alone = group.signals.len() == 1;
+        let table = (alone && samples >= TABLE16_FROM_SAMPLES)
             .then(|| Table16::new(group.format, &scale))
             .flatten();
         Ok(FileSignal {

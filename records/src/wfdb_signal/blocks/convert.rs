@@ -88,8 +88,8 @@ pub(super) struct Layout {
 /// its 65 536 entries.
 pub(super) struct Table16(Box<[f64; 1 << 16]>);
 
-/// Samples a signal of a 16-bit format should have in a file before a
-/// [`Table16`] is built for it: its cost, twice over.
+/// Samples a signal of a 16-bit format, alone in its file, should have
+/// before a [`Table16`] is built for it: its cost, twice over.
 pub(super) const TABLE16_FROM_SAMPLES: u64 = 1 << 17;
 
 impl Table16 {

@@ -165,7 +165,8 @@ fn a_signal_file_cut_short_after_opening_is_an_error_not_short_blocks() {
 #[test]
 fn long_16_bit_signals_read_through_the_table_give_the_same_values() {
     // Long enough for the table of 16-bit words (TABLE16_FROM_SAMPLES),
-    // every word present, one signal alone and two interleaved.
+    // every word present: one signal alone (through the table) and two
+    // interleaved (without).
     let frames = super::convert::TABLE16_FROM_SAMPLES as usize + 3;
     let mut rng = Rng::new(0x7ab1e16);
     for code in [16, 61, 160] {
