@@ -3,6 +3,7 @@
 
 mod beats;
 mod blocks;
+mod feed;
 mod load;
 mod motion_stream;
 mod read_ahead;
@@ -17,8 +18,9 @@ pub use beats::{
     beat_rows, beats_csv, write_beat_annotations, write_recording_beats, BeatRow, BEATS_CSV_HEADER,
 };
 pub use blocks::sample_blocks;
+pub use feed::{StreamError, BLOCK_FRAMES};
 pub use load::{load, InputInfo, Polarity, Recording, ReplayError, Source};
-pub use stream::{open, StreamError, Streamed, BLOCK_FRAMES};
+pub use stream::{open, Streamed};
 pub use summary::{HrvSummary, RateSummary, Summary};
 
 use crate::motion::MotionSignals;

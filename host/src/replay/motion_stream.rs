@@ -6,7 +6,7 @@
 
 use std::path::Path;
 
-use super::stream::{Kept, StreamError, BLOCK_FRAMES};
+use super::feed::{Kept, StreamError, BLOCK_FRAMES};
 use super::Replay;
 use crate::motion::MotionLoadError;
 use plethwire_dsp::pipeline::{Config, MotionPipeline};

@@ -8,17 +8,15 @@
 //!
 //! A CSV file is read whole as before ([`load`]) and fed the same way.
 
+use super::feed::{Kept, StreamError, BLOCK_FRAMES};
 use super::load::{is_csv, load, wanted_signals, Wanted};
 use super::motion_stream::{self, motion_axes};
 use super::read_ahead::read_ahead;
 use super::{replay_with_motion, InputInfo, Polarity, Recording, Replay, ReplayError, Source};
 use crate::channel::{choose_among, ChannelChoice, Judge};
-use plethwire_dsp::pipeline::{BeatEvent, Config, Output, Pipeline, PipelineError, StateEvent};
+use plethwire_dsp::pipeline::{Config, Pipeline};
 use plethwire_records::{BlockSample, LoadedSignal, Record};
 use std::path::Path;
-
-/// Frames read at once: 64 Ki frames, half a megabyte of samples.
-pub const BLOCK_FRAMES: usize = 1 << 16;
 
 /// A recording opened for streaming.
 #[derive(Debug)]
@@ -45,17 +43,6 @@ enum Samples {
         negate: bool,
         motion: Option<([usize; 3], [String; 3])>,
     },
-}
-
-/// Why a streamed replay stopped.
-#[derive(Debug, thiserror::Error)]
-pub enum StreamError {
-    /// The pipeline refused its configuration (before any sample).
-    #[error(transparent)]
-    Pipeline(#[from] PipelineError),
-    /// The record would not read part way.
-    #[error(transparent)]
-    Read(#[from] ReplayError),
 }
 
 /// Open `path` as [`load`] would load it (the same signal, polarity and
@@ -199,46 +186,6 @@ impl Streamed {
         })?;
         p.finish(|b| kept.closed(b));
         Ok(kept.into_replay(&p, config, self.len))
-    }
-}
-
-/// The beats and state changes of a replay, as they come.
-#[derive(Default)]
-pub(super) struct Kept {
-    beats: Vec<BeatEvent>,
-    states: Vec<StateEvent>,
-}
-
-impl Kept {
-    /// Keep what the pipeline said for one sample.
-    #[inline(always)]
-    pub(super) fn keep(&mut self, out: Output) {
-        // `push` on an `Option` (not `extend`): `extend` is a call per
-        // sample, 7 % of a replay.
-        if let Some(b) = out.beat {
-            self.beats.push(b);
-        }
-        if let Some(s) = out.state {
-            self.states.push(s);
-        }
-    }
-
-    /// Keep a beat closed by the end of the recording.
-    pub(super) fn closed(&mut self, b: BeatEvent) {
-        self.beats.push(b);
-    }
-
-    /// The replay of `samples` samples by `p` (its open beats closed).
-    pub(super) fn into_replay(self, p: &Pipeline, config: Config, samples: u64) -> Replay {
-        Replay {
-            fs: config.sample_rate_hz as f64,
-            samples,
-            beats: self.beats,
-            states: self.states,
-            rejected: p.rejected_samples(),
-            clipped: p.clipped_samples(),
-            restarts: p.restarts(),
-        }
     }
 }
 
