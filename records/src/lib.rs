@@ -33,8 +33,9 @@ mod wfdb_write;
 pub(crate) mod test_support;
 
 pub use csv::{
-    csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignal, CsvSignalOptions,
-    CsvSignals, Rate, TimeBase, TimeUnit, MAX_GRID_SAMPLES_PER_ROW, MAX_ROWS, MAX_TIME_S,
+    csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvBlocks, CsvSignal,
+    CsvSignalOptions, CsvSignals, Rate, TimeBase, TimeUnit, MAX_GRID_SAMPLES_PER_ROW, MAX_ROWS,
+    MAX_TIME_S,
 };
 pub use error::{Error, ErrorKind, FileKind, Result, UnknownTimeUnit};
 pub use input::MAX_LINE_BYTES;

@@ -3,6 +3,7 @@
 
 mod beats;
 mod blocks;
+mod csv_stream;
 mod feed;
 mod load;
 mod motion_stream;

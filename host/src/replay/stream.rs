@@ -6,8 +6,10 @@
 //! signals streams each candidate once through the judge first; an
 //! accelerometer streams beside the pulse (`motion_stream`).
 //!
-//! A CSV file is read whole as before ([`load`]) and fed the same way.
+//! A CSV file at a given rate streams too (`csv_stream`); one with a time
+//! column is read whole as before ([`load`]) and fed the same way.
 
+use super::csv_stream::{open_csv, CsvColumn};
 use super::feed::{Kept, StreamError, BLOCK_FRAMES};
 use super::load::{is_csv, load, wanted_signals, Wanted};
 use super::motion_stream::{self, motion_axes};
@@ -28,13 +30,15 @@ pub struct Streamed {
     pub head: Recording,
     /// The signal's samples.
     pub len: u64,
-    samples: Samples,
+    pub(super) samples: Samples,
 }
 
 #[derive(Debug)]
-enum Samples {
+pub(super) enum Samples {
     /// Read whole ([`load`]).
     Whole(Vec<f64>),
+    /// A column of a CSV file at a given rate.
+    Csv(CsvColumn),
     /// Signal `index` of a WFDB record, negated when `negate`, with the
     /// accelerometer's signals and names when asked for.
     Wfdb {
@@ -49,10 +53,18 @@ enum Samples {
 /// refusals), reading no samples yet when it is a WFDB record (with one
 /// signal named or the default; with or without an accelerometer), or
 /// only what the choice among several signals takes (each candidate
-/// streamed once through [`crate::channel::Judge`]). CSV files are read
-/// whole.
+/// streamed once through [`crate::channel::Judge`]); a CSV file at a
+/// given rate without a time column or accelerometer likewise, any other
+/// CSV file read whole.
 pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
     if is_csv(path) {
+        if let Some((head, column, rows)) = open_csv(path, source)? {
+            return Ok(Streamed {
+                len: rows,
+                head,
+                samples: Samples::Csv(column),
+            });
+        }
         let mut head = load(path, source)?;
         let samples = std::mem::take(&mut head.signal.samples);
         return Ok(Streamed {
@@ -148,6 +160,14 @@ impl Streamed {
                         break;
                     }
                 }
+            }
+            Samples::Csv(column) => {
+                let mut block: Vec<T> = Vec::with_capacity(BLOCK_FRAMES);
+                column.blocks(|values| {
+                    block.clear();
+                    block.extend(values.iter().map(|&x| T::from_f64(x)));
+                    each(&block)
+                })?;
             }
             Samples::Wfdb {
                 record,

@@ -144,3 +144,74 @@ fn a_choice_among_a_records_signals_streams_to_the_whole_reads_choice() {
     let e = load(&path, &unknown).unwrap_err().to_string();
     assert_eq!(open(&path, &unknown).unwrap_err().to_string(), e);
 }
+
+/// A 60 s camera-like CSV at 30 rows a second, no time column: `R` near
+/// the top of its range, `G` the pulse (falling with each beat), `B`
+/// noise, `nan` now and then.
+fn camera_csv(dir: &Path) -> PathBuf {
+    let s = generate(&SynthOptions {
+        sample_rate_hz: 30.0,
+        duration_s: 60.0,
+        hr: HrSchedule::constant(70.0),
+        ..SynthOptions::default()
+    })
+    .unwrap();
+    let mut text = String::from("R,G,B\n");
+    for (k, &v) in s.samples.iter().enumerate() {
+        let g = if k % 211 == 5 {
+            "nan".to_string()
+        } else {
+            format!("{:.3}", 120.0 - 8.0 * f64::from(v))
+        };
+        text += &format!(
+            "{:.2},{g},{}\n",
+            (250.0 + f64::from(v)).min(252.0),
+            (k * 7919) % 17
+        );
+    }
+    let path = dir.join("cam.csv");
+    std::fs::write(&path, text).unwrap();
+    path
+}
+
+#[test]
+fn a_csv_file_at_a_given_rate_streams_the_whole_reads_replay() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = camera_csv(dir.path());
+    let config = Config::new(30.0);
+    for signal in [None, Some("G"), Some("B,R"), Some("G,B")] {
+        for polarity in [Polarity::Auto, Polarity::Up] {
+            let source = Source {
+                signal: signal.map(String::from),
+                rate: Some(30.0),
+                polarity,
+                ..Source::default()
+            };
+            let whole = load(&path, &source).unwrap();
+            let streamed = open(&path, &source).unwrap();
+            assert!(matches!(streamed.samples, super::stream::Samples::Csv(_)));
+            assert_eq!(streamed.head.input, whole.input, "{signal:?}");
+            assert_eq!(streamed.head.signal.name, whole.signal.name);
+            assert_eq!(streamed.len, whole.signal.samples.len() as u64);
+            let want = replay_recording(&whole, config).unwrap();
+            assert_eq!(
+                streamed.replay(config).unwrap(),
+                want,
+                "{signal:?} {polarity:?}"
+            );
+        }
+    }
+    // Refused as the whole read refuses: a bad cell, a column not there,
+    // a rate outside the pipeline's.
+    let bad = dir.path().join("bad.csv");
+    std::fs::write(&bad, "R,G\n1,2\n3,oops\n").unwrap();
+    for (file, signal, rate) in [(&bad, "G", 30.0), (&path, "Q", 30.0), (&path, "G", 2000.0)] {
+        let source = Source {
+            signal: Some(signal.into()),
+            rate: Some(rate),
+            ..Source::default()
+        };
+        let whole = load(file, &source).unwrap_err().to_string();
+        assert_eq!(open(file, &source).unwrap_err().to_string(), whole);
+    }
+}
