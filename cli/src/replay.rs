@@ -161,8 +161,8 @@ impl ReplayArgs {
             .map_err(|e| stream_failure(&self.record, e))?;
         let written = self.write_outputs(rec, &run)?;
         let summary = run.summary();
-        let motion = rec.motion.as_ref().map(|m| MotionReport {
-            signals: &m.names,
+        let motion = streamed.motion_names().map(|names| MotionReport {
+            signals: names,
             flagged_beats: run
                 .beats
                 .iter()

@@ -21,9 +21,11 @@
 
 use std::path::Path;
 
+mod blocks;
 mod table;
 mod time_base;
 
+pub use blocks::CsvBlocks;
 pub use table::MAX_ROWS;
 pub(crate) use table::{parse_cell, Table};
 pub use time_base::{MAX_GRID_SAMPLES_PER_ROW, MAX_TIME_S};

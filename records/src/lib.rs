@@ -33,8 +33,9 @@ mod wfdb_write;
 pub(crate) mod test_support;
 
 pub use csv::{
-    csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignal, CsvSignalOptions,
-    CsvSignals, Rate, TimeBase, TimeUnit, MAX_GRID_SAMPLES_PER_ROW, MAX_ROWS, MAX_TIME_S,
+    csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvBlocks, CsvSignal,
+    CsvSignalOptions, CsvSignals, Rate, TimeBase, TimeUnit, MAX_GRID_SAMPLES_PER_ROW, MAX_ROWS,
+    MAX_TIME_S,
 };
 pub use error::{Error, ErrorKind, FileKind, Result, UnknownTimeUnit};
 pub use input::MAX_LINE_BYTES;
@@ -52,7 +53,7 @@ pub use wfdb_header::{
     BaseDate, BaseTime, Header, SegmentSpec, SignalSpec, DEFAULT_FS, DEFAULT_GAIN, DEFAULT_UNITS,
     MAX_HEADER_BYTES,
 };
-pub use wfdb_signal::{checksum, PhysicalBlocks, Record, RecordOptions, MAX_SAMPLES};
+pub use wfdb_signal::{checksum, BlockSample, PhysicalBlocks, Record, RecordOptions, MAX_SAMPLES};
 pub use wfdb_write::{write_record, NewSignal, RecordWriter};
 
 /// The signal picked when the caller names none: the photoplethysmogram,

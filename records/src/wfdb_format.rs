@@ -156,8 +156,17 @@ impl SignalFormat {
     /// Format 8 yields the stored differences; the caller sums them per
     /// signal, as [`Record`](super::Record) does.
     pub fn decode(self, bytes: &[u8], count: usize) -> Vec<i32> {
-        debug_assert!(bytes.len() as u64 >= self.bytes_for(count as u64));
         let mut out = Vec::with_capacity(count);
+        self.decode_into(bytes, count, &mut out);
+        out
+    }
+
+    /// [`decode`](Self::decode), the samples appended to `out` (a buffer
+    /// kept from one block to the next, so a long file is decoded without
+    /// an allocation per block).
+    pub fn decode_into(self, bytes: &[u8], count: usize, out: &mut Vec<i32>) {
+        debug_assert!(bytes.len() as u64 >= self.bytes_for(count as u64));
+        out.reserve(count);
         match self {
             SignalFormat::Diff8 => out.extend(bytes[..count].iter().map(|&b| b as i8 as i32)),
             SignalFormat::Fmt80 => out.extend(bytes[..count].iter().map(|&b| b as i32 - 128)),
@@ -225,7 +234,6 @@ impl SignalFormat {
                 }
             }
         }
-        out
     }
 
     /// The smallest and largest value a sample of this format can hold

@@ -19,7 +19,7 @@ mod open;
 mod segments;
 mod skew;
 
-pub use blocks::PhysicalBlocks;
+pub use blocks::{BlockSample, PhysicalBlocks};
 use group::{check_length, Group};
 use open::{check_skews, header_path_of};
 pub use open::{RecordOptions, MAX_SAMPLES};

@@ -1,6 +1,8 @@
 //! Host memory does not grow with the recording: replay, score and the
 //! report's excerpt pass over a made-up hour at 500 Hz (1.8 M samples,
-//! `bench_record`, a scenario of our own) raise this process's peak
+//! `bench_record`, a scenario of our own), and the replays of the same
+//! hour with an accelerometer beside the pulse (`--motion`) and with the
+//! choice among its four signals (`--signal auto`), raise this process's peak
 //! resident memory (Linux `VmHWM`, in kB: a count, not a timing) by no
 //! more than the budget in docs/performance.toml, which is well under
 //! what the samples alone would take read whole. The day-long figures
@@ -40,10 +42,11 @@ fn peak_kb() -> u64 {
         .expect("a VmHWM line in kB")
 }
 
-fn make_record(dir: &Path, hours: f64, rate: f64) {
+fn make_record(dir: &Path, hours: f64, rate: f64, extra: &[&str]) {
     let out = std::process::Command::new(env!("CARGO_BIN_EXE_bench_record"))
         .arg(dir)
         .args(["--hours", &hours.to_string(), "--rate", &rate.to_string()])
+        .args(extra)
         .output()
         .expect("bench_record runs");
     assert!(
@@ -60,7 +63,9 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
     let book: Book = toml::from_str(&text).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
     let b = book.host_memory;
     let dir = tempfile::tempdir().unwrap();
-    make_record(dir.path(), b.check_hours, b.check_rate_hz);
+    make_record(dir.path(), b.check_hours, b.check_rate_hz, &[]);
+    let with_motion = ["--accelerometer", "--name", "moving"];
+    make_record(dir.path(), b.check_hours, b.check_rate_hz, &with_motion);
     let record = dir.path().join("day");
     let before = peak_kb();
 
@@ -87,6 +92,25 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
     )
     .unwrap();
 
+    let moving = dir.path().join("moving");
+    let motion = Source {
+        motion: Some(["ACCX", "ACCY", "ACCZ"].map(String::from)),
+        ..Source::default()
+    };
+    let moved = open(&moving, &motion).unwrap().replay(config).unwrap();
+    let auto = Source {
+        signal: Some("auto".into()),
+        ..Source::default()
+    };
+    let chosen = open(&moving, &auto).unwrap();
+    let choice = chosen
+        .head
+        .input
+        .channel
+        .clone()
+        .expect("a choice among four");
+    let auto_run = chosen.replay(config).unwrap();
+
     let grown = peak_kb().saturating_sub(before);
     let samples = (b.check_hours * 3600.0 * b.check_rate_hz) as u64;
     let whole_kb = samples * 8 / 1024;
@@ -98,6 +122,13 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
         b.stream_growth_budget_kb
     );
     assert_eq!(run.samples, samples);
+    assert_eq!((moved.samples, auto_run.samples), (samples, samples));
+    assert_eq!(choice.chosen, "PLETH", "{choice:?}");
+    assert_eq!(auto_run.beats, run.beats, "the same pulse, the same beats");
+    assert!(
+        moved.beats.len() == run.beats.len(),
+        "the motion reference flags beats, it finds the same ones"
+    );
     assert!(!scores.records.is_empty(), "the record was scored");
     assert!(
         b.stream_growth_budget_kb < whole_kb / 2,

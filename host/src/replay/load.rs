@@ -57,7 +57,7 @@ pub enum Polarity {
 }
 
 /// Camera colour channel names, whose pulse points down.
-const COLOUR_CHANNELS: [&str; 6] = ["r", "g", "b", "red", "green", "blue"];
+pub(super) const COLOUR_CHANNELS: [&str; 6] = ["r", "g", "b", "red", "green", "blue"];
 
 /// How the samples were got from the file, for summaries.
 #[derive(Debug, Clone, Default, PartialEq, Serialize)]

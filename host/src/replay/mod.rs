@@ -3,8 +3,14 @@
 
 mod beats;
 mod blocks;
+mod csv_stream;
+mod feed;
 mod load;
+mod motion_stream;
+mod read_ahead;
 mod stream;
+#[cfg(test)]
+mod stream_tests;
 mod summary;
 #[cfg(test)]
 mod tests;
@@ -13,8 +19,9 @@ pub use beats::{
     beat_rows, beats_csv, write_beat_annotations, write_recording_beats, BeatRow, BEATS_CSV_HEADER,
 };
 pub use blocks::sample_blocks;
+pub use feed::{StreamError, BLOCK_FRAMES};
 pub use load::{load, InputInfo, Polarity, Recording, ReplayError, Source};
-pub use stream::{open, StreamError, Streamed, BLOCK_FRAMES};
+pub use stream::{open, Streamed};
 pub use summary::{HrvSummary, RateSummary, Summary};
 
 use crate::motion::MotionSignals;

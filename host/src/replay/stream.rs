@@ -2,64 +2,69 @@
 //! is never in memory whole: a WFDB record's signal is read in blocks
 //! ([`plethwire_records::Record::physical_blocks`]) and fed to the
 //! pipeline as it comes; what the replay keeps (its beats and state
-//! changes) grows with the beats, not the samples.
+//! changes) grows with the beats, not the samples. A choice among several
+//! signals streams each candidate once through the judge first; an
+//! accelerometer streams beside the pulse (`motion_stream`).
 //!
-//! A CSV file, a choice among several signals and a recording with an
-//! accelerometer are read whole as before ([`load`]) and fed the same way.
+//! A CSV file at a given rate streams too (`csv_stream`); one with a time
+//! column is read whole as before ([`load`]) and fed the same way.
 
+use super::csv_stream::{open_csv, CsvColumn};
+use super::feed::{Kept, StreamError, BLOCK_FRAMES};
 use super::load::{is_csv, load, wanted_signals, Wanted};
-use super::{replay_with_motion, Polarity, Recording, Replay, ReplayError, Source};
-use plethwire_dsp::pipeline::{Config, Output, Pipeline, PipelineError};
-use plethwire_records::{LoadedSignal, Record};
+use super::motion_stream::{self, motion_axes};
+use super::read_ahead::read_ahead;
+use super::{replay_with_motion, InputInfo, Polarity, Recording, Replay, ReplayError, Source};
+use crate::channel::{choose_among, ChannelChoice, Judge};
+use plethwire_dsp::pipeline::{Config, Pipeline};
+use plethwire_records::{BlockSample, LoadedSignal, Record};
 use std::path::Path;
-
-/// Frames read at once: 64 Ki frames, half a megabyte of samples.
-pub const BLOCK_FRAMES: usize = 1 << 16;
 
 /// A recording opened for streaming.
 #[derive(Debug)]
 pub struct Streamed {
     /// Everything about the recording but its samples: `head.signal.samples`
     /// stays empty (the samples come from [`Streamed::blocks`]); the
-    /// accelerometer, when asked for, is in `head.motion`.
+    /// accelerometer of a CSV recording, when asked for, is in
+    /// `head.motion` (a WFDB record's is streamed: [`Streamed::motion_names`]).
     pub head: Recording,
     /// The signal's samples.
     pub len: u64,
-    samples: Samples,
+    pub(super) samples: Samples,
 }
 
 #[derive(Debug)]
-enum Samples {
+pub(super) enum Samples {
     /// Read whole ([`load`]).
     Whole(Vec<f64>),
-    /// Signal `index` of a WFDB record, negated when `negate`.
+    /// A column of a CSV file at a given rate.
+    Csv(CsvColumn),
+    /// Signal `index` of a WFDB record, negated when `negate`, with the
+    /// accelerometer's signals and names when asked for.
     Wfdb {
         record: Box<Record>,
         index: usize,
         negate: bool,
+        motion: Option<([usize; 3], [String; 3])>,
     },
 }
 
-/// Why a streamed replay stopped.
-#[derive(Debug, thiserror::Error)]
-pub enum StreamError {
-    /// The pipeline refused its configuration (before any sample).
-    #[error(transparent)]
-    Pipeline(#[from] PipelineError),
-    /// The record would not read part way.
-    #[error(transparent)]
-    Read(#[from] ReplayError),
-}
-
 /// Open `path` as [`load`] would load it (the same signal, polarity and
-/// refusals), reading no samples yet when it is a WFDB record replayed
-/// without an accelerometer and with one signal named (or the default).
+/// refusals), reading no samples yet when it is a WFDB record (with one
+/// signal named or the default; with or without an accelerometer), or
+/// only what the choice among several signals takes (each candidate
+/// streamed once through [`crate::channel::Judge`]); a CSV file at a
+/// given rate without a time column or accelerometer likewise, any other
+/// CSV file read whole.
 pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
-    let one = match wanted_signals(source.signal.as_deref()) {
-        Wanted::One(name) if !is_csv(path) && source.motion.is_none() => Some(name),
-        _ => None,
-    };
-    let Some(name) = one else {
+    if is_csv(path) {
+        if let Some((head, column, rows)) = open_csv(path, source)? {
+            return Ok(Streamed {
+                len: rows,
+                head,
+                samples: Samples::Csv(column),
+            });
+        }
         let mut head = load(path, source)?;
         let samples = std::mem::take(&mut head.signal.samples);
         return Ok(Streamed {
@@ -67,7 +72,7 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
             head,
             samples: Samples::Whole(samples),
         });
-    };
+    }
     let stem = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
@@ -78,7 +83,10 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
         path.to_path_buf()
     };
     let record = Record::open_with(&record_path, &source.record_options)?;
-    let index = record.pick_signal(name)?;
+    let (index, channel) = match wanted_signals(source.signal.as_deref()) {
+        Wanted::One(name) => (record.pick_signal(name)?, None),
+        Wanted::Among(names) => choose_streamed(path, &record, names)?,
+    };
     let spec = &record.signals()[index];
     let head = Recording {
         name: stem,
@@ -89,13 +97,20 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
             fs: record.signal_fs(index),
             samples: Vec::new(),
         },
-        input: Default::default(),
+        input: InputInfo {
+            channel,
+            ..InputInfo::default()
+        },
         motion: None,
         record_options: source.record_options.clone(),
     };
     let negate = source.polarity == Polarity::Down;
     let mut head = head;
     head.input.inverted = negate;
+    let motion = match &source.motion {
+        Some(names) => Some((motion_axes(path, &record, names, index)?, names.clone())),
+        None => None,
+    };
     Ok(Streamed {
         len: record.len() as u64 * u64::from(spec.samples_per_frame),
         head,
@@ -103,36 +118,64 @@ pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
             record: Box::new(record),
             index,
             negate,
+            motion,
         },
     })
 }
 
 impl Streamed {
+    /// The accelerometer's signal names, when the replay takes one (read
+    /// whole into `head.motion`, or streamed beside the pulse).
+    pub fn motion_names(&self) -> Option<&[String; 3]> {
+        match &self.samples {
+            Samples::Wfdb {
+                motion: Some((_, names)),
+                ..
+            } => Some(names),
+            _ => self.head.motion.as_ref().map(|m| &m.names),
+        }
+    }
+
     /// Hand the samples to `each`, a block at a time, in order, for as
     /// long as it answers `true`.
-    pub fn blocks(&self, mut each: impl FnMut(&[f64]) -> bool) -> Result<(), ReplayError> {
+    pub fn blocks(&self, each: impl FnMut(&[f64]) -> bool) -> Result<(), ReplayError> {
+        self.blocks_as(each)
+    }
+
+    /// [`blocks`](Self::blocks) as `f64` or as `f32` (the `f64` values
+    /// rounded, as the pipeline takes them); a WFDB record's next block is
+    /// read on a second thread meanwhile (`read_ahead`), into the few
+    /// buffers kept for the whole record.
+    pub fn blocks_as<T: BlockSample>(
+        &self,
+        mut each: impl FnMut(&[T]) -> bool,
+    ) -> Result<(), ReplayError> {
         match &self.samples {
             Samples::Whole(samples) => {
-                for block in samples.chunks(BLOCK_FRAMES) {
-                    if !each(block) {
+                let mut block: Vec<T> = Vec::with_capacity(BLOCK_FRAMES);
+                for chunk in samples.chunks(BLOCK_FRAMES) {
+                    block.clear();
+                    block.extend(chunk.iter().map(|&x| T::from_f64(x)));
+                    if !each(&block) {
                         break;
                     }
                 }
+            }
+            Samples::Csv(column) => {
+                let mut block: Vec<T> = Vec::with_capacity(BLOCK_FRAMES);
+                column.blocks(|values| {
+                    block.clear();
+                    block.extend(values.iter().map(|&x| T::from_f64(x)));
+                    each(&block)
+                })?;
             }
             Samples::Wfdb {
                 record,
                 index,
                 negate,
+                ..
             } => {
-                for block in record.physical_blocks(*index, BLOCK_FRAMES)? {
-                    let mut block = block?;
-                    if *negate {
-                        block.iter_mut().for_each(|x| *x = -*x);
-                    }
-                    if !each(&block) {
-                        break;
-                    }
-                }
+                read_ahead(record, *index, BLOCK_FRAMES, *negate, each)?;
             }
         }
         Ok(())
@@ -144,37 +187,56 @@ impl Streamed {
         if let (Some(motion), Samples::Whole(samples)) = (&self.head.motion, &self.samples) {
             return Ok(replay_with_motion(samples, Some(motion), config)?);
         }
+        if let Samples::Wfdb {
+            record,
+            index,
+            negate,
+            motion: Some((axes, _)),
+        } = &self.samples
+        {
+            let pulse = (record.as_ref(), *index, *negate);
+            return motion_stream::replay(pulse, *axes, self.head.signal.fs, config);
+        }
         let mut p = Pipeline::new(config)?;
-        let (mut beats, mut states) = (Vec::new(), Vec::new());
-        // `push` on an `Option` (not `extend`): `extend` is a call per
-        // sample, 7 % of a replay.
-        let mut keep = |out: Output| {
-            if let Some(b) = out.beat {
-                beats.push(b);
-            }
-            if let Some(s) = out.state {
-                states.push(s);
-            }
-        };
+        let mut kept = Kept::default();
         // The board hands the pipeline f32 samples; so does the replay.
-        self.blocks(|block| {
-            block.iter().for_each(|&x| keep(p.push(x as f32)));
+        self.blocks_as(|block: &[f32]| {
+            block.iter().for_each(|&x| kept.keep(p.push(x)));
             true
         })?;
-        p.finish(|b| {
-            keep(Output {
-                beat: Some(b),
-                state: None,
-            })
-        });
-        Ok(Replay {
-            fs: config.sample_rate_hz as f64,
-            samples: self.len,
-            beats,
-            states,
-            rejected: p.rejected_samples(),
-            clipped: p.clipped_samples(),
-            restarts: p.restarts(),
-        })
+        p.finish(|b| kept.closed(b));
+        Ok(kept.into_replay(&p, config, self.len))
     }
+}
+
+/// The signal of `record` chosen among `names` (all its signals for
+/// `None`) as [`load`] chooses it, and the choice (none for a single
+/// name): each candidate judged as its blocks stream past.
+fn choose_streamed(
+    path: &Path,
+    record: &Record,
+    names: Option<Vec<String>>,
+) -> Result<(usize, Option<ChannelChoice>), ReplayError> {
+    let names = names.unwrap_or_else(|| record.signal_names());
+    let indices = names
+        .iter()
+        .map(|n| record.pick_signal(Some(n)))
+        .collect::<plethwire_records::Result<Vec<usize>>>()?;
+    if let [one] = indices[..] {
+        return Ok((one, None));
+    }
+    let mut candidates = Vec::with_capacity(indices.len());
+    for &i in &indices {
+        let name = record.signals()[i].description.clone().unwrap_or_default();
+        let mut judge = Judge::new(&name, record.signal_fs(i));
+        read_ahead(record, i, BLOCK_FRAMES, false, |block: &[f64]| {
+            judge.push(block);
+            true
+        })?;
+        candidates.push(judge.finish());
+    }
+    let (best, choice) = choose_among(candidates).ok_or_else(|| {
+        ReplayError::Refused(format!("{}: no signals to choose from", path.display()))
+    })?;
+    Ok((indices[best], Some(choice)))
 }

@@ -11,13 +11,17 @@
 
 use std::fs::File;
 use std::io::{Read, Seek, SeekFrom};
-use std::path::PathBuf;
 
 use super::group::{check_length, Group};
 use super::Record;
 use crate::error::{Error, ErrorKind, Result};
 use crate::input::{open_regular, regular_size};
 use crate::wfdb_format::{undo_differences_from, SignalFormat};
+
+mod convert;
+
+pub use convert::BlockSample;
+use convert::{Layout, Scale, Table16, TABLE16_FROM_SAMPLES};
 
 /// Physical values of one signal of a [`Record`], a block at a time
 /// ([`Record::physical_blocks`]). Each item holds the signal's samples of
@@ -85,30 +89,48 @@ impl Record {
     }
 }
 
-impl Iterator for PhysicalBlocks<'_> {
-    type Item = Result<Vec<f64>>;
-
-    fn next(&mut self) -> Option<Self::Item> {
+impl PhysicalBlocks<'_> {
+    /// The next block into `out` (emptied first, its memory kept): `true`
+    /// when a block was read, `false` at the end of the signal and after
+    /// an error. The same values as [`Iterator::next`], as `T`; a replay
+    /// that keeps one buffer allocates nothing per block.
+    pub fn read_into<T: BlockSample>(&mut self, out: &mut Vec<T>) -> Result<bool> {
+        out.clear();
         if self.failed {
-            return None;
+            return Ok(false);
         }
         loop {
             if let Some(c) = &mut self.current {
                 if c.next < c.end {
                     let n = self.block_frames.min(c.end - c.next);
-                    let block = c.read(n);
-                    self.failed = block.is_err();
-                    return Some(block);
+                    let read = c.read(n, out);
+                    self.failed = read.is_err();
+                    return read.map(|()| true);
                 }
             }
-            let piece = self.pieces.next()?;
+            let Some(piece) = self.pieces.next() else {
+                return Ok(false);
+            };
             match Cursor::open(&piece) {
                 Ok(c) => self.current = Some(c),
                 Err(e) => {
                     self.failed = true;
-                    return Some(Err(e));
+                    return Err(e);
                 }
             }
+        }
+    }
+}
+
+impl Iterator for PhysicalBlocks<'_> {
+    type Item = Result<Vec<f64>>;
+
+    fn next(&mut self) -> Option<Self::Item> {
+        let mut block = Vec::new();
+        match self.read_into(&mut block) {
+            Ok(true) => Some(Ok(block)),
+            Ok(false) => None,
+            Err(e) => Some(Err(e)),
         }
     }
 }
@@ -129,19 +151,20 @@ struct FileSignal {
     file: File,
     group: Group,
     format: SignalFormat,
-    /// Samples in a frame of the file; where the signal's start in it.
-    per_frame: usize,
-    at: usize,
-    /// The signal's samples per frame.
-    spf: usize,
+    /// Where the signal lies in the file's frames.
+    layout: Layout,
     skew: u64,
     /// The record's frames (stored frames past them read as missing).
     frames: u64,
-    invalid: Option<i32>,
-    baseline: f64,
-    gain: f64,
+    scale: Scale,
+    /// The 16-bit formats' values by stored word, for a long signal.
+    table: Option<Table16>,
     /// Format 8: each signal's samples per frame and its running value.
     diff: Option<(Vec<usize>, Vec<i32>)>,
+    /// The bytes of the last block, and (format 8 and the packed formats)
+    /// its stored integers: kept, so a block allocates nothing.
+    bytes: Vec<u8>,
+    stream: Vec<i32>,
 }
 
 impl Cursor {
@@ -158,13 +181,16 @@ impl Cursor {
         })
     }
 
-    /// The next `n` frames' samples of the signal.
-    fn read(&mut self, n: u64) -> Result<Vec<f64>> {
+    /// The next `n` frames' samples of the signal into `out` (empty).
+    fn read<T: BlockSample>(&mut self, n: u64, out: &mut Vec<T>) -> Result<()> {
         let from = self.next;
         self.next += n;
         match &mut self.file {
-            Some(f) => f.read(from, n),
-            None => Ok(vec![f64::NAN; n as usize * self.spf]),
+            Some(f) => f.read(from, n, out),
+            None => {
+                out.resize(n as usize * self.spf, T::MISSING);
+                Ok(())
+            }
         }
     }
 }
@@ -201,56 +227,74 @@ impl FileSignal {
             ));
         }
         let (file, _) = open_regular(&group.path)?;
+        let scale = Scale::new(
+            spec.format.invalid_value(),
+            spec.baseline as f64,
+            spec.adc_gain,
+        );
+        let samples = rec.frames.saturating_mul(u64::from(spec.samples_per_frame));
+        // Only for a signal alone in its file: beside others its reading
+        // costs more than its conversion, and several tables add up.
+        let alone = group.signals.len() == 1;
+        let table = (alone && samples >= TABLE16_FROM_SAMPLES)
+            .then(|| Table16::new(group.format, &scale))
+            .flatten();
         Ok(FileSignal {
             file,
             format: group.format,
-            per_frame: group.frame_samples(&rec.header) as usize,
-            at,
-            spf: spec.samples_per_frame as usize,
+            layout: Layout {
+                per_frame: group.frame_samples(&rec.header) as usize,
+                at,
+                spf: spec.samples_per_frame as usize,
+            },
             skew: u64::from(spec.skew),
             frames: rec.frames,
-            invalid: spec.format.invalid_value(),
-            baseline: spec.baseline as f64,
-            gain: spec.adc_gain,
+            scale,
+            table,
             diff,
             group,
+            bytes: Vec::new(),
+            stream: Vec::new(),
         })
     }
 
-    /// Physical values of the signal in record frames `from..from + n`.
-    fn read(&mut self, from: u64, n: u64) -> Result<Vec<f64>> {
-        let spf = self.spf;
+    /// Physical values of the signal in record frames `from..from + n`,
+    /// into `out` (empty).
+    fn read<T: BlockSample>(&mut self, from: u64, n: u64, out: &mut Vec<T>) -> Result<()> {
         // Stored frames: skewed by `skew`, none past the record's end.
         let lo = (from + self.skew).min(self.frames);
         let hi = (from + n + self.skew).min(self.frames);
-        let stream = self.stored(lo, hi)?;
-        let (invalid, baseline, gain) = (self.invalid, self.baseline, self.gain);
-        let physical = |&d: &i32| {
-            if Some(d) == invalid {
-                f64::NAN
-            } else {
-                (d as f64 - baseline) / gain
-            }
-        };
-        let mut out = Vec::with_capacity(n as usize * spf);
-        if self.per_frame == spf {
-            // The file holds this signal alone: every sample is its own.
-            out.extend(stream.iter().map(physical));
-        } else {
-            for frame in stream.chunks_exact(self.per_frame) {
-                out.extend(frame[self.at..self.at + spf].iter().map(physical));
+        let want = n as usize * self.layout.spf;
+        out.reserve(want);
+        if let Some((skip, count)) = self.fetch(lo, hi)? {
+            let scale = (&self.scale, self.table.as_ref());
+            let fixed = self.diff.is_none()
+                && convert::fixed_width(self.format, &self.bytes, self.layout, scale, out);
+            if !fixed {
+                self.stream.clear();
+                self.format
+                    .decode_into(&self.bytes, count, &mut self.stream);
+                let stream = &mut self.stream[skip..];
+                if let Some((slots, running)) = &mut self.diff {
+                    undo_differences_from(stream, slots, running);
+                }
+                convert::from_stream(stream, self.layout, &self.scale, out);
             }
         }
-        out.resize(n as usize * spf, f64::NAN);
-        Ok(out)
+        out.resize(want, T::MISSING);
+        Ok(())
     }
 
-    /// The stored stream of frames `lo..hi` of the file, format 8 summed.
-    fn stored(&mut self, lo: u64, hi: u64) -> Result<Vec<i32>> {
-        let per = self.per_frame as u64;
+    /// Read the bytes of stored frames `lo..hi` into `self.bytes`: from
+    /// the start of the byte group that holds the first sample. `None`
+    /// when there are none; else the samples before the first one in the
+    /// bytes, and the samples the bytes hold from their start. The
+    /// fixed-width formats start on the first sample (no samples before).
+    fn fetch(&mut self, lo: u64, hi: u64) -> Result<Option<(usize, usize)>> {
+        let per = self.layout.per_frame as u64;
         let (first, last) = (lo * per, hi * per);
         if first == last {
-            return Ok(Vec::new());
+            return Ok(None);
         }
         // Packed formats start on the byte group holding the first sample.
         let group = match self.format {
@@ -261,22 +305,18 @@ impl FileSignal {
         let start = first - first % group;
         let offset = self.group.byte_offset + self.format.bytes_for(start);
         let len = self.format.bytes_for(last - start);
-        let mut bytes = vec![0u8; len as usize];
-        let path: PathBuf = self.group.path.clone();
-        let io = |e: std::io::Error| Error::from_io(&path, "read", &e);
+        // `resize` writes only the bytes it adds: nothing once a block's worth.
+        self.bytes.resize(len as usize, 0);
+        let path = &self.group.path;
+        let io = |e: std::io::Error| Error::from_io(path, "read", &e);
         self.file.seek(SeekFrom::Start(offset)).map_err(io)?;
-        if let Err(e) = self.file.read_exact(&mut bytes) {
+        if let Err(e) = self.file.read_exact(&mut self.bytes) {
             // The file may have shrunk since the record was opened.
-            let size = regular_size(&path)?;
+            let size = regular_size(path)?;
             check_length(&self.group, size, self.frames, per)?;
             return Err(io(e));
         }
-        let mut stream = self.format.decode(&bytes, (last - start) as usize);
-        stream.drain(..(first - start) as usize);
-        if let Some((slots, running)) = &mut self.diff {
-            undo_differences_from(&mut stream, slots, running);
-        }
-        Ok(stream)
+        Ok(Some(((first - start) as usize, (last - start) as usize)))
     }
 }
 

@@ -5,7 +5,9 @@
 //! bursts of hand movement and two stretches with the finger off. It is
 //! written as a WFDB record (format 16, signal `PLETH`) with the true
 //! systolic peaks as `<name>.peak`, the annotator `score` and `report`
-//! take by default.
+//! take by default. With `--accelerometer` the record also holds
+//! `ACCX`, `ACCY`, `ACCZ` (g, made up: gravity on z, the hand's movement
+//! on x during the bursts), for `--motion` and `--signal auto`.
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -16,10 +18,14 @@ use plethwire_synth::{generate, FingerOff, HrSchedule, MotionBurst, SynthOptions
 const HELP: &str = "\
 bench_record: a made-up long recording for the memory benchmark
 
-Usage: bench_record DIR [--hours H] [--rate HZ] [--name NAME]
+Usage: bench_record DIR [--hours H] [--rate HZ] [--name NAME] [--accelerometer]
 
-Writes DIR/NAME.hea, NAME.dat (format 16, signal PLETH) and NAME.peak (the
-true systolic peaks). Defaults: 24 hours, 500 Hz, name day.";
+Writes DIR/NAME.hea, NAME.dat (format 16, signal PLETH; with
+--accelerometer also ACCX, ACCY, ACCZ in g) and NAME.peak (the true
+systolic peaks). Defaults: 24 hours, 500 Hz, name day.";
+
+/// Stored units per g of the made-up accelerometer.
+const ACC_GAIN: f64 = 8_000.0;
 
 /// Stored units per signal unit, and the stored value of zero: the made-up
 /// signal sits near 1.5 units, so it is stored around 0 with room for the
@@ -72,6 +78,7 @@ fn scenario(hours: f64, fs: f64) -> SynthOptions {
 fn run(args: &[String]) -> Result<String, String> {
     let mut dir: Option<PathBuf> = None;
     let (mut hours, mut fs, mut name) = (24.0, 500.0, "day".to_string());
+    let mut accelerometer = false;
     let mut it = args.iter();
     while let Some(a) = it.next() {
         let mut value = |what: &str| it.next().cloned().ok_or(format!("{what} needs a value"));
@@ -87,6 +94,7 @@ fn run(args: &[String]) -> Result<String, String> {
                     .map_err(|e| format!("--rate: {e}"))?
             }
             "--name" => name = value("--name")?,
+            "--accelerometer" => accelerometer = true,
             "-h" | "--help" => return Ok(HELP.to_string()),
             _ if dir.is_none() => dir = Some(PathBuf::from(a)),
             _ => return Err(format!("unexpected argument {a:?}\n\n{HELP}")),
@@ -94,13 +102,24 @@ fn run(args: &[String]) -> Result<String, String> {
     }
     let dir = dir.ok_or(format!("no folder given\n\n{HELP}"))?;
     std::fs::create_dir_all(&dir).map_err(|e| format!("{}: {e}", dir.display()))?;
-    let rec = generate(&scenario(hours, fs)).map_err(|e| e.to_string())?;
-    let signal = NewSignal::new("PLETH", "NU", GAIN, BASELINE);
-    let mut w = RecordWriter::create(&dir, &name, fs, &[signal]).map_err(|e| e.to_string())?;
-    for &x in &rec.samples {
+    let options = scenario(hours, fs);
+    let rec = generate(&options).map_err(|e| e.to_string())?;
+    let mut signals = vec![NewSignal::new("PLETH", "NU", GAIN, BASELINE)];
+    if accelerometer {
+        for axis in ["ACCX", "ACCY", "ACCZ"] {
+            signals.push(NewSignal::new(axis, "g", ACC_GAIN, 0));
+        }
+    }
+    let mut w = RecordWriter::create(&dir, &name, fs, &signals).map_err(|e| e.to_string())?;
+    let mut frame = Vec::with_capacity(4);
+    for (n, &x) in rec.samples.iter().enumerate() {
         let stored = (f64::from(x) * GAIN).round() as i64 + i64::from(BASELINE);
-        let stored = stored.clamp(-32_767, 32_767) as i32;
-        w.push_frame(&[stored]).map_err(|e| e.to_string())?;
+        frame.clear();
+        frame.push(stored.clamp(-32_767, 32_767) as i32);
+        if accelerometer {
+            frame.extend(acceleration(&options, n as f64 / fs).map(|g| (g * ACC_GAIN) as i32));
+        }
+        w.push_frame(&frame).map_err(|e| e.to_string())?;
     }
     let (_, header) = w.finish().map_err(|e| e.to_string())?;
     let peaks: Vec<Annotation> = rec
@@ -117,6 +136,21 @@ fn run(args: &[String]) -> Result<String, String> {
         peaks.len(),
         ann.display()
     ))
+}
+
+/// The made-up wrist at `t` s, g: gravity on z, a slight tilt on y, and
+/// during each of the scenario's movement bursts a 2 Hz swing of 0.8 g on x.
+fn acceleration(options: &SynthOptions, t: f64) -> [f64; 3] {
+    let moving = options
+        .motion
+        .iter()
+        .any(|b| (b.start_s..b.start_s + b.duration_s).contains(&t));
+    let swing = if moving {
+        0.8 * (2.0 * std::f64::consts::PI * 2.0 * t).sin()
+    } else {
+        0.0
+    };
+    [swing, 0.12, 0.99]
 }
 
 fn main() -> ExitCode {

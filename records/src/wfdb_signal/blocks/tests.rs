@@ -36,6 +36,22 @@ fn blocks_equal_whole(rec: &Record, what: &str) -> usize {
                 bits(&whole),
                 "{what}: signal {i}, blocks of {block}"
             );
+            // Into one buffer kept between blocks, as f32 too: the same
+            // values, the f32 ones the f64 ones rounded.
+            let (mut one, mut as_f32) = (Vec::new(), Vec::new());
+            let (mut reused, mut reused_f32) = (Vec::new(), Vec::<f32>::new());
+            let mut blocks = rec.physical_blocks(i, block).unwrap();
+            while blocks.read_into(&mut reused).unwrap() {
+                one.extend_from_slice(&reused);
+            }
+            assert!(!blocks.read_into(&mut reused).unwrap() && reused.is_empty());
+            let mut blocks = rec.physical_blocks(i, block).unwrap();
+            while blocks.read_into(&mut reused_f32).unwrap() {
+                as_f32.extend(reused_f32.iter().map(|x| x.to_bits()));
+            }
+            assert_eq!(bits(&one), bits(&whole), "{what}: signal {i}, into");
+            let rounded: Vec<u32> = whole.iter().map(|&x| (x as f32).to_bits()).collect();
+            assert_eq!(as_f32, rounded, "{what}: signal {i}, into f32");
             compared += 1;
         }
     }
@@ -135,5 +151,52 @@ fn a_signal_file_cut_short_after_opening_is_an_error_not_short_blocks() {
     let e = blocks.next().unwrap().unwrap_err().to_string();
     assert!(e.contains("r.dat"), "{e}");
     assert!(blocks.next().is_none(), "nothing after an error");
+    let mut into = rec.physical_blocks(0, 40).unwrap();
+    let mut buffer = Vec::<f32>::new();
+    assert!(into.read_into(&mut buffer).unwrap() && buffer.len() == 40);
+    assert!(into.read_into(&mut buffer).is_err());
+    assert!(
+        !into.read_into(&mut buffer).unwrap(),
+        "nothing after an error"
+    );
     assert!(rec.physical_blocks(1, 40).is_err(), "no signal 1");
+}
+
+#[test]
+fn long_16_bit_signals_read_through_the_table_give_the_same_values() {
+    // Long enough for the table of 16-bit words (TABLE16_FROM_SAMPLES),
+    // every word present: one signal alone (through the table) and two
+    // interleaved (without).
+    let frames = super::convert::TABLE16_FROM_SAMPLES as usize + 3;
+    let mut rng = Rng::new(0x7ab1e16);
+    for code in [16, 61, 160] {
+        let dir = tempfile::tempdir().unwrap();
+        let mut alone: Vec<u8> = (0..=u16::MAX).flat_map(u16::to_le_bytes).collect();
+        alone.extend(rng.bytes(2 * frames - alone.len()));
+        write(
+            dir.path(),
+            &[("a.dat", alone), ("b.dat", rng.bytes(4 * frames))],
+        );
+        let header = format!(
+            "t 3 500 {frames}\n\
+             a.dat {code} 0.37(-11)/mV 16 0 0 0 0 A\n\
+             b.dat {code} 3.1/mV 16 0 0 0 0 B\n\
+             b.dat {code} 1(5)/mV 16 0 0 0 0 C\n"
+        );
+        std::fs::write(dir.path().join("t.hea"), header).unwrap();
+        let rec = Record::open(dir.path().join("t")).unwrap();
+        for i in 0..3 {
+            let whole = rec.read_physical(i).unwrap();
+            assert!(
+                i > 0 || whole.iter().any(|x| x.is_nan()),
+                "the invalid word"
+            );
+            let (mut joined, mut block) = (Vec::new(), Vec::new());
+            let mut blocks = rec.physical_blocks(i, 40_000).unwrap();
+            while blocks.read_into(&mut block).unwrap() {
+                joined.extend_from_slice(&block);
+            }
+            assert_eq!(bits(&joined), bits(&whole), "format {code}, signal {i}");
+        }
+    }
 }

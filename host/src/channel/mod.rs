@@ -25,9 +25,13 @@
 //! listed on a tie). Missing samples (NaN) are held at the last good
 //! value, as the pipeline's input stage does.
 
-use plethwire_dsp::design::{butterworth_bandpass, butterworth_highpass, Design};
-use plethwire_dsp::filter::Biquad;
 use serde::Serialize;
+
+mod judge;
+#[cfg(test)]
+mod whole;
+
+pub use judge::Judge;
 
 use plethwire_records::LoadedSignal;
 
@@ -75,7 +79,12 @@ pub struct ChannelChoice {
 /// Judge every signal and pick the one with the highest figure; `None`
 /// for an empty list.
 pub fn choose(signals: &[LoadedSignal]) -> Option<(usize, ChannelChoice)> {
-    let candidates: Vec<ChannelFigure> = signals.iter().map(judge).collect();
+    choose_among(signals.iter().map(judge).collect())
+}
+
+/// The candidate with the highest figure (the first listed on a tie) and
+/// the choice; `None` for none.
+pub fn choose_among(candidates: Vec<ChannelFigure>) -> Option<(usize, ChannelChoice)> {
     let mut best = 0;
     for (i, c) in candidates.iter().enumerate() {
         if c.figure > candidates[best].figure {
@@ -86,23 +95,11 @@ pub fn choose(signals: &[LoadedSignal]) -> Option<(usize, ChannelChoice)> {
     Some((best, ChannelChoice { chosen, candidates }))
 }
 
-/// One signal's figures.
+/// One signal's figures ([`Judge`] over all its samples).
 pub fn judge(signal: &LoadedSignal) -> ChannelFigure {
-    let held = hold_missing(&signal.samples);
-    let clipped_share = clipped_share(&held);
-    let fs = signal.fs;
-    let (periodicity, peak_rate_bpm, heart_band_share) = match band_figures(&held, fs) {
-        Some(f) => f,
-        None => (0.0, None, 0.0),
-    };
-    ChannelFigure {
-        name: signal.name.clone(),
-        figure: periodicity * heart_band_share * (1.0 - clipped_share),
-        periodicity,
-        peak_rate_bpm,
-        heart_band_share,
-        clipped_share,
-    }
+    let mut j = Judge::new(&signal.name, signal.fs);
+    j.push(&signal.samples);
+    j.finish()
 }
 
 /// The samples with every non-finite value replaced by the last finite
@@ -118,84 +115,6 @@ pub fn hold_missing(x: &[f64]) -> Vec<f64> {
             last
         })
         .collect()
-}
-
-/// Share of samples at the lowest or highest value with a neighbour of
-/// the same value.
-fn clipped_share(x: &[f64]) -> f64 {
-    if x.is_empty() {
-        return 0.0;
-    }
-    let lo = x.iter().copied().fold(f64::INFINITY, f64::min);
-    let hi = x.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-    let flat = |i: usize| (i > 0 && x[i - 1] == x[i]) || (i + 1 < x.len() && x[i + 1] == x[i]);
-    let n = (0..x.len())
-        .filter(|&i| (x[i] == lo || x[i] == hi) && flat(i))
-        .count();
-    n as f64 / x.len() as f64
-}
-
-/// Run `design`'s sections over `x` (transposed direct form II, f64),
-/// starting from rest on `x`'s first value taken away.
-fn filter(design: &Design, x: &[f64]) -> Vec<f64> {
-    let x0 = x.first().copied().unwrap_or(0.0);
-    let mut y: Vec<f64> = x.iter().map(|v| v - x0).collect();
-    for s in design.sections() {
-        let Biquad { b0, b1, b2, a1, a2 } = *s;
-        let (mut z1, mut z2) = (0.0, 0.0);
-        for v in y.iter_mut() {
-            let out = b0 * *v + z1;
-            z1 = b1 * *v - a1 * out + z2;
-            z2 = b2 * *v - a2 * out;
-            *v = out;
-        }
-    }
-    y
-}
-
-/// (periodicity, rate at the peak, heart-band share), or `None` when the
-/// recording is too short or the rate too low for the band.
-fn band_figures(x: &[f64], fs: f64) -> Option<(f64, Option<f64>, f64)> {
-    let band = butterworth_bandpass(2, BAND_HZ.0, BAND_HZ.1, fs).ok()?;
-    let high = butterworth_highpass(2, BAND_HZ.0, fs).ok()?;
-    let settle = (SETTLE_S * fs) as usize;
-    if x.len() <= settle {
-        return None;
-    }
-    let banded = filter(&band, x);
-    let above = filter(&high, x);
-    let power = |v: &[f64]| v[settle..].iter().map(|a| a * a).sum::<f64>();
-    let above_power = power(&above);
-    let share = if above_power > 0.0 {
-        (power(&banded) / above_power).min(1.0)
-    } else {
-        0.0
-    };
-    let step = (fs / ANALYSIS_MAX_HZ).ceil().max(1.0) as usize;
-    let ha = fs / step as f64;
-    let y: Vec<f64> = banded[settle..].iter().step_by(step).copied().collect();
-    let window = (WINDOW_S * ha) as usize;
-    let hop = ((HOP_S * ha) as usize).max(1);
-    let min_lag = ((60.0 / RATE_RANGE_BPM.1) * ha).floor().max(1.0) as usize;
-    let max_lag = ((60.0 / RATE_RANGE_BPM.0) * ha).ceil() as usize;
-    let mut peaks: Vec<(f64, usize)> = Vec::new();
-    let mut start = 0;
-    while start + window <= y.len() {
-        peaks.push(autocorrelation_peak(
-            &y[start..start + window],
-            min_lag,
-            max_lag,
-        ));
-        start += hop;
-    }
-    if peaks.is_empty() {
-        // Shorter than one window: the whole of it.
-        peaks.push(autocorrelation_peak(&y, min_lag, max_lag));
-    }
-    peaks.sort_by(|a, b| a.0.total_cmp(&b.0));
-    let (r, lag) = peaks[peaks.len() / 2];
-    let rate = (lag > 0).then(|| 60.0 * ha / lag as f64);
-    Some((r.max(0.0), rate, share))
 }
 
 /// Highest normalised autocorrelation over `min_lag..=max_lag` and its

@@ -1,0 +1,200 @@
+//! Columns of a CSV file at a known rate read a block of rows at a time,
+//! so a long file is never in memory whole: the same values, cells
+//! refused the same way, as [`read_csv_signals`](super::read_csv_signals)
+//! with [`Rate::Given`] reads at once. Files with a time column (measured
+//! or resampled rates) are read whole.
+
+use std::path::{Path, PathBuf};
+
+use super::table::Table;
+use super::{positive_rate, value_cell, ColumnRef, CsvSignalOptions, Rate};
+use crate::error::{Error, ErrorKind, Result};
+
+/// Value columns of a CSV file at a known rate, a block of rows at a time
+/// ([`CsvBlocks::read_into`]).
+pub struct CsvBlocks {
+    path: PathBuf,
+    table: Table,
+    cols: Vec<usize>,
+    fs: f64,
+    empty_as_nan: bool,
+    rows: u64,
+    done: bool,
+}
+
+impl std::fmt::Debug for CsvBlocks {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("CsvBlocks")
+            .field("path", &self.path)
+            .field("cols", &self.cols)
+            .field("rows", &self.rows)
+            .finish()
+    }
+}
+
+impl CsvBlocks {
+    /// Open `columns` of the CSV file at `path` with `options`, whose rate
+    /// must be [`Rate::Given`] (a time column is refused: such files are
+    /// read whole).
+    pub fn open(
+        path: impl AsRef<Path>,
+        columns: &[ColumnRef],
+        options: &CsvSignalOptions,
+    ) -> Result<CsvBlocks> {
+        let path = path.as_ref();
+        let invalid = |m: &str| Error::new(path, ErrorKind::Invalid(m.into()));
+        let Rate::Given(fs) = options.rate else {
+            return Err(invalid("a time column is read whole, not in blocks"));
+        };
+        if !options.header && columns.iter().any(|c| matches!(c, ColumnRef::Name(_))) {
+            return Err(invalid(
+                "columns of a file without a header can only be picked by index",
+            ));
+        }
+        let fs = positive_rate(path, "sample rate", fs)?;
+        let table = Table::open(path, options.header)?;
+        let cols = columns
+            .iter()
+            .map(|c| table.find(path, c))
+            .collect::<Result<Vec<usize>>>()?;
+        Ok(CsvBlocks {
+            path: path.to_path_buf(),
+            table,
+            cols,
+            fs,
+            empty_as_nan: options.empty_as_nan,
+            rows: 0,
+            done: false,
+        })
+    }
+
+    /// The columns' names (header text, or `#index`), in the order asked for.
+    pub fn names(&self) -> Vec<String> {
+        self.cols.iter().map(|&c| self.table.name(c)).collect()
+    }
+
+    /// The sample rate, Hz.
+    pub fn fs(&self) -> f64 {
+        self.fs
+    }
+
+    /// The next at most `rows` rows (at least 1) into `out`, one buffer
+    /// per column (each emptied first, its memory kept): `true` when a row
+    /// was read, `false` at the end and after an error. A file without
+    /// data rows is an error, as in the whole read.
+    pub fn read_into(&mut self, rows: usize, out: &mut [Vec<f64>]) -> Result<bool> {
+        out.iter_mut().for_each(Vec::clear);
+        if self.done {
+            return Ok(false);
+        }
+        let read = self.fill(rows.max(1), out);
+        if !matches!(read, Ok(true)) {
+            self.done = true;
+        }
+        read
+    }
+
+    fn fill(&mut self, rows: usize, out: &mut [Vec<f64>]) -> Result<bool> {
+        let path = self.path.as_path();
+        let mut n = 0;
+        while n < rows {
+            let Some((no, cells)) = self.table.next_row(path)? else {
+                break;
+            };
+            for (column, &col) in out.iter_mut().zip(&self.cols) {
+                let v = value_cell(path, &self.table, no, col, &cells[col], self.empty_as_nan)?;
+                column.push(v);
+            }
+            n += 1;
+        }
+        self.rows += n as u64;
+        if self.rows == 0 {
+            return Err(Error::new(path, ErrorKind::Syntax("no data rows".into())));
+        }
+        Ok(n > 0)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::read_csv_signals;
+
+    fn read_all(
+        path: &Path,
+        cols: &[ColumnRef],
+        o: &CsvSignalOptions,
+        rows: usize,
+    ) -> Result<Vec<Vec<f64>>> {
+        let mut blocks = CsvBlocks::open(path, cols, o)?;
+        let mut out = vec![Vec::new(); cols.len()];
+        let mut all = vec![Vec::new(); cols.len()];
+        while blocks.read_into(rows, &mut out)? {
+            assert!(out[0].len() <= rows.max(1));
+            for (a, b) in all.iter_mut().zip(&out) {
+                a.extend_from_slice(b);
+            }
+        }
+        Ok(all)
+    }
+
+    #[test]
+    fn blocks_of_rows_are_the_whole_read() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("r.csv");
+        let mut text = String::from("\u{feff}a, \"b\" ,c\r\n");
+        for k in 0..1000 {
+            let c = if k % 97 == 0 {
+                "nan".to_string()
+            } else {
+                format!("{}", k as f64 * 0.25)
+            };
+            text += &format!("{k},{},{c}\n", (k * 7) % 13);
+            if k % 250 == 0 {
+                text += "\n"; // blank lines are skipped
+            }
+        }
+        std::fs::write(&path, text).unwrap();
+        let cols = [
+            ColumnRef::Name("c".into()),
+            ColumnRef::Index(0),
+            ColumnRef::Name("b".into()),
+        ];
+        let o = CsvSignalOptions::with_rate(cols[0].clone(), 50.0);
+        let whole = read_csv_signals(&path, &cols, &o).unwrap();
+        let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+        for rows in [1, 3, 999, 1000, 5000] {
+            let got = read_all(&path, &cols, &o, rows).unwrap();
+            for (g, w) in got.iter().zip(&whole.signals) {
+                assert_eq!(bits(g), bits(&w.samples), "blocks of {rows}");
+            }
+        }
+        let names = CsvBlocks::open(&path, &cols, &o).unwrap().names();
+        let want: Vec<String> = whole.signals.iter().map(|s| s.name.clone()).collect();
+        assert_eq!(names, want);
+    }
+
+    #[test]
+    fn bad_files_are_refused_as_the_whole_read_refuses_them() {
+        let dir = tempfile::tempdir().unwrap();
+        let cases = [
+            ("a,b\n1,2\n3,x\n4,5\n", 50.0),
+            ("a,b\n", 50.0),
+            ("a,b\n1,2\n3\n", 50.0),
+            ("a,b\n1,2\n", 0.0),
+            ("a,b\n1,\n", 50.0),
+        ];
+        for (k, (text, fs)) in cases.iter().enumerate() {
+            let path = dir.path().join(format!("{k}.csv"));
+            std::fs::write(&path, text).unwrap();
+            let cols = [ColumnRef::Name("b".into())];
+            let o = CsvSignalOptions::with_rate(cols[0].clone(), *fs);
+            let whole = read_csv_signals(&path, &cols, &o).unwrap_err().to_string();
+            let got = read_all(&path, &cols, &o, 1).unwrap_err().to_string();
+            assert_eq!(got, whole, "{text:?}");
+        }
+        let timed = CsvSignalOptions::with_time(ColumnRef::Index(1), ColumnRef::Index(0));
+        let path = dir.path().join("0.csv");
+        assert!(CsvBlocks::open(&path, &[ColumnRef::Index(1)], &timed).is_err());
+    }
+}
