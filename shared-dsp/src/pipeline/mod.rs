@@ -286,13 +286,8 @@ impl Pipeline {
     /// restart or the high-pass, the signal-state floor, the rings.
     /// Returns the band-passed value.
     #[inline(always)]
-<<<<<<< HEAD
     fn band_pass(&mut self, mut s: f32, block: Block) -> f32 {
-        let why = self.band.judge(s, &self.traces.smoothed, self.t);
-=======
-    fn band_pass(&mut self, mut s: f32, value: f32, block: Block) -> f32 {
         let why = self.band.judge(s, self.traces.smoothed(), self.t);
->>>>>>> beatcost
         if self.monitor.state() == SignalState::NoSignal {
             // Without pulses the floor sinks: a pulse much smaller than the
             // old one is found within seconds.
