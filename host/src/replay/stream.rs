@@ -201,7 +201,7 @@ impl Streamed {
         let mut kept = Kept::default();
         // The board hands the pipeline f32 samples; so does the replay.
         self.blocks_as(|block: &[f32]| {
-            block.iter().for_each(|&x| kept.keep(p.push(x)));
+            feed_runs(&mut p, block, &mut kept);
             true
         })?;
         p.finish(|b| kept.closed(b));
@@ -239,4 +239,16 @@ fn choose_streamed(
         ReplayError::Refused(format!("{}: no signals to choose from", path.display()))
     })?;
     Ok((indices[best], Some(choice)))
+}
+
+/// `block` through `p` in runs that end on its detector-rate samples
+/// (`Pipeline::push_until_block`: the events of one `push` after another,
+/// with the per-sample call paid once a run).
+fn feed_runs(p: &mut Pipeline, block: &[f32], kept: &mut Kept) {
+    let mut rest = block;
+    while !rest.is_empty() {
+        let take = p.block_remaining().min(rest.len());
+        kept.keep(p.push_until_block(&rest[..take]));
+        rest = &rest[take..];
+    }
 }
