@@ -82,7 +82,7 @@ impl Intervals {
     }
 
     /// [`Self::median_since`], the same value bit for bit, from the values
-    /// of the last call kept in order ([`Sorted`]): a beat adds one and
+    /// of the last call kept in order (`sorted::Sorted`): a beat adds one and
     /// the window's start drops one or two, instead of all of them being
     /// copied and selected again (once per beat, the dearest part of a
     /// beat's bookkeeping).

@@ -92,7 +92,7 @@ pub const fn advance<const N: usize>(head: usize) -> usize {
     ((head + 1) & (2 * N - 1)) | (head & N)
 }
 
-/// A ring's values read by age: its counter ([`advance`]) and slots
+/// A ring's values read by age: its counter (`advance`) and slots
 /// (written at `head % N`), borrowed. `N` is a power of two.
 #[derive(Clone, Copy, Debug)]
 pub struct Trace<'a, const N: usize, T = f32> {
