@@ -53,8 +53,8 @@ pub struct Conditioning {
     // form the band is designed in: at 8 Hz its poles are far enough from
     // z = 1 for plain f32 (on every shared recording no interval moved by
     // more than 0.02 ms and one peak by one sample, `scripts/accuracy
-    // --events`), for 11 instructions less per input sample on the
-    // Cortex-M4F than the compensated `Delta`.
+    // --events`), for about 7 instructions less per input sample on the
+    // Cortex-M4F at 125 Hz than the compensated `Delta`.
     lowpass: Bounded<Df1<f32>>,
     mark: u8,
     // Clipped input samples since the last detector-rate sample.
