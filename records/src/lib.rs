@@ -21,6 +21,7 @@ mod csv;
 mod error;
 mod input;
 mod numerics;
+pub mod order_stat;
 pub mod resample;
 mod rr;
 mod wfdb_annotation;
