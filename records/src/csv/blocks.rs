@@ -13,6 +13,7 @@ use super::time_base::time_cell;
 use super::time_passes::{measure, Measured};
 use super::{positive_rate, value_cell, ColumnRef, CsvSignalOptions, Rate, TimeBase};
 use crate::error::{Error, ErrorKind, Result};
+use crate::resample::GridWalk;
 
 /// Value columns of a CSV file, a block of samples at a time
 /// ([`CsvBlocks::read_into`]).
@@ -24,8 +25,10 @@ pub struct CsvBlocks {
     fs: f64,
     rows: u64,
     done: bool,
-    /// The time column and what measuring it found.
+    /// The time column and what measuring it found (its walk not started).
     timed: Option<(usize, Measured)>,
+    /// The walk onto the grid of this read, when resampled.
+    walk: Option<GridWalk>,
     /// One row's values, for the grid walk.
     row: Vec<f64>,
 }
@@ -65,6 +68,7 @@ impl CsvBlocks {
         let name = blocks.table.name(tc);
         let measured = measure(path, options, (&blocks.cols, tc, &name), grid)?;
         blocks.fs = measured.base.fs;
+        blocks.walk = measured.walk.clone();
         blocks.timed = Some((tc, measured));
         Ok(blocks)
     }
@@ -75,6 +79,7 @@ impl CsvBlocks {
         let mut blocks = CsvBlocks::unmeasured(&self.path, columns, &self.options)?;
         blocks.fs = self.fs;
         blocks.timed = self.timed.clone();
+        blocks.walk = self.timed.as_ref().and_then(|(_, m)| m.walk.clone());
         Ok(blocks)
     }
 
@@ -105,6 +110,7 @@ impl CsvBlocks {
             rows: 0,
             done: false,
             timed: None,
+            walk: None,
             row: Vec::new(),
         })
     }
@@ -142,7 +148,7 @@ impl CsvBlocks {
         if self.done {
             return Ok(false);
         }
-        let read = if matches!(&self.timed, Some((_, m)) if m.walk.is_some()) {
+        let read = if self.walk.is_some() {
             self.fill_grid(rows.max(1), out)
         } else {
             self.fill(rows.max(1), out)
@@ -177,13 +183,7 @@ impl CsvBlocks {
     /// as the walk wants them, at most `limit` grid samples made.
     fn fill_grid(&mut self, limit: usize, out: &mut [Vec<f64>]) -> Result<bool> {
         let path = self.path.as_path();
-        let Some((
-            tc,
-            Measured {
-                walk: Some(walk), ..
-            },
-        )) = &mut self.timed
-        else {
+        let (Some((tc, _)), Some(walk)) = (&self.timed, &mut self.walk) else {
             unreachable!("fill_grid is for a grid walk");
         };
         let mut made = 0;

@@ -12,8 +12,8 @@
 //! Sums run in file order, as the whole read's do, so they round alike.
 
 use super::table::Table;
-use super::time_base::{time_cell, MAX_GRID_SAMPLES_PER_ROW};
-use super::{value_cell, CsvSignalOptions, TimeBase, MAX_GRID_SAMPLES};
+use super::time_base::{check_grid, time_cell};
+use super::{value_cell, CsvSignalOptions, TimeBase};
 use crate::error::{Error, ErrorKind, Result};
 use crate::order_stat::select;
 use crate::resample::{GridWalk, Resampler};
@@ -203,23 +203,4 @@ fn median_rate(path: &Path, options: &CsvSignalOptions, tc: usize, rows: u64) ->
         (at(steps / 2 - 1)? + at(steps / 2)?) / 2.0
     };
     Ok(1.0 / median)
-}
-
-/// Refuse a grid at `fs` Hz over `span` seconds of `rows` rows that
-/// would be too large, as the whole read does.
-pub(super) fn check_grid(path: &Path, fs: f64, span: f64, rows: u64) -> Result<()> {
-    // Bounded by the rows there are too: three rows spread over days
-    // must not fill a grid of tens of millions of samples.
-    let per_row = rows as f64 * MAX_GRID_SAMPLES_PER_ROW;
-    if span * fs > MAX_GRID_SAMPLES || span * fs > per_row {
-        return Err(Error::new(
-            path,
-            ErrorKind::Invalid(format!(
-                "a grid at {fs:.6} Hz over {span} s would hold {:.0} samples for {rows} rows, more than {} (at most {MAX_GRID_SAMPLES_PER_ROW} a row, {MAX_GRID_SAMPLES} in all)",
-                span * fs,
-                per_row.min(MAX_GRID_SAMPLES),
-            )),
-        ));
-    }
-    Ok(())
 }
