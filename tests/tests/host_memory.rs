@@ -2,7 +2,10 @@
 //! report's excerpt pass over a made-up hour at 500 Hz (1.8 M samples,
 //! `bench_record`, a scenario of our own), and the replays of the same
 //! hour with an accelerometer beside the pulse (`--motion`) and with the
-//! choice among its four signals (`--signal auto`), raise this process's peak
+//! choice among its four signals (`--signal auto`), and a CSV file of the
+//! same hour near `check_csv_rate_hz` with uneven frame times (resampled
+//! onto the median frame rate as its rows come) replayed with its
+//! accelerometer, raise this process's peak
 //! resident memory (Linux `VmHWM`, in kB: a count, not a timing) by no
 //! more than the budget in docs/performance.toml, which is well under
 //! what the samples alone would take read whole. The day-long figures
@@ -28,6 +31,7 @@ struct Book {
 struct Budget {
     check_hours: f64,
     check_rate_hz: f64,
+    check_csv_rate_hz: f64,
     stream_growth_budget_kb: u64,
 }
 
@@ -66,6 +70,8 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
     make_record(dir.path(), b.check_hours, b.check_rate_hz, &[]);
     let with_motion = ["--accelerometer", "--name", "moving"];
     make_record(dir.path(), b.check_hours, b.check_rate_hz, &with_motion);
+    let as_csv = ["--accelerometer", "--csv", "--name", "frames"];
+    make_record(dir.path(), b.check_hours, b.check_csv_rate_hz, &as_csv);
     let record = dir.path().join("day");
     let before = peak_kb();
 
@@ -110,6 +116,18 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
         .clone()
         .expect("a choice among four");
     let auto_run = chosen.replay(config).unwrap();
+    let frames = Source {
+        signal: Some("PLETH".into()),
+        ..motion
+    };
+    let timed = open(&dir.path().join("frames.csv"), &frames).unwrap();
+    let resampled = timed
+        .head
+        .input
+        .resampled
+        .expect("uneven frames are resampled");
+    let timed_config = Config::new(timed.head.signal.fs as f32);
+    let timed_run = timed.replay(timed_config).unwrap();
 
     let grown = peak_kb().saturating_sub(before);
     let samples = (b.check_hours * 3600.0 * b.check_rate_hz) as u64;
@@ -130,6 +148,19 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
         "the motion reference flags beats, it finds the same ones"
     );
     assert!(!scores.records.is_empty(), "the record was scored");
+    // One frame in 500 dropped (bench_record), the grid at the median step.
+    let csv_hour = b.check_hours * 3600.0;
+    assert!(
+        (resampled.grid_hz - b.check_csv_rate_hz).abs() < 0.01 * b.check_csv_rate_hz,
+        "{resampled:?}"
+    );
+    assert!((timed_run.samples as f64 - csv_hour * resampled.grid_hz).abs() < 2.0);
+    let timed_bpm = 60.0 * timed_run.beats.len() as f64 / csv_hour;
+    let bpm = 60.0 * run.beats.len() as f64 / csv_hour;
+    assert!(
+        (timed_bpm - bpm).abs() < 0.05 * bpm,
+        "the same made-up day: {timed_bpm:.1} and {bpm:.1} beats a minute"
+    );
     assert!(
         b.stream_growth_budget_kb < whole_kb / 2,
         "the budget must tell streaming from reading whole"

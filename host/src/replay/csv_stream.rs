@@ -71,7 +71,8 @@ pub(super) fn open_csv(
             let mut judges: Vec<Judge> = names.iter().map(|n| Judge::new(n, fs)).collect();
             let mut out = vec![Vec::new(); columns.len()];
             let mut rows = 0u64;
-            while blocks.read_into(BLOCK_FRAMES, &mut out)? {
+            // Several columns at once: blocks as much shorter.
+            while blocks.read_into(BLOCK_FRAMES / columns.len(), &mut out)? {
                 rows += out[0].len() as u64;
                 if several {
                     judges.iter_mut().zip(&out).for_each(|(j, b)| j.push(b));
@@ -130,7 +131,11 @@ fn motion_columns(blocks: &CsvBlocks, axes: &[String; 3]) -> Result<[ColumnRef; 
     let read = |e| ReplayError::Motion(MotionLoadError::Read(e));
     let mut motion = blocks.open_like(&columns).map_err(read)?;
     let mut out = vec![Vec::new(); 3];
-    while motion.read_into(BLOCK_FRAMES, &mut out).map_err(read)? {}
+    // Only checked, not kept: short blocks.
+    while motion
+        .read_into(BLOCK_FRAMES / 16, &mut out)
+        .map_err(read)?
+    {}
     Ok(columns)
 }
 

@@ -182,25 +182,32 @@ pub(super) fn measure(
 }
 
 /// The median of the `rows - 1` steps between successive times, as a
-/// rate (as [`crate::resample::median_rate`] gives it).
+/// rate (as [`crate::resample::median_rate`] gives it): the lower middle
+/// step by [`select`], and for an even count the next one up in one more
+/// pass (the same value again, or the least one above it).
 fn median_rate(path: &Path, options: &CsvSignalOptions, tc: usize, rows: u64) -> Result<f64> {
     let steps = rows - 1;
-    let at = |rank: u64| -> Result<f64> {
-        let stat = select(rank, |push| {
-            let mut before = None;
-            time_pass(path, options, tc, |_, t| {
-                if let Some(b) = before {
-                    push(t - b);
-                }
-                before = Some(t);
-            })
-        })?;
-        Ok(stat.expect("the rank lies among the steps"))
+    let each_step = |push: &mut dyn FnMut(f64)| {
+        let mut before = None;
+        time_pass(path, options, tc, |_, t| {
+            if let Some(b) = before {
+                push(t - b);
+            }
+            before = Some(t);
+        })
     };
-    let median = if steps % 2 == 1 {
-        at(steps / 2)?
-    } else {
-        (at(steps / 2 - 1)? + at(steps / 2)?) / 2.0
-    };
-    Ok(1.0 / median)
+    let lower = select((steps - 1) / 2, each_step)?.expect("the rank lies among the steps");
+    if steps % 2 == 1 {
+        return Ok(1.0 / lower);
+    }
+    let (mut at_most, mut above) = (0u64, f64::INFINITY);
+    each_step(&mut |d| {
+        if d.total_cmp(&lower).is_le() {
+            at_most += 1;
+        } else if d.total_cmp(&above).is_lt() {
+            above = d;
+        }
+    })?;
+    let upper = if at_most > steps / 2 { lower } else { above };
+    Ok(1.0 / ((lower + upper) / 2.0))
 }
