@@ -14,10 +14,11 @@ use std::path::Path;
 use plethwire_dsp::pipeline::{check_sample_rate, Config, MotionPipeline};
 use plethwire_records::{csv_column_names, ColumnRef, CsvBlocks, CsvSignalOptions, LoadedSignal};
 
+use super::csv_time::{csv_rate_options, MEASURED_RATE_HINT};
 use super::feed::{Kept, StreamError, BLOCK_FRAMES};
-use super::load::{csv_rate_options, wanted_signals, Wanted, COLOUR_CHANNELS};
+use super::load::{value_columns, COLOUR_CHANNELS};
 use super::{Polarity, Recording, Replay, ReplayError, Source};
-use crate::channel::{choose_among, Judge};
+use crate::channel::{choose_among, ChannelChoice, Judge};
 use crate::motion::MotionLoadError;
 
 /// The column of a CSV file a streamed replay reads, and the
@@ -41,19 +42,7 @@ pub(super) fn open_csv(
     let fail = |m: String| ReplayError::Refused(format!("{}: {m}", path.display()));
     let names = csv_column_names(path)?;
     let (options, mut input, time) = csv_rate_options(path, source, &names)?;
-    let values: Vec<String> = match wanted_signals(source.signal.as_deref()) {
-        Wanted::One(Some(n)) => vec![n.to_string()],
-        Wanted::Among(Some(list)) => list,
-        Wanted::One(None) | Wanted::Among(None) => names
-            .iter()
-            .filter(|n| time.as_ref().is_none_or(|t| *n != t))
-            .cloned()
-            .collect(),
-    };
-    if values.is_empty() {
-        return Err(fail("no value column besides the time column".into()));
-    }
-    let columns: Vec<ColumnRef> = values.into_iter().map(ColumnRef::Name).collect();
+    let columns = value_columns(path, source, &names, time.as_deref())?;
     let options = CsvSignalOptions {
         column: columns[0].clone(),
         ..options
@@ -61,30 +50,15 @@ pub(super) fn open_csv(
     let mut blocks = CsvBlocks::open(path, &columns, &options)?;
     input.resampled = blocks.time().and_then(|t| t.resampled);
     let (fs, names) = (blocks.fs(), blocks.names());
-    let several = names.len() > 1;
-    let mut index = 0;
     // The time passes read every cell already; at a given rate, or to
     // judge several columns, read them all now.
-    let samples = match blocks.samples() {
-        Some(n) if !several => n,
+    let (samples, index) = match blocks.samples() {
+        Some(n) if names.len() == 1 => (n, 0),
         _ => {
-            let mut judges: Vec<Judge> = names.iter().map(|n| Judge::new(n, fs)).collect();
-            let mut out = vec![Vec::new(); columns.len()];
-            let mut rows = 0u64;
-            // Several columns at once: blocks as much shorter.
-            while blocks.read_into(BLOCK_FRAMES / columns.len(), &mut out)? {
-                rows += out[0].len() as u64;
-                if several {
-                    judges.iter_mut().zip(&out).for_each(|(j, b)| j.push(b));
-                }
-            }
-            if several {
-                let figures = judges.into_iter().map(Judge::finish).collect();
-                let (i, choice) = choose_among(figures).expect("several candidates");
-                index = i;
-                input.channel = Some(choice);
-            }
-            rows
+            let (rows, choice) = read_and_judge(&mut blocks, &names, fs)?;
+            let index = choice.as_ref().map_or(0, |(i, _)| *i);
+            input.channel = choice.map(|(_, c)| c);
+            (rows, index)
         }
     };
     check_rate(fs, time.is_some()).map_err(fail)?;
@@ -124,6 +98,31 @@ pub(super) fn open_csv(
     Ok((head, column, samples))
 }
 
+/// Every sample `blocks` reads, counted, each column judged when there are
+/// several (`names`, at `fs`): the rows and the choice among them.
+fn read_and_judge(
+    blocks: &mut CsvBlocks,
+    names: &[String],
+    fs: f64,
+) -> Result<(u64, Option<(usize, ChannelChoice)>), ReplayError> {
+    let several = names.len() > 1;
+    let mut judges: Vec<Judge> = names.iter().map(|n| Judge::new(n, fs)).collect();
+    let mut out = vec![Vec::new(); names.len()];
+    let mut rows = 0u64;
+    // Several columns at once: blocks as much shorter.
+    while blocks.read_into(BLOCK_FRAMES / names.len(), &mut out)? {
+        rows += out[0].len() as u64;
+        if several {
+            judges.iter_mut().zip(&out).for_each(|(j, b)| j.push(b));
+        }
+    }
+    let choice = several.then(|| {
+        let figures = judges.into_iter().map(Judge::finish).collect();
+        choose_among(figures).expect("several candidates")
+    });
+    Ok((rows, choice))
+}
+
 /// The accelerometer's columns `axes` of the file `blocks` reads, every
 /// cell read once, refused as [`crate::motion::load_csv`] refuses them.
 fn motion_columns(blocks: &CsvBlocks, axes: &[String; 3]) -> Result<[ColumnRef; 3], ReplayError> {
@@ -148,11 +147,7 @@ fn check_rate(fs: f64, measured: bool) -> Result<(), String> {
         if check_sample_rate(shown).is_err() {
             e.rate_hz = shown;
         }
-        let hint = if measured {
-            super::load::MEASURED_RATE_HINT
-        } else {
-            ""
-        };
+        let hint = if measured { MEASURED_RATE_HINT } else { "" };
         format!("{e}{hint}")
     })?;
     Ok(())

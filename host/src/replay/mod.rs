@@ -4,6 +4,7 @@
 mod beats;
 mod blocks;
 mod csv_stream;
+mod csv_time;
 mod feed;
 mod load;
 mod motion_stream;

@@ -49,7 +49,7 @@ pub(super) enum Samples {
     },
 }
 
-/// Open `path` as [`load`] would load it (the same signal, polarity and
+/// Open `path` as [`load`](fn@super::load) would load it (the same signal, polarity and
 /// refusals), reading no samples yet when it is a WFDB record (with one
 /// signal named or the default; with or without an accelerometer), or
 /// only what the choice among several signals takes (each candidate
@@ -194,7 +194,7 @@ impl Streamed {
 }
 
 /// The signal of `record` chosen among `names` (all its signals for
-/// `None`) as [`load`] chooses it, and the choice (none for a single
+/// `None`) as [`load`](fn@super::load) chooses it, and the choice (none for a single
 /// name): each candidate judged as its blocks stream past.
 fn choose_streamed(
     path: &Path,

@@ -93,6 +93,45 @@ fn first_pass(
     Ok(p)
 }
 
+/// Why no grid fits.
+enum Unfit {
+    Read(Error),
+    NoRate,
+}
+
+/// Passes 2 and 3: the least-squares period of the times and the worst
+/// distance from that grid, in periods.
+fn fit(
+    path: &Path,
+    options: &CsvSignalOptions,
+    tc: usize,
+    p: &FirstPass,
+) -> std::result::Result<(f64, f64), Unfit> {
+    let n = p.rows as f64;
+    let k_mean = (n - 1.0) / 2.0;
+    let t_mean = p.sum / n;
+    let (mut skt, mut skk, mut k) = (0.0, 0.0, 0u64);
+    time_pass(path, options, tc, |_, t| {
+        let dk = k as f64 - k_mean;
+        skt += dk * (t - t_mean);
+        skk += dk * dk;
+        k += 1;
+    })
+    .map_err(Unfit::Read)?;
+    let period = skt / skk;
+    if !(period.is_finite() && period > 0.0 && (1.0 / period).is_finite()) {
+        return Err(Unfit::NoRate);
+    }
+    let grid_start = t_mean - period * k_mean;
+    let (mut worst, mut k) = (0.0f64, 0u64);
+    time_pass(path, options, tc, |_, t| {
+        worst = worst.max(((t - (grid_start + k as f64 * period)) / period).abs());
+        k += 1;
+    })
+    .map_err(Unfit::Read)?;
+    Ok((period, worst))
+}
+
 /// Measure the time column `tc` (named `column`) of `path` for the value
 /// columns `cols`: uniform rows keep their own rate unless a `grid` rate
 /// is given; uneven ones are resampled onto `grid` or the median frame
@@ -118,28 +157,12 @@ pub(super) fn measure(
         ))
         .at_line(no));
     }
-    let n = p.rows as f64;
-    let k_mean = (n - 1.0) / 2.0;
-    let t_mean = p.sum / n;
-    let (mut skt, mut skk, mut k) = (0.0, 0.0, 0u64);
-    time_pass(path, options, tc, |_, t| {
-        let dk = k as f64 - k_mean;
-        skt += dk * (t - t_mean);
-        skk += dk * dk;
-        k += 1;
-    })?;
-    let period = skt / skk;
-    if !(period.is_finite() && period > 0.0 && (1.0 / period).is_finite()) {
-        return Err(in_column(format!(
+    let (period, worst) = fit(path, options, tc, &p).map_err(|e| match e {
+        Unfit::Read(e) => e,
+        Unfit::NoRate => in_column(format!(
             "times from {} s to {} s give no finite sample rate",
             p.first, p.last
-        )));
-    }
-    let grid_start = t_mean - period * k_mean;
-    let (mut worst, mut k) = (0.0f64, 0u64);
-    time_pass(path, options, tc, |_, t| {
-        worst = worst.max(((t - (grid_start + k as f64 * period)) / period).abs());
-        k += 1;
+        )),
     })?;
     let mut base = TimeBase {
         fs: 1.0 / period,
