@@ -9,8 +9,10 @@
 //! reference for the streaming pipeline, not part of it.
 
 mod arrival;
+mod decisions;
 mod pan_tompkins;
 pub mod stages;
+pub mod stream;
 #[cfg(test)]
 mod test_ecg;
 mod usable;
@@ -20,6 +22,7 @@ pub use arrival::{
     MissedBeat,
 };
 pub use pan_tompkins::r_peaks;
+pub use stream::{BandBlocks, EcgSource, EcgStreamError, RecordSource, SliceSource};
 pub use usable::{
     gap_spans, rail_spans, unusable_spans, MAX_R_GAP_S, RAIL_MADS, RAIL_MARGIN_S, RAIL_RUN_S,
 };
