@@ -2,7 +2,9 @@
 //! report's excerpt pass over a made-up hour at 500 Hz (1.8 M samples,
 //! `bench_record`, a scenario of our own), and the replays of the same
 //! hour with an accelerometer beside the pulse (`--motion`) and with the
-//! choice among its four signals (`--signal auto`), raise this process's peak
+//! choice among its four signals (`--signal auto`), and the score of a
+//! third such hour against a made-up ECG beside the pulse (`score --ecg`,
+//! the ECG reference streamed), raise this process's peak
 //! resident memory (Linux `VmHWM`, in kB: a count, not a timing) by no
 //! more than the budget in docs/performance.toml, which is well under
 //! what the samples alone would take read whole. The day-long figures
@@ -66,6 +68,12 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
     make_record(dir.path(), b.check_hours, b.check_rate_hz, &[]);
     let with_motion = ["--accelerometer", "--name", "moving"];
     make_record(dir.path(), b.check_hours, b.check_rate_hz, &with_motion);
+    make_record(
+        dir.path(),
+        b.check_hours,
+        b.check_rate_hz,
+        &["--ecg", "--name", "heart"],
+    );
     let record = dir.path().join("day");
     let before = peak_kb();
 
@@ -111,6 +119,13 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
         .expect("a choice among four");
     let auto_run = chosen.replay(config).unwrap();
 
+    let with_ecg = References {
+        ecg: Some("ECG".into()),
+        ..References::default()
+    };
+    let heart = [dir.path().join("heart")];
+    let ecg_scores = score_all(&heart, &Source::default(), config, &with_ecg, |_| ()).unwrap();
+
     let grown = peak_kb().saturating_sub(before);
     let samples = (b.check_hours * 3600.0 * b.check_rate_hz) as u64;
     let whole_kb = samples * 8 / 1024;
@@ -130,6 +145,15 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
         "the motion reference flags beats, it finds the same ones"
     );
     assert!(!scores.records.is_empty(), "the record was scored");
+    let ecg = ecg_scores.records[0].ecg.as_ref().expect("an ECG score");
+    // The made-up ECG has an R peak before every true pulse: nearly all
+    // found (4254 of 4254 for the hour at 500 Hz when this was written).
+    let beats = scores.records[0].beats.as_ref().map_or(0, |m| m.tp + m.fn_);
+    assert!(
+        ecg.r_peaks.abs_diff(beats) * 100 <= beats,
+        "{} R peaks for {beats} true beats",
+        ecg.r_peaks
+    );
     assert!(
         b.stream_growth_budget_kb < whole_kb / 2,
         "the budget must tell streaming from reading whole"
