@@ -5,7 +5,10 @@
 //! 64(8):1914-1923, 2017; PhysioNet doi:10.13026/C2208R; 125 Hz, 8 min
 //! each) and both leads of MIT-BIH Arrhythmia Database record 100 (G. B.
 //! Moody, R. G. Mark, IEEE Eng. Med. Biol. 20(3):45-50, 2001; 360 Hz,
-//! 30 min). The R peaks and unusable spans must be equal index for index,
+//! 30 min), and the chest ECG of the IEEE Signal Processing Cup 2015
+//! treadmill recordings (Z. Zhang, Z. Pi, B. Liu, IEEE Trans. Biomed. Eng.
+//! 62(2):522-531, 2015; 12 records, 125 Hz, about 5 min, motion-laden).
+//! The R peaks and unusable spans must be equal index for index,
 //! and the band-pass bit for bit, on the look-ahead path alone (no file).
 
 use std::path::{Path, PathBuf};
@@ -73,6 +76,19 @@ fn bidmc_lead_ii_streamed_equals_whole() {
     let peaks: usize = paths.iter().map(|p| check(p, "II")).sum();
     eprintln!(
         "BIDMC: {} records, {peaks} R peaks, streamed == whole",
+        paths.len()
+    );
+}
+
+#[test]
+fn exercise_chest_ecg_streamed_equals_whole() {
+    let Some(paths) = records("exercise") else {
+        need(needs::SHARED_DATA, false);
+        return;
+    };
+    let peaks: usize = paths.iter().map(|p| check(p, "ECG")).sum();
+    eprintln!(
+        "exercise: {} records, {peaks} R peaks, streamed == whole",
         paths.len()
     );
 }

@@ -191,6 +191,13 @@ fn a_long_flat_stretch_goes_through_the_file_with_the_same_bits() {
         .iter()
         .zip(&whole)
         .all(|(a, b)| a.to_bits() == b.to_bits()));
+    // The look-ahead alone does not settle there: the file was needed.
+    let no_file = BandBlocks {
+        spill: false,
+        ..BandBlocks::default()
+    };
+    let err = EcgReference::streamed_with(&mut source, fs, no_file).unwrap_err();
+    assert!(matches!(err, EcgStreamError::Unsettled { .. }), "{err}");
     let r = streamed(&x, fs, 4096, BandBlocks::default());
     assert_eq!(r, EcgReference::new(&x, fs).unwrap());
 }
