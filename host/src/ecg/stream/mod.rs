@@ -5,13 +5,16 @@
 //! whole signal, bit for bit and index for index.
 //!
 //! The passes over the signal: an overview (length, first finite value,
-//! extremes); the QRS pass (sanitising, the band-pass of [`band`], the
-//! stages and rules of [`energy`]: Pan and Tompkins 1985); the placing of
-//! each R peak on the ECG (the band-pass's backward run goes from a
-//! look-ahead, checked bit for bit, or when that does not settle from the
-//! true end through a temporary file, [`spill`]); the median and the median absolute deviation
-//! (exact, [`plethwire_records::order_stat`], up to four passes each) and
-//! the runs at the rails.
+//! extremes); the QRS pass (sanitising, the band-pass, the stages and the
+//! decision rules of J. Pan and W. J. Tompkins, "A real-time QRS
+//! detection algorithm", IEEE Trans. Biomed. Eng. 32(3):230-236, 1985);
+//! the placing of each R peak on the ECG; the median and the median
+//! absolute deviation (exact, [`plethwire_records::order_stat`], up to
+//! four passes each); the runs at the rails. The band-pass's backward run
+//! starts from a look-ahead and is checked bit for bit at every block
+//! boundary (module `band`); when it does not settle, it runs from the
+//! true end through a temporary file (module `spill`, 8 bytes a sample on
+//! disk, a block in memory).
 
 mod band;
 mod energy;
