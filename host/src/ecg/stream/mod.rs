@@ -106,12 +106,13 @@ pub enum EcgStreamError {
     /// The signal would not read.
     #[error(transparent)]
     Read(#[from] plethwire_records::Error),
-    /// A later pass read another number of samples than the first.
+    /// A later pass read another number of samples (or of finite
+    /// samples) than the first.
     #[error("the ECG changed while it was read: {first} samples at first, then {now}")]
     Changed {
-        /// Samples in the first pass.
+        /// Samples (finite samples) in the first pass.
         first: u64,
-        /// Samples in the pass that differed.
+        /// The same in the pass that differed.
         now: u64,
     },
     /// The backward band-pass runs did not reach the same state within

@@ -15,9 +15,12 @@ fn finite_rank(
     rank: u64,
     f: impl Fn(f64) -> f64,
 ) -> Result<f64, EcgStreamError> {
+    let mut seen = 0u64;
     let found = select(rank, |push| {
+        seen = 0;
         each_sample(source, o.len, |v| {
             if v.is_finite() {
+                seen += 1;
                 push(f(v));
             }
             Ok(())
@@ -25,8 +28,8 @@ fn finite_rank(
     })?;
     // The overview counted the finite samples: fewer now is a changed file.
     found.ok_or(EcgStreamError::Changed {
-        first: o.len as u64,
-        now: o.len as u64,
+        first: o.finite,
+        now: seen,
     })
 }
 
