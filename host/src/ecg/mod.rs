@@ -5,8 +5,10 @@
 //! rules on the signal alone ([`unusable_spans`]: no R peak for over 3 s,
 //! the ECG at its rails).
 //!
-//! Everything here runs offline on a whole recording on the PC; it is a
-//! reference for the streaming pipeline, not part of it.
+//! Everything here runs offline on the PC, on a whole recording or
+//! ([`stream`]) on one read a block at a time, several times over, with
+//! the same results; it is a reference for the streaming pipeline, not
+//! part of it.
 
 mod arrival;
 mod decisions;
