@@ -24,6 +24,7 @@ use std::path::Path;
 mod blocks;
 mod table;
 mod time_base;
+mod time_passes;
 
 pub use blocks::CsvBlocks;
 pub use table::MAX_ROWS;
@@ -340,3 +341,5 @@ pub(super) fn named(
 
 #[cfg(test)]
 mod tests;
+#[cfg(test)]
+mod timed_tests;

@@ -11,6 +11,9 @@
 
 use serde::Serialize;
 
+mod walk;
+pub use walk::GridWalk;
+
 /// Longest gap between frames bridged by interpolation, seconds, by default.
 ///
 /// 0.25 s is just under the shortest interval the pipeline accepts

@@ -1,82 +1,103 @@
-//! A CSV recording at a given rate (`--rate`, no time column) streamed a
-//! block of rows at a time ([`plethwire_records::CsvBlocks`]): one pass
-//! over the file first reads every cell of the wanted columns (so a bad
-//! cell is refused before any replay, as the whole read refuses it),
-//! counts the rows and judges each column when there are several
-//! ([`crate::channel::Judge`]); the replay reads the chosen column again.
-//! A CSV file with a time column is read whole ([`super::load`]).
+//! A CSV recording streamed a block of samples at a time
+//! ([`plethwire_records::CsvBlocks`]), with a given rate or a time column
+//! (measured, or resampled onto a grid), with or without an
+//! accelerometer: the same signal, polarity, time base, refusals and
+//! samples as [`super::load`] reads whole. Opening reads what the whole
+//! read checks first: every cell of the wanted columns (a time column's
+//! passes do so; at a given rate one pass reads them, counting the rows),
+//! judging each column when there are several ([`crate::channel::Judge`]),
+//! and the accelerometer's cells; the replay then reads the chosen column
+//! again, with the accelerometer's beside it when asked for.
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
-use plethwire_dsp::pipeline::check_sample_rate;
-use plethwire_records::{
-    csv_column_names, ColumnRef, CsvBlocks, CsvSignalOptions, LoadedSignal, TimeUnit,
-};
+use plethwire_dsp::pipeline::{check_sample_rate, Config, MotionPipeline};
+use plethwire_records::{csv_column_names, ColumnRef, CsvBlocks, CsvSignalOptions, LoadedSignal};
 
-use super::feed::BLOCK_FRAMES;
-use super::load::{wanted_signals, Wanted, COLOUR_CHANNELS};
-use super::{InputInfo, Polarity, Recording, ReplayError, Source};
+use super::feed::{Kept, StreamError, BLOCK_FRAMES};
+use super::load::{csv_rate_options, wanted_signals, Wanted, COLOUR_CHANNELS};
+use super::{Polarity, Recording, Replay, ReplayError, Source};
 use crate::channel::{choose_among, Judge};
+use crate::motion::MotionLoadError;
 
-/// The column of a CSV file a streamed replay reads.
+/// The column of a CSV file a streamed replay reads, and the
+/// accelerometer's beside it when asked for.
 #[derive(Debug)]
 pub(super) struct CsvColumn {
-    pub(super) path: PathBuf,
-    pub(super) column: ColumnRef,
-    pub(super) options: CsvSignalOptions,
-    pub(super) negate: bool,
+    /// The file opened on its time base: each read opens it like this.
+    measured: CsvBlocks,
+    column: ColumnRef,
+    negate: bool,
+    /// The accelerometer's columns and names.
+    pub(super) motion: Option<([ColumnRef; 3], [String; 3])>,
 }
 
-/// The recording, its column and its rows, when `path` (a CSV file) is
-/// replayed at a given rate without a time column or an accelerometer;
-/// `None` otherwise (read whole). Refused as [`super::load`] refuses it.
+/// The recording, its column and its samples, when `path` (a CSV file) is
+/// replayed: refused as [`super::load`] refuses it.
 pub(super) fn open_csv(
     path: &Path,
     source: &Source,
-) -> Result<Option<(Recording, CsvColumn, u64)>, ReplayError> {
-    let (Some(rate), None, None) = (source.rate, &source.time_column, &source.motion) else {
-        return Ok(None);
-    };
+) -> Result<(Recording, CsvColumn, u64), ReplayError> {
     let fail = |m: String| ReplayError::Refused(format!("{}: {m}", path.display()));
-    if let Some(unit) = &source.time_unit {
-        TimeUnit::parse(unit).map_err(|e| fail(e.to_string()))?;
-    }
     let names = csv_column_names(path)?;
+    let (options, mut input, time) = csv_rate_options(path, source, &names)?;
     let values: Vec<String> = match wanted_signals(source.signal.as_deref()) {
         Wanted::One(Some(n)) => vec![n.to_string()],
         Wanted::Among(Some(list)) => list,
-        Wanted::One(None) | Wanted::Among(None) => names,
+        Wanted::One(None) | Wanted::Among(None) => names
+            .iter()
+            .filter(|n| time.as_ref().is_none_or(|t| *n != t))
+            .cloned()
+            .collect(),
     };
     if values.is_empty() {
         return Err(fail("no value column besides the time column".into()));
     }
     let columns: Vec<ColumnRef> = values.into_iter().map(ColumnRef::Name).collect();
-    let options = CsvSignalOptions::with_rate(columns[0].clone(), rate);
-    let mut blocks = CsvBlocks::open(path, &columns, &options)?;
-    let (fs, names) = (blocks.fs(), blocks.names());
-    let mut judges: Vec<Judge> = names.iter().map(|n| Judge::new(n, fs)).collect();
-    let several = judges.len() > 1;
-    let mut out = vec![Vec::new(); columns.len()];
-    let mut rows = 0u64;
-    while blocks.read_into(BLOCK_FRAMES, &mut out)? {
-        rows += out[0].len() as u64;
-        if several {
-            judges.iter_mut().zip(&out).for_each(|(j, b)| j.push(b));
-        }
-    }
-    check_rate(fs).map_err(fail)?;
-    let (index, channel) = if several {
-        let figures = judges.into_iter().map(Judge::finish).collect();
-        let (i, choice) = choose_among(figures).expect("several candidates");
-        (i, Some(choice))
-    } else {
-        (0, None)
+    let options = CsvSignalOptions {
+        column: columns[0].clone(),
+        ..options
     };
+    let mut blocks = CsvBlocks::open(path, &columns, &options)?;
+    input.resampled = blocks.time().and_then(|t| t.resampled);
+    let (fs, names) = (blocks.fs(), blocks.names());
+    let several = names.len() > 1;
+    let mut index = 0;
+    // The time passes read every cell already; at a given rate, or to
+    // judge several columns, read them all now.
+    let samples = match blocks.samples() {
+        Some(n) if !several => n,
+        _ => {
+            let mut judges: Vec<Judge> = names.iter().map(|n| Judge::new(n, fs)).collect();
+            let mut out = vec![Vec::new(); columns.len()];
+            let mut rows = 0u64;
+            // Several columns at once: blocks as much shorter.
+            while blocks.read_into(BLOCK_FRAMES / columns.len(), &mut out)? {
+                rows += out[0].len() as u64;
+                if several {
+                    judges.iter_mut().zip(&out).for_each(|(j, b)| j.push(b));
+                }
+            }
+            if several {
+                let figures = judges.into_iter().map(Judge::finish).collect();
+                let (i, choice) = choose_among(figures).expect("several candidates");
+                index = i;
+                input.channel = Some(choice);
+            }
+            rows
+        }
+    };
+    check_rate(fs, time.is_some()).map_err(fail)?;
     let name = names[index].clone();
     let negate = match source.polarity {
         Polarity::Up => false,
         Polarity::Down => true,
         Polarity::Auto => COLOUR_CHANNELS.iter().any(|c| name.eq_ignore_ascii_case(c)),
+    };
+    input.inverted = negate;
+    let motion = match &source.motion {
+        Some(axes) => Some((motion_columns(&blocks, axes)?, axes.clone())),
+        None => None,
     };
     let head = Recording {
         name: path
@@ -90,45 +111,60 @@ pub(super) fn open_csv(
             fs,
             samples: Vec::new(),
         },
-        input: InputInfo {
-            channel,
-            inverted: negate,
-            ..InputInfo::default()
-        },
+        input,
         motion: None,
         record_options: source.record_options.clone(),
     };
     let column = CsvColumn {
-        path: path.to_path_buf(),
+        measured: blocks,
         column: columns[index].clone(),
-        options,
         negate,
+        motion,
     };
-    Ok(Some((head, column, rows)))
+    Ok((head, column, samples))
+}
+
+/// The accelerometer's columns `axes` of the file `blocks` reads, every
+/// cell read once, refused as [`crate::motion::load_csv`] refuses them.
+fn motion_columns(blocks: &CsvBlocks, axes: &[String; 3]) -> Result<[ColumnRef; 3], ReplayError> {
+    let columns = axes.clone().map(ColumnRef::Name);
+    let read = |e| ReplayError::Motion(MotionLoadError::Read(e));
+    let mut motion = blocks.open_like(&columns).map_err(read)?;
+    let mut out = vec![Vec::new(); 3];
+    // Only checked, not kept: short blocks.
+    while motion
+        .read_into(BLOCK_FRAMES / 16, &mut out)
+        .map_err(read)?
+    {}
+    Ok(columns)
 }
 
 /// The pipeline's range for a CSV rate, shown as the whole read shows it:
-/// to 4 decimals unless that rounds it in.
-fn check_rate(fs: f64) -> Result<(), String> {
+/// to 4 decimals unless that rounds it in; with a hint when the rate was
+/// `measured` from a time column.
+fn check_rate(fs: f64, measured: bool) -> Result<(), String> {
     check_sample_rate(fs).map_err(|mut e| {
         let shown = (fs * 1e4).round() / 1e4;
         if check_sample_rate(shown).is_err() {
             e.rate_hz = shown;
         }
-        e.to_string()
+        let hint = if measured {
+            super::load::MEASURED_RATE_HINT
+        } else {
+            ""
+        };
+        format!("{e}{hint}")
     })?;
     Ok(())
 }
 
 impl CsvColumn {
-    /// The column's values, `BLOCK_FRAMES` rows at a time, negated when
+    /// The column's values, `BLOCK_FRAMES` samples at a time, negated when
     /// asked, to `each` for as long as it answers `true`.
     pub(super) fn blocks(&self, mut each: impl FnMut(&[f64]) -> bool) -> Result<(), ReplayError> {
-        let mut blocks = CsvBlocks::open(
-            &self.path,
-            std::slice::from_ref(&self.column),
-            &self.options,
-        )?;
+        let mut blocks = self
+            .measured
+            .open_like(std::slice::from_ref(&self.column))?;
         let mut out = [Vec::new()];
         while blocks.read_into(BLOCK_FRAMES, &mut out)? {
             if self.negate {
@@ -139,5 +175,43 @@ impl CsvColumn {
             }
         }
         Ok(())
+    }
+
+    /// The replay with the accelerometer's columns `axes` beside the
+    /// pulse, each motion sample fed just before its pulse sample, as
+    /// [`super::replay_with_motion`] feeds them from memory.
+    pub(super) fn replay_with_motion(
+        &self,
+        axes: &[ColumnRef; 3],
+        fs: f64,
+        config: Config,
+    ) -> Result<Replay, StreamError> {
+        let mut p = MotionPipeline::new(config, fs as f32)?;
+        let columns = [
+            self.column.clone(),
+            axes[0].clone(),
+            axes[1].clone(),
+            axes[2].clone(),
+        ];
+        let mut blocks = self
+            .measured
+            .open_like(&columns)
+            .map_err(ReplayError::from)?;
+        // Four columns at once: blocks a quarter as long.
+        let mut out = vec![Vec::new(); 4];
+        let mut kept = Kept::default();
+        let mut samples = 0u64;
+        while blocks
+            .read_into(BLOCK_FRAMES / 4, &mut out)
+            .map_err(ReplayError::from)?
+        {
+            for (k, &x) in out[0].iter().enumerate() {
+                p.push_motion([1, 2, 3].map(|a| out[a][k] as f32));
+                kept.keep(p.push(if self.negate { -x } else { x } as f32));
+            }
+            samples += out[0].len() as u64;
+        }
+        p.finish(|b| kept.closed(b));
+        Ok(kept.into_replay(p.pipeline(), config, samples))
     }
 }

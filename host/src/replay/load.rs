@@ -1,13 +1,15 @@
 //! Loading a recording: a WFDB record or a CSV file, its signal, time
 //! column, polarity and accelerometer.
 
+use super::feed::BLOCK_FRAMES;
 use crate::channel::{choose, ChannelChoice};
 use crate::motion::{self, MotionSignals};
 use plethwire_dsp::pipeline::{check_sample_rate, MAX_RATE_HZ, MIN_RATE_HZ};
+use plethwire_records::order_stat::select;
 use plethwire_records::resample::ResampleReport;
 use plethwire_records::{
-    csv_column_names, read_csv_signal, read_csv_signals, ColumnRef, CsvSignalOptions, LoadedSignal,
-    Rate, Record, RecordOptions, TimeUnit,
+    csv_column_names, read_csv_signals, ColumnRef, CsvBlocks, CsvSignalOptions, LoadedSignal, Rate,
+    Record, RecordOptions, TimeUnit,
 };
 use serde::Serialize;
 use std::path::{Path, PathBuf};
@@ -234,7 +236,14 @@ const TIME_COLUMN_NAMES: [(&str, Option<TimeUnit>); 4] = [
     ("time_us", Some(TimeUnit::Us)),
 ];
 
-fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, ReplayError> {
+/// The rate of a CSV recording with columns `names`: the options to read
+/// it with (a given rate, or a time column with its unit, measured or
+/// guessed), how the samples are got so far, and the time column's name.
+pub(super) fn csv_rate_options(
+    path: &Path,
+    source: &Source,
+    names: &[String],
+) -> Result<(CsvSignalOptions, InputInfo, Option<String>), ReplayError> {
     let fail = |m: String| ReplayError::Refused(format!("{}: {m}", path.display()));
     let given_unit = source
         .time_unit
@@ -242,14 +251,43 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
         .map(TimeUnit::parse)
         .transpose()
         .map_err(|e| fail(e.to_string()))?;
+    let time = time_column(source, names, given_unit).map_err(|e| fail(e.to_string()))?;
+    let placeholder = ColumnRef::Index(0);
+    let mut options = CsvSignalOptions::with_rate(placeholder, source.rate.unwrap_or(1.0));
+    let mut input = InputInfo::default();
+    let Some((column, unit, unit_from)) = time else {
+        return Ok((options, input, None));
+    };
+    let unit = match unit {
+        Some(u) => u,
+        None => guess_unit(path, &column)?,
+    };
+    let time_ref = ColumnRef::Name(column.clone());
+    options.rate = match source.rate {
+        Some(fs) => Rate::Resample { time: time_ref, fs },
+        None => Rate::FromTime(time_ref),
+    };
+    options.time_unit = unit;
+    input.time_column = Some(column.clone());
+    input.time_unit = Some(unit);
+    input.time_unit_from = Some(unit_from);
+    Ok((options, input, Some(column)))
+}
+
+/// Said after a rate outside the pipeline's that a time column gave.
+pub(super) const MEASURED_RATE_HINT: &str =
+    " (measured from the time column: check --time-unit, or give the grid rate with --rate)";
+
+fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, ReplayError> {
+    let fail = |m: String| ReplayError::Refused(format!("{}: {m}", path.display()));
     let names = csv_column_names(path)?;
-    let time = time_column(source, &names, given_unit).map_err(|e| fail(e.to_string()))?;
+    let (options, mut input, time) = csv_rate_options(path, source, &names)?;
     let values: Vec<String> = match wanted_signals(source.signal.as_deref()) {
         Wanted::One(Some(n)) => vec![n.to_string()],
         Wanted::Among(Some(list)) => list,
         Wanted::One(None) | Wanted::Among(None) => names
             .iter()
-            .filter(|n| time.as_ref().is_none_or(|(t, _, _)| *n != t))
+            .filter(|n| time.as_ref().is_none_or(|t| *n != t))
             .cloned()
             .collect(),
     };
@@ -257,23 +295,10 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
         return Err(fail("no value column besides the time column".into()));
     }
     let columns: Vec<ColumnRef> = values.iter().cloned().map(ColumnRef::Name).collect();
-    let mut options = CsvSignalOptions::with_rate(columns[0].clone(), source.rate.unwrap_or(1.0));
-    let mut input = InputInfo::default();
-    if let Some((column, unit, unit_from)) = &time {
-        let unit = match unit {
-            Some(u) => *u,
-            None => guess_unit(path, column)?,
-        };
-        let time_ref = ColumnRef::Name(column.clone());
-        options.rate = match source.rate {
-            Some(fs) => Rate::Resample { time: time_ref, fs },
-            None => Rate::FromTime(time_ref),
-        };
-        options.time_unit = unit;
-        input.time_column = Some(column.clone());
-        input.time_unit = Some(unit);
-        input.time_unit_from = Some(unit_from);
-    }
+    let options = CsvSignalOptions {
+        column: columns[0].clone(),
+        ..options
+    };
     let read = read_csv_signals(path, &columns, &options)?;
     input.resampled = read.time.and_then(|t| t.resampled);
     let fs = read.signals[0].fs;
@@ -286,7 +311,7 @@ fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, Rep
             e.rate_hz = shown;
         }
         let hint = if time.is_some() {
-            " (measured from the time column: check --time-unit, or give the grid rate with --rate)"
+            MEASURED_RATE_HINT
         } else {
             ""
         };
@@ -347,21 +372,29 @@ fn time_column(
 }
 
 /// The unit of s, ms and us that puts the median step of `column` within
-/// the pipeline's rates.
+/// the pipeline's rates: the median of the steps that are above zero,
+/// found in passes over the column (`plethwire_records::order_stat`), so
+/// a long file is never in memory whole.
 fn guess_unit(path: &Path, column: &str) -> Result<TimeUnit, ReplayError> {
-    let raw = read_csv_signal(
-        path,
-        &CsvSignalOptions::with_rate(ColumnRef::Name(column.to_string()), 1.0),
-    )?;
-    let mut steps: Vec<f64> = raw
-        .signal
-        .samples
-        .windows(2)
-        .map(|w| w[1] - w[0])
-        .filter(|d| *d > 0.0)
-        .collect();
-    steps.sort_by(f64::total_cmp);
-    let step = steps.get(steps.len() / 2).copied();
+    let options = CsvSignalOptions::with_rate(ColumnRef::Name(column.to_string()), 1.0);
+    // Each step above zero of the column, in order, to `each`.
+    let steps = |each: &mut dyn FnMut(f64)| -> plethwire_records::Result<()> {
+        let mut blocks = CsvBlocks::open(path, std::slice::from_ref(&options.column), &options)?;
+        let mut out = [Vec::new()];
+        let mut before: Option<f64> = None;
+        while blocks.read_into(BLOCK_FRAMES, &mut out)? {
+            for &t in &out[0] {
+                if let Some(d) = before.map(|b| t - b).filter(|d| *d > 0.0) {
+                    each(d);
+                }
+                before = Some(t);
+            }
+        }
+        Ok(())
+    };
+    let mut count = 0u64;
+    steps(&mut |_| count += 1)?;
+    let step = select(count / 2, |push| steps(push))?;
     [TimeUnit::S, TimeUnit::Ms, TimeUnit::Us]
         .into_iter()
         .find(|u| {

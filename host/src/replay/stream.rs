@@ -6,15 +6,17 @@
 //! signals streams each candidate once through the judge first; an
 //! accelerometer streams beside the pulse (`motion_stream`).
 //!
-//! A CSV file at a given rate streams too (`csv_stream`); one with a time
-//! column is read whole as before ([`load`]) and fed the same way.
+//! A CSV file streams too (`csv_stream`): at a given rate, or on the time
+//! base of its time column (measured in passes over the file, or
+//! resampled onto a grid as the rows come), with its accelerometer when
+//! asked for.
 
 use super::csv_stream::{open_csv, CsvColumn};
 use super::feed::{Kept, StreamError, BLOCK_FRAMES};
-use super::load::{is_csv, load, wanted_signals, Wanted};
+use super::load::{is_csv, wanted_signals, Wanted};
 use super::motion_stream::{self, motion_axes};
 use super::read_ahead::read_ahead;
-use super::{replay_with_motion, InputInfo, Polarity, Recording, Replay, ReplayError, Source};
+use super::{InputInfo, Polarity, Recording, Replay, ReplayError, Source};
 use crate::channel::{choose_among, ChannelChoice, Judge};
 use plethwire_dsp::pipeline::{Config, Pipeline};
 use plethwire_records::{BlockSample, LoadedSignal, Record};
@@ -24,9 +26,9 @@ use std::path::Path;
 #[derive(Debug)]
 pub struct Streamed {
     /// Everything about the recording but its samples: `head.signal.samples`
-    /// stays empty (the samples come from [`Streamed::blocks`]); the
-    /// accelerometer of a CSV recording, when asked for, is in
-    /// `head.motion` (a WFDB record's is streamed: [`Streamed::motion_names`]).
+    /// stays empty (the samples come from [`Streamed::blocks`]) and so does
+    /// `head.motion` (an accelerometer streams beside the pulse:
+    /// [`Streamed::motion_names`]).
     pub head: Recording,
     /// The signal's samples.
     pub len: u64,
@@ -35,10 +37,8 @@ pub struct Streamed {
 
 #[derive(Debug)]
 pub(super) enum Samples {
-    /// Read whole ([`load`]).
-    Whole(Vec<f64>),
-    /// A column of a CSV file at a given rate.
-    Csv(CsvColumn),
+    /// A column of a CSV file (with its accelerometer's, when asked for).
+    Csv(Box<CsvColumn>),
     /// Signal `index` of a WFDB record, negated when `negate`, with the
     /// accelerometer's signals and names when asked for.
     Wfdb {
@@ -53,24 +53,15 @@ pub(super) enum Samples {
 /// refusals), reading no samples yet when it is a WFDB record (with one
 /// signal named or the default; with or without an accelerometer), or
 /// only what the choice among several signals takes (each candidate
-/// streamed once through [`crate::channel::Judge`]); a CSV file at a
-/// given rate without a time column or accelerometer likewise, any other
-/// CSV file read whole.
+/// streamed once through [`crate::channel::Judge`]); a CSV file is read
+/// through as its checks and time base take, a pass at a time.
 pub fn open(path: &Path, source: &Source) -> Result<Streamed, ReplayError> {
     if is_csv(path) {
-        if let Some((head, column, rows)) = open_csv(path, source)? {
-            return Ok(Streamed {
-                len: rows,
-                head,
-                samples: Samples::Csv(column),
-            });
-        }
-        let mut head = load(path, source)?;
-        let samples = std::mem::take(&mut head.signal.samples);
+        let (head, column, samples) = open_csv(path, source)?;
         return Ok(Streamed {
-            len: samples.len() as u64,
+            len: samples,
             head,
-            samples: Samples::Whole(samples),
+            samples: Samples::Csv(Box::new(column)),
         });
     }
     let stem = path
@@ -132,6 +123,7 @@ impl Streamed {
                 motion: Some((_, names)),
                 ..
             } => Some(names),
+            Samples::Csv(column) => column.motion.as_ref().map(|(_, names)| names),
             _ => self.head.motion.as_ref().map(|m| &m.names),
         }
     }
@@ -151,16 +143,6 @@ impl Streamed {
         mut each: impl FnMut(&[T]) -> bool,
     ) -> Result<(), ReplayError> {
         match &self.samples {
-            Samples::Whole(samples) => {
-                let mut block: Vec<T> = Vec::with_capacity(BLOCK_FRAMES);
-                for chunk in samples.chunks(BLOCK_FRAMES) {
-                    block.clear();
-                    block.extend(chunk.iter().map(|&x| T::from_f64(x)));
-                    if !each(&block) {
-                        break;
-                    }
-                }
-            }
             Samples::Csv(column) => {
                 let mut block: Vec<T> = Vec::with_capacity(BLOCK_FRAMES);
                 column.blocks(|values| {
@@ -184,8 +166,10 @@ impl Streamed {
     /// The replay of the recording ([`super::replay_recording`] of it
     /// loaded whole gives the same).
     pub fn replay(&self, config: Config) -> Result<Replay, StreamError> {
-        if let (Some(motion), Samples::Whole(samples)) = (&self.head.motion, &self.samples) {
-            return Ok(replay_with_motion(samples, Some(motion), config)?);
+        if let Samples::Csv(column) = &self.samples {
+            if let Some((axes, _)) = &column.motion {
+                return column.replay_with_motion(axes, self.head.signal.fs, config);
+            }
         }
         if let Samples::Wfdb {
             record,

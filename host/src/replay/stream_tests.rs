@@ -215,3 +215,91 @@ fn a_csv_file_at_a_given_rate_streams_the_whole_reads_replay() {
         assert_eq!(open(file, &source).unwrap_err().to_string(), whole);
     }
 }
+
+/// The camera CSV of [`camera_csv`] with frame times (`time` in `unit`,
+/// jittered, a frame now and then dropped) and an accelerometer
+/// (`AX`, `AY`, `AZ`).
+fn timed_camera_csv(dir: &Path, unit: f64, steady: bool) -> PathBuf {
+    let plain = std::fs::read_to_string(camera_csv(dir)).unwrap();
+    let mut text = String::from("time,R,G,B,AX,AY,AZ\n");
+    let mut t = 1.5;
+    for (k, line) in plain.lines().skip(1).enumerate() {
+        if !steady && k % 97 == 40 {
+            t += 1.0 / 30.0; // dropped
+        }
+        let jitter = if steady {
+            0.0
+        } else {
+            ((k * 37) % 11) as f64 * 4e-4
+        };
+        let swing = (k as f64 * 0.27).sin() * if (600..1200).contains(&k) { 0.8 } else { 0.0 };
+        text += &format!("{:.6},{line},{swing:.4},0.01,1.0\n", (t + jitter) / unit);
+        t += 1.0 / 30.0;
+    }
+    let path = dir.join(format!("timed-{unit}-{steady}.csv"));
+    std::fs::write(&path, text).unwrap();
+    path
+}
+
+#[test]
+fn a_csv_file_with_a_time_column_streams_the_whole_reads_replay() {
+    let dir = tempfile::tempdir().unwrap();
+    for (unit, steady) in [(1.0, true), (1.0, false), (1e-3, false)] {
+        let path = timed_camera_csv(dir.path(), unit, steady);
+        for rate in [None, Some(40.0)] {
+            for motion in [None, Some(["AX", "AY", "AZ"].map(String::from))] {
+                let source = Source {
+                    signal: Some("R,G,B".into()),
+                    rate,
+                    // With a rate, the time column must be named.
+                    time_column: rate.map(|_| "time".to_string()),
+                    time_unit: (unit != 1.0).then(|| "ms".to_string()),
+                    motion: motion.clone(),
+                    ..Source::default()
+                };
+                let whole = load(&path, &source).unwrap();
+                let streamed = open(&path, &source).unwrap();
+                let what = format!("{path:?} {rate:?} {motion:?}");
+                assert_eq!(streamed.head.input, whole.input, "{what}");
+                assert!(whole.input.time_column.is_some(), "{what}");
+                assert_eq!(streamed.head.signal.fs, whole.signal.fs, "{what}");
+                assert_eq!(streamed.len, whole.signal.samples.len() as u64, "{what}");
+                assert_eq!(streamed.motion_names(), motion.as_ref(), "{what}");
+                let config = Config::new(whole.signal.fs as f32);
+                let want = replay_recording(&whole, config).unwrap();
+                assert!(want.beats.len() > 50, "{what}: {}", want.beats.len());
+                assert_eq!(streamed.replay(config).unwrap(), want, "{what}");
+            }
+        }
+    }
+    // Refused as the whole read refuses: a time that goes back, a bad
+    // accelerometer cell, a unit that puts the rate out of range.
+    let back = dir.path().join("back.csv");
+    std::fs::write(&back, "time,G\n0,1\n0.04,2\n0.03,3\n0.1,4\n").unwrap();
+    let bad_motion = dir.path().join("motion.csv");
+    std::fs::write(
+        &bad_motion,
+        "time,G,AX,AY,AZ\n0,1,0,0,1\n0.04,2,0,x,1\n0.08,3,0,0,1\n",
+    )
+    .unwrap();
+    let timed = timed_camera_csv(dir.path(), 1.0, false);
+    let cases = [
+        (&back, None, None),
+        (
+            &bad_motion,
+            Some(["AX", "AY", "AZ"].map(String::from)),
+            None,
+        ),
+        (&timed, None, Some("ms")),
+    ];
+    for (file, motion, unit) in cases {
+        let source = Source {
+            signal: Some("G".into()),
+            motion,
+            time_unit: unit.map(String::from),
+            ..Source::default()
+        };
+        let whole = load(file, &source).unwrap_err().to_string();
+        assert_eq!(open(file, &source).unwrap_err().to_string(), whole);
+    }
+}

@@ -1,25 +1,36 @@
-//! Columns of a CSV file at a known rate read a block of rows at a time,
-//! so a long file is never in memory whole: the same values, cells
-//! refused the same way, as [`read_csv_signals`](super::read_csv_signals)
-//! with [`Rate::Given`] reads at once. Files with a time column (measured
-//! or resampled rates) are read whole.
+//! Columns of a CSV file read a block of samples at a time, so a long
+//! file is never in memory whole: the same values, cells refused the
+//! same way, as [`read_csv_signals`](super::read_csv_signals) reads at
+//! once. At a known rate the rows are the samples; with a time column
+//! the time base is measured first in passes over the file
+//! (`time_passes`), and the rows are then the samples (uniform times) or
+//! walked onto the grid ([`crate::resample::GridWalk`]).
 
 use std::path::{Path, PathBuf};
 
 use super::table::Table;
-use super::{positive_rate, value_cell, ColumnRef, CsvSignalOptions, Rate};
+use super::time_base::time_cell;
+use super::time_passes::{measure, Measured};
+use super::{positive_rate, value_cell, ColumnRef, CsvSignalOptions, Rate, TimeBase};
 use crate::error::{Error, ErrorKind, Result};
+use crate::resample::GridWalk;
 
-/// Value columns of a CSV file at a known rate, a block of rows at a time
+/// Value columns of a CSV file, a block of samples at a time
 /// ([`CsvBlocks::read_into`]).
 pub struct CsvBlocks {
     path: PathBuf,
+    options: CsvSignalOptions,
     table: Table,
     cols: Vec<usize>,
     fs: f64,
-    empty_as_nan: bool,
     rows: u64,
     done: bool,
+    /// The time column and what measuring it found (its walk not started).
+    timed: Option<(usize, Measured)>,
+    /// The walk onto the grid of this read, when resampled.
+    walk: Option<GridWalk>,
+    /// One row's values, for the grid walk.
+    row: Vec<f64>,
 }
 
 impl std::fmt::Debug for CsvBlocks {
@@ -33,25 +44,58 @@ impl std::fmt::Debug for CsvBlocks {
 }
 
 impl CsvBlocks {
-    /// Open `columns` of the CSV file at `path` with `options`, whose rate
-    /// must be [`Rate::Given`] (a time column is refused: such files are
-    /// read whole).
+    /// Open `columns` of the CSV file at `path` with `options`. With a
+    /// time column ([`Rate::FromTime`], [`Rate::Resample`]) its time base
+    /// is measured first, in passes over the whole file that refuse what
+    /// the whole read refuses (a bad cell of these columns, times that do
+    /// not increase, a grid too large).
     pub fn open(
         path: impl AsRef<Path>,
         columns: &[ColumnRef],
         options: &CsvSignalOptions,
     ) -> Result<CsvBlocks> {
         let path = path.as_ref();
-        let invalid = |m: &str| Error::new(path, ErrorKind::Invalid(m.into()));
-        let Rate::Given(fs) = options.rate else {
-            return Err(invalid("a time column is read whole, not in blocks"));
+        let mut blocks = CsvBlocks::unmeasured(path, columns, options)?;
+        let (time, grid) = match &options.rate {
+            Rate::Given(fs) => {
+                blocks.fs = positive_rate(path, "sample rate", *fs)?;
+                return Ok(blocks);
+            }
+            Rate::FromTime(t) => (t, None),
+            Rate::Resample { time, fs } => (time, Some(positive_rate(path, "grid rate", *fs)?)),
         };
+        let tc = blocks.table.find(path, time)?;
+        let name = blocks.table.name(tc);
+        let measured = measure(path, options, (&blocks.cols, tc, &name), grid)?;
+        blocks.fs = measured.base.fs;
+        blocks.walk = measured.walk.clone();
+        blocks.timed = Some((tc, measured));
+        Ok(blocks)
+    }
+
+    /// Other `columns` of the same file on the same time base, without
+    /// measuring it again (their cells are checked as they are read).
+    pub fn open_like(&self, columns: &[ColumnRef]) -> Result<CsvBlocks> {
+        let mut blocks = CsvBlocks::unmeasured(&self.path, columns, &self.options)?;
+        blocks.fs = self.fs;
+        blocks.timed = self.timed.clone();
+        blocks.walk = self.timed.as_ref().and_then(|(_, m)| m.walk.clone());
+        Ok(blocks)
+    }
+
+    fn unmeasured(
+        path: &Path,
+        columns: &[ColumnRef],
+        options: &CsvSignalOptions,
+    ) -> Result<CsvBlocks> {
         if !options.header && columns.iter().any(|c| matches!(c, ColumnRef::Name(_))) {
-            return Err(invalid(
-                "columns of a file without a header can only be picked by index",
+            return Err(Error::new(
+                path,
+                ErrorKind::Invalid(
+                    "columns of a file without a header can only be picked by index".into(),
+                ),
             ));
         }
-        let fs = positive_rate(path, "sample rate", fs)?;
         let table = Table::open(path, options.header)?;
         let cols = columns
             .iter()
@@ -59,12 +103,29 @@ impl CsvBlocks {
             .collect::<Result<Vec<usize>>>()?;
         Ok(CsvBlocks {
             path: path.to_path_buf(),
+            options: options.clone(),
             table,
             cols,
-            fs,
-            empty_as_nan: options.empty_as_nan,
+            fs: 0.0,
             rows: 0,
             done: false,
+            timed: None,
+            walk: None,
+            row: Vec::new(),
+        })
+    }
+
+    /// The measured time base, with a time column.
+    pub fn time(&self) -> Option<TimeBase> {
+        self.timed.as_ref().map(|(_, m)| m.base)
+    }
+
+    /// Samples the columns hold, when known before reading them (with a
+    /// time column).
+    pub fn samples(&self) -> Option<u64> {
+        self.timed.as_ref().map(|(_, m)| match &m.walk {
+            Some(walk) => walk.grid_samples(),
+            None => m.rows,
         })
     }
 
@@ -78,16 +139,20 @@ impl CsvBlocks {
         self.fs
     }
 
-    /// The next at most `rows` rows (at least 1) into `out`, one buffer
-    /// per column (each emptied first, its memory kept): `true` when a row
-    /// was read, `false` at the end and after an error. A file without
-    /// data rows is an error, as in the whole read.
+    /// The next at most `rows` samples (at least 1) into `out`, one buffer
+    /// per column (each emptied first, its memory kept): `true` when a
+    /// sample was read, `false` at the end and after an error. A file
+    /// without data rows is an error, as in the whole read.
     pub fn read_into(&mut self, rows: usize, out: &mut [Vec<f64>]) -> Result<bool> {
         out.iter_mut().for_each(Vec::clear);
         if self.done {
             return Ok(false);
         }
-        let read = self.fill(rows.max(1), out);
+        let read = if self.walk.is_some() {
+            self.fill_grid(rows.max(1), out)
+        } else {
+            self.fill(rows.max(1), out)
+        };
         if !matches!(read, Ok(true)) {
             self.done = true;
         }
@@ -101,9 +166,9 @@ impl CsvBlocks {
             let Some((no, cells)) = self.table.next_row(path)? else {
                 break;
             };
+            let nan = self.options.empty_as_nan;
             for (column, &col) in out.iter_mut().zip(&self.cols) {
-                let v = value_cell(path, &self.table, no, col, &cells[col], self.empty_as_nan)?;
-                column.push(v);
+                column.push(value_cell(path, &self.table, no, col, &cells[col], nan)?);
             }
             n += 1;
         }
@@ -112,6 +177,34 @@ impl CsvBlocks {
             return Err(Error::new(path, ErrorKind::Syntax("no data rows".into())));
         }
         Ok(n > 0)
+    }
+
+    /// [`fill`](Self::fill) for rows resampled onto the grid: frames read
+    /// as the walk wants them, at most `limit` grid samples made.
+    fn fill_grid(&mut self, limit: usize, out: &mut [Vec<f64>]) -> Result<bool> {
+        let path = self.path.as_path();
+        let (Some((tc, _)), Some(walk)) = (&self.timed, &mut self.walk) else {
+            unreachable!("fill_grid is for a grid walk");
+        };
+        let mut made = 0;
+        loop {
+            made += walk.take(limit - made, out);
+            if made == limit || !walk.wants_frame() {
+                break;
+            }
+            let Some((no, cells)) = self.table.next_row(path)? else {
+                break;
+            };
+            self.row.clear();
+            let nan = self.options.empty_as_nan;
+            for &col in &self.cols {
+                self.row
+                    .push(value_cell(path, &self.table, no, col, &cells[col], nan)?);
+            }
+            let t = time_cell(path, &self.table, no, *tc, &cells[*tc], &self.options)?;
+            walk.push(t, &self.row);
+        }
+        Ok(made > 0)
     }
 }
 

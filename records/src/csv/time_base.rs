@@ -75,20 +75,7 @@ pub(super) fn on_time_base(
     let seconds: Vec<f64> = times.iter().map(|&(_, t)| t).collect();
     let fs = grid.unwrap_or_else(|| median_rate(&seconds));
     let span = seconds[seconds.len() - 1] - seconds[0];
-    // Bounded by the rows there are too: three rows spread over days
-    // must not fill a grid of tens of millions of samples.
-    let per_row = seconds.len() as f64 * MAX_GRID_SAMPLES_PER_ROW;
-    if span * fs > MAX_GRID_SAMPLES || span * fs > per_row {
-        return Err(Error::new(
-            path,
-            ErrorKind::Invalid(format!(
-                "a grid at {fs:.6} Hz over {span} s would hold {:.0} samples for {} rows, more than {} (at most {MAX_GRID_SAMPLES_PER_ROW} a row, {MAX_GRID_SAMPLES} in all)",
-                span * fs,
-                seconds.len(),
-                per_row.min(MAX_GRID_SAMPLES),
-            )),
-        ));
-    }
+    check_grid(path, fs, span, seconds.len() as u64)?;
     let resampler = Resampler {
         fs,
         max_gap_s: options.max_gap_s,
@@ -165,4 +152,23 @@ fn time_fit(path: &Path, column: &str, times: &[(usize, f64)]) -> Result<TimeBas
         unit: TimeUnit::S,
         resampled: None,
     })
+}
+
+/// Refuse a grid at `fs` Hz over `span` seconds of `rows` rows that
+/// would be too large, as the whole read does.
+pub(super) fn check_grid(path: &Path, fs: f64, span: f64, rows: u64) -> Result<()> {
+    // Bounded by the rows there are too: three rows spread over days
+    // must not fill a grid of tens of millions of samples.
+    let per_row = rows as f64 * MAX_GRID_SAMPLES_PER_ROW;
+    if span * fs > MAX_GRID_SAMPLES || span * fs > per_row {
+        return Err(Error::new(
+            path,
+            ErrorKind::Invalid(format!(
+                "a grid at {fs:.6} Hz over {span} s would hold {:.0} samples for {rows} rows, more than {} (at most {MAX_GRID_SAMPLES_PER_ROW} a row, {MAX_GRID_SAMPLES} in all)",
+                span * fs,
+                per_row.min(MAX_GRID_SAMPLES),
+            )),
+        ));
+    }
+    Ok(())
 }

@@ -8,8 +8,13 @@
 //! take by default. With `--accelerometer` the record also holds
 //! `ACCX`, `ACCY`, `ACCZ` (g, made up: gravity on z, the hand's movement
 //! on x during the bursts), for `--motion` and `--signal auto`. With
-//! `--ecg` it holds `ECG` too (mV, made up: a QRS and a T wave a fixed
-//! delay before each true pulse, on a slow wander), for `score --ecg`.
+//! `--csv` the same signals go to `<name>.csv` instead, after a column
+//! `time_ms` of uneven frame times (made up: each frame up to 0.3 periods
+//! early or late, one in 500 dropped), so the rows are resampled onto the
+//! median frame rate; no true beats are written for it. With `--ecg`
+//! the WFDB record holds `ECG` too (mV, made up: a QRS and a T wave a
+//! fixed delay before each true pulse, on a slow wander), for
+//! `score --ecg`.
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -20,16 +25,16 @@ use plethwire_synth::{generate, FingerOff, HrSchedule, MotionBurst, SynthOptions
 const HELP: &str = "\
 bench_record: a made-up long recording for the memory benchmark
 
-Usage: bench_record DIR [--hours H] [--rate HZ] [--name NAME] [--accelerometer] [--ecg]
+Usage: bench_record DIR [--hours H] [--rate HZ] [--name NAME] [--accelerometer] [--csv] [--ecg]
 
 Writes DIR/NAME.hea, NAME.dat (format 16, signal PLETH; with
 --accelerometer also ACCX, ACCY, ACCZ in g; with --ecg also ECG in mV)
-and NAME.peak (the true systolic peaks). Defaults: 24 hours, 500 Hz,
-name day.";
+and NAME.peak (the true systolic peaks); with --csv, DIR/NAME.csv instead: time_ms (uneven
+frame times), PLETH and the accelerometer's columns. Defaults: 24 hours,
+500 Hz, name day.";
 
 /// Stored units per g of the made-up accelerometer.
 const ACC_GAIN: f64 = 8_000.0;
-
 /// Stored units per mV of the made-up ECG.
 const ECG_GAIN: f64 = 1_000.0;
 /// The made-up ECG's R peak comes this long before its pulse's systolic
@@ -87,7 +92,7 @@ fn scenario(hours: f64, fs: f64) -> SynthOptions {
 fn run(args: &[String]) -> Result<String, String> {
     let mut dir: Option<PathBuf> = None;
     let (mut hours, mut fs, mut name) = (24.0, 500.0, "day".to_string());
-    let (mut accelerometer, mut ecg) = (false, false);
+    let (mut accelerometer, mut csv, mut ecg) = (false, false, false);
     let mut it = args.iter();
     while let Some(a) = it.next() {
         let mut value = |what: &str| it.next().cloned().ok_or(format!("{what} needs a value"));
@@ -104,6 +109,7 @@ fn run(args: &[String]) -> Result<String, String> {
             }
             "--name" => name = value("--name")?,
             "--accelerometer" => accelerometer = true,
+            "--csv" => csv = true,
             "--ecg" => ecg = true,
             "-h" | "--help" => return Ok(HELP.to_string()),
             _ if dir.is_none() => dir = Some(PathBuf::from(a)),
@@ -114,6 +120,9 @@ fn run(args: &[String]) -> Result<String, String> {
     std::fs::create_dir_all(&dir).map_err(|e| format!("{}: {e}", dir.display()))?;
     let options = scenario(hours, fs);
     let rec = generate(&options).map_err(|e| e.to_string())?;
+    if csv {
+        return write_csv(&dir, &name, &options, &rec.samples, accelerometer);
+    }
     let mut signals = vec![NewSignal::new("PLETH", "NU", GAIN, BASELINE)];
     if accelerometer {
         for axis in ["ACCX", "ACCY", "ACCZ"] {
@@ -153,6 +162,60 @@ fn run(args: &[String]) -> Result<String, String> {
         peaks.len(),
         ann.display()
     ))
+}
+
+/// `samples` (with the accelerometer's when asked for) as `dir/name.csv`
+/// after a column of uneven frame times in ms.
+fn write_csv(
+    dir: &std::path::Path,
+    name: &str,
+    options: &SynthOptions,
+    samples: &[f32],
+    accelerometer: bool,
+) -> Result<String, String> {
+    use std::io::Write;
+    let path = dir.join(format!("{name}.csv"));
+    let fail = |e: std::io::Error| format!("{}: {e}", path.display());
+    let mut out = std::io::BufWriter::new(std::fs::File::create(&path).map_err(fail)?);
+    let fs = options.sample_rate_hz;
+    let header = if accelerometer {
+        "time_ms,PLETH,ACCX,ACCY,ACCZ\n"
+    } else {
+        "time_ms,PLETH\n"
+    };
+    out.write_all(header.as_bytes()).map_err(fail)?;
+    let mut rows = 0u64;
+    for (n, &x) in samples.iter().enumerate() {
+        if n % 500 == 250 {
+            continue; // a dropped frame
+        }
+        // Up to 0.3 periods early or late, from a hash of the frame's
+        // number: the steps' median stays one period.
+        let jitter = mixed(n as u64) * 0.6 - 0.3;
+        let t_ms = (n as f64 + jitter) / fs * 1e3;
+        write!(out, "{t_ms:.3},{:.5}", f64::from(x)).map_err(fail)?;
+        if accelerometer {
+            let [ax, ay, az] = acceleration(options, n as f64 / fs);
+            write!(out, ",{ax:.4},{ay:.4},{az:.4}").map_err(fail)?;
+        }
+        out.write_all(b"\n").map_err(fail)?;
+        rows += 1;
+    }
+    out.flush().map_err(fail)?;
+    Ok(format!(
+        "{}: {rows} rows of uneven frames near {fs} Hz",
+        path.display()
+    ))
+}
+
+/// A number in [0, 1) from `n`, no two neighbours alike (the SplitMix64
+/// finaliser, Steele, Lea and Flood, OOPSLA 2014).
+fn mixed(n: u64) -> f64 {
+    let mut z = n.wrapping_add(0x9E37_79B9_7F4A_7C15);
+    z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+    z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+    z ^= z >> 31;
+    (z >> 11) as f64 / (1u64 << 53) as f64
 }
 
 /// The made-up wrist at `t` s, g: gravity on z, a slight tilt on y, and
