@@ -205,7 +205,7 @@ pub fn load_ecg(rec: &Recording, name: &str) -> Result<EcgReference, ReplayError
 }
 
 /// Frames of the ECG read at a time.
-const ECG_BLOCK_FRAMES: usize = 1 << 14;
+const ECG_BLOCK_FRAMES: usize = 1 << 12;
 
 pub(crate) fn numerics_path(record: &Path, suffix: &str) -> PathBuf {
     let mut name = record.file_name().unwrap_or_default().to_os_string();

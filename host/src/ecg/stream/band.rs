@@ -80,7 +80,8 @@ impl StreamBand {
         Self {
             forward: vec![(0.0, 0.0); sections.len()],
             sections,
-            ahead: Tail::default(),
+            // A block and its look-ahead, and the sample that completes them.
+            ahead: Tail::with_capacity(block.max(1) + margin + 1),
             next: 0,
             len,
             block: block.max(1),

@@ -11,6 +11,15 @@ pub(super) struct Tail {
 }
 
 impl Tail {
+    /// Room for `n` values before any allocation: a stage that knows how
+    /// many it keeps takes no more.
+    pub(super) fn with_capacity(n: usize) -> Self {
+        Self {
+            start: 0,
+            values: VecDeque::with_capacity(n),
+        }
+    }
+
     /// Append the stream's next value.
     pub(super) fn push(&mut self, v: f64) {
         self.values.push_back(v);
