@@ -29,8 +29,9 @@ pub struct CsvBlocks {
     timed: Option<(usize, Measured)>,
     /// The walk onto the grid of this read, when resampled.
     walk: Option<GridWalk>,
-    /// One row's values, for the grid walk.
+    /// One row's values, for the grid walk, and its cells.
     row: Vec<f64>,
+    cells: Vec<String>,
 }
 
 impl std::fmt::Debug for CsvBlocks {
@@ -112,6 +113,7 @@ impl CsvBlocks {
             timed: None,
             walk: None,
             row: Vec::new(),
+            cells: Vec::new(),
         })
     }
 
@@ -163,9 +165,10 @@ impl CsvBlocks {
         let path = self.path.as_path();
         let mut n = 0;
         while n < rows {
-            let Some((no, cells)) = self.table.next_row(path)? else {
+            let Some(no) = self.table.next_row_into(path, &mut self.cells)? else {
                 break;
             };
+            let cells = &self.cells;
             let nan = self.options.empty_as_nan;
             for (column, &col) in out.iter_mut().zip(&self.cols) {
                 column.push(value_cell(path, &self.table, no, col, &cells[col], nan)?);
@@ -192,9 +195,10 @@ impl CsvBlocks {
             if made == limit || !walk.wants_frame() {
                 break;
             }
-            let Some((no, cells)) = self.table.next_row(path)? else {
+            let Some(no) = self.table.next_row_into(path, &mut self.cells)? else {
                 break;
             };
+            let cells = &self.cells;
             self.row.clear();
             let nan = self.options.empty_as_nan;
             for &col in &self.cols {

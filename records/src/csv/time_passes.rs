@@ -39,7 +39,8 @@ fn time_pass(
     mut each: impl FnMut(usize, f64),
 ) -> Result<()> {
     let mut table = Table::open(path, options.header)?;
-    while let Some((no, cells)) = table.next_row(path)? {
+    let mut cells = Vec::new();
+    while let Some(no) = table.next_row_into(path, &mut cells)? {
         each(no, time_cell(path, &table, no, tc, &cells[tc], options)?);
     }
     Ok(())
@@ -71,7 +72,8 @@ fn first_pass(
         last: 0.0,
         disorder: None,
     };
-    while let Some((no, cells)) = table.next_row(path)? {
+    let mut cells = Vec::new();
+    while let Some(no) = table.next_row_into(path, &mut cells)? {
         for &col in cols {
             value_cell(path, &table, no, col, &cells[col], options.empty_as_nan)?;
         }
