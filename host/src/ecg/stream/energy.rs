@@ -10,12 +10,6 @@ use crate::ecg::decisions::{learning_len, refractory, steepest, Candidate, Decis
 use crate::ecg::pan_tompkins::stage_widths;
 use std::collections::VecDeque;
 
-/// A local maximum still open: the first sample of a rising flat top.
-#[derive(Debug, Clone, Copy)]
-struct Open {
-    top: Candidate,
-}
-
 /// Band values in, QRS sample indices out.
 pub(super) struct StreamEnergy {
     fs: f64,
@@ -30,7 +24,8 @@ pub(super) struct StreamEnergy {
     /// Next energy index to compute.
     next: usize,
     last_energy: f64,
-    open: Option<Open>,
+    /// A local maximum still open: the first sample of a rising flat top.
+    open: Option<Candidate>,
     /// Local maxima within the refractory period of the oldest undecided one.
     maxima: VecDeque<Candidate>,
     undecided: usize,
@@ -117,20 +112,18 @@ impl StreamEnergy {
     /// [`crate::ecg::stages::local_maxima`] one sample at a time.
     fn maximum_step(&mut self, g: usize, e: f64) {
         if let Some(open) = self.open {
-            if e == open.top.v {
+            if e == open.v {
                 return;
             }
-            if e < open.top.v {
-                self.push_maximum(open.top);
+            if e < open.v {
+                self.push_maximum(open);
             }
             self.open = None;
         }
         if g >= 1 && e > self.last_energy {
             let window = g.saturating_sub(self.half)..(g + self.half + 1).min(self.len);
             let steep = steepest(window.map(|i| self.slope.at(i)));
-            self.open = Some(Open {
-                top: Candidate { p: g, v: e, steep },
-            });
+            self.open = Some(Candidate { p: g, v: e, steep });
         }
     }
 

@@ -9,8 +9,8 @@
 //! decision rules of J. Pan and W. J. Tompkins, "A real-time QRS
 //! detection algorithm", IEEE Trans. Biomed. Eng. 32(3):230-236, 1985);
 //! the placing of each R peak on the ECG; the median and the median
-//! absolute deviation (exact, [`plethwire_records::order_stat`], up to
-//! four passes each); the runs at the rails. The band-pass's backward run
+//! absolute deviation (exact, [`plethwire_records::order_stat`], a few
+//! passes each); the runs at the rails. The band-pass's backward run
 //! starts from a look-ahead and is checked bit for bit at every block
 //! boundary (module `band`); when it does not settle, it runs from the
 //! true end through a temporary file (module `spill`, 8 bytes a sample on
