@@ -5,7 +5,9 @@
 //! choice among its four signals (`--signal auto`), and a CSV file of the
 //! same hour near `check_csv_rate_hz` with uneven frame times (resampled
 //! onto the median frame rate as its rows come) replayed with its
-//! accelerometer, raise this process's peak
+//! accelerometer, and the ECG reference `score --ecg` adds, streamed
+//! from a made-up ECG beside the pulse of a third WFDB hour, raise this
+//! process's peak
 //! resident memory (Linux `VmHWM`, in kB: a count, not a timing) by no
 //! more than the budget in docs/performance.toml, which is well under
 //! what the samples alone would take read whole. The day-long figures
@@ -15,11 +17,13 @@
 
 use std::path::Path;
 
+use plethwire::ecg::{EcgReference, RecordSource};
 use plethwire::replay::{open, Source};
 use plethwire::report::{excerpt_for, BandPass, TraceBuilder};
 use plethwire::score::records::{score_all, References};
 use plethwire_checks::repo_root;
 use plethwire_dsp::pipeline::Config;
+use plethwire_records::Record;
 use serde::Deserialize;
 
 #[derive(Deserialize)]
@@ -72,6 +76,8 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
     make_record(dir.path(), b.check_hours, b.check_rate_hz, &with_motion);
     let as_csv = ["--accelerometer", "--csv", "--name", "frames"];
     make_record(dir.path(), b.check_hours, b.check_csv_rate_hz, &as_csv);
+    let with_ecg = ["--ecg", "--name", "heart"];
+    make_record(dir.path(), b.check_hours, b.check_rate_hz, &with_ecg);
     let record = dir.path().join("day");
     let before = peak_kb();
 
@@ -128,6 +134,10 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
         .expect("uneven frames are resampled");
     let timed_config = Config::new(timed.head.signal.fs as f32);
     let timed_run = timed.replay(timed_config).unwrap();
+    let heart = Record::open(dir.path().join("heart")).unwrap();
+    let ecg_index = heart.pick_signal(Some("ECG")).unwrap();
+    let mut ecg_source = RecordSource::new(&heart, ecg_index, 4096);
+    let ecg = EcgReference::streamed(&mut ecg_source, heart.signal_fs(ecg_index)).unwrap();
 
     let grown = peak_kb().saturating_sub(before);
     let samples = (b.check_hours * 3600.0 * b.check_rate_hz) as u64;
@@ -148,6 +158,14 @@ fn replay_score_and_the_report_pass_stay_within_the_memory_budget() {
         "the motion reference flags beats, it finds the same ones"
     );
     assert!(!scores.records.is_empty(), "the record was scored");
+    // The made-up ECG has an R peak before every true pulse: nearly all
+    // found (4254 of 4254 for the hour at 500 Hz when this was written).
+    let beats = scores.records[0].beats.as_ref().map_or(0, |m| m.tp + m.fn_);
+    assert!(
+        ecg.r_peaks.len().abs_diff(beats) * 100 <= beats,
+        "{} R peaks for {beats} true beats",
+        ecg.r_peaks.len()
+    );
     // One frame in 500 dropped (bench_record), the grid at the median step.
     let csv_hour = b.check_hours * 3600.0;
     assert!(

@@ -5,12 +5,16 @@
 //! rules on the signal alone ([`unusable_spans`]: no R peak for over 3 s,
 //! the ECG at its rails).
 //!
-//! Everything here runs offline on a whole recording on the PC; it is a
-//! reference for the streaming pipeline, not part of it.
+//! Everything here runs offline on the PC, on a whole recording or
+//! ([`stream`]) on one read a block at a time, several times over, with
+//! the same results; it is a reference for the streaming pipeline, not
+//! part of it.
 
 mod arrival;
+mod decisions;
 mod pan_tompkins;
 pub mod stages;
+pub mod stream;
 #[cfg(test)]
 mod test_ecg;
 mod usable;
@@ -20,6 +24,7 @@ pub use arrival::{
     MissedBeat,
 };
 pub use pan_tompkins::r_peaks;
+pub use stream::{BandBlocks, EcgSource, EcgStreamError, RecordSource, SliceSource};
 pub use usable::{
     gap_spans, rail_spans, unusable_spans, MAX_R_GAP_S, RAIL_MADS, RAIL_MARGIN_S, RAIL_RUN_S,
 };

@@ -89,7 +89,7 @@ pub fn rail_spans(ecg: &[f64], fs: f64) -> Vec<(u64, u64)> {
 }
 
 /// Sorted, overlapping or touching spans joined.
-fn merged(mut spans: Vec<(u64, u64)>) -> Vec<(u64, u64)> {
+pub(super) fn merged(mut spans: Vec<(u64, u64)>) -> Vec<(u64, u64)> {
     spans.retain(|&(a, b)| a < b);
     spans.sort_unstable();
     let mut out: Vec<(u64, u64)> = Vec::new();

@@ -3,7 +3,7 @@
 //! table, window table, strap R-R list, ECG R peaks).
 
 use super::windows::{read_rate_windows, RateWindow};
-use crate::ecg::EcgReference;
+use crate::ecg::{EcgReference, EcgStreamError, RecordSource};
 use crate::output_guard::record_base;
 use crate::replay::{Recording, ReplayError};
 use plethwire_records::{
@@ -184,19 +184,28 @@ pub fn load_ecg(rec: &Recording, name: &str) -> Result<EcgReference, ReplayError
             rec.path.display()
         )));
     }
-    let ecg = Record::open_with(&rec.path, &rec.record_options)?.load_signal(Some(name))?;
-    if ecg.fs != rec.signal.fs {
+    let record = Record::open_with(&rec.path, &rec.record_options)?;
+    let index = record.pick_signal(Some(name))?;
+    let fs = record.signal_fs(index);
+    if fs != rec.signal.fs {
         return Err(ReplayError::Refused(format!(
-            "{}: ECG signal '{name}' is at {} Hz, the pulse signal '{}' at {} Hz; they must be the same",
+            "{}: ECG signal '{name}' is at {fs} Hz, the pulse signal '{}' at {} Hz; they must be the same",
             rec.path.display(),
-            ecg.fs,
             rec.signal.name,
             rec.signal.fs
         )));
     }
-    EcgReference::new(&ecg.samples, ecg.fs)
-        .map_err(|e| ReplayError::Refused(format!("{}: {e}", rec.path.display())))
+    // Read a block at a time, several times over: memory does not grow
+    // with the record's length.
+    let mut source = RecordSource::new(&record, index, ECG_BLOCK_FRAMES);
+    EcgReference::streamed(&mut source, fs).map_err(|e| match e {
+        EcgStreamError::Read(e) => ReplayError::Records(e),
+        e => ReplayError::Refused(format!("{}: {e}", rec.path.display())),
+    })
 }
+
+/// Frames of the ECG read at a time.
+const ECG_BLOCK_FRAMES: usize = 1 << 12;
 
 pub(crate) fn numerics_path(record: &Path, suffix: &str) -> PathBuf {
     let mut name = record.file_name().unwrap_or_default().to_os_string();

@@ -11,7 +11,10 @@
 //! `--csv` the same signals go to `<name>.csv` instead, after a column
 //! `time_ms` of uneven frame times (made up: each frame up to 0.3 periods
 //! early or late, one in 500 dropped), so the rows are resampled onto the
-//! median frame rate; no true beats are written for it.
+//! median frame rate; no true beats are written for it. With `--ecg`
+//! the WFDB record holds `ECG` too (mV, made up: a QRS and a T wave a
+//! fixed delay before each true pulse, on a slow wander), for
+//! `score --ecg`.
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -22,16 +25,21 @@ use plethwire_synth::{generate, FingerOff, HrSchedule, MotionBurst, SynthOptions
 const HELP: &str = "\
 bench_record: a made-up long recording for the memory benchmark
 
-Usage: bench_record DIR [--hours H] [--rate HZ] [--name NAME] [--accelerometer] [--csv]
+Usage: bench_record DIR [--hours H] [--rate HZ] [--name NAME] [--accelerometer] [--csv] [--ecg]
 
 Writes DIR/NAME.hea, NAME.dat (format 16, signal PLETH; with
---accelerometer also ACCX, ACCY, ACCZ in g) and NAME.peak (the true
-systolic peaks); with --csv, DIR/NAME.csv instead: time_ms (uneven
+--accelerometer also ACCX, ACCY, ACCZ in g; with --ecg also ECG in mV)
+and NAME.peak (the true systolic peaks); with --csv, DIR/NAME.csv instead: time_ms (uneven
 frame times), PLETH and the accelerometer's columns. Defaults: 24 hours,
 500 Hz, name day.";
 
 /// Stored units per g of the made-up accelerometer.
 const ACC_GAIN: f64 = 8_000.0;
+/// Stored units per mV of the made-up ECG.
+const ECG_GAIN: f64 = 1_000.0;
+/// The made-up ECG's R peak comes this long before its pulse's systolic
+/// peak, seconds (a pulse arrival time of our own choosing).
+const ECG_LEAD_S: f64 = 0.25;
 
 /// Stored units per signal unit, and the stored value of zero: the made-up
 /// signal sits near 1.5 units, so it is stored around 0 with room for the
@@ -84,7 +92,7 @@ fn scenario(hours: f64, fs: f64) -> SynthOptions {
 fn run(args: &[String]) -> Result<String, String> {
     let mut dir: Option<PathBuf> = None;
     let (mut hours, mut fs, mut name) = (24.0, 500.0, "day".to_string());
-    let (mut accelerometer, mut csv) = (false, false);
+    let (mut accelerometer, mut csv, mut ecg) = (false, false, false);
     let mut it = args.iter();
     while let Some(a) = it.next() {
         let mut value = |what: &str| it.next().cloned().ok_or(format!("{what} needs a value"));
@@ -102,6 +110,7 @@ fn run(args: &[String]) -> Result<String, String> {
             "--name" => name = value("--name")?,
             "--accelerometer" => accelerometer = true,
             "--csv" => csv = true,
+            "--ecg" => ecg = true,
             "-h" | "--help" => return Ok(HELP.to_string()),
             _ if dir.is_none() => dir = Some(PathBuf::from(a)),
             _ => return Err(format!("unexpected argument {a:?}\n\n{HELP}")),
@@ -120,6 +129,10 @@ fn run(args: &[String]) -> Result<String, String> {
             signals.push(NewSignal::new(axis, "g", ACC_GAIN, 0));
         }
     }
+    let heart = ecg.then(|| demo_ecg(&rec.peak_indices(), fs, rec.samples.len()));
+    if ecg {
+        signals.push(NewSignal::new("ECG", "mV", ECG_GAIN, 0));
+    }
     let mut w = RecordWriter::create(&dir, &name, fs, &signals).map_err(|e| e.to_string())?;
     let mut frame = Vec::with_capacity(4);
     for (n, &x) in rec.samples.iter().enumerate() {
@@ -128,6 +141,9 @@ fn run(args: &[String]) -> Result<String, String> {
         frame.push(stored.clamp(-32_767, 32_767) as i32);
         if accelerometer {
             frame.extend(acceleration(&options, n as f64 / fs).map(|g| (g * ACC_GAIN) as i32));
+        }
+        if let Some(heart) = &heart {
+            frame.push((f64::from(heart[n]) * ECG_GAIN).round() as i32);
         }
         w.push_frame(&frame).map_err(|e| e.to_string())?;
     }
@@ -215,6 +231,36 @@ fn acceleration(options: &SynthOptions, t: f64) -> [f64; 3] {
         0.0
     };
     [swing, 0.12, 0.99]
+}
+
+/// A made-up ECG of `len` samples at `fs` Hz, mV: for each true pulse
+/// peak, Q, R, S and T waves as Gaussian bumps [`ECG_LEAD_S`] before it,
+/// on a 0.1 Hz wander of 0.2 mV.
+fn demo_ecg(peaks: &[usize], fs: f64, len: usize) -> Vec<f32> {
+    let mut x: Vec<f32> = (0..len)
+        .map(|n| (0.2 * (2.0 * std::f64::consts::PI * 0.1 * n as f64 / fs).sin()) as f32)
+        .collect();
+    // (offset s, width s, height mV) of Q, R, S, T.
+    let waves = [
+        (-0.025, 0.008, -0.15),
+        (0.0, 0.010, 1.0),
+        (0.03, 0.010, -0.25),
+        (0.22, 0.045, 0.3),
+    ];
+    for &p in peaks {
+        let r = p as f64 - ECG_LEAD_S * fs;
+        for (off, w, h) in waves {
+            let centre = r + off * fs;
+            let reach = (4.0 * w * fs) as isize;
+            for i in (centre as isize - reach)..=(centre as isize + reach) {
+                if let Some(v) = usize::try_from(i).ok().and_then(|i| x.get_mut(i)) {
+                    let d = (i as f64 - centre) / (w * fs);
+                    *v += (h * (-0.5 * d * d).exp()) as f32;
+                }
+            }
+        }
+    }
+    x
 }
 
 fn main() -> ExitCode {
