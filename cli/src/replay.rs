@@ -61,7 +61,7 @@ pub struct ReplayArgs {
     /// units), quality (template correlation, 0 to 1), verdict (good, or bad
     /// when any flag but no_interval is set) and flags: the flags set,
     /// joined by | (no_interval, implausible_interval, clipped,
-    /// low_correlation, input_replaced, motion).
+    /// low_correlation, input_replaced, motion, narrow).
     #[arg(long)]
     pub beats_csv: bool,
 

@@ -21,6 +21,10 @@ pub struct Candidate {
     pub onset: Option<u64>,
     /// Band-passed value at the peak (the detector's own measure).
     pub amplitude: f32,
+    /// The detector cannot tell at its rate whether this is a beat by its
+    /// own rule (Elgendi: a block one sample short of W1); its beat is
+    /// kept but not trusted ([`super::BeatFlags::NARROW`]).
+    pub uncertain: bool,
 }
 
 /// A beat detector at a fixed rate, with fixed memory.

@@ -71,6 +71,9 @@ pub struct Elgendi {
     short_in: usize,
     short_out: usize,
     w1: usize,
+    // The fewest samples a block may have and still be W1 wide
+    // ([`Self::block_width`]).
+    w1_maybe: usize,
     w2: usize,
     delay: usize,
     // The window lengths as divisors (`w1 as f32`, `w2 as f32`), converted
@@ -113,11 +116,13 @@ impl Elgendi {
         // The short window inside the long one (always so below 2 kHz), so
         // every age read below is under RING.
         let h1 = h1.min(h2);
+        let w1 = 2 * h1 + 1;
         Self {
             fs_hz,
             short_in: h2 - h1,
             short_out: h2 + h1 + 1,
-            w1: 2 * h1 + 1,
+            w1,
+            w1_maybe: (libm::ceilf(W1_S * fs_hz - 1.0).max(1.0) as usize).min(w1),
             w2: 2 * h2 + 1,
             delay: h2,
             w1_f: (2 * h1 + 1) as f32,
@@ -146,6 +151,35 @@ impl Elgendi {
     pub fn delay(&self) -> usize {
         self.delay
     }
+
+    /// What a block of interest `len` samples long is. The paper keeps a
+    /// block at least W1 wide. A block of `len` samples above the threshold
+    /// spans between `len − 1` and `len + 1` sample periods, so at the
+    /// detector's rate some blocks may or may not be W1 wide (at 62.5 Hz,
+    /// W1 is 6.94 periods and the short window 7 samples: a block of 6 may
+    /// be 6.94 wide or 5). Those are [`BlockWidth::Uncertain`]: their peak
+    /// is a candidate whose beat is not trusted.
+    pub fn block_width(&self, len: usize) -> BlockWidth {
+        if len >= self.w1 {
+            BlockWidth::Wide
+        } else if len >= self.w1_maybe {
+            BlockWidth::Uncertain
+        } else {
+            BlockWidth::Narrow
+        }
+    }
+}
+
+/// A closed block of interest judged by its width ([`Elgendi::block_width`]).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum BlockWidth {
+    /// At least as many samples as the short window (W1): a beat.
+    Wide,
+    /// Fewer, but it may still span W1 at the detector's rate: a beat not
+    /// trusted.
+    Uncertain,
+    /// Too narrow to be W1 wide: no beat.
+    Narrow,
 }
 
 impl Detector for Elgendi {
@@ -182,8 +216,11 @@ impl Detector for Elgendi {
             self.block_len += 1;
             None
         } else if self.block_len > 0 {
-            let wide_enough = self.block_len >= self.w1;
+            let width = self.block_width(self.block_len);
             self.block_len = 0;
+            // A block that may be W1 wide counts as one for the offset's
+            // restarts too.
+            let wide_enough = width != BlockWidth::Narrow;
             if wide_enough {
                 self.idle_left = self.idle_limit;
                 self.narrow_run = 0;
@@ -200,6 +237,7 @@ impl Detector for Elgendi {
                 peak: self.best_t,
                 onset: None,
                 amplitude: self.best,
+                uncertain: width == BlockWidth::Uncertain,
             })
         } else {
             self.idle_left -= 1;
@@ -232,6 +270,21 @@ impl Detector for Elgendi {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_block_that_may_span_w1_at_the_detectors_rate_is_uncertain() {
+        // 62.5 Hz: W1 (111 ms, Elgendi et al. 2013) is 6.94 sample
+        // periods, the short window 7 samples; a block of 6 spans 5 to 7.
+        let d = Elgendi::new(62.5);
+        assert_eq!(d.block_width(7), BlockWidth::Wide);
+        assert_eq!(d.block_width(6), BlockWidth::Uncertain);
+        assert_eq!(d.block_width(5), BlockWidth::Narrow);
+        // 100 Hz: W1 is 11.1 periods, the window 11 samples; a block of
+        // 10 spans at most 11, so no width is uncertain.
+        let d = Elgendi::new(100.0);
+        assert_eq!(d.block_width(11), BlockWidth::Wide);
+        assert_eq!(d.block_width(10), BlockWidth::Narrow);
+    }
 
     /// Candidates' times (s) of a pulse train at 62.5 Hz, 150 bpm: a
     /// half-sine of height `big` for 20 s, then of height 1.

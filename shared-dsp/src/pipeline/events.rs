@@ -23,24 +23,30 @@ impl BeatFlags {
     /// period, or the intervals before it disagree (see
     /// [`super::motion`]).
     pub const MOTION: u8 = 1 << 5;
+    /// The detector could not tell at its rate whether the pulse passes
+    /// its own test (Elgendi: a block of interest one sample short of W1),
+    /// so the beat may be noise.
+    pub const NARROW: u8 = 1 << 6;
 
     /// Flags that make a beat unfit for heart rate and HRV.
     pub const BAD: u8 = Self::IMPLAUSIBLE_INTERVAL
         | Self::CLIPPED
         | Self::LOW_CORRELATION
         | Self::INPUT_REJECTED
-        | Self::MOTION;
+        | Self::MOTION
+        | Self::NARROW;
 
     /// Every flag with its name, in bit order: the one name CSV, JSON and
     /// the terminal use (`docs/vocabulary.md`; the terminal writes the
     /// underscore as a space).
-    pub const NAMES: [(u8, &'static str); 6] = [
+    pub const NAMES: [(u8, &'static str); 7] = [
         (Self::NO_INTERVAL, "no_interval"),
         (Self::IMPLAUSIBLE_INTERVAL, "implausible_interval"),
         (Self::CLIPPED, "clipped"),
         (Self::LOW_CORRELATION, "low_correlation"),
         (Self::INPUT_REJECTED, "input_replaced"),
         (Self::MOTION, "motion"),
+        (Self::NARROW, "narrow"),
     ];
 
     /// The names of the flags set, in bit order.

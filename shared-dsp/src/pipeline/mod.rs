@@ -62,7 +62,7 @@ pub use band::{BandSections, BandSource};
 pub use bookkeeping::{HRV_INTERVALS, RECENT_INTERVALS};
 pub use condition::Rails;
 pub use detector::{Candidate, Detector, DetectorKind};
-pub use elgendi::Elgendi;
+pub use elgendi::{BlockWidth, Elgendi};
 pub use events::{BeatEvent, BeatFlags, Output, SignalState, StateEvent};
 pub use motion::{MotionReference, MotionTracker, NoMotion, Verdict};
 pub use ring::{History, Ring, RunningSum, Trace};
@@ -380,9 +380,12 @@ impl Pipeline {
     ) -> BeatEvent {
         let traces = &self.traces;
         let mut shape = None;
-        let judged = self
+        let mut judged = self
             .book
             .judge(at, traces.banded(), traces.marks(), motion, &mut shape);
+        if cand.uncertain {
+            judged.flags.0 |= BeatFlags::NARROW;
+        }
         let trusted = self.book.record(at, &judged, shape.as_ref());
         let good = judged.flags.is_good();
         self.monitor.beat(at.peak, good);

@@ -306,6 +306,7 @@ impl Zong {
             peak: now - best_age as u64,
             onset: Some(now - onset_age as u64),
             amplitude: best,
+            uncertain: false,
         })
     }
 }

@@ -22,7 +22,7 @@ const LABELS: u32 = 150;
 
 /// The flags in the order of their rows, with their names
 /// (`docs/vocabulary.md`).
-pub const FLAG_ROWS: [(u8, &str); 6] = BeatFlags::NAMES;
+pub const FLAG_ROWS: [(u8, &str); 7] = BeatFlags::NAMES;
 
 /// The colour of a signal state's span.
 pub fn state_colour(s: SignalState) -> Rgb {
