@@ -12,11 +12,11 @@
 use std::path::Path;
 
 use plethwire_dsp::pipeline::{check_sample_rate, Config, MotionPipeline};
-use plethwire_records::{csv_column_names, ColumnRef, CsvBlocks, CsvSignalOptions, LoadedSignal};
+use plethwire_records::{ColumnRef, CsvBlocks, LoadedSignal};
 
-use super::csv_time::{csv_rate_options, MEASURED_RATE_HINT};
+use super::csv_time::MEASURED_RATE_HINT;
 use super::feed::{Kept, StreamError, BLOCK_FRAMES};
-use super::load::{value_columns, COLOUR_CHANNELS};
+use super::load::{csv_plan, COLOUR_CHANNELS};
 use super::{Polarity, Recording, Replay, ReplayError, Source};
 use crate::channel::{choose_among, ChannelChoice, Judge};
 use crate::motion::MotionLoadError;
@@ -40,13 +40,7 @@ pub(super) fn open_csv(
     source: &Source,
 ) -> Result<(Recording, CsvColumn, u64), ReplayError> {
     let fail = |m: String| ReplayError::Refused(format!("{}: {m}", path.display()));
-    let names = csv_column_names(path)?;
-    let (options, mut input, time) = csv_rate_options(path, source, &names)?;
-    let columns = value_columns(path, source, &names, time.as_deref())?;
-    let options = CsvSignalOptions {
-        column: columns[0].clone(),
-        ..options
-    };
+    let (options, columns, mut input, time) = csv_plan(path, source)?;
     let mut blocks = CsvBlocks::open(path, &columns, &options)?;
     input.resampled = blocks.time().and_then(|t| t.resampled);
     let (fs, names) = (blocks.fs(), blocks.names());

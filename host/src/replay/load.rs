@@ -225,7 +225,7 @@ fn pick(
 
 /// The value columns of a CSV recording with columns `names` and time
 /// column `time`: the one or several named, else all but the time column.
-pub(super) fn value_columns(
+fn value_columns(
     path: &Path,
     source: &Source,
     names: &[String],
@@ -249,15 +249,26 @@ pub(super) fn value_columns(
     Ok(values.into_iter().map(ColumnRef::Name).collect())
 }
 
-fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, ReplayError> {
-    let fail = |m: String| ReplayError::Refused(format!("{}: {m}", path.display()));
+/// How to read the CSV recording at `path`: the options (the first value
+/// column as their column), the value columns, how the samples are got so
+/// far, and the time column's name.
+pub(super) fn csv_plan(
+    path: &Path,
+    source: &Source,
+) -> Result<(CsvSignalOptions, Vec<ColumnRef>, InputInfo, Option<String>), ReplayError> {
     let names = csv_column_names(path)?;
-    let (options, mut input, time) = csv_rate_options(path, source, &names)?;
+    let (options, input, time) = csv_rate_options(path, source, &names)?;
     let columns = value_columns(path, source, &names, time.as_deref())?;
     let options = CsvSignalOptions {
         column: columns[0].clone(),
         ..options
     };
+    Ok((options, columns, input, time))
+}
+
+fn load_csv(path: &Path, name: String, source: &Source) -> Result<Recording, ReplayError> {
+    let fail = |m: String| ReplayError::Refused(format!("{}: {m}", path.display()));
+    let (options, columns, mut input, time) = csv_plan(path, source)?;
     let read = read_csv_signals(path, &columns, &options)?;
     input.resampled = read.time.and_then(|t| t.resampled);
     let fs = read.signals[0].fs;
