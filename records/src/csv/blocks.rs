@@ -213,16 +213,18 @@ impl CsvBlocks {
 }
 
 #[cfg(test)]
-mod tests {
+pub(super) mod tests {
     use super::*;
     use crate::read_csv_signals;
 
-    fn read_all(
+    /// Every sample of `cols`, read `rows` at a time, and the reader at
+    /// its end (the timed files' tests use it too).
+    pub(in crate::csv) fn in_blocks(
         path: &Path,
         cols: &[ColumnRef],
         o: &CsvSignalOptions,
         rows: usize,
-    ) -> Result<Vec<Vec<f64>>> {
+    ) -> Result<(Vec<Vec<f64>>, CsvBlocks)> {
         let mut blocks = CsvBlocks::open(path, cols, o)?;
         let mut out = vec![Vec::new(); cols.len()];
         let mut all = vec![Vec::new(); cols.len()];
@@ -232,7 +234,16 @@ mod tests {
                 a.extend_from_slice(b);
             }
         }
-        Ok(all)
+        Ok((all, blocks))
+    }
+
+    fn read_all(
+        path: &Path,
+        cols: &[ColumnRef],
+        o: &CsvSignalOptions,
+        rows: usize,
+    ) -> Result<Vec<Vec<f64>>> {
+        in_blocks(path, cols, o, rows).map(|(all, _)| all)
     }
 
     #[test]

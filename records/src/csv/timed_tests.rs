@@ -15,24 +15,7 @@ fn bits(v: &[f64]) -> Vec<u64> {
     v.iter().map(|x| x.to_bits()).collect()
 }
 
-/// Every sample of `cols`, read `rows` at a time.
-fn in_blocks(
-    path: &Path,
-    cols: &[ColumnRef],
-    o: &CsvSignalOptions,
-    rows: usize,
-) -> Result<(Vec<Vec<f64>>, CsvBlocks)> {
-    let mut blocks = CsvBlocks::open(path, cols, o)?;
-    let mut out = vec![Vec::new(); cols.len()];
-    let mut all = vec![Vec::new(); cols.len()];
-    while blocks.read_into(rows, &mut out)? {
-        assert!(out[0].len() <= rows.max(1));
-        for (a, b) in all.iter_mut().zip(&out) {
-            a.extend_from_slice(b);
-        }
-    }
-    Ok((all, blocks))
-}
+use super::blocks::tests::in_blocks;
 
 fn check_same(path: &Path, o: &CsvSignalOptions) {
     let cols = [o.column.clone(), ColumnRef::Index(2)];
